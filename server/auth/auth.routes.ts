@@ -1,0 +1,98 @@
+import { z } from 'zod';
+import { BadgeSignInBody, ChangePasswordBody, InviteAcceptBody, InviteInfo, Me, ResetCompleteBody, ResetRequestBody, SignInBody } from '../../shared/auth';
+import { Ok } from '../../shared/common';
+import { audit } from '../audit/audit';
+import { AppError } from '../http/errors';
+import { defineRoute } from '../http/route';
+import { clearSession, issueSession } from '../http/session';
+import { findUserById } from '../users/users.repository';
+import {
+  acceptInvite, changePassword, completePasswordReset, inviteInfo, meOf, requestPasswordReset, signInWithBadge, signInWithPassword,
+} from './auth.service';
+
+const nowS = () => Math.floor(Date.now() / 1000);
+const deviceOf = (ua: string | undefined) => (ua ?? '').slice(0, 200) || null;
+
+export const authRoutes = [
+  defineRoute({
+    method: 'post', path: '/api/auth/sign-in', access: 'public', summary: 'Sign in with e-mail and password',
+    body: SignInBody, response: Me,
+    handler: async ({ deps, body, res, req }) => {
+      const user = await signInWithPassword(deps, body.email, body.password);
+      const t = nowS();
+      issueSession(deps, res, user.id, user.token_version, t);
+      await audit(deps.db, { userId: user.id, action: 'sign-in', device: deviceOf(req.get('user-agent')) });
+      return meOf(deps.db, user, t);
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/badge-sign-in', access: 'public', summary: 'Sign in on a shared tablet with badge code and PIN',
+    body: BadgeSignInBody, response: Me,
+    handler: async ({ deps, body, res, req }) => {
+      const user = await signInWithBadge(deps, body.badge, body.pin);
+      const t = nowS();
+      issueSession(deps, res, user.id, user.token_version, t);
+      await audit(deps.db, { userId: user.id, action: 'badge-sign-in', device: deviceOf(req.get('user-agent')) });
+      return meOf(deps.db, user, t);
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/sign-out', access: 'public', summary: 'Sign out (clears the session cookie)',
+    response: Ok,
+    handler: ({ deps, res }) => {
+      clearSession(deps, res);
+      return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'get', path: '/api/auth/me', access: 'signed-in', summary: 'Who is signed in',
+    response: Me,
+    handler: async ({ deps, user }) => {
+      const row = await findUserById(deps.db, user!.id);
+      if (!row) throw new AppError('unauthenticated', 'unauthenticated', 'Please sign in');
+      return meOf(deps.db, row, user!.authTime);
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/password', access: ['admin', 'supervisor', 'engineer'], summary: 'Change your own password',
+    body: ChangePasswordBody, response: Ok,
+    handler: async ({ deps, body, user, res }) => {
+      await changePassword(deps, user!.id, body.currentPassword, body.newPassword);
+      // The token version moved on: give this device a fresh session so only other devices sign out.
+      const row = (await findUserById(deps.db, user!.id))!;
+      issueSession(deps, res, row.id, row.token_version, user!.authTime);
+      return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/reset-request', access: 'public', summary: 'Mail a password-reset link (always answers ok)',
+    body: ResetRequestBody, response: Ok,
+    handler: async ({ deps, body }) => {
+      await requestPasswordReset(deps, body.email);
+      return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/reset', access: 'public', summary: 'Set a new password with a reset link',
+    body: ResetCompleteBody, response: Ok,
+    handler: async ({ deps, body }) => {
+      await completePasswordReset(deps, body.token, body.newPassword);
+      return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'get', path: '/api/auth/invites/:token', access: 'public', summary: 'What an invitation is for',
+    response: InviteInfo,
+    handler: ({ deps, params }) => inviteInfo(deps.db, z.string().max(200).parse(params.token)),
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/invites/accept', access: 'public', summary: 'Accept an invitation: choose a name and password',
+    body: InviteAcceptBody, response: Me, status: 201,
+    handler: async ({ deps, body, res }) => {
+      const user = await acceptInvite(deps, body.token, body.name, body.password);
+      const t = nowS();
+      issueSession(deps, res, user.id, user.token_version, t);
+      return meOf(deps.db, user, t);
+    },
+  }),
+];

@@ -1,0 +1,138 @@
+import type { Knex } from 'knex';
+import type { Me, InviteInfo } from '../../shared/auth';
+import type { Role } from '../../shared/common';
+import type { Deps } from '../deps';
+import { AppError } from '../http/errors';
+import { SESSION_MAX_S } from '../http/session';
+import { listSitesOf } from '../sites/sites.repository';
+import { bumpTokenVersion, findUserByBadge, findUserByEmail, findUserById, insertUser, type DbUserRow } from '../users/users.repository';
+import { audit } from '../audit/audit';
+import { newToken, sha256 } from './tokens';
+
+const RESET_TTL_MS = 60 * 60_000;
+
+const invalidCredentials = () => new AppError('unauthenticated', 'invalid_credentials', 'Those sign-in details are not right');
+
+function tooMany(waitMs: number): AppError {
+  const s = Math.ceil(waitMs / 1000);
+  return new AppError('rate_limited', 'too_many_attempts', `Too many failed attempts; try again in ${s} s`, { retryAfterSeconds: s });
+}
+
+export async function meOf(db: Knex, user: DbUserRow, authTime: number): Promise<Me> {
+  const sites = await listSitesOf(db, user.id, user.role);
+  return {
+    id: user.id,
+    name: user.name,
+    email: user.email,
+    role: user.role,
+    badge: user.badge,
+    sites: sites.map((s) => ({ id: s.id, code: s.code, name: s.name })),
+    sessionEndsAt: new Date((authTime + SESSION_MAX_S) * 1000).toISOString(),
+  };
+}
+
+/**
+ * Checks a secret against the user's hash. Unknown users and users without that kind of secret
+ * cost the same verify and get the same answer, so the response never tells which it was.
+ */
+async function verifySecret(deps: Deps, key: string, user: DbUserRow | undefined, kind: 'password' | 'pin', secret: string): Promise<DbUserRow> {
+  const wait = deps.backoff.waitMs(key);
+  if (wait > 0) throw tooMany(wait);
+  const hash = kind === 'password' ? user?.password_hash : user?.pin_hash;
+  const ok = hash ? await deps.hasher.verify(hash, secret) : (await deps.hasher.dummyVerify(secret), false);
+  if (!ok || !user || !user.active) {
+    deps.backoff.fail(key);
+    throw invalidCredentials();
+  }
+  deps.backoff.succeed(key);
+  return user;
+}
+
+export async function signInWithPassword(deps: Deps, email: string, password: string): Promise<DbUserRow> {
+  const user = await findUserByEmail(deps.db, email);
+  // Pickers sign in with badge and PIN only.
+  const eligible = user && user.role !== 'picker' ? user : undefined;
+  return verifySecret(deps, `e:${email}`, eligible, 'password', password);
+}
+
+export async function signInWithBadge(deps: Deps, badge: string, pin: string): Promise<DbUserRow> {
+  const user = await findUserByBadge(deps.db, badge);
+  return verifySecret(deps, `b:${badge.toLowerCase()}`, user, 'pin', pin);
+}
+
+export async function changePassword(deps: Deps, userId: number, current: string, next: string): Promise<void> {
+  const user = await findUserById(deps.db, userId);
+  if (!user?.password_hash || !(await deps.hasher.verify(user.password_hash, current))) {
+    throw new AppError('validation', 'validation_failed', 'The current password is not right', [{ field: 'currentPassword', message: 'not right' }]);
+  }
+  const hash = await deps.hasher.hash(next);
+  await deps.db('users').where({ id: userId }).update({ password_hash: hash });
+  await bumpTokenVersion(deps.db, userId);
+  await audit(deps.db, { userId, action: 'password.changed' });
+}
+
+export async function requestPasswordReset(deps: Deps, email: string): Promise<void> {
+  const user = await findUserByEmail(deps.db, email);
+  if (!user || !user.active || user.role === 'picker') return;
+  const { token, hash } = newToken();
+  const now = Date.now();
+  await deps.db('password_resets').insert({ user_id: user.id, token_hash: hash, expires_at: new Date(now + RESET_TTL_MS).toISOString(), created_at: new Date(now).toISOString() });
+  const link = `${deps.config.publicUrl}/reset-password?token=${token}`;
+  await deps.mailer.send({
+    to: email,
+    subject: 'Reset your Aislewright password',
+    text: `Hello ${user.name},\n\nSomeone asked to reset the password of your Aislewright account. To choose a new one, open this link within 60 minutes:\n\n${link}\n\nIf it was not you, ignore this message; your password stays as it is.\n`,
+  });
+}
+
+export async function completePasswordReset(deps: Deps, token: string, newPassword: string): Promise<void> {
+  const row = await deps.db('password_resets').where({ token_hash: sha256(token) }).first<{ id: number; user_id: number; expires_at: string; used_at: string | null } | undefined>();
+  if (!row || row.used_at || row.expires_at < new Date().toISOString()) {
+    throw new AppError('validation', 'invalid_token', 'This reset link is not valid any more; ask for a new one');
+  }
+  const hash = await deps.hasher.hash(newPassword);
+  await deps.db.transaction(async (trx) => {
+    // Single use, even under a double submit: the update only succeeds while used_at is empty.
+    const n = await trx('password_resets').where({ id: row.id }).whereNull('used_at').update({ used_at: new Date().toISOString() });
+    if (n !== 1) throw new AppError('validation', 'invalid_token', 'This reset link has already been used');
+    await trx('users').where({ id: row.user_id }).update({ password_hash: hash });
+    await bumpTokenVersion(trx, row.user_id);
+  });
+  await audit(deps.db, { userId: row.user_id, action: 'password.reset' });
+}
+
+interface DbInvite {
+  id: number;
+  email: string;
+  role: Role;
+  site_ids: string;
+  token_hash: string;
+  expires_at: string;
+  accepted_at: string | null;
+}
+
+async function liveInvite(db: Knex, token: string): Promise<DbInvite> {
+  const inv = await db<DbInvite>('invites').where({ token_hash: sha256(token) }).first();
+  if (!inv || inv.accepted_at || inv.expires_at < new Date().toISOString()) {
+    throw new AppError('not_found', 'invalid_token', 'This invitation is not valid any more; ask your admin for a new one');
+  }
+  return inv;
+}
+
+export async function inviteInfo(db: Knex, token: string): Promise<InviteInfo> {
+  const inv = await liveInvite(db, token);
+  return { email: inv.email, role: inv.role, expiresAt: inv.expires_at };
+}
+
+export async function acceptInvite(deps: Deps, token: string, name: string, password: string): Promise<DbUserRow> {
+  const inv = await liveInvite(deps.db, token);
+  if (await findUserByEmail(deps.db, inv.email)) throw new AppError('conflict', 'email_taken', 'An account with this e-mail already exists');
+  const hash = await deps.hasher.hash(password);
+  const id = await deps.db.transaction(async (trx) => {
+    const n = await trx('invites').where({ id: inv.id }).whereNull('accepted_at').update({ accepted_at: new Date().toISOString() });
+    if (n !== 1) throw new AppError('not_found', 'invalid_token', 'This invitation has already been used');
+    return insertUser(trx, { name, email: inv.email, badge: null, role: inv.role, password_hash: hash, pin_hash: null, created_at: new Date().toISOString() }, JSON.parse(inv.site_ids) as number[]);
+  });
+  await audit(deps.db, { userId: id, action: 'invite.accepted', subject: inv.email });
+  return (await findUserById(deps.db, id))!;
+}

@@ -1,0 +1,18 @@
+import type { Logger } from 'pino';
+import type { Config } from './config';
+import type { Db } from './db/knex';
+import type { Mailer } from './mail/mailer';
+import type { Hasher } from './auth/hasher';
+import type { SignInBackoff } from './auth/backoff';
+
+/** Everything the app needs, built in main.ts (or a test helper) and passed to createApp. */
+export interface Deps {
+  config: Config;
+  db: Db;
+  mailer: Mailer;
+  hasher: Hasher;
+  backoff: SignInBackoff;
+  jwtSecret: string;
+  logger: Logger;
+  version: string;
+}

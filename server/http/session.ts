@@ -1,0 +1,69 @@
+import jwt from 'jsonwebtoken';
+import type { Request, Response } from 'express';
+import type { Role } from '../../shared/common';
+import type { Deps } from '../deps';
+
+export const SESSION_COOKIE = 'aw_session';
+const ISSUER = 'aislewright';
+const AUDIENCE = 'aislewright-app';
+/** Idle limit: the token lives 15 minutes and is renewed while the user is active. */
+export const TOKEN_TTL_S = 15 * 60;
+/** Renew when less than this remains, so an active user never drops out. */
+const RENEW_BELOW_S = 10 * 60;
+/** Absolute limit: one shift. */
+export const SESSION_MAX_S = 10 * 60 * 60;
+
+export interface SessionClaims {
+  sub: string;
+  /** users.token_version when issued. */
+  ver: number;
+  /** Sign-in time, seconds since epoch; the absolute limit counts from here. */
+  auth: number;
+}
+
+export interface SessionUser {
+  id: number;
+  role: Role;
+  name: string;
+  siteIds: number[];
+  authTime: number;
+}
+
+export function issueSession(deps: Deps, res: Response, userId: number, tokenVersion: number, authTime: number): void {
+  const token = jwt.sign({ ver: tokenVersion, auth: authTime } satisfies Omit<SessionClaims, 'sub'>, deps.jwtSecret, {
+    algorithm: 'HS256',
+    subject: String(userId),
+    issuer: ISSUER,
+    audience: AUDIENCE,
+    expiresIn: TOKEN_TTL_S,
+  });
+  res.cookie(SESSION_COOKIE, token, {
+    httpOnly: true,
+    sameSite: 'strict',
+    secure: deps.config.COOKIE_SECURE,
+    path: '/',
+    maxAge: TOKEN_TTL_S * 1000,
+  });
+}
+
+export function clearSession(deps: Deps, res: Response): void {
+  res.clearCookie(SESSION_COOKIE, { httpOnly: true, sameSite: 'strict', secure: deps.config.COOKIE_SECURE, path: '/' });
+}
+
+/** Verified claims, or null for a missing, forged, expired or over-age token. */
+export function readSession(deps: Deps, req: Request): (SessionClaims & { exp: number }) | null {
+  const token: unknown = req.cookies?.[SESSION_COOKIE];
+  if (typeof token !== 'string' || token.length === 0) return null;
+  try {
+    const claims = jwt.verify(token, deps.jwtSecret, { algorithms: ['HS256'], issuer: ISSUER, audience: AUDIENCE }) as jwt.JwtPayload;
+    if (typeof claims.sub !== 'string' || typeof claims.ver !== 'number' || typeof claims.auth !== 'number' || typeof claims.exp !== 'number') return null;
+    if (Date.now() / 1000 - claims.auth > SESSION_MAX_S) return null;
+    return { sub: claims.sub, ver: claims.ver, auth: claims.auth, exp: claims.exp };
+  } catch {
+    return null;
+  }
+}
+
+export function shouldRenew(exp: number): boolean {
+  return exp - Date.now() / 1000 < RENEW_BELOW_S;
+}

@@ -1,0 +1,31 @@
+import { z } from 'zod';
+import { OutboxMessage } from '../../shared/sites';
+import { notFound } from '../http/errors';
+import { defineRoute } from '../http/route';
+import { getOutboxAttachment, getOutboxMessage, listOutbox } from './mailer';
+
+const idOf = (p: Record<string, string>, key = 'id') => Number(p[key]);
+
+export const mailRoutes = [
+  defineRoute({
+    method: 'get', path: '/api/mail/outbox', access: ['admin'], summary: 'Mail outbox, newest first',
+    response: z.array(OutboxMessage),
+    handler: ({ deps }) => listOutbox(deps.db),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/mail/outbox/:id', access: ['admin'], summary: 'One outbox message',
+    response: OutboxMessage,
+    handler: async ({ deps, params }) => (await getOutboxMessage(deps.db, idOf(params))) ?? Promise.reject(notFound('Message')),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/mail/outbox/:id/attachments/:index', access: ['admin'], summary: 'Download an attachment',
+    handler: async ({ deps, params, res }) => {
+      const a = await getOutboxAttachment(deps.db, idOf(params), idOf(params, 'index'));
+      if (!a) throw notFound('Attachment');
+      res.setHeader('Content-Type', a.contentType);
+      res.setHeader('Content-Disposition', `attachment; filename="${a.filename.replace(/[^\w.-]/g, '_')}"`);
+      res.send(a.content);
+      return undefined;
+    },
+  }),
+];

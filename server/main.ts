@@ -1,0 +1,73 @@
+/** Start-up: config → secret → database → migrations → demo seed → app → listen. */
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { randomBytes } from 'node:crypto';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { pino } from 'pino';
+import { createApp } from './app';
+import { SignInBackoff } from './auth/backoff';
+import { createHasher } from './auth/hasher';
+import { loadConfig } from './config';
+import { migrateLatest, openDb } from './db/knex';
+import { createMailer } from './mail/mailer';
+import { demoSeeders } from './seed/seeders';
+import { seedDemoIfEmpty } from './seed/demo';
+import { VERSION } from './version';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+
+/** JWT_SECRET from the environment, or one generated into the data folder on first start. */
+function jwtSecret(explicit: string | undefined, dataDir: string): string {
+  if (explicit) return explicit;
+  const file = join(dataDir, 'jwt-secret');
+  if (existsSync(file)) return readFileSync(file, 'utf8').trim();
+  mkdirSync(dataDir, { recursive: true });
+  const secret = randomBytes(48).toString('base64url');
+  writeFileSync(file, secret, { mode: 0o600 });
+  return secret;
+}
+
+async function main(): Promise<void> {
+  let config;
+  try {
+    config = loadConfig();
+  } catch (err) {
+    console.error((err as Error).message);
+    process.exit(1);
+  }
+  const logger = pino({ level: config.LOG_LEVEL, redact: ['req.headers.cookie', 'req.headers.authorization', '*.password', '*.pin', '*.token'] });
+  const dbFile = config.DATABASE_FILE === ':memory:' ? ':memory:' : resolve(config.DATABASE_FILE);
+  const db = openDb(dbFile);
+  await migrateLatest(db);
+  const hasher = createHasher();
+  const deps = {
+    config,
+    db,
+    hasher,
+    backoff: new SignInBackoff(),
+    mailer: createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM }),
+    jwtSecret: jwtSecret(config.JWT_SECRET, dbFile === ':memory:' ? join(root, 'data') : dirname(dbFile)),
+    logger,
+    version: VERSION,
+  };
+  const seeded = config.DEMO_SEED ? await seedDemoIfEmpty(db, hasher, demoSeeders) : null;
+  const app = createApp(deps, { clientDir: join(root, 'dist', 'client') });
+  const server = app.listen(config.PORT, config.HOST, () => {
+    const url = `http://localhost:${config.PORT}`;
+    console.log(`\nAislewright ${VERSION} is serving on ${url}`);
+    if (seeded) {
+      console.log('\nDemo site seeded (invented data). Demo sign-ins:');
+      for (const s of seeded) console.log(`  ${s.role.padEnd(10)} ${s.name.padEnd(14)} ${s.signIn.padEnd(34)} ${s.secret}`);
+      console.log(`  (pickers: open ${url}/sign-in/badge on the tablet)`);
+    }
+    console.log('');
+  });
+  const stop = () => {
+    server.close(() => void db.destroy().then(() => process.exit(0)));
+    setTimeout(() => process.exit(0), 3000).unref();
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+await main();

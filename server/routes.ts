@@ -1,0 +1,21 @@
+/**
+ * The route table: every API route, with who may call it beside it. `createApp` mounts only these;
+ * tests/server/access-table.test.ts fails if anything else is mounted or a route lacks a rule.
+ * A domain adds its routes by exporting an array from <domain>/<domain>.routes.ts and listing it here.
+ */
+import { authRoutes } from './auth/auth.routes';
+import type { AnyRoute } from './http/route';
+import { tokenRoutes } from './integrations/tokens.routes';
+import { mailRoutes } from './mail/mail.routes';
+import { siteRoutes } from './sites/sites.routes';
+import { systemRoutes } from './system/system.routes';
+import { userRoutes } from './users/users.routes';
+
+export const routeTable: readonly AnyRoute[] = [
+  ...systemRoutes,
+  ...authRoutes,
+  ...userRoutes,
+  ...siteRoutes,
+  ...tokenRoutes,
+  ...mailRoutes,
+];

@@ -1,0 +1,69 @@
+import type { Knex } from 'knex';
+import type { Role } from '../../shared/common';
+import type { CartProfile, Site, SiteSettings } from '../../shared/sites';
+
+type Q = Knex | Knex.Transaction;
+
+export interface DbSiteRow {
+  id: number;
+  code: string;
+  name: string;
+  timezone: string;
+  walking_speed_mps: number;
+  seconds_per_line: number;
+  seconds_per_stop: number;
+  confirm_scan: 'bin' | 'sku';
+  created_at: string;
+}
+
+interface DbCartProfileRow {
+  id: number;
+  site_id: number;
+  name: string;
+  totes: number;
+  max_kg: number;
+  max_litres: number;
+  archived: number;
+}
+
+export const settingsOf = (s: DbSiteRow): SiteSettings => ({
+  walkingSpeedMps: s.walking_speed_mps,
+  secondsPerLine: s.seconds_per_line,
+  secondsPerStop: s.seconds_per_stop,
+  confirmScan: s.confirm_scan,
+});
+
+export const settingsColumns = (p: Partial<SiteSettings>): Partial<DbSiteRow> => ({
+  ...(p.walkingSpeedMps !== undefined && { walking_speed_mps: p.walkingSpeedMps }),
+  ...(p.secondsPerLine !== undefined && { seconds_per_line: p.secondsPerLine }),
+  ...(p.secondsPerStop !== undefined && { seconds_per_stop: p.secondsPerStop }),
+  ...(p.confirmScan !== undefined && { confirm_scan: p.confirmScan }),
+});
+
+const toCartProfile = (r: DbCartProfileRow): CartProfile => ({ id: r.id, name: r.name, totes: r.totes, maxKg: r.max_kg, maxLitres: r.max_litres });
+
+export async function cartProfilesOf(db: Q, siteId: number): Promise<CartProfile[]> {
+  const rows: DbCartProfileRow[] = await db('cart_profiles').where({ site_id: siteId, archived: false }).orderBy('name');
+  return rows.map(toCartProfile);
+}
+
+export async function getCartProfile(db: Q, siteId: number, id: number): Promise<CartProfile | null> {
+  const r: DbCartProfileRow | undefined = await db('cart_profiles').where({ site_id: siteId, id, archived: false }).first();
+  return r ? toCartProfile(r) : null;
+}
+
+export async function getSiteRow(db: Q, id: number): Promise<DbSiteRow | undefined> {
+  return db<DbSiteRow>('sites').where({ id }).first();
+}
+
+export async function getSite(db: Q, id: number): Promise<Site | null> {
+  const s = await getSiteRow(db, id);
+  if (!s) return null;
+  return { id: s.id, code: s.code, name: s.name, timezone: s.timezone, settings: settingsOf(s), cartProfiles: await cartProfilesOf(db, id) };
+}
+
+/** Sites a user may work in: their own; admins see every site. */
+export async function listSitesOf(db: Q, userId: number, role: Role): Promise<DbSiteRow[]> {
+  if (role === 'admin') return db<DbSiteRow>('sites').orderBy('name');
+  return db<DbSiteRow>('sites').join('user_sites', 'user_sites.site_id', 'sites.id').where('user_sites.user_id', userId).orderBy('sites.name').select('sites.*');
+}
