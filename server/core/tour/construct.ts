@@ -1,0 +1,131 @@
+/**
+ * Circuit constructions: nearest neighbor, repeated nearest neighbor and sorted edges (greedy edge).
+ * Ties always go to the lowest point index (for edges: lower length, then lower first end, then lower
+ * second end), so a matrix gives one answer. Each returns an order starting at the depot.
+ */
+import type { DistanceMatrix } from '../matrix';
+import { circuitLength } from '../matrix';
+import type { Budget } from './budget';
+import { canonicalize } from './circuit';
+
+/**
+ * Nearest neighbor from `start`: always walk to the closest unvisited point, then back.
+ * O(n²) time, O(n) memory. Returns the visiting order beginning at `start`.
+ */
+export function nearestNeighbor(m: DistanceMatrix, start: number): number[] {
+  const n = m.n;
+  const d = m.d;
+  const visited = new Uint8Array(n);
+  const order = new Array<number>(n);
+  let cur = start;
+  visited[cur] = 1;
+  order[0] = cur;
+  for (let step = 1; step < n; step++) {
+    const row = cur * n;
+    let next = -1;
+    let bestLen = Infinity;
+    for (let j = 0; j < n; j++) {
+      if (visited[j] === 0 && d[row + j]! < bestLen) {
+        bestLen = d[row + j]!;
+        next = j;
+      }
+    }
+    // Only reachable with non-finite entries; keep the order a permutation regardless.
+    if (next < 0) for (next = 0; visited[next] === 1; next++);
+    visited[next] = 1;
+    order[step] = next;
+    cur = next;
+  }
+  return order;
+}
+
+/**
+ * Repeated nearest neighbor: nearest neighbor from every point, each circuit rotated to start at the
+ * depot, the shortest kept (the depot's own run first, then starts in index order; a later run must be
+ * strictly shorter to replace it, so the result is never longer than nearest neighbor from the depot).
+ * O(n³) time. When `budget` expires, the best circuit found so far is returned (at least the depot's run).
+ */
+export function repeatedNearestNeighbor(m: DistanceMatrix, depot: number, budget?: Budget): number[] {
+  let best = nearestNeighbor(m, depot);
+  let bestLen = circuitLength(m, best);
+  for (let s = 0; s < m.n; s++) {
+    if (s === depot) continue;
+    if (budget && budget.expired()) break;
+    const order = nearestNeighbor(m, s);
+    const len = circuitLength(m, order);
+    if (len < bestLen) {
+      best = order;
+      bestLen = len;
+    }
+  }
+  return canonicalize(best, depot);
+}
+
+/**
+ * Sorted edges (greedy edge): take edges cheapest first, skipping any that would give a point degree 3
+ * or close a circuit before every point is in (union–find), then close the path's two ends.
+ * O(n² log n) time for the sort, O(n²) memory for the edge list.
+ */
+export function sortedEdges(m: DistanceMatrix, depot: number): number[] {
+  const n = m.n;
+  if (n <= 3) return canonicalize(Array.from({ length: n }, (_, i) => i), depot);
+  const d = m.d;
+  const count = (n * (n - 1)) / 2;
+  const ea = new Uint32Array(count);
+  const eb = new Uint32Array(count);
+  const w = new Float64Array(count);
+  let e = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      ea[e] = i;
+      eb[e] = j;
+      w[e] = d[i * n + j]!;
+      e++;
+    }
+  }
+  // Edges were generated in (first end, second end) order, so a stable sort by length gives the tie rule.
+  const idx = new Uint32Array(count);
+  for (let k = 0; k < count; k++) idx[k] = k;
+  idx.sort((x, y) => w[x]! - w[y]! || x - y);
+
+  const parent = new Int32Array(n);
+  for (let i = 0; i < n; i++) parent[i] = i;
+  const find = (x: number): number => {
+    while (parent[x] !== x) {
+      parent[x] = parent[parent[x]!]!;
+      x = parent[x]!;
+    }
+    return x;
+  };
+  const deg = new Uint8Array(n);
+  // Two adjacency slots per point; -1 is empty.
+  const adj = new Int32Array(2 * n).fill(-1);
+  let taken = 0;
+  for (let k = 0; k < count && taken < n - 1; k++) {
+    const a = ea[idx[k]!]!;
+    const b = eb[idx[k]!]!;
+    if (deg[a] === 2 || deg[b] === 2) continue;
+    const ra = find(a);
+    const rb = find(b);
+    if (ra === rb) continue;
+    parent[ra] = rb;
+    adj[2 * a + deg[a]!] = b;
+    adj[2 * b + deg[b]!] = a;
+    deg[a]!++;
+    deg[b]!++;
+    taken++;
+  }
+  // n − 1 edges without a cycle or degree 3 form one Hamiltonian path; walk it from one end.
+  let startPt = 0;
+  while (deg[startPt] !== 1) startPt++;
+  const order = new Array<number>(n);
+  let prev = -1;
+  let cur = startPt;
+  for (let step = 0; step < n; step++) {
+    order[step] = cur;
+    const next = adj[2 * cur] !== prev ? adj[2 * cur]! : adj[2 * cur + 1]!;
+    prev = cur;
+    cur = next;
+  }
+  return canonicalize(order, depot);
+}
