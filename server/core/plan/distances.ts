@@ -190,6 +190,8 @@ export function buildDistanceIndex(graph: WalkGraph, options: DistanceIndexOptio
  */
 export function pairDistance(index: DistanceIndex, a: number, b: number): number {
   if (a === b) return 0;
+  // One summation order for both directions keeps d(a, b) = d(b, a) bit for bit.
+  if (a > b) [a, b] = [b, a];
   const { anchorHub, anchorDist, hubDist, chain } = index;
   const H = index.hubCount;
   let best = Infinity;
