@@ -79,7 +79,7 @@ export function mountRoutes(app: Express, routes: readonly AnyRoute[], deps: Dep
         const header = req.get('authorization') ?? '';
         const m = /^Bearer\s+(\S+)$/i.exec(header);
         const token = m ? await findActiveToken(deps.db, m[1]!) : null;
-        if (!token) throw new AppError('unauthenticated', 'invalid_token', 'A valid integration token is required (Authorization: Bearer …)');
+        if (!token) throw new AppError('unauthenticated', 'integration_token_required', 'A valid integration token is required (Authorization: Bearer …)');
         tokenSiteId = token.siteId;
       } else {
         if (UNSAFE.has(route.method)) checkCsrf(req);

@@ -1,0 +1,70 @@
+/**
+ * A fresh app per test file: in-memory SQLite with the real migrations (through the same explicit
+ * migration source production uses), a cheap hasher, the demo users seeded, and a signed-in
+ * Supertest agent per role.
+ */
+import { pino } from 'pino';
+import request from 'supertest';
+import type { Express } from 'express';
+import { createApp } from '../../server/app';
+import { SignInBackoff } from '../../server/auth/backoff';
+import { createHasher } from '../../server/auth/hasher';
+import { loadConfig } from '../../server/config';
+import type { Deps } from '../../server/deps';
+import { migrateLatest, openDb } from '../../server/db/knex';
+import { createMailer } from '../../server/mail/mailer';
+import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS, seedDemoIfEmpty, type DemoSeeder } from '../../server/seed/demo';
+import { CSRF_HEADER, CSRF_VALUE, type Role } from '../../shared/common';
+
+export interface TestApp {
+  app: Express;
+  deps: Deps;
+  /** Signed-in agents; `picker` is badge P-1001, `picker2` is P-1002. */
+  as: Record<Role | 'picker2', ReturnType<typeof request.agent>>;
+  anon: ReturnType<typeof request.agent>;
+  siteId: number;
+  close(): Promise<void>;
+}
+
+/** Test-only argon2 cost: the same algorithm, less memory, so suites stay fast. */
+const testHasher = () => createHasher({ memoryCost: 1024, timeCost: 1 });
+
+export async function makeDeps(): Promise<Deps> {
+  const db = openDb(':memory:');
+  await migrateLatest(db);
+  return {
+    config: loadConfig({ DATABASE_FILE: ':memory:', PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
+    db,
+    hasher: testHasher(),
+    backoff: new SignInBackoff(),
+    mailer: createMailer(db, { from: 'Aislewright <no-reply@aislewright.invalid>' }),
+    jwtSecret: 'test-secret-that-is-long-enough-for-256-bits-0123456789',
+    logger: pino({ level: 'silent' }),
+    version: 'test',
+  };
+}
+
+/** Adds the CSRF header every unsafe request from our client carries. */
+export const csrf = { [CSRF_HEADER]: CSRF_VALUE } as const;
+
+export async function makeTestApp(options: { seeders?: DemoSeeder[] } = {}): Promise<TestApp> {
+  const deps = await makeDeps();
+  await seedDemoIfEmpty(deps.db, deps.hasher, options.seeders ?? []);
+  const app = createApp(deps);
+  const siteId = (await deps.db('sites').first<{ id: number }>('id'))!.id;
+  const signIn = async (path: string, body: object) => {
+    const agent = request.agent(app);
+    const res = await agent.post(path).set(csrf).send(body);
+    if (res.status !== 200) throw new Error(`test sign-in failed: ${res.status} ${JSON.stringify(res.body)}`);
+    return agent;
+  };
+  const byRole = (role: string) => DEMO_USERS.find((u) => u.role === role)!.email;
+  const as = {
+    admin: await signIn('/api/auth/sign-in', { email: byRole('admin'), password: DEMO_PASSWORD }),
+    supervisor: await signIn('/api/auth/sign-in', { email: byRole('supervisor'), password: DEMO_PASSWORD }),
+    engineer: await signIn('/api/auth/sign-in', { email: byRole('engineer'), password: DEMO_PASSWORD }),
+    picker: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[0].badge, pin: DEMO_PIN }),
+    picker2: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[1].badge, pin: DEMO_PIN }),
+  };
+  return { app, deps, as, anon: request.agent(app), siteId, close: () => deps.db.destroy() };
+}
