@@ -1,0 +1,41 @@
+import { defineConfig, devices } from '@playwright/test';
+
+/** Browser tests drive Debian's Chromium (never a downloaded browser; STACK.md, gotcha 9). */
+export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+const PORT = Number(process.env.E2E_PORT ?? 3310);
+
+export default defineConfig({
+  testDir: 'tests/e2e',
+  testMatch: '**/*.spec.ts',
+  timeout: 60_000,
+  expect: { timeout: 10_000 },
+  fullyParallel: false,
+  workers: 1,
+  retries: 0,
+  reporter: [['list'], ['json', { outputFile: 'test-results/e2e.json' }]],
+  outputDir: 'test-results/e2e-artifacts',
+  use: {
+    baseURL: `http://localhost:${PORT}`,
+    browserName: 'chromium',
+    launchOptions: {
+      executablePath: CHROMIUM,
+      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    },
+    trace: 'off',
+    screenshot: 'only-on-failure',
+  },
+  projects: [
+    { name: 'desktop', use: { viewport: { width: 1366, height: 800 } }, testIgnore: '**/*.tablet.spec.ts' },
+    { name: 'tablet', use: { ...devices['Galaxy Tab S4 landscape'], browserName: 'chromium', viewport: { width: 1024, height: 768 } }, testMatch: '**/*.tablet.spec.ts' },
+  ],
+  webServer: {
+    // A fresh database per run; the demo seed gives every role its sign-in.
+    command: `rm -rf test-results/e2e-db && node --import tsx server/main.ts`,
+    url: `http://localhost:${PORT}/api/health`,
+    reuseExistingServer: false,
+    timeout: 120_000,
+    env: { PORT: String(PORT), DATABASE_FILE: 'test-results/e2e-db/aislewright.sqlite', LOG_LEVEL: 'warn', PUBLIC_URL: `http://localhost:${PORT}` },
+    stdout: 'ignore',
+    stderr: 'pipe',
+  },
+});
