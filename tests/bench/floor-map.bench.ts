@@ -1,0 +1,235 @@
+/**
+ * Floor map at warehouse size (20,000 bins) in headless Chromium: mount time, and frame times while
+ * panning and wheel-zooming, at three zoom levels, unthrottled and with the CPU slowed 4× (a rough
+ * stand-in for a picker tablet). Starts its own Vite dev server on a free port and stops it.
+ * Screenshots go to /tmp/floor-map-*.png.
+ */
+import { existsSync } from 'node:fs';
+import { createServer as createNetServer } from 'node:net';
+import { dirname, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium, type Page } from '@playwright/test';
+import { createServer, type ViteDevServer } from 'vite';
+
+const CHROMIUM = '/usr/bin/chromium';
+// STACK.md, gotcha 9: Debian's Chromium, never a downloaded browser.
+const CHROMIUM_ARGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
+const HARNESS = '/tests/e2e/harness/floor-map.html';
+
+function freePort(): Promise<number> {
+  return new Promise((ok, fail) => {
+    const srv = createNetServer();
+    srv.once('error', fail);
+    srv.listen(0, '127.0.0.1', () => {
+      const addr = srv.address();
+      const port = typeof addr === 'object' && addr ? addr.port : 0;
+      srv.close(() => ok(port));
+    });
+  });
+}
+
+interface FrameStats {
+  frames: number;
+  medianMs: number;
+  p95Ms: number;
+  maxMs: number;
+  over20Ms: number;
+  staticRenders: number;
+  staticBlits: number;
+  lastStaticRenderMs: number;
+  lastOverlayMs: number;
+  binsDrawn: number;
+}
+
+/** Runs a gesture in the page, one synthetic event per animation frame, and times the frames. */
+async function gesture(page: Page, kind: 'pan' | 'wheel', frames: number): Promise<FrameStats> {
+  return page.evaluate(
+    async ({ kind, frames }) => {
+      type Stats = {
+        staticRenders: number;
+        staticBlits: number;
+        lastStaticRenderMs: number;
+        lastOverlayMs: number;
+        lastBinsDrawn: number;
+      };
+      const fm = (window as unknown as { __floorMap: { map: { stats: () => Stats } } }).__floorMap;
+      const el = document.querySelector('.floor-map__canvas') as HTMLElement;
+      const box = el.getBoundingClientRect();
+      const cx = box.left + box.width / 2;
+      const cy = box.top + box.height / 2;
+      const before = fm.map.stats();
+      const deltas: number[] = [];
+      const opts = (x: number, y: number, buttons: number): PointerEventInit => ({
+        pointerId: 7,
+        pointerType: 'mouse',
+        isPrimary: true,
+        clientX: x,
+        clientY: y,
+        buttons,
+        bubbles: true,
+      });
+      let x = cx;
+      let y = cy;
+      if (kind === 'pan') el.dispatchEvent(new PointerEvent('pointerdown', opts(x, y, 1)));
+      await new Promise<void>((done) => {
+        let last = 0;
+        let i = 0;
+        const step = (t: number): void => {
+          if (last > 0) deltas.push(t - last);
+          last = t;
+          if (i >= frames) {
+            done();
+            return;
+          }
+          if (kind === 'pan') {
+            // Back and forth so the gesture stays over the plan.
+            const dir = Math.floor(i / 40) % 2 === 0 ? 1 : -1;
+            x += 9 * dir;
+            y += 3 * dir;
+            el.dispatchEvent(new PointerEvent('pointermove', opts(x, y, 1)));
+          } else {
+            const dir = Math.floor(i / 30) % 2 === 0 ? -1 : 1;
+            el.dispatchEvent(new WheelEvent('wheel', { deltaY: 40 * dir, clientX: cx + 50, clientY: cy - 30, bubbles: true, cancelable: true }));
+          }
+          i++;
+          requestAnimationFrame(step);
+        };
+        requestAnimationFrame(step);
+      });
+      if (kind === 'pan') el.dispatchEvent(new PointerEvent('pointerup', opts(x, y, 0)));
+      const after = fm.map.stats();
+      const sorted = deltas.slice().sort((a, b) => a - b);
+      const q = (p: number): number => sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] ?? 0;
+      return {
+        frames: deltas.length,
+        medianMs: q(0.5),
+        p95Ms: q(0.95),
+        maxMs: sorted[sorted.length - 1] ?? 0,
+        over20Ms: deltas.filter((d) => d > 20).length,
+        staticRenders: after.staticRenders - before.staticRenders,
+        staticBlits: after.staticBlits - before.staticBlits,
+        lastStaticRenderMs: after.lastStaticRenderMs,
+        lastOverlayMs: after.lastOverlayMs,
+        binsDrawn: after.lastBinsDrawn,
+      };
+    },
+    { kind, frames },
+  );
+}
+
+/** Sets the zoom by pressing the map's zoom-in button n times after a fit. */
+async function zoomSteps(page: Page, n: number): Promise<void> {
+  await page.evaluate((n) => {
+    const fm = (window as unknown as { __floorMap: { map: { fit: () => void; zoomBy: (f: number) => void } } }).__floorMap;
+    fm.map.fit();
+    for (let i = 0; i < n; i++) fm.map.zoomBy(1.4);
+  }, n);
+  await page.waitForTimeout(300);
+}
+
+/** A full vector redraw of the plan at the current zoom (what a settled zoom step costs). */
+async function fullRedrawMs(page: Page): Promise<{ ms: number; bins: number }> {
+  return page.evaluate(async () => {
+    type Api = { zoomBy: (f: number) => void; stats: () => { lastStaticRenderMs: number; lastBinsDrawn: number } };
+    const fm = (window as unknown as { __floorMap: { map: Api } }).__floorMap;
+    const times: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      fm.map.zoomBy(i % 2 === 0 ? 1.0001 : 1 / 1.0001);
+      await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
+      times.push(fm.map.stats().lastStaticRenderMs);
+    }
+    times.sort((a, b) => a - b);
+    return { ms: times[times.length >> 1] ?? 0, bins: fm.map.stats().lastBinsDrawn };
+  });
+}
+
+const fmt = (v: number): string => v.toFixed(1);
+
+export async function run(): Promise<void> {
+  if (!existsSync(CHROMIUM)) {
+    console.log(`floor-map bench skipped: ${CHROMIUM} not found (apt-get install -y chromium, STACK.md gotcha 9)`);
+    return;
+  }
+  const port = await freePort();
+  let server: ViteDevServer | null = null;
+  const browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
+  try {
+    server = await createServer({
+      root,
+      configFile: resolve(root, 'vite.config.ts'),
+      logLevel: 'error',
+      // Scan only the harness: other pages may be mid-change while the bench runs.
+      optimizeDeps: { entries: [HARNESS.slice(1)] },
+      server: { port, strictPort: true, host: '127.0.0.1', hmr: false },
+    });
+    await server.listen();
+    const url = `http://127.0.0.1:${port}${HARNESS}`;
+    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    // tsx compiles with keepNames, which wraps functions passed to page.evaluate in `__name(...)`.
+    await page.addInitScript({ content: 'window.__name = (f) => f;' });
+    // First load compiles the modules in Vite; the second is the one measured.
+    await page.goto(url);
+    await page.waitForFunction(() => (window as unknown as { __floorMap?: { ready: boolean } }).__floorMap?.ready === true, null, { timeout: 120_000 });
+    const mounts: number[] = [];
+    for (let i = 0; i < 3; i++) {
+      await page.reload();
+      await page.waitForFunction(() => (window as unknown as { __floorMap?: { ready: boolean } }).__floorMap?.ready === true, null, { timeout: 60_000 });
+      mounts.push(await page.evaluate(() => (window as unknown as { __floorMap: { mountMs: number } }).__floorMap.mountMs));
+    }
+    const info = await page.evaluate(() => {
+      const fm = (window as unknown as { __floorMap: { bins: number; map: { stats: () => { indexBuildMs: number } } } }).__floorMap;
+      return { bins: fm.bins, indexBuildMs: fm.map.stats().indexBuildMs };
+    });
+    mounts.sort((a, b) => a - b);
+    console.log(`bins: ${info.bins}; mount to first frame (main map + mini map, median of 3): ${fmt(mounts[1] ?? 0)} ms; index build: ${fmt(info.indexBuildMs)} ms`);
+    await page.screenshot({ path: '/tmp/floor-map-fit.png' });
+
+    const cdp = await page.context().newCDPSession(page);
+    const rows: string[] = [];
+    for (const throttle of [1, 4]) {
+      await cdp.send('Emulation.setCPUThrottlingRate', { rate: throttle });
+      for (const [name, steps] of [
+        ['fit (whole plan)', 0],
+        ['mid zoom', 4],
+        ['close zoom', 7],
+      ] as const) {
+        await zoomSteps(page, steps);
+        const redraw = await fullRedrawMs(page);
+        const pan = await gesture(page, 'pan', 150);
+        const wheel = await gesture(page, 'wheel', 90);
+        if (throttle === 1) await page.screenshot({ path: `/tmp/floor-map-zoom${steps}.png` });
+        rows.push(
+          `| ${throttle}× | ${name} | ${redraw.bins} | ${fmt(redraw.ms)} | ${fmt(pan.medianMs)} / ${fmt(pan.p95Ms)} / ${fmt(pan.maxMs)} | ${pan.over20Ms}/${pan.frames} | ${pan.staticRenders} | ${fmt(wheel.medianMs)} / ${fmt(wheel.p95Ms)} / ${fmt(wheel.maxMs)} | ${wheel.over20Ms}/${wheel.frames} | ${wheel.staticRenders} |`,
+        );
+      }
+    }
+    await cdp.send('Emulation.setCPUThrottlingRate', { rate: 1 });
+    console.log('\nFrame times (rAF deltas, ms: median / p95 / max); "vector" = plan drawn as vectors during the gesture');
+    console.log('| CPU | zoom | bins drawn | full redraw ms | pan frames | pan >20 ms | pan vector | wheel frames | wheel >20 ms | wheel vector |');
+    console.log('|---|---|---|---|---|---|---|---|---|---|');
+    for (const r of rows) console.log(r);
+
+    // Pictures to look at: search hit with tooltip, dark palette.
+    await page.fill('.floor-map__input', 'K-20-03-2');
+    await page.press('.floor-map__input', 'Enter');
+    await page.waitForTimeout(300);
+    await page.screenshot({ path: '/tmp/floor-map-search.png' });
+    await page.goto(`${url}?dark=1`);
+    await page.waitForFunction(() => (window as unknown as { __floorMap?: { ready: boolean } }).__floorMap?.ready === true, null, { timeout: 60_000 });
+    await page.screenshot({ path: '/tmp/floor-map-dark.png' });
+    console.log('\nscreenshots: /tmp/floor-map-fit.png, /tmp/floor-map-zoom{0,4,7}.png, /tmp/floor-map-search.png, /tmp/floor-map-dark.png');
+  } finally {
+    await browser.close();
+    await server?.close();
+  }
+}
