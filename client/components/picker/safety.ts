@@ -1,0 +1,9 @@
+/** The caution every picker screen carries (PRODUCT.md, Safety). */
+export const CAUTION_SHORT =
+  "Routes are walking suggestions. Follow the site's pedestrian walkways, forklift traffic rules and lifting limits.";
+
+export const CAUTION_FULL: readonly string[] = [
+  'The route on this tablet is a walking suggestion, not an instruction.',
+  "Follow the site's pedestrian walkways, forklift traffic rules and lifting limits.",
+  'Local occupational-safety rules and site procedures take precedence over the suggested route.',
+];

@@ -1,0 +1,64 @@
+import type { RouteRecordRaw } from 'vue-router';
+import type { Role } from '@shared/common';
+import type { AccessMeta } from './access';
+
+export type MenuGroup = 'Floor' | 'Analysis' | 'Admin' | 'Picking';
+
+declare module 'vue-router' {
+  interface RouteMeta extends AccessMeta {
+    /** Page title, also the document title. */
+    title?: string;
+    menu?: { label: string; group: MenuGroup };
+    /** Screens not built yet show this line in a tidy empty state. */
+    later?: string;
+  }
+}
+
+const OFFICE: readonly Role[] = ['admin', 'supervisor', 'engineer'];
+const later = () => import('@client/views/LaterReleaseView.vue');
+
+/** Every screen in one flat table: path, name, who may open it, menu entry. */
+export const routes: RouteRecordRaw[] = [
+  { path: '/sign-in', name: 'sign-in', component: () => import('@client/views/SignInView.vue'), meta: { public: true, guestOnly: true, title: 'Sign in' } },
+  { path: '/sign-in/badge', name: 'badge-sign-in', component: () => import('@client/views/BadgeSignInView.vue'), meta: { public: true, guestOnly: true, title: 'Picker sign-in' } },
+  { path: '/forgot-password', name: 'forgot-password', component: () => import('@client/views/ForgotPasswordView.vue'), meta: { public: true, title: 'Forgot password' } },
+  { path: '/reset-password', name: 'reset-password', component: () => import('@client/views/ResetPasswordView.vue'), meta: { public: true, title: 'Choose a new password' } },
+  { path: '/accept-invite', name: 'accept-invite', component: () => import('@client/views/AcceptInviteView.vue'), meta: { public: true, title: 'Accept invitation' } },
+
+  { path: '/', name: 'home', component: later, meta: { roleHome: true } },
+  { path: '/account/password', name: 'change-password', component: () => import('@client/views/ChangePasswordView.vue'), meta: { roles: OFFICE, title: 'Change password' } },
+
+  { path: '/pick', name: 'pick', component: () => import('@client/views/PickHomeView.vue'), meta: { roles: ['picker'], title: 'My trip', menu: { label: 'My trip', group: 'Picking' } } },
+
+  { path: '/floor-plans', name: 'floor-plans', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Floor plans', menu: { label: 'Floor plans', group: 'Floor' }, later: 'Upload a floor-plan workbook, check every row, preview the walk graph and activate it.' } },
+  { path: '/orders', name: 'orders', component: later, meta: { roles: ['supervisor'], title: 'Orders', menu: { label: 'Orders', group: 'Floor' }, later: 'Import the open orders from a workbook, CSV or the JSON API.' } },
+  { path: '/waves', name: 'waves', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Waves', menu: { label: 'Waves', group: 'Floor' }, later: 'Build waves by cut-off and priority, choose a cart profile, batching and routing method, preview the trips and release them.' } },
+  { path: '/live', name: 'live-board', component: later, meta: { roles: ['supervisor'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' }, later: 'Follow every released trip as pickers confirm their stops; handle shorts and blocked aisles.' } },
+  { path: '/studies', name: 'studies', component: later, meta: { roles: ['engineer'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' }, later: 'Compare walking distance and time per method on recorded waves or generated scenarios, and export the figures.' } },
+
+  { path: '/admin/users', name: 'admin-users', component: () => import('@client/views/AdminUsersView.vue'), meta: { roles: ['admin'], title: 'Users', menu: { label: 'Users', group: 'Admin' } } },
+  { path: '/admin/sites', name: 'admin-sites', component: () => import('@client/views/AdminSitesView.vue'), meta: { roles: ['admin'], title: 'Sites & settings', menu: { label: 'Sites & settings', group: 'Admin' } } },
+  { path: '/admin/outbox', name: 'admin-outbox', component: () => import('@client/views/AdminOutboxView.vue'), meta: { roles: ['admin'], title: 'Mail outbox', menu: { label: 'Mail outbox', group: 'Admin' } } },
+
+  { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@client/views/NotFoundView.vue'), meta: { title: 'Page not found' } },
+];
+
+export interface MenuEntry {
+  name: string;
+  path: string;
+  label: string;
+  group: MenuGroup;
+}
+
+/** The side menu for one role: only the screens that role may open, in table order. */
+export function menuFor(role: Role, table: readonly RouteRecordRaw[] = routes): MenuEntry[] {
+  const entries: MenuEntry[] = [];
+  for (const route of table) {
+    const menu = route.meta?.menu;
+    const roles = route.meta?.roles;
+    if (!menu || typeof route.name !== 'string') continue;
+    if (roles !== undefined && !roles.includes(role)) continue;
+    entries.push({ name: route.name, path: route.path, label: menu.label, group: menu.group });
+  }
+  return entries;
+}

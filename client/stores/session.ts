@@ -1,0 +1,93 @@
+import { computed, ref } from 'vue';
+import { defineStore } from 'pinia';
+import type { BadgeSignInBody, Me, SignInBody } from '@shared/auth';
+import * as authApi from '@client/api/auth';
+import type { SignInMode } from '@client/router/access';
+
+const SITE_KEY = 'aislewright.siteId';
+const MODE_KEY = 'aislewright.signInMode';
+
+function readStoredSiteId(): number | null {
+  const raw = localStorage.getItem(SITE_KEY);
+  const id = raw === null ? NaN : Number(raw);
+  return Number.isInteger(id) && id > 0 ? id : null;
+}
+
+export const useSessionStore = defineStore('session', () => {
+  const me = ref<Me | null>(null);
+  const loaded = ref(false);
+  const storedSiteId = ref<number | null>(readStoredSiteId());
+  // A shared tablet should come back to the badge page after a session ends, not the office form.
+  const signInMode = ref<SignInMode>(localStorage.getItem(MODE_KEY) === 'badge' ? 'badge' : 'email');
+  let loading: Promise<void> | null = null;
+
+  const role = computed(() => me.value?.role ?? null);
+  const sites = computed(() => me.value?.sites ?? []);
+  /** The stored choice when the user still belongs to that site, else their first site. */
+  const currentSite = computed(() => sites.value.find((s) => s.id === storedSiteId.value) ?? sites.value[0] ?? null);
+  const siteId = computed(() => currentSite.value?.id ?? null);
+
+  function setSignedIn(next: Me, mode: SignInMode): void {
+    me.value = next;
+    loaded.value = true;
+    signInMode.value = mode;
+    localStorage.setItem(MODE_KEY, mode);
+  }
+
+  /** Reads who is signed in once; later calls wait for the same answer. */
+  function ensureLoaded(): Promise<void> {
+    if (loaded.value) return Promise.resolve();
+    loading ??= authApi
+      .getMe()
+      .then((answer) => {
+        me.value = answer;
+      })
+      .catch(() => {
+        // Not signed in is the ordinary start; a server that cannot be reached also lands on sign-in,
+        // where submitting shows what went wrong.
+        me.value = null;
+      })
+      .finally(() => {
+        loaded.value = true;
+        loading = null;
+      });
+    return loading;
+  }
+
+  async function signIn(body: SignInBody): Promise<Me> {
+    const answer = await authApi.signIn(body);
+    setSignedIn(answer, 'email');
+    return answer;
+  }
+
+  async function badgeSignIn(body: BadgeSignInBody): Promise<Me> {
+    const answer = await authApi.badgeSignIn(body);
+    setSignedIn(answer, 'badge');
+    return answer;
+  }
+
+  function adopt(answer: Me): void {
+    setSignedIn(answer, answer.role === 'picker' ? 'badge' : 'email');
+  }
+
+  /** Drops the local session (after sign-out, or when the server says it has ended). */
+  function forget(): void {
+    me.value = null;
+    loaded.value = true;
+  }
+
+  async function signOut(): Promise<void> {
+    try {
+      await authApi.signOut();
+    } finally {
+      forget();
+    }
+  }
+
+  function selectSite(id: number): void {
+    storedSiteId.value = id;
+    localStorage.setItem(SITE_KEY, String(id));
+  }
+
+  return { me, loaded, role, sites, currentSite, siteId, signInMode, ensureLoaded, signIn, badgeSignIn, adopt, forget, signOut, selectSite };
+});
