@@ -4,7 +4,7 @@
  * graphology-shortest-path's bidirectional Dijkstra on the same graph (a ratio; both answers compared).
  */
 import { createRng } from '../../server/core/rng';
-import { buildDistanceIndex, pairDistance } from '../../server/core/plan/distances';
+import { buildDistanceIndex, circuitPolyline, pairDistance } from '../../server/core/plan/distances';
 import type { DistanceIndex } from '../../server/core/plan/distances';
 import { generateRectangularPlan } from '../../server/core/plan/generate';
 import type { RectangularPlanParams } from '../../server/core/plan/generate';
@@ -122,6 +122,16 @@ export async function run(): Promise<void> {
     const refMs = performance.now() - tr;
     const refPerS = REF_PAIRS / (refMs / 1000);
 
+    // Drawing a 40-stop trip on the map: one shortest path per leg.
+    const depot = g.depotNode[0]!;
+    const circuit = [depot, ...Array.from(pa).filter((u) => pairDistance(ix, depot, u) < Infinity).slice(0, 39)];
+    const tp = performance.now();
+    const slow = circuitPolyline(g, circuit);
+    const polyDijkstraMs = performance.now() - tp;
+    const tq = performance.now();
+    const fast = circuitPolyline(g, circuit, true, ix);
+    const polyIndexMs = performance.now() - tq;
+
     console.log(`### ${c.name}`);
     console.log(`bins ${plan.bins.length}, nodes ${g.nodeCount} (${nodes.length} access points + depots), edges ${edgeCount(g)}, hubs ${ix.hubCount}`);
     console.log('| measure | value | target |');
@@ -131,6 +141,7 @@ export async function run(): Promise<void> {
     console.log(`| pair look-ups (pairDistance) | ${(lookupsPerS / 1e6).toFixed(1)} M/s | O(1) |`);
     console.log(`| graphology bidirectional Dijkstra | ${refPerS.toFixed(1)} /s (${REF_PAIRS} pairs, ${mismatches} disagreeing) | reference |`);
     console.log(`| ratio | ${Math.round(lookupsPerS / refPerS).toLocaleString('en-US')} × | — |`);
+    console.log(`| 40-stop route polyline | ${polyIndexMs.toFixed(2)} ms with the index, ${polyDijkstraMs.toFixed(1)} ms by Dijkstra per leg (${slow ? slow.length / 2 : 0} / ${fast ? fast.length / 2 : 0} points) | — |`);
     console.log(`(checksum ${sink.toFixed(0)})\n`);
   }
 }

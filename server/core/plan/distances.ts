@@ -222,13 +222,20 @@ export function tripMatrix(index: DistanceIndex, nodes: ArrayLike<number>): Dist
 
 /**
  * Node sequence of one shortest walk from a to b (both ends included), or null when no path.
- * Dijkstra on the full graph with early exit; ties go to the smaller node id, so the route drawn
- * is the same on every call. O(E log E).
+ * With `index` (built from this graph) it walks downhill on the stored distances: from each node it
+ * steps to the neighbour v minimising edge + d(v, b), O(path length × degree). Without it, Dijkstra
+ * with early exit, O(E log E). Ties go to the smaller node id, so the route drawn is the same on
+ * every call.
  */
-export function shortestPath(graph: WalkGraph, a: number, b: number): Int32Array | null {
+export function shortestPath(graph: WalkGraph, a: number, b: number, index?: DistanceIndex): Int32Array | null {
   const n = graph.nodeCount;
   if (a < 0 || b < 0 || a >= n || b >= n) return null;
   if (a === b) return Int32Array.of(a);
+  if (index) {
+    if (pairDistance(index, a, b) === Infinity) return null;
+    const path = descend(graph, index, a, b);
+    if (path) return path;
+  }
   const dist = new Float64Array(n).fill(Infinity);
   const prev = new Int32Array(n).fill(-1);
   dijkstraInto(graph.offsets, graph.targets, graph.lengths, a, dist, new MinHeap(graph.targets.length + 1), prev, b);
@@ -240,18 +247,50 @@ export function shortestPath(graph: WalkGraph, a: number, b: number): Int32Array
   return path;
 }
 
+/** Greedy descent on the index; null if it fails to arrive within n steps (zero-length edges can make it circle). */
+function descend(graph: WalkGraph, index: DistanceIndex, a: number, b: number): Int32Array | null {
+  const { offsets, targets, lengths } = graph;
+  const out: number[] = [a];
+  let prev = -1;
+  let u = a;
+  while (u !== b) {
+    if (out.length > graph.nodeCount) return null;
+    let best = Infinity;
+    let next = -1;
+    for (let k = offsets[u]!; k < offsets[u + 1]!; k++) {
+      const v = targets[k]!;
+      if (v === prev) continue;
+      const d = lengths[k]! + pairDistance(index, v, b);
+      if (d < best || (d === best && v < next)) {
+        best = d;
+        next = v;
+      }
+    }
+    if (next < 0) return null;
+    prev = u;
+    u = next;
+    out.push(u);
+  }
+  return Int32Array.from(out);
+}
+
 /**
  * Expands a circuit of node ids into the polyline a picker walks: interleaved x, y in metres along
  * each leg's shortest path, back to the first node when `closed`. Null when some leg has no path.
- * O(k · E log E) for k legs.
+ * Pass the graph's `index` for O(path) legs instead of one Dijkstra per leg.
  */
-export function circuitPolyline(graph: WalkGraph, circuit: ArrayLike<number>, closed = true): Float64Array | null {
+export function circuitPolyline(
+  graph: WalkGraph,
+  circuit: ArrayLike<number>,
+  closed = true,
+  index?: DistanceIndex,
+): Float64Array | null {
   const k = circuit.length;
   if (k === 0) return new Float64Array(0);
   const pts: number[] = [graph.x[circuit[0]!]!, graph.y[circuit[0]!]!];
   const legs = closed && k > 1 ? k : k - 1;
   for (let i = 0; i < legs; i++) {
-    const path = shortestPath(graph, circuit[i]!, circuit[(i + 1) % k]!);
+    const path = shortestPath(graph, circuit[i]!, circuit[(i + 1) % k]!, index);
     if (!path) return null;
     for (let p = 1; p < path.length; p++) pts.push(graph.x[path[p]!]!, graph.y[path[p]!]!);
   }

@@ -181,16 +181,20 @@ describe('tripMatrix', () => {
 });
 
 describe('shortestPath and circuitPolyline', () => {
-  it('walk along graph edges and measure exactly pairDistance', () => {
+  it.each([
+    ['by Dijkstra', false],
+    ['by descent on the index', true],
+  ])('%s, walk along graph edges and measure exactly pairDistance', (_, useIndex) => {
     const rng = createRng(41);
-    for (let t = 0; t < 20; t++) {
+    let walked = 0;
+    for (let t = 0; t < 40; t++) {
       const { plan, closures } = randomIrregularPlan(rng);
       const g = buildWalkGraph(plan, closures);
       const ix = buildDistanceIndex(g);
-      for (let k = 0; k < 20; k++) {
+      for (let k = 0; k < 30; k++) {
         const a = rng.int(g.nodeCount);
         const b = rng.int(g.nodeCount);
-        const path = shortestPath(g, a, b);
+        const path = shortestPath(g, a, b, useIndex ? ix : undefined);
         const d = pairDistance(ix, a, b);
         if (d === Infinity) {
           expect(path).toBeNull();
@@ -206,8 +210,10 @@ describe('shortestPath and circuitPolyline', () => {
           len += g.lengths[edge]!;
         }
         expect(closeTo(len, d)).toBe(true);
+        walked++;
       }
     }
+    expect(walked).toBeGreaterThan(500);
   });
 
   it('expands a closed circuit into a polyline from the depot back to the depot, as long as the circuit', () => {
@@ -226,5 +232,10 @@ describe('shortestPath and circuitPolyline', () => {
     for (let i = 0; i < circuit.length; i++) expected += pairDistance(ix, circuit[i]!, circuit[(i + 1) % circuit.length]!);
     expect(len).toBeCloseTo(expected, 9);
     expect(circuitPolyline(g, circuit, false)!.length).toBeLessThan(line.length);
+    // The index-guided expansion may pick another walk of equal length, so compare lengths, not points.
+    const fast = circuitPolyline(g, circuit, true, ix)!;
+    let fastLen = 0;
+    for (let i = 1; i < fast.length / 2; i++) fastLen += Math.hypot(fast[2 * i]! - fast[2 * i - 2]!, fast[2 * i + 1]! - fast[2 * i - 1]!);
+    expect(fastLen).toBeCloseTo(expected, 9);
   });
 });
