@@ -7,6 +7,7 @@ import { authRoutes } from './auth/auth.routes';
 import type { AnyRoute } from './http/route';
 import { tokenRoutes } from './integrations/tokens.routes';
 import { mailRoutes } from './mail/mail.routes';
+import { orderRoutes } from './orders/orders.routes';
 import { siteRoutes } from './sites/sites.routes';
 import { systemRoutes } from './system/system.routes';
 import { userRoutes } from './users/users.routes';
@@ -18,4 +19,5 @@ export const routeTable: readonly AnyRoute[] = [
   ...siteRoutes,
   ...tokenRoutes,
   ...mailRoutes,
+  ...orderRoutes,
 ];

@@ -1,0 +1,126 @@
+import type { Knex } from 'knex';
+import type { OrderDetail, OrdersPage, OrdersQuery, OrderStatus, OrderSummary } from '../../shared/orders';
+import type { OrderRecord, SkuRecord } from './orders.validate';
+
+type Q = Knex | Knex.Transaction;
+
+export interface DbSkuRow {
+  id: number;
+  site_id: number;
+  sku: string;
+  description: string;
+  bin: string;
+  unit_weight_kg: number;
+  unit_volume_l: number;
+  updated_at: string;
+}
+
+export interface DbOrderRow {
+  id: number;
+  site_id: number;
+  ref: string;
+  status: OrderStatus;
+  due: string | null;
+  priority: number;
+  source: string;
+  lines: number;
+  units: number;
+  weight_kg: number;
+  volume_l: number;
+  wave_id: number | null;
+  created_at: string;
+}
+
+const SORT_COLUMN: Record<OrdersQuery['sort'], string> = {
+  ref: 'ref', due: 'due', priority: 'priority', lines: 'lines', units: 'units', weightKg: 'weight_kg', createdAt: 'created_at',
+};
+
+export const toOrderSummary = (o: DbOrderRow): OrderSummary => ({
+  id: o.id, ref: o.ref, status: o.status, due: o.due, priority: o.priority, lines: o.lines, units: o.units,
+  weightKg: Math.round(o.weight_kg * 1000) / 1000, volumeL: Math.round(o.volume_l * 1000) / 1000, waveId: o.wave_id, createdAt: o.created_at,
+});
+
+export async function skuMap(db: Q, siteId: number): Promise<Map<string, DbSkuRow>> {
+  const rows = await db<DbSkuRow>('skus').where({ site_id: siteId });
+  return new Map(rows.map((r) => [r.sku, r]));
+}
+
+/** Upserts by SKU code in chunks (SQLite's bound-variable limit). */
+export async function upsertSkus(trx: Knex.Transaction, siteId: number, skus: SkuRecord[]): Promise<void> {
+  const now = new Date().toISOString();
+  for (let i = 0; i < skus.length; i += 150) {
+    const chunk = skus.slice(i, i + 150).map((s) => ({
+      site_id: siteId, sku: s.sku, description: s.description, bin: s.bin, unit_weight_kg: s.unitWeightKg, unit_volume_l: s.unitVolumeL, updated_at: now,
+    }));
+    await trx('skus').insert(chunk).onConflict(['site_id', 'sku']).merge(['description', 'bin', 'unit_weight_kg', 'unit_volume_l', 'updated_at']);
+  }
+}
+
+/** Order totals from its lines and the SKU master. */
+export function orderTotals(o: OrderRecord, skus: Map<string, DbSkuRow>) {
+  let units = 0;
+  let kg = 0;
+  let litres = 0;
+  for (const l of o.lines) {
+    const s = skus.get(l.sku)!;
+    units += l.qty;
+    kg += l.qty * s.unit_weight_kg;
+    litres += l.qty * s.unit_volume_l;
+  }
+  return { lines: o.lines.length, units, weight_kg: kg, volume_l: litres };
+}
+
+export async function insertOrder(trx: Knex.Transaction, siteId: number, o: OrderRecord, source: string, skus: Map<string, DbSkuRow>): Promise<number> {
+  const [id] = await trx('orders').insert({
+    site_id: siteId, ref: o.ref, status: 'open', due: o.due, priority: o.priority, source, ...orderTotals(o, skus), created_at: new Date().toISOString(),
+  });
+  await trx('order_lines').insert(o.lines.map((l, i) => ({ order_id: id, line_no: i + 1, sku: l.sku, qty: l.qty })));
+  return id!;
+}
+
+export async function replaceOrderLines(trx: Knex.Transaction, orderId: number, o: OrderRecord, skus: Map<string, DbSkuRow>): Promise<void> {
+  await trx('order_lines').where({ order_id: orderId }).delete();
+  await trx('order_lines').insert(o.lines.map((l, i) => ({ order_id: orderId, line_no: i + 1, sku: l.sku, qty: l.qty })));
+  await trx('orders').where({ id: orderId }).update({ due: o.due, priority: o.priority, ...orderTotals(o, skus) });
+}
+
+export async function linesOf(db: Q, orderIds: number[]): Promise<Map<number, { line_no: number; sku: string; qty: number; id: number }[]>> {
+  const out = new Map<number, { line_no: number; sku: string; qty: number; id: number }[]>();
+  for (let i = 0; i < orderIds.length; i += 500) {
+    const rows = await db('order_lines').whereIn('order_id', orderIds.slice(i, i + 500)).orderBy(['order_id', 'line_no']);
+    for (const r of rows as { id: number; order_id: number; line_no: number; sku: string; qty: number }[]) {
+      const list = out.get(r.order_id) ?? [];
+      list.push({ id: r.id, line_no: r.line_no, sku: r.sku, qty: r.qty });
+      out.set(r.order_id, list);
+    }
+  }
+  return out;
+}
+
+export async function pageOrders(db: Q, siteId: number, q: OrdersQuery): Promise<OrdersPage> {
+  const base = db<DbOrderRow>('orders').where({ site_id: siteId });
+  if (q.status) base.andWhere({ status: q.status });
+  if (q.dueBefore) base.andWhere('due', '<=', q.dueBefore);
+  if (q.priorityMin !== undefined) base.andWhere('priority', '>=', q.priorityMin);
+  if (q.search) base.andWhere('ref', 'like', `%${q.search.replace(/[%_]/g, '')}%`);
+  const [{ n }] = (await base.clone().count<{ n: number }[]>({ n: '*' })) as [{ n: number }];
+  const col = SORT_COLUMN[q.sort];
+  const rows = await base
+    .clone()
+    // Orders without a due sort last either way.
+    .orderByRaw(`(${col} is null) asc, ${col} ${q.dir}, id asc`)
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize);
+  return { total: Number(n), page: q.page, pageSize: q.pageSize, rows: rows.map(toOrderSummary) };
+}
+
+export async function orderDetail(db: Q, siteId: number, id: number): Promise<OrderDetail | null> {
+  const o = await db<DbOrderRow>('orders').where({ site_id: siteId, id }).first();
+  if (!o) return null;
+  const lines = (await linesOf(db, [id])).get(id) ?? [];
+  const skus = await skuMap(db, siteId);
+  return {
+    ...toOrderSummary(o),
+    lineItems: lines.map((l) => ({ lineNo: l.line_no, sku: l.sku, description: skus.get(l.sku)?.description ?? '', bin: skus.get(l.sku)?.bin ?? null, qty: l.qty })),
+  };
+}

@@ -1,0 +1,112 @@
+import type { RowIssue } from '../../shared/imports';
+
+/** A data row as read from a sheet: its spreadsheet row number and its cells by expected column. */
+export interface InputRow {
+  row: number;
+  values: Record<string, unknown>;
+}
+
+export interface SkuRecord {
+  sku: string;
+  description: string;
+  bin: string;
+  unitWeightKg: number;
+  unitVolumeL: number;
+}
+
+export interface OrderRecord {
+  ref: string;
+  due: string | null;
+  priority: number;
+  lines: { sku: string; qty: number }[];
+  /** Spreadsheet row of the order's first line (for messages). */
+  row: number | null;
+}
+
+export const SKU_COLUMNS = ['sku', 'description', 'bin', 'unit_weight_kg', 'unit_volume_l'] as const;
+export const SKU_REQUIRED = ['sku', 'bin', 'unit_weight_kg', 'unit_volume_l'] as const;
+export const ORDER_COLUMNS = ['order', 'sku', 'qty', 'due', 'priority'] as const;
+export const ORDER_REQUIRED = ['order', 'sku', 'qty'] as const;
+
+const text = (v: unknown): string => (v === null || v === undefined ? '' : String(v).trim());
+const shown = (v: unknown): string | null => (v === null || v === undefined || v === '' ? null : String(v).slice(0, 100));
+
+function num(v: unknown): number | null {
+  if (typeof v === 'number') return Number.isFinite(v) ? v : null;
+  const s = text(v);
+  if (s === '') return null;
+  const n = Number(s.replace(',', '.'));
+  return Number.isFinite(n) ? n : null;
+}
+
+/** ISO 8601 date or date-time; spreadsheet dates arrive as JS Dates when cellDates is on. */
+export function isoDue(v: unknown): string | null | 'invalid' {
+  if (v === null || v === undefined || v === '') return null;
+  if (v instanceof Date) return Number.isNaN(v.getTime()) ? 'invalid' : v.toISOString();
+  const s = text(v);
+  if (!/^\d{4}-\d{2}-\d{2}([T ]\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:?\d{2})?)?$/.test(s)) return 'invalid';
+  const d = new Date(s.length === 10 ? `${s}T23:59:59Z` : s.replace(' ', 'T'));
+  return Number.isNaN(d.getTime()) ? 'invalid' : d.toISOString();
+}
+
+/** Checks SKU master rows; every problem is reported, nothing is half-accepted. */
+export function validateSkuRows(sheet: string, rows: InputRow[]): { skus: SkuRecord[]; errors: RowIssue[] } {
+  const errors: RowIssue[] = [];
+  const seen = new Map<string, number>();
+  const skus: SkuRecord[] = [];
+  for (const { row, values } of rows) {
+    const issue = (column: string, message: string) => errors.push({ sheet, row, column, value: shown(values[column]), message });
+    const sku = text(values.sku);
+    const bin = text(values.bin);
+    const kg = num(values.unit_weight_kg);
+    const litres = num(values.unit_volume_l);
+    let bad = false;
+    if (!sku) (issue('sku', 'SKU is empty'), (bad = true));
+    else if (sku.length > 64) (issue('sku', 'SKU is longer than 64 characters'), (bad = true));
+    else if (seen.has(sku)) (issue('sku', `SKU ${sku} appears twice (first on row ${seen.get(sku)})`), (bad = true));
+    if (!bin) (issue('bin', 'bin is empty'), (bad = true));
+    if (kg === null) (issue('unit_weight_kg', 'unit weight must be a number (kg)'), (bad = true));
+    else if (kg < 0) (issue('unit_weight_kg', 'unit weight cannot be negative'), (bad = true));
+    if (litres === null) (issue('unit_volume_l', 'unit volume must be a number (litres)'), (bad = true));
+    else if (litres < 0) (issue('unit_volume_l', 'unit volume cannot be negative'), (bad = true));
+    if (sku && !seen.has(sku)) seen.set(sku, row);
+    if (!bad) skus.push({ sku, description: text(values.description).slice(0, 200), bin, unitWeightKg: kg!, unitVolumeL: litres! });
+  }
+  return { skus, errors };
+}
+
+/**
+ * Checks order rows (one row per order line) against the known SKUs and groups them into orders.
+ * An order's due and priority must agree on all its rows.
+ */
+export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sku: string) => boolean): { orders: OrderRecord[]; errors: RowIssue[] } {
+  const errors: RowIssue[] = [];
+  const byRef = new Map<string, OrderRecord & { firstRow: number }>();
+  for (const { row, values } of rows) {
+    const issue = (column: string, message: string) => errors.push({ sheet, row, column, value: shown(values[column]), message });
+    const ref = text(values.order);
+    const sku = text(values.sku);
+    const qty = num(values.qty);
+    const due = isoDue(values.due);
+    const prioText = text(values.priority);
+    const priority = prioText === '' ? 0 : num(prioText);
+    let bad = false;
+    if (!ref) (issue('order', 'order reference is empty'), (bad = true));
+    else if (ref.length > 64) (issue('order', 'order reference is longer than 64 characters'), (bad = true));
+    if (!sku) (issue('sku', 'SKU is empty'), (bad = true));
+    else if (!knownSku(sku)) (issue('sku', `SKU ${sku} is not in the SKU master; import it first`), (bad = true));
+    if (qty === null || !Number.isInteger(qty) || qty <= 0) (issue('qty', 'quantity must be a whole number above 0'), (bad = true));
+    if (due === 'invalid') (issue('due', 'due must be an ISO 8601 date or date-time, e.g. 2026-12-03T14:00:00Z'), (bad = true));
+    if (priority === null || !Number.isInteger(priority) || priority < 0 || priority > 9) (issue('priority', 'priority must be a whole number from 0 to 9'), (bad = true));
+    if (bad) continue;
+    const existing = byRef.get(ref);
+    if (!existing) {
+      byRef.set(ref, { ref, due: due as string | null, priority: priority!, lines: [{ sku, qty: qty! }], row, firstRow: row });
+      continue;
+    }
+    if (values.due !== undefined && text(values.due) !== '' && due !== existing.due) issue('due', `order ${ref} has another due on row ${existing.firstRow}`);
+    else if (prioText !== '' && priority !== existing.priority) issue('priority', `order ${ref} has another priority on row ${existing.firstRow}`);
+    else existing.lines.push({ sku, qty: qty! });
+  }
+  return { orders: [...byRef.values()].map(({ firstRow: _f, ...o }) => o), errors };
+}

@@ -1,0 +1,78 @@
+import { z } from 'zod';
+import { RowIssue } from './imports';
+
+export const OrderStatus = z.enum(['open', 'planned', 'picking', 'done', 'cancelled']);
+export type OrderStatus = z.infer<typeof OrderStatus>;
+
+export const Sku = z.object({
+  sku: z.string(),
+  description: z.string(),
+  bin: z.string(),
+  unitWeightKg: z.number(),
+  unitVolumeL: z.number(),
+  /** False when the bin is not on the site's active floor plan. */
+  binOnActivePlan: z.boolean(),
+});
+export type Sku = z.infer<typeof Sku>;
+
+export const OrderLineInput = z.strictObject({
+  sku: z.string().trim().min(1).max(64),
+  qty: z.number().int().positive().max(100_000),
+});
+
+/** One order as the host system pushes it (JSON API) — the same fields as the order file. */
+export const OrderInput = z.strictObject({
+  order: z.string().trim().min(1).max(64),
+  due: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
+  priority: z.number().int().min(0).max(9).default(0),
+  lines: z.array(OrderLineInput).min(1).max(500),
+});
+export type OrderInput = z.infer<typeof OrderInput>;
+
+export const PushOrdersBody = z.strictObject({ orders: z.array(OrderInput).min(1).max(5000) });
+
+export const ImportResult = z.object({
+  ok: z.boolean(),
+  errors: z.array(RowIssue),
+  warnings: z.array(RowIssue),
+  created: z.number().int(),
+  /** Orders whose reference was already known: not duplicated, not changed. */
+  unchanged: z.number().int(),
+  updated: z.number().int(),
+});
+export type ImportResult = z.infer<typeof ImportResult>;
+
+export const OrderSummary = z.object({
+  id: z.number().int(),
+  ref: z.string(),
+  status: OrderStatus,
+  due: z.string().nullable(),
+  priority: z.number().int(),
+  lines: z.number().int(),
+  units: z.number().int(),
+  weightKg: z.number(),
+  volumeL: z.number(),
+  waveId: z.number().int().nullable(),
+  createdAt: z.string(),
+});
+export type OrderSummary = z.infer<typeof OrderSummary>;
+
+export const OrdersQuery = z.strictObject({
+  status: OrderStatus.optional(),
+  dueBefore: z.string().max(40).optional(),
+  priorityMin: z.coerce.number().int().min(0).max(9).optional(),
+  search: z.string().trim().max(64).optional(),
+  sort: z.enum(['ref', 'due', 'priority', 'lines', 'units', 'weightKg', 'createdAt']).default('due'),
+  dir: z.enum(['asc', 'desc']).default('asc'),
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(500).default(50),
+});
+export type OrdersQuery = z.infer<typeof OrdersQuery>;
+
+export const OrdersPage = z.object({ total: z.number().int(), page: z.number().int(), pageSize: z.number().int(), rows: z.array(OrderSummary) });
+export type OrdersPage = z.infer<typeof OrdersPage>;
+
+export const OrderDetail = OrderSummary.extend({
+  lineItems: z.array(z.object({ lineNo: z.number().int(), sku: z.string(), description: z.string(), bin: z.string().nullable(), qty: z.number().int() })),
+});
+export type OrderDetail = z.infer<typeof OrderDetail>;
