@@ -3,10 +3,54 @@ import { ImportResult, OrderDetail, OrdersPage, OrdersQuery, PushOrdersBody, Sku
 import { notFound } from '../http/errors';
 import { defineRoute } from '../http/route';
 import { orderDetail, pageOrders, skuMap } from './orders.repository';
-import { pushOrders } from './orders.service';
+import { importOrderRows, importSkus, pushOrders } from './orders.service';
+import { failed, orderTemplate, readTableFile, skuTemplate } from './orders.files';
+import { AppError } from '../http/errors';
+import type { Request, Response } from 'express';
 import { missingBinsOnActivePlan } from './bins';
 
+const uploaded = (req: Request) => {
+  const file = req.file;
+  if (!file) throw new AppError('validation', 'validation_failed', 'Attach the file in the field "file"', [{ field: 'file', message: 'missing' }]);
+  return file;
+};
+
+const sendXlsx = (res: Response, name: string, bytes: Buffer) => {
+  res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
+  res.setHeader('Content-Disposition', `attachment; filename="${name}"`);
+  res.send(bytes);
+  return undefined;
+};
+
 export const orderRoutes = [
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/skus/import', access: ['supervisor', 'admin'], summary: 'Import the SKU master (xlsx sheet "skus" or CSV); any error → nothing saved',
+    upload: 'single-file', response: ImportResult,
+    handler: async ({ deps, siteId, req, user }) => {
+      const file = uploaded(req);
+      const read = await readTableFile(file.buffer, file.originalname, 'skus');
+      if ('issues' in read) return failed(read.issues);
+      return importSkus(deps.db, siteId!, user!.id, 'skus', read.rows, (bins) => missingBinsOnActivePlan(deps.db, siteId!, bins));
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/orders/import', access: ['supervisor', 'admin'], summary: 'Import orders (xlsx sheet "orders" or CSV); any error → nothing saved',
+    upload: 'single-file', response: ImportResult,
+    handler: async ({ deps, siteId, req, user }) => {
+      const file = uploaded(req);
+      const read = await readTableFile(file.buffer, file.originalname, 'orders');
+      if ('issues' in read) return failed(read.issues);
+      return importOrderRows(deps.db, siteId!, user!.id, 'orders', read.rows, 'upload');
+    },
+  }),
+  defineRoute({
+    method: 'get', path: '/api/templates/skus.xlsx', access: 'signed-in', summary: 'SKU master template with a worked example',
+    handler: ({ res }) => sendXlsx(res, 'aislewright-skus-template.xlsx', skuTemplate()),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/templates/orders.xlsx', access: 'signed-in', summary: 'Order file template with a worked example',
+    handler: ({ res }) => sendXlsx(res, 'aislewright-orders-template.xlsx', orderTemplate()),
+  }),
   defineRoute({
     method: 'get', path: '/api/sites/:siteId/orders', access: ['supervisor', 'admin', 'engineer'], summary: 'Orders, server-paged, sortable and filterable',
     query: OrdersQuery, response: OrdersPage,
