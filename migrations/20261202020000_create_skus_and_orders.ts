@@ -23,7 +23,8 @@ export async function up(knex: Knex): Promise<void> {
     // open → planned (in a released wave) → picking → done; cancelled
     t.string('status').notNullable().defaultTo('open');
     t.string('due');
-    t.integer('priority').notNullable().defaultTo(0);
+    // 1 is the most urgent (common practice: "P1"); null when the host sends none.
+    t.integer('priority');
     t.string('source').notNullable();
     t.integer('lines').notNullable();
     t.integer('units').notNullable();

@@ -24,7 +24,8 @@ export const OrderLineInput = z.strictObject({
 export const OrderInput = z.strictObject({
   order: z.string().trim().min(1).max(64),
   due: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
-  priority: z.number().int().min(0).max(9).default(0),
+  /** 1 is the most urgent (common practice: "P1"), up to 9; omitted = no priority. */
+  priority: z.number().int().min(1).max(9).optional(),
   lines: z.array(OrderLineInput).min(1).max(500),
 });
 export type OrderInput = z.infer<typeof OrderInput>;
@@ -47,7 +48,7 @@ export const OrderSummary = z.object({
   ref: z.string(),
   status: OrderStatus,
   due: z.string().nullable(),
-  priority: z.number().int(),
+  priority: z.number().int().nullable(),
   lines: z.number().int(),
   units: z.number().int(),
   weightKg: z.number(),
@@ -60,7 +61,8 @@ export type OrderSummary = z.infer<typeof OrderSummary>;
 export const OrdersQuery = z.strictObject({
   status: OrderStatus.optional(),
   dueBefore: z.string().max(40).optional(),
-  priorityMin: z.coerce.number().int().min(0).max(9).optional(),
+  /** Orders at least this urgent: priority 1..priorityAtMost. */
+  priorityAtMost: z.coerce.number().int().min(1).max(9).optional(),
   search: z.string().trim().max(64).optional(),
   sort: z.enum(['ref', 'due', 'priority', 'lines', 'units', 'weightKg', 'createdAt']).default('due'),
   dir: z.enum(['asc', 'desc']).default('asc'),

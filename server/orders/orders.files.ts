@@ -49,14 +49,14 @@ export function orderTemplate(): Buffer {
   XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet([
     ['How to fill this workbook'],
     ['One row per order line on the "orders" sheet. Columns: order (your order reference), sku, qty (whole units),'],
-    ['due (optional, ISO 8601 such as 2026-12-03T14:00:00Z), priority (optional, 0–9, higher is more urgent).'],
+    ['due (optional, ISO 8601 such as 2026-12-03T14:00:00Z), priority (optional, 1–9, 1 is the most urgent).'],
     ['An order reference that was imported before is not duplicated.'],
   ]), 'instructions');
   XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet([
     [...ORDER_COLUMNS],
     ['WEB-10001', 'TEA-0001', 2, '2026-12-03T14:00:00Z', 1],
     ['WEB-10001', 'MUG-0002', 1, '2026-12-03T14:00:00Z', 1],
-    ['WEB-10002', 'PAN-0003', 1, '2026-12-03T16:00:00Z', 0],
+    ['WEB-10002', 'PAN-0003', 1, '2026-12-03T16:00:00Z', ''],
   ]), 'orders');
   return XLSX.write(wb, { type: 'buffer', bookType: 'xlsx' }) as Buffer;
 }

@@ -21,7 +21,7 @@ export interface DbOrderRow {
   ref: string;
   status: OrderStatus;
   due: string | null;
-  priority: number;
+  priority: number | null;
   source: string;
   lines: number;
   units: number;
@@ -101,7 +101,7 @@ export async function pageOrders(db: Q, siteId: number, q: OrdersQuery): Promise
   const base = db<DbOrderRow>('orders').where({ site_id: siteId });
   if (q.status) base.andWhere({ status: q.status });
   if (q.dueBefore) base.andWhere('due', '<=', q.dueBefore);
-  if (q.priorityMin !== undefined) base.andWhere('priority', '>=', q.priorityMin);
+  if (q.priorityAtMost !== undefined) base.andWhere('priority', '<=', q.priorityAtMost);
   if (q.search) base.andWhere('ref', 'like', `%${q.search.replace(/[%_]/g, '')}%`);
   const [{ n }] = (await base.clone().count<{ n: number }[]>({ n: '*' })) as [{ n: number }];
   const col = SORT_COLUMN[q.sort];

@@ -76,7 +76,7 @@ export async function importOrderRows(db: Knex, siteId: number, userId: number |
 export async function pushOrders(db: Knex, siteId: number, input: OrderInput[]): Promise<ImportResult> {
   const rows: InputRow[] = [];
   input.forEach((o, i) => {
-    for (const l of o.lines) rows.push({ row: i + 1, values: { order: o.order, sku: l.sku, qty: l.qty, due: o.due ?? '', priority: o.priority } });
+    for (const l of o.lines) rows.push({ row: i + 1, values: { order: o.order, sku: l.sku, qty: l.qty, due: o.due ?? '', priority: o.priority ?? '' } });
   });
   return importOrderRows(db, siteId, null, 'request', rows, 'api');
 }

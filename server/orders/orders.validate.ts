@@ -17,7 +17,7 @@ export interface SkuRecord {
 export interface OrderRecord {
   ref: string;
   due: string | null;
-  priority: number;
+  priority: number | null;
   lines: { sku: string; qty: number }[];
   /** Spreadsheet row of the order's first line (for messages). */
   row: number | null;
@@ -89,7 +89,7 @@ export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sk
     const qty = num(values.qty);
     const due = isoDue(values.due);
     const prioText = text(values.priority);
-    const priority = prioText === '' ? 0 : num(prioText);
+    const priority = prioText === '' ? null : num(prioText);
     let bad = false;
     if (!ref) (issue('order', 'order reference is empty'), (bad = true));
     else if (ref.length > 64) (issue('order', 'order reference is longer than 64 characters'), (bad = true));
@@ -97,11 +97,11 @@ export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sk
     else if (!knownSku(sku)) (issue('sku', `SKU ${sku} is not in the SKU master; import it first`), (bad = true));
     if (qty === null || !Number.isInteger(qty) || qty <= 0) (issue('qty', 'quantity must be a whole number above 0'), (bad = true));
     if (due === 'invalid') (issue('due', 'due must be an ISO 8601 date or date-time, e.g. 2026-12-03T14:00:00Z'), (bad = true));
-    if (priority === null || !Number.isInteger(priority) || priority < 0 || priority > 9) (issue('priority', 'priority must be a whole number from 0 to 9'), (bad = true));
+    if (prioText !== '' && (priority === null || !Number.isInteger(priority) || priority < 1 || priority > 9)) (issue('priority', 'priority must be a whole number from 1 (most urgent) to 9'), (bad = true));
     if (bad) continue;
     const existing = byRef.get(ref);
     if (!existing) {
-      byRef.set(ref, { ref, due: due as string | null, priority: priority!, lines: [{ sku, qty: qty! }], row, firstRow: row });
+      byRef.set(ref, { ref, due: due as string | null, priority, lines: [{ sku, qty: qty! }], row, firstRow: row });
       continue;
     }
     if (values.due !== undefined && text(values.due) !== '' && due !== existing.due) issue('due', `order ${ref} has another due on row ${existing.firstRow}`);
