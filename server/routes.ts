@@ -4,6 +4,7 @@
  * A domain adds its routes by exporting an array from <domain>/<domain>.routes.ts and listing it here.
  */
 import { authRoutes } from './auth/auth.routes';
+import { floorPlanRoutes } from './floor-plans/floor-plans.routes';
 import type { AnyRoute } from './http/route';
 import { tokenRoutes } from './integrations/tokens.routes';
 import { mailRoutes } from './mail/mail.routes';
@@ -19,5 +20,6 @@ export const routeTable: readonly AnyRoute[] = [
   ...siteRoutes,
   ...tokenRoutes,
   ...mailRoutes,
+  ...floorPlanRoutes,
   ...orderRoutes,
 ];

@@ -1,0 +1,45 @@
+/** The main-thread side of build.worker.ts: its input, output and progress, and how to run it. */
+import type { FloorPlanStats } from '../../shared/floor-plan-domain';
+import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import type { RectangularPlanParams } from '../core/plan/generate';
+import { runInWorker } from '../workers/spawn';
+
+export type BuildInput =
+  | { kind: 'geometry'; plan: PlanGeometry; closures: PlanClosure[]; budgetMs: number }
+  | { kind: 'generate'; params: RectangularPlanParams; closures: PlanClosure[]; budgetMs: number };
+
+export interface BuildProgress {
+  phase: 'building_graph' | 'building_distances';
+  fraction: number;
+}
+
+export interface SerializedSet {
+  json: string;
+  blobs: Record<string, Uint8Array>;
+}
+
+export interface BuildOutput {
+  /** The generated geometry (generate jobs only; geometry jobs already have theirs). */
+  plan: PlanGeometry | null;
+  graph: SerializedSet;
+  index: SerializedSet;
+  storedBytes: number;
+  stats: FloorPlanStats;
+  nodeCount: number;
+  hubCount: number;
+  unreachableBins: string[];
+  buildMs: number;
+}
+
+/** Engine time budget inside the worker, and the worker's own hard limit around it. */
+export const BUILD_BUDGET_MS = 60_000;
+const WORKER_TIMEOUT_MS = 120_000;
+
+/** Runs one build in a fresh worker thread; rejects on a timeout or an engine error. */
+export function runBuild(input: BuildInput, onProgress?: (p: BuildProgress) => void): Promise<BuildOutput> {
+  return runInWorker<BuildOutput, BuildProgress>(new URL('./build.worker.ts', import.meta.url), input, {
+    timeoutMs: WORKER_TIMEOUT_MS,
+    resourceLimits: { maxOldGenerationSizeMb: 1024 },
+    ...(onProgress ? { onProgress } : {}),
+  });
+}

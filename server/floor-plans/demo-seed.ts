@@ -1,0 +1,32 @@
+/**
+ * Demo seeder: an invented layout for the demo site, generated and activated: 12 aisles of 30 bays on
+ * both sides, 4 levels (2,880 bins), front, middle and back cross aisles, the depot at the front centre.
+ */
+import type { Knex } from 'knex';
+import type { GeneratePlanParams } from '../../shared/floor-plan-domain';
+import { BUILD_BUDGET_MS, runBuild } from './build';
+import { activatePlan, engineParams, saveBuiltPlan } from './floor-plans.service';
+
+export const DEMO_PLAN_PARAMS: GeneratePlanParams = {
+  aisles: 12,
+  aisleLengthM: 48,
+  aisleSpacingM: 3.2,
+  baysPerAisle: 30,
+  levels: 4,
+  bothSides: true,
+  crossAisles: { front: true, back: true, middle: 1 },
+  crossAisleWidthM: 3,
+  depot: 'front_centre',
+};
+
+export async function seedDemoFloorPlan(db: Knex, siteId: number, userIds: Record<string, number>): Promise<void> {
+  const userId = userIds.supervisor ?? userIds.admin!;
+  const built = await runBuild({ kind: 'generate', params: engineParams(DEMO_PLAN_PARAMS), closures: [], budgetMs: BUILD_BUDGET_MS });
+  const planId = await saveBuiltPlan(
+    db,
+    { siteId, userId, name: 'East hall (demo layout)', source: 'generated', sourceFilename: null, generatorParams: DEMO_PLAN_PARAMS, warnings: [] },
+    built.plan!,
+    built,
+  );
+  await activatePlan(db, siteId, planId, userId);
+}

@@ -1,0 +1,357 @@
+/**
+ * Floor plans: draft → active → retired, one active plan per site, version numbers per site.
+ * Heavy work (parsing, checking, walk graph, distances) runs in worker threads; saving runs in small
+ * chunks with a yield between them, so other requests keep being served during a 50,000-bin build.
+ * Services throw AppError and never see HTTP.
+ */
+import { setImmediate as yieldToLoop } from 'node:timers/promises';
+import type { Knex } from 'knex';
+import type {
+  ActiveFloorPlan,
+  ClosureResult,
+  DistanceAnswer,
+  FloorPlanDetail,
+  FloorPlanJob,
+  FloorPlanSummary,
+  GeneratePlanParams,
+} from '../../shared/floor-plan-domain';
+import type { RowIssue } from '../../shared/imports';
+import type { z } from 'zod';
+import type { CloseSegmentBody as CloseSegmentSchema } from '../../shared/floor-plan-domain';
+import { pairDistance } from '../core/plan/distances';
+import type { RectangularPlanParams } from '../core/plan/generate';
+import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import { nowIso } from '../db/knex';
+import { audit } from '../audit/audit';
+import { AppError, notFound } from '../http/errors';
+import { WorkerTimeoutError } from '../workers/spawn';
+import { BUILD_BUDGET_MS, runBuild, type BuildOutput } from './build';
+import * as repo from './floor-plans.repository';
+import { checkFloorPlanFile } from './check';
+import { startJob, type JobControl, type JobOutcome } from './jobs';
+import { forgetPlanIndex, loadPlanIndex } from './plan-index';
+import { unreachableBinCodes } from './reachability';
+
+type CloseSegment = z.output<typeof CloseSegmentSchema>;
+
+// ---- reading ----
+
+async function summaryOf(db: Knex, row: repo.DbFloorPlanRow): Promise<FloorPlanSummary> {
+  const [name, closures, inUse] = await Promise.all([repo.userName(db, row.uploaded_by), repo.listOpenClosures(db, row.id), repo.isPlanInUse(db, row.id)]);
+  return repo.toSummary(row, { uploaderName: name, openClosures: closures.length, inUse });
+}
+
+export async function listPlans(db: Knex, siteId: number): Promise<FloorPlanSummary[]> {
+  const rows = await repo.listPlanRows(db, siteId);
+  const inUse = await repo.plansInUse(db, rows.map((r) => r.id));
+  return rows.map((r) => repo.toSummary(r, { uploaderName: r.uploader_name, openClosures: Number(r.open_closures), inUse: inUse.has(r.id) }));
+}
+
+async function mustPlan(db: Knex, siteId: number, planId: number): Promise<repo.DbFloorPlanRow> {
+  const row = Number.isInteger(planId) && planId > 0 ? await repo.getPlanRow(db, siteId, planId) : undefined;
+  if (!row) throw notFound('Floor plan');
+  return row;
+}
+
+export async function getPlanDetail(db: Knex, siteId: number, planId: number): Promise<FloorPlanDetail> {
+  const row = await mustPlan(db, siteId, planId);
+  const loaded = await loadPlanIndex(db, planId);
+  const summary = await summaryOf(db, row);
+  return {
+    ...summary,
+    warnings: JSON.parse(row.warnings) as RowIssue[],
+    closures: loaded.closureRows,
+    unreachableBins: unreachableBinCodes(loaded.geometry, loaded.graph),
+  };
+}
+
+export async function getGeometry(db: Knex, siteId: number, planId: number): Promise<PlanGeometry> {
+  await mustPlan(db, siteId, planId);
+  return (await loadPlanIndex(db, planId)).geometry;
+}
+
+/** The active plan with its geometry, for every map including the picker's trip map. */
+export async function getActivePlan(db: Knex, siteId: number): Promise<ActiveFloorPlan> {
+  const row = await repo.activePlanRow(db, siteId);
+  if (!row) throw new AppError('not_found', 'no_active_plan', 'This site has no active floor plan yet');
+  const loaded = await loadPlanIndex(db, row.id);
+  return { plan: await summaryOf(db, row), geometry: loaded.geometry, closures: loaded.closureRows };
+}
+
+/** Shortest walking distance between two bins under the plan's open closures; null when no walk joins them. */
+export async function binDistance(db: Knex, siteId: number, planId: number, from: string, to: string): Promise<DistanceAnswer> {
+  await mustPlan(db, siteId, planId);
+  const loaded = await loadPlanIndex(db, planId);
+  const issues = [];
+  if (loaded.binIndex(from) === undefined) issues.push({ field: 'from', message: `bin ${from} is not on this plan` });
+  if (loaded.binIndex(to) === undefined) issues.push({ field: 'to', message: `bin ${to} is not on this plan` });
+  if (issues.length) throw new AppError('validation', 'validation_failed', issues.map((i) => i.message).join('; '), issues);
+  const a = loaded.binNode(from);
+  const b = loaded.binNode(to);
+  const d = a === undefined || b === undefined ? Infinity : pairDistance(loaded.index, a, b);
+  return { from, to, metres: Number.isFinite(d) ? Math.round(d * 1000) / 1000 : null };
+}
+
+// ---- state changes ----
+
+export async function activatePlan(db: Knex, siteId: number, planId: number, userId: number): Promise<FloorPlanDetail> {
+  const row = await mustPlan(db, siteId, planId);
+  if (row.state === 'active') return getPlanDetail(db, siteId, planId);
+  if (row.state !== 'draft') throw new AppError('conflict', 'plan_read_only', `Version ${row.version} is retired and read-only; upload it again to use it`);
+  const now = nowIso();
+  await db.transaction(async (trx) => {
+    // Re-read inside the transaction: a concurrent activation must not leave two active plans.
+    const fresh = await repo.getPlanRow(trx, siteId, planId);
+    if (fresh?.state !== 'draft') throw new AppError('conflict', 'plan_changed', 'The plan changed meanwhile; reload and try again');
+    const retired = await repo.retireActive(trx, siteId, now);
+    await repo.setActive(trx, planId, now);
+    await audit(trx, { siteId, userId, action: 'floor_plan.activated', subject: `v${row.version}`, detail: { planId, retired } });
+  });
+  return getPlanDetail(db, siteId, planId);
+}
+
+export async function renamePlan(db: Knex, siteId: number, planId: number, name: string, userId: number): Promise<FloorPlanDetail> {
+  const row = await mustPlan(db, siteId, planId);
+  if (row.state === 'retired' || (await repo.isPlanInUse(db, planId))) throw new AppError('conflict', 'plan_read_only', 'Retired plans and plans used by waves cannot be changed');
+  await repo.renamePlan(db, planId, name);
+  await audit(db, { siteId, userId, action: 'floor_plan.renamed', subject: `v${row.version}`, detail: { planId, name } });
+  return getPlanDetail(db, siteId, planId);
+}
+
+/** Deletes a draft nobody planned on. */
+export async function deleteDraft(db: Knex, siteId: number, planId: number, userId: number): Promise<void> {
+  const row = await mustPlan(db, siteId, planId);
+  if (row.state !== 'draft') throw new AppError('conflict', 'not_a_draft', 'Only drafts can be deleted; active and retired plans are kept');
+  if (await repo.isPlanInUse(db, planId)) throw new AppError('conflict', 'plan_read_only', 'Waves were planned on this plan; it is kept');
+  await repo.deletePlan(db, planId);
+  forgetPlanIndex(planId);
+  await audit(db, { siteId, userId, action: 'floor_plan.deleted', subject: `v${row.version}`, detail: { planId } });
+}
+
+// ---- building and saving ----
+
+interface SaveMeta {
+  siteId: number;
+  userId: number;
+  name: string;
+  source: 'upload' | 'generated';
+  sourceFilename: string | null;
+  generatorParams: GeneratePlanParams | null;
+  warnings: RowIssue[];
+}
+
+/**
+ * Stores a built plan as a draft: the plan row in state 'building', the geometry in chunks with a
+ * yield to the event loop between them, then arrays, version number and state in one transaction.
+ * On any failure the half-saved plan is deleted, so nothing of it remains.
+ */
+export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry, built: BuildOutput, onProgress?: (fraction: number) => void): Promise<number> {
+  const planId = await repo.insertBuildingPlan(
+    db,
+    {
+      site_id: meta.siteId,
+      name: meta.name,
+      source: meta.source,
+      source_filename: meta.sourceFilename,
+      generator_params: meta.generatorParams ? JSON.stringify(meta.generatorParams) : null,
+      uploaded_by: meta.userId,
+      stats: built.stats,
+      node_count: built.nodeCount,
+      hub_count: built.hubCount,
+      stored_bytes: built.storedBytes,
+      build_ms: built.buildMs,
+      warnings: meta.warnings,
+    },
+    nowIso(),
+  );
+  try {
+    const chunks = repo.geometryInsertChunks(planId, plan);
+    for (let i = 0; i < chunks.length; i++) {
+      await repo.insertRows(db, chunks[i]!.table, chunks[i]!.rows);
+      onProgress?.((i + 1) / (chunks.length + 1));
+      await yieldToLoop();
+    }
+    let version = 0;
+    await db.transaction(async (trx) => {
+      await repo.replaceGraph(trx, planId, 0, built.graph, built.index);
+      version = await repo.nextVersion(trx, meta.siteId);
+      await repo.setPlanDraft(trx, planId, version);
+      await audit(trx, { siteId: meta.siteId, userId: meta.userId, action: 'floor_plan.draft_saved', subject: `v${version}`, detail: { planId, source: meta.source, bins: built.stats.bins } });
+    });
+    onProgress?.(1);
+    return planId;
+  } catch (err) {
+    await repo.deletePlan(db, planId);
+    throw err;
+  }
+}
+
+function describeFailure(err: unknown): string {
+  if (err instanceof AppError) return err.message;
+  if (err instanceof WorkerTimeoutError) return 'Building the plan took too long and was stopped';
+  if (err instanceof RangeError) return err.message;
+  return `Building the plan failed: ${err instanceof Error ? err.message : String(err)}`;
+}
+
+async function buildWithProgress(control: JobControl, input: Parameters<typeof runBuild>[0]): Promise<BuildOutput> {
+  return runBuild(input, (p) => control.progress(p.phase, p.fraction));
+}
+
+const stripExtension = (filename: string) => filename.replace(/\.(xlsx|xls|csv)$/i, '').trim();
+
+/**
+ * Starts an upload job: check every row (worker), then walk graph and distances (worker), then save a
+ * draft. A file with errors ends the job as 'invalid' with its RowIssue table and saves nothing.
+ */
+export function startUpload(db: Knex, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }): FloorPlanJob {
+  return startJob(
+    input.siteId,
+    'upload',
+    async (control): Promise<JobOutcome> => {
+      control.progress('parsing', 0);
+      const check = await checkFloorPlanFile(input.bytes, input.filename, { onProgress: (p) => control.progress(p.phase, p.fraction) });
+      if (!check.ok || !check.plan) {
+        return { status: 'invalid', errors: check.errors, warnings: check.warnings, message: `${check.errors.length} problem${check.errors.length === 1 ? '' : 's'} found; nothing was saved` };
+      }
+      const plan = check.plan;
+      const built = await buildWithProgress(control, { kind: 'geometry', plan, closures: [], budgetMs: BUILD_BUDGET_MS });
+      control.progress('saving', 0);
+      const name = input.name?.trim() || stripExtension(input.filename) || 'Uploaded plan';
+      const planId = await saveBuiltPlan(
+        db,
+        { siteId: input.siteId, userId: input.userId, name, source: 'upload', sourceFilename: input.filename, generatorParams: null, warnings: check.warnings },
+        plan,
+        built,
+        (f) => control.progress('saving', f),
+      );
+      return { status: 'done', planId, warnings: check.warnings };
+    },
+    describeFailure,
+  );
+}
+
+export const engineParams = (p: GeneratePlanParams): RectangularPlanParams => ({
+  aisles: p.aisles,
+  aisleLengthM: p.aisleLengthM,
+  aisleSpacingM: p.aisleSpacingM,
+  baysPerAisle: p.baysPerAisle,
+  levels: p.levels,
+  bothSides: p.bothSides,
+  crossAisles: { front: p.crossAisles.front, back: p.crossAisles.back, middle: p.crossAisles.middle },
+  crossAisleWidthM: p.crossAisleWidthM,
+  depot: { at: p.depot },
+});
+
+/** Starts a job that generates a rectangular plan from parameters and saves it as a draft. */
+export function startGenerate(db: Knex, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }): FloorPlanJob {
+  return startJob(
+    input.siteId,
+    'generate',
+    async (control): Promise<JobOutcome> => {
+      const built = await buildWithProgress(control, { kind: 'generate', params: engineParams(input.params), closures: [], budgetMs: BUILD_BUDGET_MS });
+      control.progress('saving', 0);
+      const planId = await saveBuiltPlan(
+        db,
+        { siteId: input.siteId, userId: input.userId, name: input.name, source: 'generated', sourceFilename: null, generatorParams: input.params, warnings: [] },
+        built.plan!,
+        built,
+        (f) => control.progress('saving', f),
+      );
+      return { status: 'done', planId, warnings: [] };
+    },
+    describeFailure,
+  );
+}
+
+// ---- closures ----
+
+/** One closure change per plan at a time, so two supervisors cannot overwrite each other's arrays. */
+const planLocks = new Map<number, Promise<unknown>>();
+function withPlanLock<T>(planId: number, task: () => Promise<T>): Promise<T> {
+  const prev = planLocks.get(planId) ?? Promise.resolve();
+  const run = prev.then(task, task);
+  const tail = run.catch(() => undefined);
+  planLocks.set(planId, tail);
+  void tail.then(() => {
+    if (planLocks.get(planId) === tail) planLocks.delete(planId);
+  });
+  return run;
+}
+
+function checkClosureTarget(plan: PlanGeometry, c: CloseSegment): void {
+  if (c.kind === 'aisle') {
+    const aisle = plan.aisles.find((a) => a.code === c.code);
+    if (!aisle) throw new AppError('validation', 'validation_failed', `Aisle ${c.code} is not on this plan`, [{ field: 'code', message: `aisle ${c.code} is not on this plan` }]);
+    const lo = Math.min(aisle.yStart, aisle.yEnd);
+    const hi = Math.max(aisle.yStart, aisle.yEnd);
+    if (c.toM <= lo || c.fromM >= hi) {
+      throw new AppError('validation', 'validation_failed', `Aisle ${c.code} runs from ${lo} m to ${hi} m; the closed range must overlap it`, [{ field: 'fromM', message: `outside ${lo}–${hi} m` }]);
+    }
+  } else {
+    const cross = plan.crossAisles.find((a) => a.code === c.code);
+    if (!cross) throw new AppError('validation', 'validation_failed', `Cross aisle ${c.code} is not on this plan`, [{ field: 'code', message: `cross aisle ${c.code} is not on this plan` }]);
+    const lo = Math.min(cross.xStart, cross.xEnd);
+    const hi = Math.max(cross.xStart, cross.xEnd);
+    if (c.toM <= lo || c.fromM >= hi) {
+      throw new AppError('validation', 'validation_failed', `Cross aisle ${c.code} runs from ${lo} m to ${hi} m; the closed range must overlap it`, [{ field: 'fromM', message: `outside ${lo}–${hi} m` }]);
+    }
+  }
+}
+
+/** Rebuilds graph and distances with `closures` in a worker, then stores them with the closure change. */
+async function rebuildWithClosures(
+  db: Knex,
+  siteId: number,
+  planId: number,
+  closures: PlanClosure[],
+  change: (trx: Knex.Transaction) => Promise<void>,
+): Promise<{ before: string[]; after: string[] }> {
+  const loaded = await loadPlanIndex(db, planId);
+  const before = unreachableBinCodes(loaded.geometry, loaded.graph);
+  const built = await runBuild({ kind: 'geometry', plan: loaded.geometry, closures, budgetMs: BUILD_BUDGET_MS });
+  const row = await mustPlan(db, siteId, planId);
+  const nextVersion = row.closure_version + 1;
+  await db.transaction(async (trx) => {
+    await change(trx);
+    await repo.replaceGraph(trx, planId, nextVersion, built.graph, built.index);
+    await repo.setClosureVersion(trx, planId, nextVersion);
+  });
+  return { before, after: built.unreachableBins };
+}
+
+async function closureResult(db: Knex, siteId: number, planId: number, r: { before: string[]; after: string[] }): Promise<ClosureResult> {
+  const was = new Set(r.before);
+  return { plan: await getPlanDetail(db, siteId, planId), unreachableBins: r.after, newlyUnreachable: r.after.filter((c) => !was.has(c)) };
+}
+
+/** Closes a stretch of an aisle or cross aisle; distances are recomputed and unreachable bins listed. */
+export async function closeSegment(db: Knex, siteId: number, planId: number, body: CloseSegment, userId: number): Promise<ClosureResult> {
+  const row = await mustPlan(db, siteId, planId);
+  if (row.state === 'retired') throw new AppError('conflict', 'plan_read_only', 'Retired plans are read-only');
+  return withPlanLock(planId, async () => {
+    const loaded = await loadPlanIndex(db, planId);
+    checkClosureTarget(loaded.geometry, body);
+    const closures = [...loaded.closures, { kind: body.kind, code: body.code, from: body.fromM, to: body.toM }];
+    const r = await rebuildWithClosures(db, siteId, planId, closures, async (trx) => {
+      const id = await repo.insertClosure(trx, { planId, kind: body.kind, code: body.code, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null, userId }, nowIso());
+      await audit(trx, { siteId, userId, action: 'floor_plan.segment_closed', subject: `${body.kind} ${body.code}`, detail: { planId, closureId: id, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null } });
+    });
+    return closureResult(db, siteId, planId, r);
+  });
+}
+
+/** Reopens a closed stretch; distances are recomputed. */
+export async function reopenSegment(db: Knex, siteId: number, planId: number, closureId: number, userId: number): Promise<ClosureResult> {
+  const row = await mustPlan(db, siteId, planId);
+  if (row.state === 'retired') throw new AppError('conflict', 'plan_read_only', 'Retired plans are read-only');
+  return withPlanLock(planId, async () => {
+    const loaded = await loadPlanIndex(db, planId);
+    if (!loaded.closureRows.some((c) => c.id === closureId)) throw notFound('Closure');
+    const closures = loaded.closureRows.filter((c) => c.id !== closureId).map(repo.toEngineClosure);
+    const r = await rebuildWithClosures(db, siteId, planId, closures, async (trx) => {
+      if (!(await repo.reopenClosure(trx, planId, closureId, userId, nowIso()))) throw notFound('Closure');
+      await audit(trx, { siteId, userId, action: 'floor_plan.segment_reopened', subject: String(closureId), detail: { planId, closureId } });
+    });
+    return closureResult(db, siteId, planId, r);
+  });
+}

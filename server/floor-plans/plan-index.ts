@@ -1,0 +1,96 @@
+/**
+ * A stored plan, loaded for routing: geometry, walk graph and distance index (deserialised from their
+ * BLOBs, no recomputation), bin and depot look-ups. Waves and studies use this; it is cached in memory
+ * per plan id and closure version, so a closure or reopening makes the next load read the new arrays.
+ */
+import type { Knex } from 'knex';
+import type { FloorPlanClosure } from '../../shared/floor-plan-domain';
+import { deserializeDistanceIndex, deserializeWalkGraph } from '../core/plan/serialize';
+import type { DistanceIndex } from '../core/plan/distances';
+import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import type { WalkGraph } from '../core/plan/walk-graph';
+import { AppError, notFound } from '../http/errors';
+import { activePlanRow, getPlanRowById, listOpenClosures, loadGeometry, loadGraphSets, toEngineClosure } from './floor-plans.repository';
+
+export interface LoadedPlan {
+  planId: number;
+  siteId: number;
+  version: number;
+  closureVersion: number;
+  geometry: PlanGeometry;
+  /** Open closures the graph and index were built with. */
+  closures: PlanClosure[];
+  closureRows: FloorPlanClosure[];
+  graph: WalkGraph;
+  index: DistanceIndex;
+  /** Access-point node of a bin code; undefined when the code is not on the plan or the bin has no node. */
+  binNode(code: string): number | undefined;
+  /** Index into geometry.bins of a bin code. */
+  binIndex(code: string): number | undefined;
+  /** Node of each depot, in geometry.depots order. */
+  depotNodes: Int32Array;
+}
+
+/** Plans kept in memory; a 50,000-bin plan is a few MB with its geometry. */
+const CACHE_LIMIT = 8;
+const cache = new Map<number, LoadedPlan>();
+
+function remember(plan: LoadedPlan): void {
+  cache.delete(plan.planId);
+  cache.set(plan.planId, plan);
+  while (cache.size > CACHE_LIMIT) cache.delete(cache.keys().next().value!);
+}
+
+/** Drops a plan from the cache (after deletion; tests). */
+export function forgetPlanIndex(planId?: number): void {
+  if (planId === undefined) cache.clear();
+  else cache.delete(planId);
+}
+
+/**
+ * Loads a stored plan (any state except one still being saved). Cached: a hit costs one small row read
+ * to compare the closure version. Throws AppError not_found for an unknown plan.
+ */
+export async function loadPlanIndex(db: Knex, planId: number): Promise<LoadedPlan> {
+  const row = await getPlanRowById(db, planId);
+  if (!row) throw notFound('Floor plan');
+  const hit = cache.get(planId);
+  if (hit && hit.closureVersion === row.closure_version) {
+    remember(hit);
+    return hit;
+  }
+  const sets = await loadGraphSets(db, planId);
+  if (!sets) throw new AppError('internal', 'plan_not_built', `Floor plan ${planId} has no stored walk graph`);
+  const [geometry, closureRows] = await Promise.all([loadGeometry(db, planId), listOpenClosures(db, planId)]);
+  const graph = deserializeWalkGraph(sets.graph);
+  const index = deserializeDistanceIndex(sets.index);
+  const byCode = new Map<string, number>();
+  geometry.bins.forEach((b, i) => byCode.set(b.code, i));
+  const loaded: LoadedPlan = {
+    planId,
+    siteId: row.site_id,
+    version: row.version ?? 0,
+    closureVersion: sets.closureVersion,
+    geometry,
+    closures: closureRows.map(toEngineClosure),
+    closureRows,
+    graph,
+    index,
+    binIndex: (code) => byCode.get(code),
+    binNode: (code) => {
+      const i = byCode.get(code);
+      if (i === undefined) return undefined;
+      const node = graph.binNode[i]!;
+      return node >= 0 ? node : undefined;
+    },
+    depotNodes: graph.depotNode,
+  };
+  remember(loaded);
+  return loaded;
+}
+
+/** Id of the site's active plan, or null when it has none. */
+export async function activePlanId(db: Knex, siteId: number): Promise<number | null> {
+  const row = await activePlanRow(db, siteId);
+  return row?.id ?? null;
+}
