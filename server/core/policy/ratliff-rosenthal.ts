@@ -113,6 +113,61 @@ export interface RatliffRosenthalOptions {
 /** Same-position test for the depot and an aisle centre line. */
 const SAME_X_M = 1e-9;
 
+/** One column: its points, which stops sit at each, and the cost of every configuration (∞ = not allowed). */
+function buildColumn(
+  x: number,
+  virtual: boolean,
+  stopIdx: readonly number[],
+  depotHere: boolean,
+  depth: Float64Array,
+  L: number,
+): Column {
+  const need: number[] = depotHere ? [0] : [];
+  for (let k = 0; k < stopIdx.length; k++) need.push(depth[stopIdx[k]!]!);
+  // Stops at depth 0 or L coincide with a_j or b_j; the others get one point per distinct depth.
+  const points = [0];
+  const stopsAt: number[][] = [[]];
+  const atBack: number[] = [];
+  for (let k = 0; k < stopIdx.length; k++) {
+    const i = stopIdx[k]!;
+    const d = depth[i]!;
+    if (d >= L) {
+      atBack.push(i);
+      continue;
+    }
+    if (d > points[points.length - 1]!) {
+      points.push(d);
+      stopsAt.push([]);
+    }
+    stopsAt[points.length - 1]!.push(i);
+  }
+  points.push(L);
+  stopsAt.push(atBack);
+  let gapAt = -1;
+  let gap = -1;
+  for (let k = 0; k + 1 < need.length; k++) {
+    if (need[k + 1]! - need[k]! > gap) {
+      gap = need[k + 1]! - need[k]!;
+      gapAt = k;
+    }
+  }
+  const cost = new Float64Array(CONFIGS).fill(Infinity);
+  if (virtual) {
+    cost[TOP] = 0;
+  } else if (need.length === 0) {
+    cost[NONE] = 0;
+    cost[TRAVERSE] = L;
+    cost[DOUBLE] = 2 * L;
+  } else {
+    cost[TRAVERSE] = L;
+    cost[DOUBLE] = 2 * L;
+    cost[TOP] = 2 * need[need.length - 1]!;
+    cost[BOTTOM] = 2 * (L - need[0]!);
+    if (need.length >= 2) cost[GAP] = 2 * (L - gap);
+  }
+  return { x, virtual, need, points, stopsAt, gapAt, cost };
+}
+
 /**
  * Shortest closed walk from the depot (x = `depotX` on the front cross aisle) through every stop of a
  * single-block layout, back to the depot; `order` is the visiting order read off that walk, `path`
@@ -138,65 +193,21 @@ export function ratliffRosenthal(
 
   // Columns: the aisles, plus the depot's own column when it is between (or outside) aisle centre lines.
   const cols: Column[] = [];
+  const none: number[] = [];
   let depotCol = -1;
-  const mkColumn = (x: number, virtual: boolean, stopIdx: readonly number[], depotHere: boolean): Column => {
-    const need = stopIdx.map((i) => prep.depth[i]!);
-    if (depotHere) need.unshift(0);
-    // Stops at depth 0 or L coincide with a_j or b_j; the others get a point of their own per depth.
-    const points = [0];
-    const stopsAt: number[][] = [[]];
-    const atBack: number[] = [];
-    for (const i of stopIdx) {
-      const d = prep.depth[i]!;
-      if (d >= L) {
-        atBack.push(i);
-        continue;
-      }
-      if (d > points[points.length - 1]!) {
-        points.push(d);
-        stopsAt.push([]);
-      }
-      stopsAt[points.length - 1]!.push(i);
-    }
-    points.push(L);
-    stopsAt.push(atBack);
-    let gapAt = -1;
-    let gap = -1;
-    for (let k = 0; k + 1 < need.length; k++) {
-      if (need[k + 1]! - need[k]! > gap) {
-        gap = need[k + 1]! - need[k]!;
-        gapAt = k;
-      }
-    }
-    const cost = new Float64Array(CONFIGS).fill(Infinity);
-    if (virtual) {
-      cost[TOP] = 0;
-    } else if (need.length === 0) {
-      cost[NONE] = 0;
-      cost[TRAVERSE] = L;
-      cost[DOUBLE] = 2 * L;
-    } else {
-      cost[TRAVERSE] = L;
-      cost[DOUBLE] = 2 * L;
-      cost[TOP] = 2 * need[need.length - 1]!;
-      cost[BOTTOM] = 2 * (L - need[0]!);
-      if (need.length >= 2) cost[GAP] = 2 * (L - gap);
-    }
-    return { x, virtual, need, points, stopsAt, gapAt, cost };
-  };
   let onAisle = -1;
   for (let a = 0; a < X.length; a++) if (Math.abs(X[a]! - depotX) <= SAME_X_M) onAisle = a;
   for (let a = 0; a < X.length; a++) {
     if (onAisle < 0 && depotCol < 0 && depotX < X[a]!) {
       depotCol = cols.length;
-      cols.push(mkColumn(depotX, true, [], true));
+      cols.push(buildColumn(depotX, true, none, true, prep.depth, L));
     }
     if (a === onAisle) depotCol = cols.length;
-    cols.push(mkColumn(X[a]!, false, prep.cells[a]!, a === onAisle));
+    cols.push(buildColumn(X[a]!, false, prep.cells[a]!, a === onAisle, prep.depth, L));
   }
   if (depotCol < 0) {
     depotCol = cols.length;
-    cols.push(mkColumn(depotX, true, [], true));
+    cols.push(buildColumn(depotX, true, none, true, prep.depth, L));
   }
 
   // Forward pass. backV[j][s+]: (s− << 3) | config; backH[j][s−]: (s+ of column j−1 << 3) | transition.
@@ -204,28 +215,29 @@ export function ratliffRosenthal(
   const backV = new Int16Array(K * STATES).fill(-1);
   const backH = new Int16Array(K * STATES).fill(-1);
   let minus = new Float64Array(STATES).fill(Infinity);
+  let spare = new Float64Array(STATES);
+  const plus = new Float64Array(STATES);
   minus[0] = 0;
-  let plus = new Float64Array(STATES);
   for (let j = 0; j < K; j++) {
-    const col = cols[j]!;
+    const cost = cols[j]!.cost;
     plus.fill(Infinity);
     for (let s = 0; s < STATES; s++) {
       const base = minus[s]!;
       if (base === Infinity) continue;
       for (let c = 0; c < CONFIGS; c++) {
-        const cc = col.cost[c]!;
+        const cc = cost[c]!;
         if (cc === Infinity) continue;
         const ns = VERTICAL[s * CONFIGS + c]!;
-        if (ns < 0) continue;
-        if (base + cc < plus[ns]!) {
+        if (ns >= 0 && base + cc < plus[ns]!) {
           plus[ns] = base + cc;
           backV[j * STATES + ns] = (s << 3) | c;
         }
       }
     }
     if (j === K - 1) break;
-    const dx = cols[j + 1]!.x - col.x;
-    const next = new Float64Array(STATES).fill(Infinity);
+    const dx = cols[j + 1]!.x - cols[j]!.x;
+    const next = spare;
+    next.fill(Infinity);
     for (let s = 0; s < STATES; s++) {
       const base = plus[s]!;
       if (base === Infinity) continue;
@@ -239,8 +251,8 @@ export function ratliffRosenthal(
         }
       }
     }
+    spare = minus;
     minus = next;
-    plus = new Float64Array(STATES);
   }
   let best = -1;
   for (let s = 0; s < STATES; s++) {
@@ -263,110 +275,120 @@ export function ratliffRosenthal(
     }
   }
 
-  const walk = eulerWalk(cols, cfgOf, trOf, depotCol);
+  const g = tourGraph(cols, cfgOf, trOf);
+  const circuit = eulerCircuit(g, g.base[depotCol]!);
   const order: number[] = [];
-  const seen = new Uint8Array(cols.reduce((n, c) => n + c.points.length, 0));
-  const path: PathPoint[] = [];
-  for (const w of walk) {
-    path.push({ x: cols[w.col]!.x, y: yOfDepth(layout, cols[w.col]!.points[w.p]!) });
-    if (seen[w.v]) continue;
-    seen[w.v] = 1;
-    for (const i of cols[w.col]!.stopsAt[w.p]!) order.push(i);
+  const seen = new Uint8Array(g.vertices);
+  const path: PathPoint[] = new Array<PathPoint>(circuit.length);
+  for (let k = 0; k < circuit.length; k++) {
+    const v = circuit[k]!;
+    const col = cols[g.colOf[v]!]!;
+    const p = v - g.base[g.colOf[v]!]!;
+    path[k] = { x: col.x, y: yOfDepth(layout, col.points[p]!) };
+    if (seen[v]) continue;
+    seen[v] = 1;
+    const here = col.stopsAt[p]!;
+    for (let q = 0; q < here.length; q++) order.push(here[q]!);
   }
   return { method: 'ratliff-rosenthal', order, length, path, ms: clock() - t0 };
 }
 
-/**
- * Builds the tour multigraph of the chosen configurations and returns an Eulerian circuit of it from the
- * depot's front point (Hierholzer's algorithm, O(edges)).
- */
-function eulerWalk(
-  cols: readonly Column[],
-  cfgOf: Int8Array,
-  trOf: Int8Array,
-  depotCol: number,
-): { col: number; p: number; v: number }[] {
+interface TourGraph {
+  vertices: number;
+  /** First vertex id of each column (points in depth order), plus the total at the end. */
+  base: Int32Array;
+  colOf: Int32Array;
+  eu: number[];
+  ev: number[];
+}
+
+function addEdges(g: TourGraph, u: number, v: number, copies: number): void {
+  for (let k = 0; k < copies; k++) {
+    g.eu.push(u);
+    g.ev.push(v);
+  }
+}
+
+/** Edges between points `from`..`to` of the column starting at vertex `b0`, each `copies` times. */
+function addAisle(g: TourGraph, b0: number, from: number, to: number, copies: number): void {
+  for (let q = from; q < to; q++) addEdges(g, b0 + q, b0 + q + 1, copies);
+}
+
+/** The tour multigraph of the chosen configurations and transitions. O(points + edges). */
+function tourGraph(cols: readonly Column[], cfgOf: Int8Array, trOf: Int8Array): TourGraph {
   const base = new Int32Array(cols.length + 1);
   for (let j = 0; j < cols.length; j++) base[j + 1] = base[j]! + cols[j]!.points.length;
-  const nv = base[cols.length]!;
-  const eu: number[] = [];
-  const ev: number[] = [];
-  const add = (u: number, v: number, copies: number): void => {
-    for (let k = 0; k < copies; k++) {
-      eu.push(u);
-      ev.push(v);
-    }
-  };
-  const pointOf = (col: Column, depth: number): number => col.points.indexOf(depth);
+  const vertices = base[cols.length]!;
+  const colOf = new Int32Array(vertices);
+  for (let j = 0; j < cols.length; j++) colOf.fill(j, base[j]!, base[j + 1]!);
+  const g: TourGraph = { vertices, base, colOf, eu: [], ev: [] };
   for (let j = 0; j < cols.length; j++) {
     const col = cols[j]!;
     const top = col.points.length - 1;
     const b0 = base[j]!;
-    const seg = (from: number, to: number, copies: number): void => {
-      for (let q = from; q < to; q++) add(b0 + q, b0 + q + 1, copies);
-    };
     switch (cfgOf[j]) {
       case TRAVERSE:
-        seg(0, top, 1);
+        addAisle(g, b0, 0, top, 1);
         break;
       case DOUBLE:
-        seg(0, top, 2);
+        addAisle(g, b0, 0, top, 2);
         break;
       case TOP:
-        if (!col.virtual) seg(0, pointOf(col, col.need[col.need.length - 1]!), 2);
+        if (!col.virtual) addAisle(g, b0, 0, col.points.indexOf(col.need[col.need.length - 1]!), 2);
         break;
       case BOTTOM:
-        seg(pointOf(col, col.need[0]!), top, 2);
+        addAisle(g, b0, col.points.indexOf(col.need[0]!), top, 2);
         break;
       case GAP:
-        seg(0, pointOf(col, col.need[col.gapAt]!), 2);
-        seg(pointOf(col, col.need[col.gapAt + 1]!), top, 2);
+        addAisle(g, b0, 0, col.points.indexOf(col.need[col.gapAt]!), 2);
+        addAisle(g, b0, col.points.indexOf(col.need[col.gapAt + 1]!), top, 2);
         break;
       default:
         break;
     }
     if (j + 1 < cols.length) {
-      add(b0, base[j + 1]!, TR_T[trOf[j]!]!);
-      add(b0 + top, base[j + 1]! + cols[j + 1]!.points.length - 1, TR_U[trOf[j]!]!);
+      addEdges(g, b0, base[j + 1]!, TR_T[trOf[j]!]!);
+      addEdges(g, b0 + top, base[j + 2]! - 1, TR_U[trOf[j]!]!);
     }
   }
-  const ne = eu.length;
-  const start = new Int32Array(nv + 1);
+  return g;
+}
+
+/** Eulerian circuit from `start` by Hierholzer's algorithm, O(vertices + edges); vertex ids in walk order. */
+function eulerCircuit(g: TourGraph, start: number): Int32Array {
+  const nv = g.vertices;
+  const ne = g.eu.length;
+  const first = new Int32Array(nv + 1);
   for (let e = 0; e < ne; e++) {
-    start[eu[e]! + 1]!++;
-    start[ev[e]! + 1]!++;
+    first[g.eu[e]! + 1]!++;
+    first[g.ev[e]! + 1]!++;
   }
-  for (let v = 0; v < nv; v++) start[v + 1]! += start[v]!;
+  for (let v = 0; v < nv; v++) first[v + 1]! += first[v]!;
   const adj = new Int32Array(2 * ne);
-  const fill = start.slice(0, nv);
+  const fill = first.slice(0, nv);
   for (let e = 0; e < ne; e++) {
-    adj[fill[eu[e]!]!++] = e;
-    adj[fill[ev[e]!]!++] = e;
+    adj[fill[g.eu[e]!]!++] = e;
+    adj[fill[g.ev[e]!]!++] = e;
   }
   const used = new Uint8Array(ne);
-  const ptr = start.slice(0, nv);
-  const stack = [base[depotCol]!];
-  const circuit: number[] = [];
-  while (stack.length > 0) {
-    const v = stack[stack.length - 1]!;
-    while (ptr[v]! < start[v + 1]! && used[adj[ptr[v]!]!]) ptr[v]!++;
-    if (ptr[v]! < start[v + 1]!) {
+  const ptr = first.slice(0, nv);
+  const stack = new Int32Array(ne + 1);
+  const circuit = new Int32Array(ne + 1);
+  let top = 0;
+  let out = 0;
+  stack[0] = start;
+  while (top >= 0) {
+    const v = stack[top]!;
+    while (ptr[v]! < first[v + 1]! && used[adj[ptr[v]!]!]) ptr[v]!++;
+    if (ptr[v]! < first[v + 1]!) {
       const e = adj[ptr[v]!]!;
       used[e] = 1;
-      stack.push(eu[e] === v ? ev[e]! : eu[e]!);
+      stack[++top] = g.eu[e] === v ? g.ev[e]! : g.eu[e]!;
     } else {
-      circuit.push(stack.pop()!);
+      circuit[out++] = v;
+      top--;
     }
   }
-  if (circuit.length !== ne + 1) throw new Error('internal: Ratliff–Rosenthal tour graph is not connected');
-  circuit.reverse();
-  const colOf = (v: number): number => {
-    let j = 0;
-    while (base[j + 1]! <= v) j++;
-    return j;
-  };
-  return circuit.map((v) => {
-    const col = colOf(v);
-    return { col, p: v - base[col]!, v };
-  });
+  if (out !== ne + 1) throw new Error('internal: Ratliff–Rosenthal tour graph is not connected');
+  return circuit.reverse();
 }
