@@ -63,3 +63,162 @@ export const FloorPlanCheckProgress = z.object({
   fraction: z.number().min(0).max(1),
 });
 export type FloorPlanCheckProgress = z.infer<typeof FloorPlanCheckProgress>;
+
+// ---- Stored plans, build jobs and closures (floor-plan domain section; the check's shapes are above) ----
+
+export const FloorPlanState = z.enum(['draft', 'active', 'retired']);
+export type FloorPlanState = z.infer<typeof FloorPlanState>;
+
+/** Largest plan the server stores (bins). */
+export const MAX_PLAN_BINS = 100_000;
+
+export const DepotPlacement = z.enum(['front_left', 'front_centre']);
+
+/** Parameters of a generated rectangular plan (metres); mirrors server/core/plan/generate.ts. */
+export const GeneratePlanParams = z
+  .strictObject({
+    aisles: z.number().int().min(1).max(200),
+    aisleLengthM: z.number().positive().max(500),
+    aisleSpacingM: z.number().positive().max(50),
+    baysPerAisle: z.number().int().min(1).max(500),
+    levels: z.number().int().min(1).max(20),
+    bothSides: z.boolean().default(true),
+    crossAisles: z.strictObject({
+      front: z.boolean().default(true),
+      back: z.boolean().default(true),
+      middle: z.number().int().min(0).max(10).default(0),
+    }),
+    crossAisleWidthM: z.number().min(0).max(20).default(3),
+    depot: DepotPlacement.default('front_left'),
+  })
+  .refine((p) => p.crossAisles.front || p.crossAisles.back || p.crossAisles.middle > 0, {
+    message: 'a plan needs at least one cross aisle',
+    path: ['crossAisles'],
+  })
+  .refine((p) => p.aisles * p.baysPerAisle * p.levels * (p.bothSides ? 2 : 1) <= MAX_PLAN_BINS, {
+    message: `at most ${MAX_PLAN_BINS} bins per plan`,
+    path: ['baysPerAisle'],
+  });
+export type GeneratePlanParams = z.infer<typeof GeneratePlanParams>;
+
+export const GenerateFloorPlanBody = z.strictObject({
+  name: z.string().trim().min(1).max(120),
+  params: GeneratePlanParams,
+});
+export type GenerateFloorPlanBody = z.input<typeof GenerateFloorPlanBody>;
+
+export const UserRef = z.object({ id: z.number().int(), name: z.string() });
+
+export const FloorPlanSummary = z.object({
+  id: z.number().int(),
+  siteId: z.number().int(),
+  version: z.number().int(),
+  name: z.string(),
+  state: FloorPlanState,
+  source: z.enum(['upload', 'generated']),
+  sourceFilename: z.string().nullable(),
+  generatorParams: GeneratePlanParams.nullable(),
+  uploadedBy: UserRef.nullable(),
+  createdAt: z.string(),
+  activatedAt: z.string().nullable(),
+  retiredAt: z.string().nullable(),
+  stats: FloorPlanStats,
+  /** Bytes of the stored walk graph and distance index. */
+  storedBytes: z.number().int(),
+  /** Walk graph + distance index build time, ms. */
+  buildMs: z.number(),
+  closureVersion: z.number().int(),
+  openClosures: z.number().int(),
+  /** Retired plans and plans used by waves cannot be changed or deleted. */
+  readOnly: z.boolean(),
+});
+export type FloorPlanSummary = z.infer<typeof FloorPlanSummary>;
+
+export const ClosureKind = z.enum(['aisle', 'cross_aisle']);
+
+export const FloorPlanClosure = z.object({
+  id: z.number().int(),
+  kind: ClosureKind,
+  code: z.string(),
+  /** Closed range along the centre line, metres (y for an aisle, x for a cross aisle). */
+  fromM: z.number(),
+  toM: z.number(),
+  reason: z.string().nullable(),
+  createdBy: UserRef.nullable(),
+  createdAt: z.string(),
+});
+export type FloorPlanClosure = z.infer<typeof FloorPlanClosure>;
+
+export const FloorPlanDetail = FloorPlanSummary.extend({
+  warnings: z.array(RowIssue),
+  closures: z.array(FloorPlanClosure),
+  /** Bins no walk from the depot reaches under the open closures. */
+  unreachableBins: z.array(z.string()),
+});
+export type FloorPlanDetail = z.infer<typeof FloorPlanDetail>;
+
+export const CloseSegmentBody = z
+  .strictObject({
+    kind: ClosureKind.default('aisle'),
+    code: z.string().trim().min(1).max(40),
+    fromM: z.number().finite(),
+    toM: z.number().finite(),
+    reason: z.string().trim().max(200).optional(),
+  })
+  .refine((b) => b.toM > b.fromM, { message: 'must be greater than fromM', path: ['toM'] });
+export type CloseSegmentBody = z.input<typeof CloseSegmentBody>;
+
+export const ClosureResult = z.object({
+  plan: FloorPlanDetail,
+  /** Bins unreachable now, and those that became unreachable with this change. */
+  unreachableBins: z.array(z.string()),
+  newlyUnreachable: z.array(z.string()),
+});
+export type ClosureResult = z.infer<typeof ClosureResult>;
+
+export const ActiveFloorPlan = z.object({
+  plan: FloorPlanSummary,
+  geometry: PlanGeometry,
+  closures: z.array(FloorPlanClosure),
+});
+export type ActiveFloorPlan = z.infer<typeof ActiveFloorPlan>;
+
+export const JobPhase = z.enum(['queued', 'parsing', 'checking', 'building_graph', 'building_distances', 'saving', 'done']);
+export type JobPhase = z.infer<typeof JobPhase>;
+
+/** Words for each phase, shown beside the progress bar. */
+export const JOB_PHASE_LABEL: Record<JobPhase, string> = {
+  queued: 'Waiting for the previous build',
+  parsing: 'Reading the workbook',
+  checking: 'Checking every row',
+  building_graph: 'Building the walk graph',
+  building_distances: 'Computing shortest walking distances',
+  saving: 'Saving the draft',
+  done: 'Done',
+};
+
+export const FloorPlanJob = z.object({
+  id: z.string(),
+  siteId: z.number().int(),
+  kind: z.enum(['upload', 'generate']),
+  /** running → done (a draft was saved) | invalid (the file has errors; nothing saved) | failed. */
+  status: z.enum(['running', 'done', 'invalid', 'failed']),
+  phase: JobPhase,
+  /** 0…1 within the phase. */
+  fraction: z.number().min(0).max(1),
+  message: z.string().nullable(),
+  planId: z.number().int().nullable(),
+  errors: z.array(RowIssue),
+  warnings: z.array(RowIssue),
+  createdAt: z.string(),
+  finishedAt: z.string().nullable(),
+  /** Upload (or request) to draft, ms; null while running. */
+  totalMs: z.number().nullable(),
+});
+export type FloorPlanJob = z.infer<typeof FloorPlanJob>;
+
+export const DistanceQuery = z.strictObject({ from: z.string().min(1).max(80), to: z.string().min(1).max(80) });
+export const DistanceAnswer = z.object({ from: z.string(), to: z.string(), metres: z.number().nullable() });
+export type DistanceAnswer = z.infer<typeof DistanceAnswer>;
+
+export const RenameFloorPlanBody = z.strictObject({ name: z.string().trim().min(1).max(120) });

@@ -1,5 +1,5 @@
 /** The main-thread side of build.worker.ts: its input, output and progress, and how to run it. */
-import type { FloorPlanStats } from '../../shared/floor-plan-domain';
+import type { FloorPlanStats } from '../../shared/floor-plans';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { RectangularPlanParams } from '../core/plan/generate';
 import { runInWorker } from '../workers/spawn';

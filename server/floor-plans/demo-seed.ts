@@ -3,7 +3,7 @@
  * both sides, 4 levels (2,880 bins), front, middle and back cross aisles, the depot at the front centre.
  */
 import type { Knex } from 'knex';
-import type { GeneratePlanParams } from '../../shared/floor-plan-domain';
+import type { GeneratePlanParams } from '../../shared/floor-plans';
 import { BUILD_BUDGET_MS, runBuild } from './build';
 import { activatePlan, engineParams, saveBuiltPlan } from './floor-plans.service';
 

@@ -1,6 +1,6 @@
 /** Floor-plan tables: one database operation per function, each taking `db` or a transaction. */
 import type { Knex } from 'knex';
-import type { FloorPlanClosure, FloorPlanState, FloorPlanStats, FloorPlanSummary, GeneratePlanParams } from '../../shared/floor-plan-domain';
+import type { FloorPlanClosure, FloorPlanState, FloorPlanStats, FloorPlanSummary, GeneratePlanParams } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { SerializedSet } from './build';

@@ -17,12 +17,12 @@ import {
   FloorPlanJob,
   FloorPlanSummary,
   GenerateFloorPlanBody,
-  PlanGeometryBody,
+  PlanGeometry,
   RenameFloorPlanBody,
-} from '../../shared/floor-plan-domain';
+} from '../../shared/floor-plans';
 import { AppError, notFound } from '../http/errors';
 import { defineRoute } from '../http/route';
-import { floorPlanTemplate, issuesCsv, issuesXlsx } from './check';
+import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
 import { getJob, watchJob } from './jobs';
 
@@ -52,7 +52,7 @@ function mustJob(siteId: number, id: string): FloorPlanJob {
 export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: '/api/floor-plans/template', access: OFFICE, summary: 'The floor-plan workbook template (instructions sheet and a worked example)',
-    handler: async ({ res }) => sendFile(res, await floorPlanTemplate(), XLSX_TYPE, 'aislewright-floor-plan-template.xlsx'),
+    handler: ({ res }) => sendFile(res, buildFloorPlanTemplate(), XLSX_TYPE, 'aislewright-floor-plan-template.xlsx'),
   }),
   defineRoute({
     method: 'get', path: base, access: OFFICE, summary: "The site's floor plans, newest version first",
@@ -110,12 +110,12 @@ export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId/errors`, access: OFFICE, summary: "The error table of a refused upload, as xlsx (default) or CSV (?format=csv)",
     query: z.strictObject({ format: z.enum(['xlsx', 'csv']).default('xlsx') }),
-    handler: async ({ res, siteId, params, query }) => {
+    handler: ({ res, siteId, params, query }) => {
       const job = mustJob(siteId!, params.jobId!);
       if (job.status !== 'invalid') throw new AppError('conflict', 'no_errors', 'This job has no error table');
       return query.format === 'csv'
-        ? sendFile(res, await issuesCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
-        : sendFile(res, await issuesXlsx(job.errors), XLSX_TYPE, 'floor-plan-errors.xlsx');
+        ? sendFile(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
+        : sendFile(res, rowIssuesToXlsx(job.errors), XLSX_TYPE, 'floor-plan-errors.xlsx');
     },
   }),
   defineRoute({
@@ -125,7 +125,7 @@ export const floorPlanRoutes = [
   }),
   defineRoute({
     method: 'get', path: `${base}/:planId/geometry`, access: OFFICE, summary: "A plan's aisles, cross aisles, bins and depots (metres)",
-    response: PlanGeometryBody,
+    response: PlanGeometry,
     handler: ({ deps, siteId, params }) => service.getGeometry(deps.db, siteId!, planIdOf(params)),
   }),
   defineRoute({

@@ -14,10 +14,10 @@ import type {
   FloorPlanJob,
   FloorPlanSummary,
   GeneratePlanParams,
-} from '../../shared/floor-plan-domain';
+} from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 import type { z } from 'zod';
-import type { CloseSegmentBody as CloseSegmentSchema } from '../../shared/floor-plan-domain';
+import type { CloseSegmentBody as CloseSegmentSchema } from '../../shared/floor-plans';
 import { pairDistance } from '../core/plan/distances';
 import type { RectangularPlanParams } from '../core/plan/generate';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
@@ -27,7 +27,7 @@ import { AppError, notFound } from '../http/errors';
 import { WorkerTimeoutError } from '../workers/spawn';
 import { BUILD_BUDGET_MS, runBuild, type BuildOutput } from './build';
 import * as repo from './floor-plans.repository';
-import { checkFloorPlanFile } from './check';
+import { checkFloorPlanFile } from './import';
 import { startJob, type JobControl, type JobOutcome } from './jobs';
 import { forgetPlanIndex, loadPlanIndex } from './plan-index';
 import { unreachableBinCodes } from './reachability';

@@ -4,7 +4,7 @@
  */
 import { EventEmitter } from 'node:events';
 import { randomUUID } from 'node:crypto';
-import type { FloorPlanJob, JobPhase } from '../../shared/floor-plan-domain';
+import type { FloorPlanJob, JobPhase } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 
 const KEEP_FINISHED_MS = 60 * 60_000;

@@ -4,7 +4,7 @@
  * per plan id and closure version, so a closure or reopening makes the next load read the new arrays.
  */
 import type { Knex } from 'knex';
-import type { FloorPlanClosure } from '../../shared/floor-plan-domain';
+import type { FloorPlanClosure } from '../../shared/floor-plans';
 import { deserializeDistanceIndex, deserializeWalkGraph } from '../core/plan/serialize';
 import type { DistanceIndex } from '../core/plan/distances';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';

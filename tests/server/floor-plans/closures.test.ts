@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ClosureResult, FloorPlanDetail } from '../../../shared/floor-plan-domain';
+import { ClosureResult, FloorPlanDetail } from '../../../shared/floor-plans';
 import { pairDistance } from '../../../server/core/plan/distances';
 import { loadPlanIndex } from '../../../server/floor-plans/plan-index';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';

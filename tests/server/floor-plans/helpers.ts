@@ -1,6 +1,6 @@
 import { expect } from 'vitest';
 import type request from 'supertest';
-import { FloorPlanJob, type GeneratePlanParams } from '../../../shared/floor-plan-domain';
+import { FloorPlanJob, type GeneratePlanParams } from '../../../shared/floor-plans';
 import { csrf } from '../../helpers/app';
 
 type Agent = ReturnType<typeof request.agent>;

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { FloorPlanDetail, FloorPlanSummary } from '../../../shared/floor-plan-domain';
+import { FloorPlanDetail, FloorPlanSummary } from '../../../shared/floor-plans';
 import { activePlanId, loadPlanIndex } from '../../../server/floor-plans/plan-index';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';
 import { generatePlan } from './helpers';
