@@ -1,5 +1,5 @@
 import { computed, shallowRef, type Ref } from 'vue';
-import { createDiscreteApi, darkTheme, type ConfigProviderProps, type GlobalThemeOverrides } from 'naive-ui';
+import { createDiscreteApi, createLocale, darkTheme, enUS, type ConfigProviderProps, type GlobalThemeOverrides } from 'naive-ui';
 import { DARK, LIGHT, type Palette } from './palette';
 import type { ThemeMode } from '@client/stores/theme';
 
@@ -64,10 +64,21 @@ function overrides(p: Palette): GlobalThemeOverrides {
   };
 }
 
+// Our own words in place of the library's generic ones ("Please Input", "No Data").
+const locale = createLocale(
+  {
+    Input: { placeholder: '' },
+    InputNumber: { placeholder: '' },
+    Select: { placeholder: 'Choose…' },
+    Empty: { description: 'Nothing here yet' },
+  },
+  enUS,
+);
+
 export function configFor(mode: ThemeMode): ConfigProviderProps {
   return mode === 'dark'
-    ? { theme: darkTheme, themeOverrides: overrides(DARK) }
-    : { theme: null, themeOverrides: overrides(LIGHT) };
+    ? { theme: darkTheme, themeOverrides: overrides(DARK), locale }
+    : { theme: null, themeOverrides: overrides(LIGHT), locale };
 }
 
 export function paletteFor(mode: ThemeMode): Palette {

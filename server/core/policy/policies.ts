@@ -11,8 +11,9 @@
  * - The depot is a point on the front cross aisle (depth 0) at x = `depotX`; lengths run from that point
  *   and back to it. A stop is on its aisle's centre line; walking is along aisle and cross-aisle centre
  *   lines only, so every length is a sum of |Δx| and |Δdepth|.
- * - "Left" is lower x. Every policy sweeps the pick aisles from left to right first, whatever the depot's
- *   x; the cross-aisle travel is the same either way, only which aisle gets the odd-count return changes.
+ * - "Left" is lower x. Every policy starts at the leftmost pick aisle and works rightwards, whatever the
+ *   depot's x (in one block the cross-aisle travel is the same either way; only which aisle gets S-shape's
+ *   odd-count return changes).
  * - Stops in one aisle are picked in walking order; equal positions by stop index.
  * - O(s log s + aisles · blocks) time for s stops; each returns a `PolicyRoute` or, when the layout or
  *   a stop does not fit the policy, `{ reason }` (no route).
