@@ -255,7 +255,7 @@ function readSheet(ws: XLSX.WorkSheet, sheetName: string, spec: SheetSpec, limit
     const values = rows[i];
     if (!values || values.every(isBlank)) continue;
     const cells: Record<string, CellValue> = Object.create(null) as Record<string, CellValue>;
-    for (const name of result.columns) cells[name] = null;
+    for (const col of spec.columns) cells[col.name] = null;
     let rowOk = true;
     for (let c = 0; c < values.length && c <= lastCol; c++) {
       const v = values[c];
