@@ -6,6 +6,7 @@
  */
 import { existsSync } from 'node:fs';
 import { createServer as createNetServer } from 'node:net';
+import { cpus, loadavg } from 'node:os';
 import { dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type Page } from '@playwright/test';
@@ -39,6 +40,10 @@ function freePort(): Promise<number> {
 }
 
 interface FrameStats {
+  /** Time the map spent drawing per frame (plan layer + route layer), ms. */
+  workMedianMs: number;
+  workP95Ms: number;
+  workMaxMs: number;
   frames: number;
   medianMs: number;
   p95Ms: number;
@@ -59,8 +64,10 @@ async function gesture(page: Page, kind: 'pan' | 'wheel', frames: number): Promi
         staticRenders: number;
         staticBlits: number;
         lastStaticRenderMs: number;
+        lastStaticDrawMs: number;
         lastOverlayMs: number;
         lastBinsDrawn: number;
+        draws: number;
       };
       const fm = (window as unknown as { __floorMap: { map: { stats: () => Stats } } }).__floorMap;
       const el = document.querySelector('.floor-map__canvas') as HTMLElement;
@@ -69,6 +76,8 @@ async function gesture(page: Page, kind: 'pan' | 'wheel', frames: number): Promi
       const cy = box.top + box.height / 2;
       const before = fm.map.stats();
       const deltas: number[] = [];
+      const work: number[] = [];
+      let seenDraws = before.draws;
       const opts = (x: number, y: number, buttons: number): PointerEventInit => ({
         pointerId: 7,
         pointerType: 'mouse',
@@ -87,6 +96,11 @@ async function gesture(page: Page, kind: 'pan' | 'wheel', frames: number): Promi
         const step = (t: number): void => {
           if (last > 0) deltas.push(t - last);
           last = t;
+          const now = fm.map.stats();
+          if (now.draws !== seenDraws) {
+            seenDraws = now.draws;
+            work.push(now.lastStaticDrawMs + now.lastOverlayMs);
+          }
           if (i >= frames) {
             done();
             return;
@@ -110,7 +124,11 @@ async function gesture(page: Page, kind: 'pan' | 'wheel', frames: number): Promi
       const after = fm.map.stats();
       const sorted = deltas.slice().sort((a, b) => a - b);
       const q = (p: number): number => sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))] ?? 0;
+      const w = work.slice().sort((a, b) => a - b);
       return {
+        workMedianMs: w[w.length >> 1] ?? 0,
+        workP95Ms: w[Math.min(w.length - 1, Math.floor(0.95 * w.length))] ?? 0,
+        workMaxMs: w[w.length - 1] ?? 0,
         frames: deltas.length,
         medianMs: q(0.5),
         p95Ms: q(0.95),
@@ -193,6 +211,7 @@ export async function run(): Promise<void> {
     mounts.sort((a, b) => a - b);
     console.log(`bins: ${info.bins}; mount to first frame (main map + mini map, median of 3): ${fmt(mounts[1] ?? 0)} ms; index build: ${fmt(info.indexBuildMs)} ms`);
     await page.screenshot({ path: '/tmp/floor-map-fit.png' });
+    await page.locator('.trip-mini-map').screenshot({ path: '/tmp/floor-map-mini.png' });
 
     const cdp = await page.context().newCDPSession(page);
     const rows: string[] = [];
@@ -204,19 +223,21 @@ export async function run(): Promise<void> {
         ['close zoom', 7],
       ] as const) {
         await zoomSteps(page, steps);
+        if (throttle === 1) await page.screenshot({ path: `/tmp/floor-map-zoom${steps}.png` });
         const redraw = await fullRedrawMs(page);
         const pan = await gesture(page, 'pan', 150);
         const wheel = await gesture(page, 'wheel', 90);
-        if (throttle === 1) await page.screenshot({ path: `/tmp/floor-map-zoom${steps}.png` });
         rows.push(
-          `| ${throttle}× | ${name} | ${redraw.bins} | ${fmt(redraw.ms)} | ${fmt(pan.medianMs)} / ${fmt(pan.p95Ms)} / ${fmt(pan.maxMs)} | ${pan.over20Ms}/${pan.frames} | ${pan.staticRenders} | ${fmt(wheel.medianMs)} / ${fmt(wheel.p95Ms)} / ${fmt(wheel.maxMs)} | ${wheel.over20Ms}/${wheel.frames} | ${wheel.staticRenders} |`,
+          `| ${throttle}× | ${name} | ${redraw.bins} | ${fmt(redraw.ms)} | ${fmt(pan.medianMs)} / ${fmt(pan.p95Ms)} / ${fmt(pan.maxMs)} | ${pan.over20Ms}/${pan.frames} | ${fmt(pan.workMedianMs)} / ${fmt(pan.workP95Ms)} / ${fmt(pan.workMaxMs)} | ${pan.staticRenders} | ${fmt(wheel.medianMs)} / ${fmt(wheel.p95Ms)} / ${fmt(wheel.maxMs)} | ${wheel.over20Ms}/${wheel.frames} | ${fmt(wheel.workMedianMs)} / ${fmt(wheel.workP95Ms)} / ${fmt(wheel.workMaxMs)} | ${wheel.staticRenders} |`,
         );
       }
     }
     await cdp.send('Emulation.setCPUThrottlingRate', { rate: 1 });
-    console.log('\nFrame times (rAF deltas, ms: median / p95 / max); "vector" = plan drawn as vectors during the gesture');
-    console.log('| CPU | zoom | bins drawn | full redraw ms | pan frames | pan >20 ms | pan vector | wheel frames | wheel >20 ms | wheel vector |');
-    console.log('|---|---|---|---|---|---|---|---|---|---|');
+    console.log('\nms as median / p95 / max. frames = requestAnimationFrame deltas; draw = time the map itself spent drawing');
+    console.log('per frame (plan layer + route layer); vector = plan drawn as vectors during the gesture (else cached bitmap).');
+    console.log(`machine load average at start: ${loadavg().map((l) => l.toFixed(1)).join(' ')} on ${cpus().length} cores`);
+    console.log('| CPU | zoom | bins drawn | full redraw ms | pan frames | pan >20 ms | pan draw | pan vector | wheel frames | wheel >20 ms | wheel draw | wheel vector |');
+    console.log('|---|---|---|---|---|---|---|---|---|---|---|---|');
     for (const r of rows) console.log(r);
 
     // Pictures to look at: search hit with tooltip, dark palette.
@@ -227,7 +248,8 @@ export async function run(): Promise<void> {
     await page.goto(`${url}?dark=1`);
     await page.waitForFunction(() => (window as unknown as { __floorMap?: { ready: boolean } }).__floorMap?.ready === true, null, { timeout: 60_000 });
     await page.screenshot({ path: '/tmp/floor-map-dark.png' });
-    console.log('\nscreenshots: /tmp/floor-map-fit.png, /tmp/floor-map-zoom{0,4,7}.png, /tmp/floor-map-search.png, /tmp/floor-map-dark.png');
+    await page.locator('.trip-mini-map').screenshot({ path: '/tmp/floor-map-mini-dark.png' });
+    console.log('\nscreenshots: /tmp/floor-map-{fit,mini,zoom0,zoom4,zoom7,search,dark,mini-dark}.png');
   } finally {
     await browser.close();
     await server?.close();

@@ -19,6 +19,8 @@ export interface SceneGeometry {
   aisleHalfWidth: number;
   crossAisleHalfWidth: number;
   rackDepth: number;
+  /** Small map: aisle codes at the front end only, no cross-aisle or depot codes. */
+  compact: boolean;
 }
 
 export type BinDetail = 'runs' | 'slots' | 'levels';
@@ -158,7 +160,6 @@ export function drawStaticScene(
   }
 
   drawClosures(ctx, g, p, vp, view);
-  drawDepots(ctx, plan, p, vp, view);
   drawLabels(ctx, g, p, vp, view);
   return { binsDrawn, detail };
 }
@@ -216,17 +217,21 @@ function drawClosures(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPal
   }
 }
 
-function drawDepots(ctx: CanvasRenderingContext2D, plan: PlanGeometry, p: MapPalette, vp: Viewport, view: WorldRect): void {
+/** Depots go on the route layer: a trip starts and ends there, and the marker must sit above its line. */
+function drawDepots(ctx: CanvasRenderingContext2D, plan: PlanGeometry, p: MapPalette, vp: Viewport, view: WorldRect, compact: boolean): void {
   for (const d of plan.depots) {
     if (d.x < view.minX - 10 || d.x > view.maxX + 10 || d.y < view.minY - 10 || d.y > view.maxY + 10) continue;
     const sx = vp.ox + d.x * vp.scale;
     const sy = vp.oy + (vp.flipY ? -d.y : d.y) * vp.scale;
-    drawDepotMarker(ctx, sx, sy, d.code, p, 11);
+    drawDepotMarker(ctx, sx, sy, compact ? null : d.code, p, compact ? 9 : 11);
   }
 }
 
-/** A depot is a square with "D" in it (shape and letter, not colour, tell it apart). */
-export function drawDepotMarker(ctx: CanvasRenderingContext2D, sx: number, sy: number, code: string, p: MapPalette, half: number): void {
+/**
+ * A depot is a square with "D" in it (shape and letter, not colour, tell it apart); its code goes
+ * to the left, where the plan usually has free floor and the aisle codes are not.
+ */
+export function drawDepotMarker(ctx: CanvasRenderingContext2D, sx: number, sy: number, code: string | null, p: MapPalette, half: number): void {
   ctx.fillStyle = p.depotFill;
   ctx.strokeStyle = p.labelHalo;
   ctx.lineWidth = 2;
@@ -239,9 +244,11 @@ export function drawDepotMarker(ctx: CanvasRenderingContext2D, sx: number, sy: n
   ctx.textAlign = 'center';
   ctx.textBaseline = 'middle';
   ctx.fillText('D', sx, sy + 0.5);
+  if (code) {
+    ctx.textAlign = 'right';
+    label(ctx, code, sx - half - 4, sy, p, 12);
+  }
   ctx.textAlign = 'left';
-  ctx.textBaseline = 'middle';
-  label(ctx, code, sx + half + 4, sy, p, 12);
 }
 
 function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalette, vp: Viewport, view: WorldRect): void {
@@ -262,27 +269,31 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
     lastRight = sx + w / 2;
     const lo = Math.min(a.yStart, a.yEnd);
     const hi = Math.max(a.yStart, a.yEnd);
-    for (const [yEnd, away] of [
-      [lo, -1],
-      [hi, 1],
-    ] as const) {
+    const ends: (readonly [number, number])[] = g.compact ? [[hi, 1]] : [[lo, -1], [hi, 1]];
+    for (const [yEnd, away] of ends) {
       const sy = vp.oy + (vp.flipY ? -yEnd : yEnd) * vp.scale;
       const dir = (vp.flipY ? -away : away) * (px * 0.9 + 2);
       label(ctx, a.code, sx, sy + dir, p, px);
     }
   }
   ctx.textAlign = 'left';
+  if (g.compact) return;
   for (const c of g.plan.crossAisles) {
     if (c.y < view.minY - 5 || c.y > view.maxY + 5) continue;
     const sx = vp.ox + Math.min(c.xStart, c.xEnd) * vp.scale;
     const sy = vp.oy + (vp.flipY ? -c.y : c.y) * vp.scale;
+    const w = ctx.measureText(c.code).width;
+    // Left of the plan when there is room there, else just inside its left end (halo keeps it legible).
+    const x = Math.max(sx - 6, w + 8);
     ctx.textAlign = 'right';
-    label(ctx, c.code, sx - 6, sy, p, px);
+    label(ctx, c.code, x, sy, p, px);
   }
   ctx.textAlign = 'left';
 }
 
 export interface OverlayScene {
+  plan: PlanGeometry;
+  compact: boolean;
   route: FloorMapRoute | null;
   walked: MapPoint[];
   remaining: MapPoint[];
@@ -377,12 +388,18 @@ export function drawOverlayScene(ctx: CanvasRenderingContext2D, o: OverlayScene,
     }
     if (o.walked.length > 1) {
       polyline(ctx, vp, o.walked);
+      ctx.strokeStyle = p.labelHalo;
+      ctx.lineWidth = 6;
+      ctx.stroke();
       ctx.strokeStyle = p.routeWalked;
       ctx.lineWidth = 3;
       ctx.setLineDash([7, 6]);
       ctx.stroke();
       ctx.setLineDash([]);
     }
+  }
+  drawDepots(ctx, o.plan, p, vp, view, o.compact);
+  if (route) {
     ctx.textAlign = 'center';
     ctx.textBaseline = 'middle';
     // Current stop last so it sits on top.

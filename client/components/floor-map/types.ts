@@ -65,6 +65,8 @@ export interface FloorMapProps {
   /** Fixed size in CSS pixels; by default the map fills its container. */
   width?: number;
   height?: number;
+  /** Small map: fewer labels (aisle codes at the far end only, no cross-aisle or depot codes). */
+  compact?: boolean;
   /** Accessible name of the map. */
   label?: string;
 }
@@ -96,7 +98,11 @@ export interface FloorMapStats {
   /** Times the cached bitmap was reused (pan). */
   staticBlits: number;
   lastStaticRenderMs: number;
+  /** Whole plan-layer draw of the last frame: a blit, or a vector render and its blit. */
+  lastStaticDrawMs: number;
   lastOverlayMs: number;
+  /** Plan-layer draws so far (one per frame that changed the view). */
+  draws: number;
   /** Bin cells drawn in the last vector render (after culling). */
   lastBinsDrawn: number;
   indexBuildMs: number;
