@@ -1,0 +1,146 @@
+/**
+ * Clarke–Wright savings batching (G. Clarke & J. W. Wright, Operations Research 12(4), 1964, as
+ * applied to order batching by de Koster, van der Poort & Wolters 1999, IJPR 37(7), their variant
+ * that recomputes savings after every merge). Every order starts as its own cart; the saving of
+ * carrying batches A and B together is s(A, B) = d(A) + d(B) − d(A ∪ B), d the nearest-neighbor
+ * route length from the depot. Repeatedly merge the pair with the largest positive saving that fits
+ * the cart, then compute the savings of the merged batch with the others.
+ *
+ * Pairs are only formed among neighbours: each order's NEIGHBOURS closest orders by closeness (the
+ * sum over each order's stops of the walk to the other's nearest stop, both ways), so the work grows
+ * with n · NEIGHBOURS rather than n². Waves of up to NEIGHBOURS + 1 orders get every pair.
+ * The route length of each candidate union is kept with its pair, so a merge reuses it.
+ * Once the budget is spent no new savings are computed; the pairs already known are still merged.
+ */
+import { MinHeap } from '../plan/heap';
+import type { BatchContext, Load } from './context';
+import { fits } from './context';
+import { unionSorted } from './route-length';
+
+/** Partners per order considered for a saving. */
+const NEIGHBOURS = 64;
+
+interface Group {
+  members: number[];
+  stops: Int32Array;
+  kg: number;
+  litres: number;
+  totes: number;
+  length: number;
+  alive: boolean;
+}
+
+/** O(n² · k² + n · NEIGHBOURS · m · k²) for n orders, k stops per candidate union and m merges per order. */
+export function batchSavings(ctx: BatchContext): Load[] {
+  const { needs, stops, table, cart, budget } = ctx;
+  const n = needs.length;
+  const groups: Group[] = [];
+  const groupOf = new Int32Array(n);
+  for (let p = 0; p < n; p++) {
+    const need = needs[p]!;
+    groups.push({ members: [p], stops: stops[p]!, kg: need.kg, litres: need.litres, totes: need.totes, length: table.routeLength(stops[p]!), alive: true });
+    groupOf[p] = p;
+  }
+
+  const neighbours = neighbourLists(ctx);
+
+  const pairA: number[] = [];
+  const pairB: number[] = [];
+  const pairStops: Int32Array[] = [];
+  const pairLength: number[] = [];
+  const heap = new MinHeap(1024);
+  const consider = (a: number, b: number): void => {
+    const ga = groups[a]!;
+    const gb = groups[b]!;
+    if (!fits(ga, gb, cart)) return;
+    const union = unionSorted(ga.stops, gb.stops);
+    const length = table.routeLength(union);
+    const saving = ga.length + gb.length - length;
+    if (!(saving > 0)) return;
+    heap.push(-saving, pairA.length);
+    pairA.push(a);
+    pairB.push(b);
+    pairStops.push(union);
+    pairLength.push(length);
+  };
+
+  for (let p = 0; p < n && !budget.expired(); p++) {
+    for (const q of neighbours[p]!) if (q > p || !neighbours[q]!.includes(p)) consider(p, q);
+    ctx.progress((0.5 * (p + 1)) / n);
+  }
+
+  let merges = 0;
+  while (heap.size > 0) {
+    const id = heap.pop();
+    const a = pairA[id]!;
+    const b = pairB[id]!;
+    const ga = groups[a]!;
+    const gb = groups[b]!;
+    if (!ga.alive || !gb.alive) continue;
+    ga.alive = false;
+    gb.alive = false;
+    const c = groups.length;
+    const members = [...ga.members, ...gb.members];
+    groups.push({
+      members,
+      stops: pairStops[id]!,
+      kg: ga.kg + gb.kg,
+      litres: ga.litres + gb.litres,
+      totes: ga.totes + gb.totes,
+      length: pairLength[id]!,
+      alive: true,
+    });
+    for (const m of members) groupOf[m] = c;
+    merges++;
+    ctx.progress(0.5 + (0.5 * merges) / Math.max(1, n - 1));
+    if (budget.expired()) continue;
+    const partners = new Set<number>();
+    for (const m of members) for (const q of neighbours[m]!) partners.add(groupOf[q]!);
+    partners.delete(c);
+    for (const g of [...partners].sort((x, y) => x - y)) consider(g, c);
+  }
+
+  const loads: Load[] = [];
+  for (const g of groups) {
+    if (!g.alive) continue;
+    loads.push({ members: g.members, kg: g.kg, litres: g.litres, totes: g.totes });
+  }
+  return loads;
+}
+
+/**
+ * Each order's closest orders (up to NEIGHBOURS) by symmetric closeness; ties by position.
+ * O(n² · k²) table reads for k stops per order.
+ */
+function neighbourLists(ctx: BatchContext): number[][] {
+  const { needs, stops, table } = ctx;
+  const n = needs.length;
+  const all = Array.from({ length: n }, (_, p) => p);
+  if (n - 1 <= NEIGHBOURS) return all.map((p) => all.filter((q) => q !== p));
+  const close = new Float64Array(n * n);
+  const oneWay = (from: Int32Array, to: Int32Array): number => {
+    let sum = 0;
+    for (const s of from) {
+      let best = Infinity;
+      for (const t of to) {
+        const v = table.d(s, t);
+        if (v < best) best = v;
+      }
+      sum += best;
+    }
+    return sum;
+  };
+  for (let p = 0; p < n; p++) {
+    for (let q = p + 1; q < n; q++) {
+      const v = oneWay(stops[p]!, stops[q]!) + oneWay(stops[q]!, stops[p]!);
+      close[p * n + q] = v;
+      close[q * n + p] = v;
+    }
+  }
+  return all.map((p) =>
+    all
+      .filter((q) => q !== p)
+      .sort((x, y) => close[p * n + x]! - close[p * n + y]! || x - y)
+      .slice(0, NEIGHBOURS),
+  );
+}
