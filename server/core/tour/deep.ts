@@ -14,8 +14,8 @@ import { createLocalSearch } from './local';
 export const DEEP_EXACT_MAX_POINTS = 12;
 
 /**
- * Improves a circuit until `budget` expires. The result is never longer than the 2-opt / Or-opt
- * local optimum of `order`. Trips of ≤ 12 points are solved exactly by Held–Karp (a few milliseconds)
+ * Improves a circuit until `budget` expires. It first takes `order` to its 2-opt / Or-opt local
+ * optimum, so when the budget covers that step the result is never longer than `local`'s. Trips of ≤ 12 points are solved exactly by Held–Karp (a few milliseconds)
  * when the budget allows. Needs a finite budget; each iteration costs about O(n) plus a local repair.
  * Returns the circuit from an arbitrary point (the caller rotates it to the depot).
  */

@@ -219,8 +219,12 @@ export function createLocalSearch(
         const gain = dist(p, s1) + dist(s2, nx) - dist(p, nx);
         for (let end = 0; end < 2; end++) {
           const from = end === 0 ? s1 : s2;
+          // Only new edges shorter than the old edge at that end: the 3-opt gain criterion (Lin &
+          // Kernighan 1973) prunes most candidates; the closing full scan catches anything it skips.
+          const limit = end === 0 ? dist(p, s1) : dist(s2, nx);
           for (let t = 0; t < K; t++) {
             const c = nb[from * K + t]!;
+            if (!(dist(from, c) < limit)) break;
             if (inSegment(c, s1, L)) continue;
             if (tryInsert(s1, s2, L, gain, c)) return true;
             if (tryInsert(s1, s2, L, gain, pred(c))) return true;
