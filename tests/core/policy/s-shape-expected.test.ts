@@ -7,22 +7,22 @@ import { randomStops } from './helpers';
 
 /**
  * Expected S-shape length in one block: n aisles w apart, length L, depot at the front of the first
- * aisle, m stops each in a uniformly chosen aisle at a uniform depth (the random-storage model of
- * Hall 1993, IIE Transactions 25(4)).
+ * aisle, m stops each in a uniformly chosen aisle at a uniform depth (random storage, as in the
+ * expected-distance models of Hall 1993, IIE Transactions 25(4), and Roodbergen — from memory).
  *
  *   E[length] = 2w·E[R] + L·E[N] + L·E[ 1{N odd} · (K − 1)/(K + 1) ]
  *
  * - R = index (0-based) of the rightmost pick aisle: P(R ≤ k) = ((k + 1)/n)^m, so
  *   E[R] = Σ_{k=0}^{n−2} (1 − ((k + 1)/n)^m); the front and back cross aisles are walked 2w·R in all.
- * - N = number of pick aisles, E[N] = n·(1 − (1 − 1/n)^m) (Hall 1993's expected number of aisles entered;
- *   also Roodbergen's S-shape estimate, from memory).
+ * - N = number of pick aisles, E[N] = n·(1 − (1 − 1/n)^m): the standard occupancy result, the
+ *   aisles-entered term of Hall's (1993) and Roodbergen's S-shape estimates (attribution from memory).
  * - Every pick aisle is walked end to end (L), except that with N odd the rightmost is entered and left
- *   from the front, 2·max of its K depths, E = 2L·K/(K + 1) (maximum of K uniforms); the correction
- *   L − 2LK/(K + 1) = −L(K − 1)/(K + 1) is averaged over the exact law of (N, R, K):
+ *   from the front, 2·max of its K depths, E = 2L·K/(K + 1) (maximum of K uniforms); replacing L by
+ *   that adds L(K − 1)/(K + 1), averaged over the exact law of (N, R, K):
  *   P(N = d + 1, R = r, K = c) = C(m, c) · C(r, d) · d! · S(m − c, d) / n^m, S = Stirling numbers of the
  *   second kind (the other m − c stops fill exactly d of the r aisles left of R).
  * The sum over (N, R, K) is derived here from the policy's definition, not recalled; the test also
- * checks that its probabilities add up to 1 and reproduce Hall's E[N].
+ * checks that its probabilities add up to 1 and reproduce the occupancy E[N].
  */
 function expectedSShape(n: number, w: number, L: number, m: number): { length: number; total: number; aisles: number } {
   const stirling: number[][] = Array.from({ length: m + 1 }, () => new Array<number>(m + 1).fill(0));
@@ -55,11 +55,11 @@ function expectedSShape(n: number, w: number, L: number, m: number): { length: n
 }
 
 describe('S-shape expected length in a single block', () => {
-  it('the law of (N, R, K) used by the formula sums to 1 and gives Hall’s expected aisle count', () => {
+  it('the law of (N, R, K) used by the formula sums to 1 and gives the expected number of pick aisles', () => {
     for (const m of [1, 4, 12, 25]) {
       const f = expectedSShape(10, 3, 20, m);
       expect(f.total).toBeCloseTo(1, 10);
-      // Hall (1993): E[N] = n(1 − (1 − 1/n)^m).
+      // Occupancy (standard combinatorics): E[N] = n(1 − (1 − 1/n)^m).
       expect(f.aisles).toBeCloseTo(10 * (1 - 0.9 ** m), 10);
     }
   });
