@@ -12,6 +12,7 @@ import { orderRoutes } from './orders/orders.routes';
 import { siteRoutes } from './sites/sites.routes';
 import { systemRoutes } from './system/system.routes';
 import { userRoutes } from './users/users.routes';
+import { waveRoutes } from './waves/waves.routes';
 
 export const routeTable: readonly AnyRoute[] = [
   ...systemRoutes,
@@ -22,4 +23,5 @@ export const routeTable: readonly AnyRoute[] = [
   ...mailRoutes,
   ...floorPlanRoutes,
   ...orderRoutes,
+  ...waveRoutes,
 ];

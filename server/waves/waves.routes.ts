@@ -1,0 +1,46 @@
+import { z } from 'zod';
+import { ReleaseBody, TripDetail, WaveDetail, WaveJob, WavePreviewBody, WaveStatus, WaveSummary } from '../../shared/waves';
+import { notFound } from '../http/errors';
+import { defineRoute } from '../http/route';
+import { getPreviewJob } from './preview-jobs';
+import { cancelWave, listWaves, releaseWave, startPreview, tripDetail, waveDetail } from './waves.service';
+
+const PLANNERS = ['supervisor', 'admin'] as const;
+
+export const waveRoutes = [
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/wave-previews', access: PLANNERS, summary: 'Plan a wave preview in the background; poll the job', status: 202,
+    body: WavePreviewBody, response: WaveJob,
+    handler: ({ deps, siteId, user, body }) => startPreview(deps, siteId!, user!.id, body),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/sites/:siteId/wave-previews/:id', access: PLANNERS, summary: 'A wave preview job: progress, then the preview',
+    response: WaveJob,
+    handler: ({ siteId, params }) => getPreviewJob(siteId!, params.id!) ?? Promise.reject(notFound('Preview')),
+  }),
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/waves', access: PLANNERS, summary: 'Release a previewed wave (idempotent by releaseKey)', status: 201,
+    body: ReleaseBody, response: WaveDetail,
+    handler: ({ deps, siteId, user, body }) => releaseWave(deps, siteId!, user!.id, body.previewId, body.releaseKey, body.name),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/sites/:siteId/waves', access: ['supervisor', 'admin', 'engineer'], summary: 'Released waves, newest first',
+    query: z.strictObject({ status: WaveStatus.optional() }), response: z.array(WaveSummary),
+    handler: ({ deps, siteId, query }) => listWaves(deps.db, siteId!, query.status),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/sites/:siteId/waves/:id', access: ['supervisor', 'admin', 'engineer'], summary: 'A wave with its trips',
+    response: WaveDetail,
+    handler: ({ deps, siteId, params }) => waveDetail(deps.db, siteId!, Number(params.id)),
+  }),
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/waves/:id/cancel', access: PLANNERS, summary: 'Cancel a wave nobody has started; its orders return to the open pool',
+    response: WaveDetail,
+    handler: ({ deps, siteId, user, params }) => cancelWave(deps, siteId!, user!.id, Number(params.id)),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/sites/:siteId/trips/:id', access: ['supervisor', 'admin', 'engineer'], summary: 'A trip with numbered stops, pick lines and route (print view)',
+    response: TripDetail,
+    handler: ({ deps, siteId, params }) => tripDetail(deps.db, siteId!, Number(params.id)),
+  }),
+];

@@ -1,0 +1,337 @@
+import type { Knex } from 'knex';
+import type { TripDetail, WaveDetail, WaveJob, WavePreview, WavePreviewBody, WaveSummary } from '../../shared/waves';
+import { audit } from '../audit/audit';
+import type { Deps } from '../deps';
+import { loadPlanIndex, activePlanId } from '../floor-plans/plan-index';
+import { getPlanRowById, loadGraphSets } from '../floor-plans/floor-plans.repository';
+import { AppError, notFound } from '../http/errors';
+import { linesOf, skuMap, type DbOrderRow } from '../orders/orders.repository';
+import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
+import { siteMembersWithRole } from '../users/users.repository';
+import { runInWorker } from '../workers/spawn';
+import { circuitPolyline } from '../core/plan/distances';
+import type { PlannerOrder, PlannerOutput } from './wave-planner';
+import type { PlanJobData } from './plan.worker';
+import { createPreviewJob, getPreview, updatePreviewJob, type PreviewContext } from './preview-jobs';
+
+const round = (v: number, d = 1) => Math.round(v * 10 ** d) / 10 ** d;
+const pairs = (flat: number[]): [number, number][] => {
+  const out: [number, number][] = [];
+  for (let i = 0; i + 1 < flat.length; i += 2) out.push([round(flat[i]!, 2), round(flat[i + 1]!, 2)]);
+  return out;
+};
+
+/** Waves plan one at a time: the machine has two cores shared with every request. */
+let planQueue: Promise<unknown> = Promise.resolve();
+
+/** Loads the chosen open orders with their lines slotted from the SKU master. */
+async function plannerOrders(db: Knex, siteId: number, orderIds: number[]): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
+  const rows: DbOrderRow[] = [];
+  for (let i = 0; i < orderIds.length; i += 500) rows.push(...(await db<DbOrderRow>('orders').where({ site_id: siteId }).whereIn('id', orderIds.slice(i, i + 500))));
+  const missing = orderIds.filter((id) => !rows.some((r) => r.id === id));
+  if (missing.length) throw new AppError('validation', 'unknown_orders', `Orders not found on this site: ${missing.slice(0, 10).join(', ')}`, [{ field: 'orderIds', message: 'unknown order' }]);
+  const notOpen = rows.filter((r) => r.status !== 'open');
+  if (notOpen.length) throw new AppError('conflict', 'orders_not_open', `Orders no longer open: ${notOpen.slice(0, 10).map((r) => r.ref).join(', ')}`, { orders: notOpen.map((r) => r.ref) });
+  const lines = await linesOf(db, rows.map((r) => r.id));
+  const skus = await skuMap(db, siteId);
+  const orders: PlannerOrder[] = [];
+  const unslotted: { order: string; reason: string }[] = [];
+  const ids = new Map<string, number>();
+  for (const r of rows) {
+    ids.set(r.ref, r.id);
+    const ls = lines.get(r.id) ?? [];
+    const unknown = ls.filter((l) => !skus.has(l.sku)).map((l) => l.sku);
+    if (unknown.length) {
+      unslotted.push({ order: r.ref, reason: `SKU ${unknown.join(', ')} is not in the SKU master` });
+      continue;
+    }
+    orders.push({
+      ref: r.ref, due: r.due, priority: r.priority,
+      lines: ls.map((l) => { const s = skus.get(l.sku)!; return { sku: l.sku, qty: l.qty, bin: s.bin, unitKg: s.unit_weight_kg, unitLitres: s.unit_volume_l }; }),
+    });
+  }
+  return { orders, ids, unslotted };
+}
+
+function toPreview(id: string, out: PlannerOutput, extra: { planId: number; planVersion: number; cart: WavePreview['cart']; body: WavePreviewBody; unslotted: { order: string; reason: string }[] }): WavePreview {
+  const r = out.result;
+  return {
+    previewId: id,
+    planId: extra.planId,
+    planVersion: extra.planVersion,
+    cart: extra.cart,
+    batching: extra.body.batching,
+    method: extra.body.method,
+    improve: extra.body.improve,
+    trips: r.trips.map((t, i) => ({
+      n: t.n,
+      orders: t.orders.map((o) => ({ ref: o.ref, totes: o.totes })),
+      stops: t.stops.map((s, k) => ({ n: s.n, node: s.node, x: round(out.trips[i]!.stopXY[2 * k]!, 2), y: round(out.trips[i]!.stopXY[2 * k + 1]!, 2), bins: s.bins, lines: s.lines.length })),
+      lines: out.trips[i]!.lines,
+      totes: t.totes,
+      kg: round(t.kg, 2),
+      litres: round(t.litres, 2),
+      metres: round(t.metres),
+      lowerBound: round(t.lowerBound),
+      aboveBoundPct: round(t.aboveBoundPct, 2),
+      sShapeMetres: t.sShapeMetres === null ? null : round(t.sShapeMetres),
+      estMinutes: round(out.trips[i]!.estMinutes),
+      path: pairs(out.trips[i]!.path),
+      depot: [round(out.depot[0], 2), round(out.depot[1], 2)],
+    })),
+    totals: {
+      trips: r.totals.trips, orders: r.totals.orders, lines: r.totals.lines, metres: round(r.totals.metres), lowerBound: round(r.totals.lowerBound),
+      aboveBoundPct: round(r.totals.aboveBoundPct, 2), singleMetres: round(r.totals.singleMetres), savingVsSinglePct: round(r.totals.savingVsSinglePct, 2),
+      sShapeMetres: r.totals.sShapeMetres === null ? null : round(r.totals.sShapeMetres), savingVsSShapePct: r.totals.savingVsSShapePct === null ? null : round(r.totals.savingVsSShapePct, 2),
+      sShapeNote: r.totals.sShapeNote, estMinutes: round(out.estMinutes),
+    },
+    unplaced: [...extra.unslotted, ...out.unslotted, ...r.unplaced.map((u) => ({ order: u.order, reason: u.reason }))],
+    notes: r.notes,
+    ms: Math.round(r.ms),
+  };
+}
+
+/**
+ * Starts planning a wave preview in a worker and returns the job at once; poll it for progress.
+ * The wave is planned on the site's active plan.
+ */
+export async function startPreview(deps: Deps, siteId: number, userId: number, body: WavePreviewBody): Promise<WaveJob> {
+  const { db } = deps;
+  const planId = await activePlanId(db, siteId);
+  if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; activate one first');
+  const cart = await getCartProfile(db, siteId, body.cartProfileId);
+  if (!cart) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'cartProfileId', message: 'unknown cart profile' }]);
+  const site = (await getSiteRow(db, siteId))!;
+  const plan = await loadPlanIndex(db, planId);
+  if (body.depot >= plan.geometry.depots.length) throw new AppError('validation', 'validation_failed', `The plan has ${plan.geometry.depots.length} depot(s)`, [{ field: 'depot', message: 'no such depot' }]);
+  const sets = await loadGraphSets(db, planId);
+  if (!sets) throw new AppError('internal', 'plan_not_built', 'The active plan has no stored walk graph');
+  const { orders, ids, unslotted } = await plannerOrders(db, siteId, body.orderIds);
+  const planRow = (await getPlanRowById(db, planId))!;
+
+  const ctx: PreviewContext = { siteId, planId, closureVersion: sets.closureVersion, userId, depotIdx: body.depot, cartProfileId: cart.id, orderIds: ids };
+  const job = createPreviewJob(ctx);
+  const data: PlanJobData = {
+    geometry: plan.geometry,
+    graph: sets.graph,
+    index: sets.index,
+    input: {
+      orders, cart: { totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, batching: body.batching, method: body.method, improve: body.improve,
+      depotIdx: body.depot, speeds: settingsOf(site), timeLimitMs: 20_000,
+    },
+  };
+  const run = planQueue.then(async () => {
+    updatePreviewJob(job.id, { phase: 'planning' });
+    const out = await runInWorker<PlannerOutput, number>(new URL('./plan.worker.ts', import.meta.url), data, {
+      timeoutMs: 60_000,
+      onProgress: (f) => updatePreviewJob(job.id, { progress: Math.min(0.99, f) }),
+    });
+    const preview = toPreview(job.id, out, { planId, planVersion: planRow.version ?? 0, cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, body, unslotted });
+    updatePreviewJob(job.id, { state: 'done', progress: 1, phase: 'done', preview });
+  });
+  planQueue = run.catch((err: unknown) => {
+    deps.logger.warn({ err }, 'wave preview failed');
+    updatePreviewJob(job.id, { state: 'failed', phase: 'failed', error: { code: 'planning_failed', message: (err as Error).message } });
+  });
+  return job;
+}
+
+interface DbWaveRow {
+  id: number; site_id: number; plan_id: number; name: string; status: WaveSummary['status']; cart_name: string; batching: WaveSummary['batching'];
+  routing_method: WaveSummary['method']; routing_improve: WaveSummary['improve']; orders_count: number; lines_count: number; planned_metres: number;
+  lower_bound_metres: number; single_metres: number; s_shape_metres: number | null; est_seconds: number; notes: string; created_by: number | null;
+  created_at: string; completed_at: string | null; release_key: string; depot_idx: number;
+}
+
+/**
+ * Releases a previewed wave: saves the wave, its trips, numbered stops and pick lines on the plan
+ * it was planned on, and takes its orders out of the open pool — all in one transaction. The same
+ * release key answers with the same wave (double click, retry).
+ */
+export async function releaseWave(deps: Deps, siteId: number, userId: number, previewId: string, releaseKey: string, name?: string): Promise<WaveDetail> {
+  const { db } = deps;
+  const existing = await db<DbWaveRow>('waves').where({ site_id: siteId, release_key: releaseKey }).first();
+  if (existing) return waveDetail(db, siteId, existing.id);
+  const found = getPreview(siteId, previewId);
+  if (!found) throw new AppError('not_found', 'preview_gone', 'This preview has expired or was never made; plan the wave again');
+  const { preview, ctx } = found;
+  if (preview.trips.length === 0) throw new AppError('validation', 'empty_wave', 'The preview has no trips to release', []);
+  const plan = await getPlanRowById(db, ctx.planId);
+  if (!plan || plan.state !== 'active' || plan.closure_version !== ctx.closureVersion) {
+    throw new AppError('conflict', 'plan_changed', 'The floor plan changed since this preview (activated, closed or reopened an aisle); plan the wave again');
+  }
+  const site = (await getSiteRow(db, siteId))!;
+  const speeds = settingsOf(site);
+  const skus = await skuMap(db, siteId);
+  const now = new Date().toISOString();
+  const waveName = name ?? `Wave ${now.slice(0, 16).replace('T', ' ')}`;
+
+  const waveId = await db.transaction(async (trx) => {
+    const again = await trx<DbWaveRow>('waves').where({ site_id: siteId, release_key: releaseKey }).first();
+    if (again) return again.id;
+    const refs = preview.trips.flatMap((t) => t.orders.map((o) => o.ref));
+    const orderIds = refs.map((r) => ctx.orderIds.get(r)!);
+    const open = await trx('orders').whereIn('id', orderIds).andWhere({ status: 'open' }).pluck('id');
+    if (open.length !== orderIds.length) {
+      const gone = refs.filter((_r, i) => !open.includes(orderIds[i]));
+      throw new AppError('conflict', 'orders_not_open', `Orders already taken by another wave: ${gone.slice(0, 10).join(', ')}; plan again`, { orders: gone });
+    }
+    const t = preview.totals;
+    const [id] = await trx('waves').insert({
+      site_id: siteId, plan_id: ctx.planId, name: waveName, status: 'released', cart_name: preview.cart.name, cart_totes: preview.cart.totes,
+      cart_max_kg: preview.cart.maxKg, cart_max_litres: preview.cart.maxLitres, batching: preview.batching, routing_method: preview.method,
+      routing_improve: preview.improve, depot_idx: ctx.depotIdx, orders_count: t.orders, lines_count: t.lines, planned_metres: t.metres,
+      lower_bound_metres: t.lowerBound, single_metres: t.singleMetres, s_shape_metres: t.sShapeMetres, est_seconds: t.estMinutes * 60,
+      notes: JSON.stringify(preview.notes), release_key: releaseKey, created_by: userId, created_at: now,
+    });
+    const lineRows = await linesOf(trx, orderIds);
+    for (const trip of preview.trips) {
+      const dues = (await trx<DbOrderRow>('orders').whereIn('id', trip.orders.map((o) => ctx.orderIds.get(o.ref)!)).pluck('due')).filter(Boolean).sort();
+      const [tripId] = await trx('trips').insert({
+        wave_id: id, site_id: siteId, n: trip.n, status: 'released', planned_metres: trip.metres, lower_bound_metres: trip.lowerBound,
+        s_shape_metres: trip.sShapeMetres, est_seconds: trip.estMinutes * 60, totes: trip.totes, kg: trip.kg, litres: trip.litres,
+        depot_node: -1, due: dues[0] ?? null,
+      });
+      const toteOf = new Map<string, number>();
+      for (const o of trip.orders) {
+        await trx('trip_orders').insert({ trip_id: tripId, order_id: ctx.orderIds.get(o.ref), totes: JSON.stringify(o.totes) });
+        toteOf.set(o.ref, o.totes[0]!);
+      }
+      // Lines per access point, in the order they were planned; an order's lines keep their line numbers.
+      const used = new Set<number>();
+      for (const s of trip.stops) {
+        const [stopId] = await trx('stops').insert({ trip_id: tripId, n: s.n, node: s.node, x_m: s.x, y_m: s.y, bins: JSON.stringify(s.bins) });
+        for (const o of trip.orders) {
+          const orderId = ctx.orderIds.get(o.ref)!;
+          for (const l of lineRows.get(orderId) ?? []) {
+            const sku = skus.get(l.sku);
+            if (!sku || !s.bins.includes(sku.bin) || used.has(l.id)) continue;
+            used.add(l.id);
+            await trx('pick_lines').insert({
+              trip_id: tripId, stop_id: stopId, order_id: orderId, order_line_id: l.id, order_ref: o.ref, sku: l.sku, description: sku.description,
+              bin: sku.bin, qty: l.qty, tote: toteOf.get(o.ref)!,
+            });
+          }
+        }
+      }
+    }
+    await trx('orders').whereIn('id', orderIds).update({ status: 'planned', wave_id: id });
+    await audit(trx, { siteId, userId, action: 'wave.released', subject: String(id), detail: { trips: preview.trips.length, orders: orderIds.length, previewId } });
+    return id!;
+  });
+
+  const detail = await waveDetail(db, siteId, waveId);
+  if (!existing) await mailReleaseSummary(deps, siteId, detail, speeds.walkingSpeedMps);
+  return detail;
+}
+
+async function mailReleaseSummary(deps: Deps, siteId: number, w: WaveDetail, speed: number): Promise<void> {
+  const supervisors = (await siteMembersWithRole(deps.db, siteId, 'supervisor')).filter((s) => s.email);
+  const lines = [
+    `${w.name} was released by ${w.createdBy ?? 'a supervisor'}.`,
+    '',
+    `Trips: ${w.trips}   Orders: ${w.orders}   Lines: ${w.lines}`,
+    `Planned walking: ${w.plannedMetres.toFixed(0)} m (≈ ${(w.plannedMetres / speed / 60).toFixed(0)} min at ${speed} m/s); estimated work ${w.estMinutes.toFixed(0)} min`,
+    `One order per trip would walk ${w.singleMetres.toFixed(0)} m${w.sShapeMetres !== null ? `; S-shape routing ${w.sShapeMetres.toFixed(0)} m` : ''}.`,
+    '',
+    ...w.tripList.map((t) => `Trip ${t.n}: ${t.orders.length} orders, ${t.stops} stops, ${t.lines} lines, ${t.plannedMetres.toFixed(0)} m, ≈ ${t.estMinutes.toFixed(0)} min`),
+    '',
+    'Routes are walking suggestions: site walkways, forklift traffic rules and lifting limits come first.',
+  ];
+  for (const s of supervisors) await deps.mailer.send({ to: s.email!, subject: `Released: ${w.name} (${w.trips} trips)`, text: lines.join('\n'), siteId });
+}
+
+const toSummary = (w: DbWaveRow & { plan_version: number | null; creator: string | null; trips_count: number }): WaveSummary => ({
+  id: w.id, name: w.name, status: w.status, planId: w.plan_id, planVersion: w.plan_version ?? 0, cartName: w.cart_name, batching: w.batching,
+  method: w.routing_method, improve: w.routing_improve, trips: w.trips_count, orders: w.orders_count, lines: w.lines_count,
+  plannedMetres: w.planned_metres, singleMetres: w.single_metres, sShapeMetres: w.s_shape_metres, lowerBoundMetres: w.lower_bound_metres,
+  estMinutes: Math.round(w.est_seconds / 6) / 10, createdAt: w.created_at, createdBy: w.creator, completedAt: w.completed_at,
+});
+
+function waveQuery(db: Knex, siteId: number) {
+  return db('waves')
+    .leftJoin('floor_plans', 'floor_plans.id', 'waves.plan_id')
+    .leftJoin('users', 'users.id', 'waves.created_by')
+    .where('waves.site_id', siteId)
+    .select('waves.*', 'floor_plans.version as plan_version', 'users.name as creator', db.raw('(select count(*) from trips where trips.wave_id = waves.id) as trips_count'));
+}
+
+export async function listWaves(db: Knex, siteId: number, status?: WaveSummary['status']): Promise<WaveSummary[]> {
+  const q = waveQuery(db, siteId).orderBy('waves.id', 'desc').limit(200);
+  if (status) q.andWhere('waves.status', status);
+  return (await q).map(toSummary);
+}
+
+interface DbTripRow {
+  id: number; wave_id: number; n: number; status: TripDetail['status']; picker_id: number | null; picker_name: string | null; planned_metres: number;
+  lower_bound_metres: number; est_seconds: number; totes: number; kg: number; litres: number;
+}
+
+async function tripSummaries(db: Knex, where: Record<string, unknown>) {
+  const trips: DbTripRow[] = await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').where(where).orderBy('trips.n').select('trips.*', 'users.name as picker_name');
+  const ids = trips.map((t) => t.id);
+  const orders: { trip_id: number; ref: string }[] = ids.length ? await db('trip_orders').join('orders', 'orders.id', 'trip_orders.order_id').whereIn('trip_id', ids).select('trip_id', 'orders.ref') : [];
+  const counts: { trip_id: number; stops: number; lines: number }[] = ids.length
+    ? await db('trips').whereIn('trips.id', ids).select('trips.id as trip_id', db.raw('(select count(*) from stops where stops.trip_id = trips.id) as stops'), db.raw('(select count(*) from pick_lines where pick_lines.trip_id = trips.id) as lines'))
+    : [];
+  return trips.map((t) => {
+    const c = counts.find((x) => x.trip_id === t.id);
+    return {
+      id: t.id, n: t.n, status: t.status, pickerId: t.picker_id, pickerName: t.picker_name, orders: orders.filter((o) => o.trip_id === t.id).map((o) => o.ref),
+      stops: Number(c?.stops ?? 0), lines: Number(c?.lines ?? 0), plannedMetres: t.planned_metres, lowerBoundMetres: t.lower_bound_metres,
+      estMinutes: Math.round(t.est_seconds / 6) / 10, totes: t.totes, kg: t.kg, litres: t.litres,
+    };
+  });
+}
+
+export async function waveDetail(db: Knex, siteId: number, waveId: number): Promise<WaveDetail> {
+  const w = await waveQuery(db, siteId).andWhere('waves.id', waveId).first();
+  if (!w) throw notFound('Wave');
+  return { ...toSummary(w), notes: JSON.parse(w.notes) as string[], tripList: await tripSummaries(db, { 'trips.wave_id': waveId }) };
+}
+
+/** A trip with its stops, pick lines and the route to draw, as the print view and the tablet show it. */
+export async function tripDetail(db: Knex, siteId: number, tripId: number): Promise<TripDetail> {
+  const [summary] = await tripSummaries(db, { 'trips.id': tripId, 'trips.site_id': siteId });
+  if (!summary) throw notFound('Trip');
+  const trip = (await db('trips').where({ id: tripId }).first<{ wave_id: number }>())!;
+  const wave = (await db<DbWaveRow>('waves').where({ id: trip.wave_id }).first())!;
+  const site = (await getSiteRow(db, siteId))!;
+  const stops: { id: number; n: number; x_m: number; y_m: number; bins: string; status: 'open' | 'done'; node: number }[] = await db('stops').where({ trip_id: tripId }).orderBy('n');
+  const lines: { id: number; stop_id: number; order_ref: string; sku: string; description: string; bin: string; qty: number; tote: number; status: 'open' | 'picked' | 'short' | 'cancelled'; picked_qty: number | null; short_reason: string | null }[] =
+    await db('pick_lines').where({ trip_id: tripId }).orderBy('id');
+  const plan = await loadPlanIndex(db, wave.plan_id);
+  const depotNode = plan.depotNodes[wave.depot_idx]!;
+  const poly = circuitPolyline(plan.graph, [depotNode, ...stops.map((s) => s.node)], true, plan.index);
+  return {
+    ...summary,
+    waveId: wave.id,
+    waveName: wave.name,
+    planId: wave.plan_id,
+    siteName: site.name,
+    depotCode: plan.geometry.depots[wave.depot_idx]?.code ?? 'depot',
+    depot: [plan.graph.x[depotNode]!, plan.graph.y[depotNode]!],
+    path: poly ? pairs(Array.from(poly)) : [],
+    stopList: stops.map((s) => ({
+      id: s.id, n: s.n, x: s.x_m, y: s.y_m, bins: JSON.parse(s.bins) as string[], status: s.status,
+      lines: lines.filter((l) => l.stop_id === s.id).map((l) => ({ id: l.id, orderRef: l.order_ref, sku: l.sku, description: l.description, bin: l.bin, qty: l.qty, tote: l.tote, status: l.status, pickedQty: l.picked_qty, shortReason: l.short_reason })),
+    })),
+  };
+}
+
+/** Cancels a wave that no picker has started: its orders go back to the open pool. */
+export async function cancelWave(deps: Deps, siteId: number, userId: number, waveId: number): Promise<WaveDetail> {
+  await deps.db.transaction(async (trx) => {
+    const w = await trx<DbWaveRow>('waves').where({ id: waveId, site_id: siteId }).first();
+    if (!w) throw notFound('Wave');
+    if (w.status !== 'released') throw new AppError('conflict', 'wave_started', 'Picking has started on this wave; cancel its trips from the live board instead');
+    const picked = await trx('pick_lines').join('trips', 'trips.id', 'pick_lines.trip_id').where('trips.wave_id', waveId).whereNot('pick_lines.status', 'open').count({ n: '*' });
+    if (Number(picked[0]!.n) > 0) throw new AppError('conflict', 'wave_started', 'Lines of this wave are already picked; cancel its trips from the live board instead');
+    await trx('waves').where({ id: waveId }).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
+    await trx('trips').where({ wave_id: waveId }).update({ status: 'cancelled' });
+    await trx('pick_lines').whereIn('trip_id', trx('trips').where({ wave_id: waveId }).select('id')).update({ status: 'cancelled' });
+    await trx('orders').where({ wave_id: waveId, site_id: siteId }).update({ status: 'open', wave_id: null });
+    await audit(trx, { siteId, userId, action: 'wave.cancelled', subject: String(waveId) });
+  });
+  return waveDetail(deps.db, siteId, waveId);
+}
