@@ -98,12 +98,14 @@ export class IssueCollector {
     return this.errors.length + this.droppedErrors;
   }
 
-  /** The lists with a closing "… more" issue where some were left out. */
-  finish(sheet: string): { errors: RowIssue[]; warnings: RowIssue[] } {
+  /** The lists, sorted by `order` when given, each closed by a "… more" issue where some were left out. */
+  finish(sheet: string, order?: (a: RowIssue, b: RowIssue) => number): { errors: RowIssue[]; warnings: RowIssue[] } {
     const more = (n: number, what: string): RowIssue => ({ sheet, row: null, column: null, value: null, message: `${n} more ${what} not listed` });
-    return {
-      errors: this.droppedErrors ? [...this.errors, more(this.droppedErrors, 'errors')] : this.errors,
-      warnings: this.droppedWarnings ? [...this.warnings, more(this.droppedWarnings, 'warnings')] : this.warnings,
-    };
+    const sorted = (list: RowIssue[]) => (order ? [...list].sort(order) : [...list]);
+    const errors = sorted(this.errors);
+    const warnings = sorted(this.warnings);
+    if (this.droppedErrors) errors.push(more(this.droppedErrors, 'errors'));
+    if (this.droppedWarnings) warnings.push(more(this.droppedWarnings, 'warnings'));
+    return { errors, warnings };
   }
 }

@@ -21,7 +21,7 @@ export function fileIssue(message: string): RowIssue {
 export function preflight(bytes: Uint8Array, filename: string, limits: ImportLimits): RowIssue | null {
   if (bytes.length === 0) return fileIssue('the file is empty');
   if (bytes.length > limits.maxFileBytes) {
-    return fileIssue(`the file is ${(bytes.length / 1024 / 1024).toFixed(1)} MiB; at most ${(limits.maxFileBytes / 1024 / 1024).toFixed(0)} MiB are accepted`);
+    return fileIssue(`the file is ${formatBytes(bytes.length)}; at most ${formatBytes(limits.maxFileBytes)} are accepted`);
   }
   const kind = detectKind(bytes, filename);
   if (typeof kind === 'object') return fileIssue(kind.refused);
@@ -30,6 +30,11 @@ export function preflight(bytes: Uint8Array, filename: string, limits: ImportLim
     if (!zip.ok) return fileIssue(zip.message);
   }
   return null;
+}
+
+function formatBytes(n: number): string {
+  if (n < 1024 * 1024) return `${Math.ceil(n / 1024)} KiB`;
+  return `${(n / 1024 / 1024).toFixed(1).replace(/\.0$/, '')} MiB`;
 }
 
 export type JobOutcome<R> = { ok: true; result: R } | { ok: false; issue: RowIssue };

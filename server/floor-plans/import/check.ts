@@ -87,7 +87,9 @@ export function checkFloorPlanRead(read: SpreadsheetRead, options: CheckOptions)
 
   const aisleByCode = new Map(aisles.map((a) => [a.item.code, a.item] as const));
   const binSheet = sheet('bins');
-  const bins = checkBins(binSheet, issues, aisleByCode, aisleCodesSeen, bayLength, (f) => progress(0.1 + 0.6 * f));
+  // Without a readable aisles sheet every bin would be "in an unknown aisle"; the sheet's own error says enough.
+  const aislesKnown = fromCsv || sheet('aisles').usable;
+  const bins = checkBins(binSheet, issues, aisleByCode, aislesKnown ? aisleCodesSeen : null, bayLength, (f) => progress(0.1 + 0.6 * f));
 
   const binCodes = new Set(bins.map((b) => b.item.code));
   for (const d of depots) {
@@ -139,11 +141,11 @@ export function checkFloorPlanRead(read: SpreadsheetRead, options: CheckOptions)
 }
 
 function finish(issues: IssueCollector, stats: FloorPlanStats, plan: PlanGeometry | null): FloorPlanCheck {
-  const { errors, warnings } = issues.finish(FILE_SHEET);
   const rank = (s: string) => (s === FILE_SHEET ? -1 : SHEET_ORDER.indexOf(s));
   const order = (a: RowIssue, b: RowIssue) => rank(a.sheet) - rank(b.sheet) || (a.row ?? 0) - (b.row ?? 0);
+  const { errors, warnings } = issues.finish(FILE_SHEET, order);
   const ok = errors.length === 0;
-  return { ok, errors: [...errors].sort(order), warnings: [...warnings].sort(order), stats, plan: ok ? plan : null };
+  return { ok, errors, warnings, stats, plan: ok ? plan : null };
 }
 
 /** Reports a failed read as an issue on its cell; returns the value or undefined. */
@@ -233,7 +235,7 @@ function checkBins(
   sheet: SheetData,
   issues: IssueCollector,
   aisleByCode: Map<string, PlanAisle>,
-  aisleCodesSeen: Set<string>,
+  aisleCodesSeen: Set<string> | null,
   bayLength: Map<string, number | null>,
   progress: (fraction: number) => void,
 ): Located<PlanBin>[] {
@@ -263,7 +265,7 @@ function checkBins(
     let aisle: PlanAisle | undefined;
     if (aisleCode !== undefined) {
       aisle = aisleByCode.get(aisleCode);
-      if (!aisle && !aisleCodesSeen.has(aisleCode)) {
+      if (!aisle && aisleCodesSeen && !aisleCodesSeen.has(aisleCode)) {
         issues.error({ sheet: S, row: r.row, column: 'aisle', value: aisleCode, message: `aisle ${aisleCode} does not exist in the aisles sheet` });
       }
     }
