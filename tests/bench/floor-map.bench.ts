@@ -171,6 +171,37 @@ async function fullRedrawMs(page: Page): Promise<{ ms: number; bins: number }> {
   });
 }
 
+/**
+ * Pans with Playwright's mouse (real input events through the browser, one round trip each) while
+ * the page records frame deltas: the same gesture as a person dragging, at whatever rate CDP allows.
+ */
+async function mousePan(page: Page, moves: number): Promise<{ frames: number; medianMs: number; p95Ms: number; maxMs: number }> {
+  await page.evaluate(() => {
+    const rec = { on: true, deltas: [] as number[], last: 0 };
+    (window as unknown as { __rec: typeof rec }).__rec = rec;
+    const tick = (t: number): void => {
+      if (rec.last > 0) rec.deltas.push(t - rec.last);
+      rec.last = t;
+      if (rec.on) requestAnimationFrame(tick);
+    };
+    requestAnimationFrame(tick);
+  });
+  await page.mouse.move(500, 400);
+  await page.mouse.down();
+  for (let i = 1; i <= moves; i++) {
+    const dir = Math.floor(i / 40) % 2 === 0 ? 1 : -1;
+    await page.mouse.move(500 + dir * (i % 40) * 8, 400 + dir * (i % 40) * 2);
+  }
+  await page.mouse.up();
+  return page.evaluate(() => {
+    const rec = (window as unknown as { __rec: { on: boolean; deltas: number[] } }).__rec;
+    rec.on = false;
+    const d = rec.deltas.slice().sort((a, b) => a - b);
+    const q = (p: number): number => d[Math.min(d.length - 1, Math.floor(p * d.length))] ?? 0;
+    return { frames: d.length, medianMs: q(0.5), p95Ms: q(0.95), maxMs: d[d.length - 1] ?? 0 };
+  });
+}
+
 const fmt = (v: number): string => v.toFixed(1);
 
 export async function run(): Promise<void> {
@@ -233,12 +264,15 @@ export async function run(): Promise<void> {
       }
     }
     await cdp.send('Emulation.setCPUThrottlingRate', { rate: 1 });
+    await zoomSteps(page, 0);
+    const real = await mousePan(page, 160);
     console.log('\nms as median / p95 / max. frames = requestAnimationFrame deltas; draw = time the map itself spent drawing');
     console.log('per frame (plan layer + route layer); vector = plan drawn as vectors during the gesture (else cached bitmap).');
     console.log(`machine load average at start: ${loadavg().map((l) => l.toFixed(1)).join(' ')} on ${cpus().length} cores`);
     console.log('| CPU | zoom | bins drawn | full redraw ms | pan frames | pan >20 ms | pan draw | pan vector | wheel frames | wheel >20 ms | wheel draw | wheel vector |');
     console.log('|---|---|---|---|---|---|---|---|---|---|---|---|');
     for (const r of rows) console.log(r);
+    console.log(`\npan at fit with Playwright's mouse (160 moves, 1× CPU): ${real.frames} frames, ${fmt(real.medianMs)} / ${fmt(real.p95Ms)} / ${fmt(real.maxMs)} ms`);
 
     // Pictures to look at: search hit with tooltip, dark palette.
     await page.fill('.floor-map__input', 'K-20-03-2');

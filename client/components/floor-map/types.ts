@@ -89,6 +89,8 @@ export interface FloorMapApi {
   zoomBy: (factor: number) => void;
   /** Drawing counters and times, for the benchmark and the harness. */
   stats: () => FloorMapStats;
+  /** The plan point (metres) under a position in the map (CSS pixels from its top-left corner). */
+  worldAt: (sx: number, sy: number) => MapPoint;
 }
 
 export interface FloorMapStats {
