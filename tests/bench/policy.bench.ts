@@ -89,7 +89,7 @@ function qualityTable(title: string, depotX: number, seed: number): void {
     const target = name === DEFAULT_ROW ? ` (target ≤ ${DEFAULT_TARGET_PCT} %: ${mean <= DEFAULT_TARGET_PCT ? 'met' : 'NOT met'})` : '';
     console.log(`| ${name} | ${mean.toFixed(2)}${target} | ${row.worst.toFixed(1)} | ${row.optimal} | ${micros.get(name)!.toFixed(1)} |`);
   }
-  console.log('(µs per trip: one timed loop per method over the same trips; the default's time leaves out building its distance matrix.)');
+  console.log('(µs per trip: one timed loop per method over the same trips; the time of the default leaves out building its distance matrix.)');
   console.log('');
 }
 
