@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { FloorPlanDetail, FloorPlanSummary } from '../../../shared/floor-plans';
 import { activePlanId, loadPlanIndex } from '../../../server/floor-plans/plan-index';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';
-import { generatePlan } from './helpers';
+import { generatePlan, waitForJob } from './helpers';
 
 describe('floor plans: generate → draft → activate → retire', () => {
   let t: TestApp;
@@ -134,5 +134,24 @@ describe('floor plans of another site', () => {
     expect(res.status).toBe(202);
     expect((await t.as.admin.get(`/api/sites/${t.siteId}/floor-plans/jobs/${res.body.id}`)).status).toBe(404);
     expect((await t.as.admin.get(`/api/sites/${otherSite}/floor-plans/jobs/${res.body.id}`)).status).toBe(200);
+  });
+});
+
+describe('a generated plan the engine refuses', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await makeTestApp();
+  });
+  afterAll(() => t.close());
+
+  it('ends the job as failed with the reason, saving nothing', async () => {
+    // 4 m aisles cannot hold racks between front, 3 middle and back cross aisles 3 m wide.
+    const res = await t.as.engineer.post(`/api/sites/${t.siteId}/floor-plans/generate`).set(csrf)
+      .send({ name: 'Cramped', params: { aisles: 2, aisleLengthM: 4, aisleSpacingM: 3, baysPerAisle: 8, levels: 1, crossAisles: { middle: 3 } } });
+    expect(res.status).toBe(202);
+    const job = await waitForJob(t.as.engineer, t.siteId, res.body.id);
+    expect(job.status).toBe('failed');
+    expect(job.message).toMatch(/no room for racks/);
+    expect(await t.deps.db('floor_plans').count<{ n: number }[]>({ n: '*' })).toEqual([{ n: 0 }]);
   });
 });
