@@ -2,6 +2,7 @@
 import type { FloorPlanStats } from '../../shared/floor-plans';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { RectangularPlanParams } from '../core/plan/generate';
+import { AppError } from '../http/errors';
 import { runInWorker } from '../workers/spawn';
 
 export type BuildInput =
@@ -31,15 +32,25 @@ export interface BuildOutput {
   buildMs: number;
 }
 
+/** The engine refused the plan; `refused` says why in words for the user. */
+export interface BuildRefusal {
+  refused: string;
+}
+
 /** Engine time budget inside the worker, and the worker's own hard limit around it. */
 export const BUILD_BUDGET_MS = 60_000;
 const WORKER_TIMEOUT_MS = 120_000;
 
-/** Runs one build in a fresh worker thread; rejects on a timeout or an engine error. */
-export function runBuild(input: BuildInput, onProgress?: (p: BuildProgress) => void): Promise<BuildOutput> {
-  return runInWorker<BuildOutput, BuildProgress>(new URL('./build.worker.ts', import.meta.url), input, {
+/**
+ * Runs one build in a fresh worker thread. Rejects with AppError `plan_refused` when the engine refuses
+ * the plan, WorkerTimeoutError past the time limit, or Error on a crash.
+ */
+export async function runBuild(input: BuildInput, onProgress?: (p: BuildProgress) => void): Promise<BuildOutput> {
+  const out = await runInWorker<BuildOutput | BuildRefusal, BuildProgress>(new URL('./build.worker.ts', import.meta.url), input, {
     timeoutMs: WORKER_TIMEOUT_MS,
     resourceLimits: { maxOldGenerationSizeMb: 1024 },
     ...(onProgress ? { onProgress } : {}),
   });
+  if ('refused' in out) throw new AppError('unprocessable', 'plan_refused', out.refused);
+  return out;
 }

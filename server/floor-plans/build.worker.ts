@@ -4,13 +4,13 @@
  * (server/workers/spawn.ts runInWorker) so a 50,000-bin build never blocks the server's event loop.
  */
 import { defaultClock } from '../core/clock';
-import { buildDistanceIndex } from '../core/plan/distances';
+import { buildDistanceIndex, DistanceBudgetError } from '../core/plan/distances';
 import { generateRectangularPlan, type RectangularPlanParams } from '../core/plan/generate';
 import { serializeDistanceIndex, serializeWalkGraph } from '../core/plan/serialize';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import { buildWalkGraph, NODE_ACCESS } from '../core/plan/walk-graph';
 import { serveJob } from '../workers/worker-protocol';
-import type { BuildInput, BuildOutput, BuildProgress } from './build';
+import type { BuildInput, BuildOutput, BuildProgress, BuildRefusal } from './build';
 import { unreachableBinCodes } from './reachability';
 
 function build(input: BuildInput, progress: (p: BuildProgress) => void): BuildOutput {
@@ -50,4 +50,13 @@ function build(input: BuildInput, progress: (p: BuildProgress) => void): BuildOu
   };
 }
 
-serveJob<BuildInput, BuildProgress, BuildOutput>((input, progress) => build(input, progress));
+// A plan the engine refuses (generator parameters out of range, too many hubs, over budget) is an
+// answer, not a crash: it goes back as a refusal, since error classes do not cross the thread.
+serveJob<BuildInput, BuildProgress, BuildOutput | BuildRefusal>((input, progress) => {
+  try {
+    return build(input, progress);
+  } catch (err) {
+    if (err instanceof RangeError || err instanceof DistanceBudgetError) return { refused: err.message };
+    throw err;
+  }
+});

@@ -72,14 +72,14 @@ export const floorPlanRoutes = [
       const file = req.file;
       if (!file) throw new AppError('validation', 'validation_failed', 'Send the workbook in the multipart field "file"', [{ field: 'file', message: 'required' }]);
       const name = typeof (req.body as { name?: unknown } | undefined)?.name === 'string' ? (req.body as { name: string }).name.slice(0, 120) : undefined;
-      return service.startUpload(deps.db, { siteId: siteId!, userId: user!.id, bytes: new Uint8Array(file.buffer), filename: file.originalname, ...(name ? { name } : {}) });
+      return service.startUpload(deps, { siteId: siteId!, userId: user!.id, bytes: new Uint8Array(file.buffer), filename: file.originalname, ...(name ? { name } : {}) });
     },
   }),
   defineRoute({
     method: 'post', path: `${base}/generate`, access: GENERATE, status: 202,
     summary: 'Generate a rectangular plan from parameters (metres); starts a build job',
     body: GenerateFloorPlanBody, response: FloorPlanJob,
-    handler: ({ deps, body, siteId, user }) => service.startGenerate(deps.db, { siteId: siteId!, userId: user!.id, name: body.name, params: body.params }),
+    handler: ({ deps, body, siteId, user }) => service.startGenerate(deps, { siteId: siteId!, userId: user!.id, name: body.name, params: body.params }),
   }),
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId`, access: OFFICE, summary: 'A build job: phase, fraction, and the error table when the file had problems',

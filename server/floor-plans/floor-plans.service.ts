@@ -6,6 +6,7 @@
  */
 import { setImmediate as yieldToLoop } from 'node:timers/promises';
 import type { Knex } from 'knex';
+import type { Logger } from 'pino';
 import type {
   ActiveFloorPlan,
   ClosureResult,
@@ -186,11 +187,14 @@ export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry
   }
 }
 
-function describeFailure(err: unknown): string {
-  if (err instanceof AppError) return err.message;
-  if (err instanceof WorkerTimeoutError) return 'Building the plan took too long and was stopped';
-  if (err instanceof RangeError) return err.message;
-  return `Building the plan failed: ${err instanceof Error ? err.message : String(err)}`;
+/** A job failure in words for the user; anything unexpected is logged in full and summarised. */
+function failureDescriber(logger: Logger): (err: unknown) => string {
+  return (err) => {
+    if (err instanceof AppError) return err.message;
+    if (err instanceof WorkerTimeoutError) return 'Building the plan took too long and was stopped';
+    logger.error({ err }, 'floor-plan job failed');
+    return 'Building the plan failed on the server; it has been logged';
+  };
 }
 
 async function buildWithProgress(control: JobControl, input: Parameters<typeof runBuild>[0]): Promise<BuildOutput> {
@@ -203,7 +207,7 @@ const stripExtension = (filename: string) => filename.replace(/\.(xlsx|xls|csv)$
  * Starts an upload job: check every row (worker), then walk graph and distances (worker), then save a
  * draft. A file with errors ends the job as 'invalid' with its RowIssue table and saves nothing.
  */
-export function startUpload(db: Knex, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }): FloorPlanJob {
+export function startUpload({ db, logger }: { db: Knex; logger: Logger }, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }): FloorPlanJob {
   return startJob(
     input.siteId,
     'upload',
@@ -226,7 +230,7 @@ export function startUpload(db: Knex, input: { siteId: number; userId: number; b
       );
       return { status: 'done', planId, warnings: check.warnings };
     },
-    describeFailure,
+    failureDescriber(logger),
   );
 }
 
@@ -243,7 +247,7 @@ export const engineParams = (p: GeneratePlanParams): RectangularPlanParams => ({
 });
 
 /** Starts a job that generates a rectangular plan from parameters and saves it as a draft. */
-export function startGenerate(db: Knex, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }): FloorPlanJob {
+export function startGenerate({ db, logger }: { db: Knex; logger: Logger }, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }): FloorPlanJob {
   return startJob(
     input.siteId,
     'generate',
@@ -259,7 +263,7 @@ export function startGenerate(db: Knex, input: { siteId: number; userId: number;
       );
       return { status: 'done', planId, warnings: [] };
     },
-    describeFailure,
+    failureDescriber(logger),
   );
 }
 
