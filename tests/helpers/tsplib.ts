@@ -127,8 +127,9 @@ export function parseTour(text: string): number[] {
   return order;
 }
 
+/** Loads `<name>.tsp`; `name` is the file stem (ulysses16.tsp's NAME header says "ulysses16.tsp"). */
 export function loadTsp(name: string): TsplibInstance {
-  return parseTsp(readFileSync(join(TSPLIB_DIR, `${name}.tsp`), 'utf8'));
+  return { ...parseTsp(readFileSync(join(TSPLIB_DIR, `${name}.tsp`), 'utf8')), name };
 }
 
 export function loadTour(name: string): number[] {

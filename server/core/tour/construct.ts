@@ -7,27 +7,48 @@ import type { DistanceMatrix } from '../matrix';
 import { circuitLength } from '../matrix';
 import type { Budget } from './budget';
 import { canonicalize } from './circuit';
+import { DEFAULT_NEIGHBORS, neighborLists } from './local';
+
+/** K nearest others per point, as built by `neighborLists` in ./local (nearest first, lower index on ties). */
+export interface Neighbors {
+  k: number;
+  list: Int32Array;
+}
 
 /**
  * Nearest neighbor from `start`: always walk to the closest unvisited point, then back.
- * O(n²) time, O(n) memory. Returns the visiting order beginning at `start`.
+ * O(n²) time, O(n) memory; with `neighbors` most steps read only the K-list (O(n·K) typical), falling
+ * back to a full row scan when every listed neighbour is visited. The lists hold the first K points in
+ * (distance, index) order, so both paths pick the same point. Returns the order beginning at `start`.
  */
-export function nearestNeighbor(m: DistanceMatrix, start: number): number[] {
+export function nearestNeighbor(m: DistanceMatrix, start: number, neighbors?: Neighbors): number[] {
   const n = m.n;
   const d = m.d;
   const visited = new Uint8Array(n);
   const order = new Array<number>(n);
+  const K = neighbors ? neighbors.k : 0;
+  const nb = neighbors ? neighbors.list : undefined;
   let cur = start;
   visited[cur] = 1;
   order[0] = cur;
   for (let step = 1; step < n; step++) {
-    const row = cur * n;
     let next = -1;
-    let bestLen = Infinity;
-    for (let j = 0; j < n; j++) {
-      if (visited[j] === 0 && d[row + j]! < bestLen) {
-        bestLen = d[row + j]!;
-        next = j;
+    if (nb) {
+      for (let t = cur * K, end = t + K; t < end; t++) {
+        if (visited[nb[t]!] === 0) {
+          next = nb[t]!;
+          break;
+        }
+      }
+    }
+    if (next < 0) {
+      const row = cur * n;
+      let bestLen = Infinity;
+      for (let j = 0; j < n; j++) {
+        if (visited[j] === 0 && d[row + j]! < bestLen) {
+          bestLen = d[row + j]!;
+          next = j;
+        }
       }
     }
     // Only reachable with non-finite entries; keep the order a permutation regardless.
@@ -43,15 +64,20 @@ export function nearestNeighbor(m: DistanceMatrix, start: number): number[] {
  * Repeated nearest neighbor: nearest neighbor from every point, each circuit rotated to start at the
  * depot, the shortest kept (the depot's own run first, then starts in index order; a later run must be
  * strictly shorter to replace it, so the result is never longer than nearest neighbor from the depot).
- * O(n³) time. When `budget` expires, the best circuit found so far is returned (at least the depot's run).
+ * O(n³) worst case, about O(n²·K) with neighbour lists. When `budget` expires, the best circuit found so far is returned (at least the depot's run).
  */
-export function repeatedNearestNeighbor(m: DistanceMatrix, depot: number, budget?: Budget): number[] {
-  let best = nearestNeighbor(m, depot);
+export function repeatedNearestNeighbor(
+  m: DistanceMatrix,
+  depot: number,
+  budget?: Budget,
+  neighbors: Neighbors = neighborLists(m, DEFAULT_NEIGHBORS),
+): number[] {
+  let best = nearestNeighbor(m, depot, neighbors);
   let bestLen = circuitLength(m, best);
   for (let s = 0; s < m.n; s++) {
     if (s === depot) continue;
     if (budget && budget.expired()) break;
-    const order = nearestNeighbor(m, s);
+    const order = nearestNeighbor(m, s, neighbors);
     const len = circuitLength(m, order);
     if (len < bestLen) {
       best = order;

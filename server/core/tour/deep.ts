@@ -24,6 +24,7 @@ export function improveDeep(
   order: ArrayLike<number>,
   budget: Budget,
   rng: Rng,
+  neighbors?: { k: number; list: Int32Array },
 ): number[] {
   const n = m.n;
   if (budget.deadline === Infinity) throw new RangeError('deep improvement needs a finite timeLimitMs');
@@ -35,7 +36,7 @@ export function improveDeep(
       if (!(e instanceof TimeLimitError)) throw e;
     }
   }
-  const ls = createLocalSearch(m);
+  const ls = createLocalSearch(m, undefined, neighbors);
   ls.load(order);
   ls.run(budget, true);
   const best = Int32Array.from(ls.tour);

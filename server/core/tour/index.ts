@@ -14,7 +14,7 @@ import { canonicalize } from './circuit';
 import { nearestNeighbor, repeatedNearestNeighbor, sortedEdges } from './construct';
 import { improveDeep } from './deep';
 import { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
-import { improveLocal } from './local';
+import { DEFAULT_NEIGHBORS, improveLocal, neighborLists } from './local';
 
 export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 export { TimeLimitError } from './budget';
@@ -61,7 +61,7 @@ export interface SolveTourResult {
 /**
  * A closed circuit through every point of `m`, starting and ending at the depot.
  *
- * Constructions: nearest neighbor O(n²); repeated nearest neighbor O(n³); sorted edges O(n² log n);
+ * Constructions: nearest neighbor O(n²); repeated nearest neighbor O(n³) worst, ~O(n²·K) typical; sorted edges O(n² log n);
  * `best` runs the last two and keeps the shorter (repeated nearest neighbor on a tie); `exact` is
  * Held–Karp, O(2ⁿ·n²), at most 16 stops. Improvement: `local` = 2-opt + Or-opt to a local optimum,
  * `deep` = iterated local search for the whole budget. Ties go to the lowest point index and the
@@ -88,13 +88,17 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
   if (!IMPROVE_MODES.includes(improve)) throw new RangeError(`unknown improve mode '${String(improve)}'`);
   const budget = budgetOf({ timeLimitMs: opts.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS, clock });
 
+  // One set of neighbour lists serves repeated nearest neighbor and the improvement.
+  const lazy: { lists?: ReturnType<typeof neighborLists> } = {};
+  const lists = (): ReturnType<typeof neighborLists> => (lazy.lists ??= neighborLists(m, DEFAULT_NEIGHBORS));
+
   let order: number[];
   switch (method) {
     case 'nearest-neighbor':
       order = nearestNeighbor(m, depot);
       break;
     case 'repeated-nearest-neighbor':
-      order = repeatedNearestNeighbor(m, depot, budget);
+      order = repeatedNearestNeighbor(m, depot, budget, lists());
       break;
     case 'sorted-edges':
       order = sortedEdges(m, depot);
@@ -108,15 +112,15 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
       break;
     }
     case 'best': {
-      const a = repeatedNearestNeighbor(m, depot, budget);
+      const a = repeatedNearestNeighbor(m, depot, budget, lists());
       const b = sortedEdges(m, depot);
       order = circuitLength(m, b) < circuitLength(m, a) ? b : a;
       break;
     }
   }
 
-  if (improve === 'local') order = improveLocal(m, order, budget);
-  else if (improve === 'deep') order = improveDeep(m, order, budget, createRng(opts.seed ?? 1));
+  if (improve === 'local') order = improveLocal(m, order, budget, undefined, lists());
+  else if (improve === 'deep') order = improveDeep(m, order, budget, createRng(opts.seed ?? 1), lists());
   canonicalize(order, depot);
   return { method, improve, order, length: circuitLength(m, order), ms: clock() - t0 };
 }

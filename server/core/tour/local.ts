@@ -330,9 +330,10 @@ export function improveLocal(
   order: ArrayLike<number>,
   budget?: Budget,
   moves: LocalMoves = BOTH,
+  neighbors?: { k: number; list: Int32Array },
 ): number[] {
   if (m.n < 4) return Array.from(order);
-  const ls = createLocalSearch(m, moves);
+  const ls = createLocalSearch(m, moves, neighbors);
   ls.load(order);
   ls.run(budget, true);
   return Array.from(ls.tour);

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { circuitLength, matrixFromRows } from '../../../server/core/matrix';
 import { nearestNeighbor, repeatedNearestNeighbor, sortedEdges } from '../../../server/core/tour/construct';
+import { neighborLists } from '../../../server/core/tour/local';
 import { isCircuit, randomEuclidean, randomIntegerMatrix } from '../../helpers/instances';
 import { loadTsp, TSPLIB_OPTIMA } from '../../helpers/tsplib';
 
@@ -14,6 +15,17 @@ describe('constructions on TSPLIB', () => {
     for (const order of [nearestNeighbor(matrix, 0), repeatedNearestNeighbor(matrix, 0), sortedEdges(matrix, 0)]) {
       expect(isCircuit(order, matrix.n, 0)).toBe(true);
       expect(circuitLength(matrix, order)).toBeGreaterThanOrEqual(opt);
+    }
+  });
+});
+
+describe('nearest neighbor with neighbour lists', () => {
+  it('walks exactly the same order as the full row scan, ties included', () => {
+    // Integer entries in 1..5 make ties everywhere: the lists must keep the lowest-index rule.
+    for (let seed = 1; seed <= 20; seed++) {
+      const m = seed % 2 ? randomIntegerMatrix(40, seed, 5) : randomEuclidean(40, seed);
+      const lists = neighborLists(m, 1 + (seed % 10));
+      for (const start of [0, 13, 39]) expect(nearestNeighbor(m, start, lists)).toEqual(nearestNeighbor(m, start));
     }
   });
 });
