@@ -1,0 +1,110 @@
+/**
+ * Files → engine inputs for `aislewright waves plan`: the floor-plan workbook through the floor-plan
+ * import's checker, the SKU master and orders through the shared safe table reader and row checks,
+ * then each order line slotted to its bin's access point. Nothing here parses a spreadsheet itself.
+ */
+import type { RowIssue } from '../../shared/imports';
+import type { Order, Unplaced } from '../core/batch/types';
+import type { PolicyComparison } from '../core/batch/plan-wave';
+import { policyComparisonOf } from '../core/batch/plan-wave';
+import { buildDistanceIndex, pairDistance } from '../core/plan/distances';
+import type { PlanGeometry } from '../core/plan/types';
+import type { WalkGraph } from '../core/plan/walk-graph';
+import { buildWalkGraph } from '../core/plan/walk-graph';
+import { isNotApplicable } from '../core/policy/index';
+import { checkFloorPlanFile } from '../floor-plans/import/index';
+import { readTableFile } from '../orders/orders.files';
+import { validateOrderRows, validateSkuRows } from '../orders/orders.validate';
+
+export interface NamedFile {
+  bytes: Uint8Array;
+  /** File name; its extension tells xlsx from CSV. */
+  name: string;
+}
+
+export interface WaveInputFiles {
+  plan: NamedFile;
+  skus: NamedFile;
+  orders: NamedFile;
+}
+
+export interface WaveInputs {
+  plan: PlanGeometry;
+  graph: WalkGraph;
+  depotNode: number;
+  distance: (a: number, b: number) => number;
+  /** Orders whose every line is slotted on the plan, in file order. */
+  orders: Order[];
+  /** Orders left out before batching (a SKU's bin not on the plan), with the reason. */
+  unplaced: Unplaced[];
+  /** The S-shape comparison, or why the plan has none. */
+  policy: PolicyComparison | { reason: string };
+}
+
+export type WaveInputsResult = ({ ok: true } & WaveInputs) | { ok: false; file: 'plan' | 'skus' | 'orders'; errors: RowIssue[] };
+
+/**
+ * Reads and checks the three files, stopping at the first file with problems (its whole error table
+ * is returned). `depot` names the depot trips start from (default: the plan's first).
+ */
+export async function readWaveInputs(files: WaveInputFiles, options: { depot?: string } = {}): Promise<WaveInputsResult> {
+  const checked = await checkFloorPlanFile(files.plan.bytes, files.plan.name);
+  if (!checked.ok || !checked.plan) return { ok: false, file: 'plan', errors: checked.errors };
+  const plan = checked.plan as PlanGeometry;
+
+  const skuRead = await readTableFile(files.skus.bytes, files.skus.name, 'skus');
+  if ('issues' in skuRead) return { ok: false, file: 'skus', errors: skuRead.issues };
+  const skuCheck = validateSkuRows('skus', skuRead.rows);
+  if (skuCheck.errors.length > 0) return { ok: false, file: 'skus', errors: skuCheck.errors };
+  const skus = new Map(skuCheck.skus.map((s) => [s.sku, s]));
+
+  const orderRead = await readTableFile(files.orders.bytes, files.orders.name, 'orders');
+  if ('issues' in orderRead) return { ok: false, file: 'orders', errors: orderRead.issues };
+  const orderCheck = validateOrderRows('orders', orderRead.rows, (sku) => skus.has(sku));
+  if (orderCheck.errors.length > 0) return { ok: false, file: 'orders', errors: orderCheck.errors };
+
+  const depotIndex = options.depot === undefined ? 0 : plan.depots.findIndex((d) => d.code === options.depot);
+  if (depotIndex < 0 || !plan.depots[depotIndex]) {
+    const message = options.depot === undefined ? 'the plan has no depot' : `the plan has no depot ${options.depot}`;
+    return { ok: false, file: 'plan', errors: [{ sheet: 'depots', row: null, column: 'depot', value: options.depot ?? null, message }] };
+  }
+  const graph = buildWalkGraph(plan);
+  const index = buildDistanceIndex(graph);
+  const binIndex = new Map(plan.bins.map((b, i) => [b.code, i]));
+
+  const orders: Order[] = [];
+  const unplaced: Unplaced[] = [];
+  for (const rec of orderCheck.orders) {
+    let problem: string | null = null;
+    const lines = rec.lines.map((l) => {
+      const sku = skus.get(l.sku)!;
+      const b = binIndex.get(sku.bin);
+      const node = b === undefined ? -1 : graph.binNode[b]!;
+      if (b === undefined) problem ??= `SKU ${l.sku} is slotted in bin ${sku.bin}, which is not on the floor plan`;
+      else if (node < 0) problem ??= `bin ${sku.bin} of SKU ${l.sku} has no access point on its aisle`;
+      return { sku: l.sku, qty: l.qty, node, bin: sku.bin, unitKg: sku.unitWeightKg, unitLitres: sku.unitVolumeL };
+    });
+    if (problem) {
+      unplaced.push({ order: rec.ref, code: 'bad_line', reason: problem });
+      continue;
+    }
+    orders.push({
+      ref: rec.ref,
+      lines,
+      ...(rec.due === null ? {} : { due: Date.parse(rec.due) }),
+      ...(rec.priority === null ? {} : { priority: rec.priority }),
+    });
+  }
+
+  const comparison = policyComparisonOf(plan, graph, plan.depots[depotIndex]!.code);
+  return {
+    ok: true,
+    plan,
+    graph,
+    depotNode: graph.depotNode[depotIndex]!,
+    distance: (a, b) => pairDistance(index, a, b),
+    orders,
+    unplaced,
+    policy: isNotApplicable(comparison) ? { reason: comparison.reason } : comparison,
+  };
+}
