@@ -6,6 +6,7 @@ import type { ImproveMode, TourMethod } from '../../../server/core/tour/index';
 import { heldKarp, heldKarpBound, solveTour } from '../../../server/core/tour/index';
 import { steppingClock } from '../../helpers/clock';
 import { isCircuit } from '../../helpers/instances';
+import { bestOrOptGain, bestTwoOptGain } from '../../helpers/moves';
 
 /** Symmetric, non-negative, zero-diagonal matrices; integer or fractional; no triangle inequality. */
 const matrixArb = (maxN: number): fc.Arbitrary<DistanceMatrix> =>
@@ -64,6 +65,20 @@ describe('solveTour properties (fast-check)', () => {
         expect(heldKarpBound(m, { timeLimitMs: 20 }).lowerBound).toBeLessThanOrEqual(opt + tol);
       }),
       { numRuns: 150, seed: 20262 },
+    );
+  });
+
+  it('local leaves no improving 2-opt or Or-opt move on any matrix, metric or not', () => {
+    // Definitions of 2-opt (Croes 1958) and Or-opt (Or 1976), checked by exhaustive enumeration.
+    fc.assert(
+      fc.property(matrixArb(14), fc.constantFrom<TourMethod>('nearest-neighbor', 'sorted-edges', 'best'), (m, method) => {
+        const r = solveTour(m, { method, improve: 'local' });
+        const maxD = m.d.reduce((a, b) => Math.max(a, b), 0);
+        const tol = 2e-9 * Math.max(1, maxD);
+        expect(bestTwoOptGain(m, r.order)).toBeLessThanOrEqual(tol);
+        expect(bestOrOptGain(m, r.order)).toBeLessThanOrEqual(tol);
+      }),
+      { numRuns: 200, seed: 20263 },
     );
   });
 });
