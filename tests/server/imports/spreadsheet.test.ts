@@ -105,6 +105,14 @@ describe('readSpreadsheet', () => {
     expect(readNumber(rows[2]!.cells.qty!, 'qty')).toEqual({ ok: false, message: 'qty must be a number; use a point as the decimal mark' });
   });
 
+  it('refuses a truncated workbook and a ZIP archive that holds no workbook', () => {
+    const whole = normal();
+    expect(read(whole.subarray(0, whole.length >> 1)).issues[0]!.message).toBe('the file is not a complete ZIP archive (no end of central directory)');
+    const r = read(zipOf([{ name: 'readme.txt', data: 'hello' }]));
+    expect(r.ok).toBe(false);
+    expect(r.issues[0]!.message).toMatch(/^the file could not be read as a spreadsheet/);
+  });
+
   it('refuses a CSV that is not UTF-8', () => {
     expect(read(Uint8Array.of(0x63, 0x6f, 0x64, 0x65, 0x0a, 0xff, 0xfe, 0x41), 'x.csv').issues[0]!.message).toMatch(/not UTF-8/);
   });
@@ -143,8 +151,11 @@ describe('readSpreadsheetFile (fresh worker)', () => {
   });
 
   it('stops a worker that outgrows its heap cap with a file issue', async () => {
+    const capped = resolveLimits({ workerHeapMb: 16 });
+    // A small file fits in the cap, so what stops the big one is its own size.
+    expect((await readSpreadsheetFile(normal(), 'f.xlsx', spec, capped)).ok).toBe(true);
     const rows = [['code', 'qty', 'note'], ...Array.from({ length: 60_000 }, (_, i) => [`CODE-${i}`, i, `note ${i} `.repeat(8)])];
-    const r = await readSpreadsheetFile(xlsxOf({ items: rows }), 'big.xlsx', spec, resolveLimits({ workerHeapMb: 16 }));
+    const r = await readSpreadsheetFile(xlsxOf({ items: rows }), 'big.xlsx', spec, capped);
     expect(r.ok).toBe(false);
     expect(r.issues[0]!.message).toMatch(/needed more than 16 MiB of memory/);
   });
