@@ -50,7 +50,7 @@ test('a picker who opens an admin page sees the not-allowed page, not the page o
   await page.goto('/admin/users');
   await expect(page).toHaveURL('/admin/users');
   await expect(page.getByRole('heading', { name: "You don't have access to this page" })).toBeVisible();
-  await expect(page.getByText('Robin Picker')).toBeVisible();
+  await expect(page.getByText('Robin Picker (Picker, badge P-1002)')).toBeVisible();
   await expect(page.getByRole('heading', { name: 'Users', exact: true })).toHaveCount(0);
   await page.getByRole('button', { name: 'Go to my home page' }).click();
   await expect(page).toHaveURL('/pick');
