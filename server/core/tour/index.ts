@@ -17,6 +17,7 @@ import { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 import { DEFAULT_NEIGHBORS, improveLocal, neighborLists } from './local';
 
 export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
+export type { TourResult } from './exact';
 export { TimeLimitError } from './budget';
 
 export const TOUR_METHODS = [
@@ -168,6 +169,5 @@ export function heldKarpBound(m: DistanceMatrix, opts: HeldKarpBoundOptions = {}
   return { lowerBound: r.lowerBound, upperBound, iterations: r.iterations, tight: r.tight, ms: clock() - t0 };
 }
 
-/** Re-exported so callers can tell "no answer in time" apart from bad input. */
-export type { TourResult } from './exact';
+/** True for the error `exact` throws when no answer exists within the budget (not bad input). */
 export const isTimeLimitError = (e: unknown): e is TimeLimitError => e instanceof TimeLimitError;

@@ -19,6 +19,10 @@ describe('TSPLIB reader', () => {
     for (const [name, n] of Object.entries(dims)) expect(loadTsp(name).matrix.n).toBe(n);
   });
 
+  it('names an instance by its file, not its NAME header (ulysses16.tsp says "ulysses16.tsp")', () => {
+    expect(loadTsp('ulysses16').name).toBe('ulysses16');
+  });
+
   it('accepts several cities per line and a tour ending in EOF without -1', () => {
     expect(parseTour('NAME : x\nTOUR_SECTION\n1 3\n2 4\nEOF\n')).toEqual([0, 2, 1, 3]);
   });
