@@ -119,43 +119,40 @@ export function drawStaticScene(
     const found = querySlots(index, view, scratch);
     scratch = found.out;
     const sr = index.slotRect;
-    const edges = index.typicalSlotLength * vp.scale >= 8;
+    // Outlines cost more to rasterise than the fills; the gap between bays separates them until
+    // bays are large on screen, and then few are in view.
+    const edges = index.typicalSlotLength * vp.scale >= 40;
+    // fillRect per rectangle: the rasteriser's fast path, much cheaper than one path of thousands of rects.
     if (detail === 'slots') {
+      ctx.fillStyle = p.binFill;
+      for (let k = 0; k < found.count; k++) {
+        const s = found.out[k] as number;
+        ctx.fillRect(...screenRect(vp, { minX: sr[s * 4] as number, minY: sr[s * 4 + 1] as number, maxX: sr[s * 4 + 2] as number, maxY: sr[s * 4 + 3] as number }));
+        binsDrawn += index.slotBinCount[s] as number;
+      }
+    } else {
+      // Neighbouring levels alternate fill, so bands read apart without a stroke per band;
+      // two passes so the fill style is set twice, not once per band.
+      for (const parity of [0, 1]) {
+        ctx.fillStyle = parity === 0 ? p.binFill : p.binFillAlt;
+        for (let k = 0; k < found.count; k++) {
+          const s = found.out[k] as number;
+          const first = index.slotFirstBin[s] as number;
+          const count = index.slotBinCount[s] as number;
+          for (let b = first + parity; b < first + count; b += 2) ctx.fillRect(...screenRect(vp, binRect(index, b)));
+          if (parity === 0) binsDrawn += count;
+        }
+      }
+    }
+    if (edges) {
       ctx.beginPath();
       for (let k = 0; k < found.count; k++) {
         const s = found.out[k] as number;
         ctx.rect(...screenRect(vp, { minX: sr[s * 4] as number, minY: sr[s * 4 + 1] as number, maxX: sr[s * 4 + 2] as number, maxY: sr[s * 4 + 3] as number }));
-        binsDrawn += index.slotBinCount[s] as number;
       }
-      ctx.fillStyle = p.binFill;
-      ctx.fill();
-      if (edges) {
-        ctx.strokeStyle = p.rackEdge;
-        ctx.lineWidth = 1;
-        ctx.stroke();
-      }
-    } else {
-      // Two paths so neighbouring levels alternate fill; the edge stroke marks each band too.
-      const even = new Path2D();
-      const odd = new Path2D();
-      for (let k = 0; k < found.count; k++) {
-        const s = found.out[k] as number;
-        const first = index.slotFirstBin[s] as number;
-        const count = index.slotBinCount[s] as number;
-        for (let b = first; b < first + count; b++) {
-          const [x, y, w, h] = screenRect(vp, binRect(index, b));
-          ((b - first) % 2 === 0 ? even : odd).rect(x, y, w, h);
-        }
-        binsDrawn += count;
-      }
-      ctx.fillStyle = p.binFill;
-      ctx.fill(even);
-      ctx.fillStyle = p.binFillAlt;
-      ctx.fill(odd);
       ctx.strokeStyle = p.rackEdge;
       ctx.lineWidth = 1;
-      ctx.stroke(even);
-      ctx.stroke(odd);
+      ctx.stroke();
     }
   }
 
