@@ -1,0 +1,180 @@
+/** Rows of the waves tables as picking reads them, and the trip as the tablet sees it. */
+import type { Knex } from 'knex';
+import type { PickStop, PickTrip } from '../../shared/picking';
+import { circuitPolyline, pairDistance } from '../core/plan/distances';
+import { loadPlanIndex, type LoadedPlan } from '../floor-plans/plan-index';
+
+export type Q = Knex | Knex.Transaction;
+
+export interface DbTripRow {
+  id: number;
+  wave_id: number;
+  site_id: number;
+  n: number;
+  status: 'released' | 'assigned' | 'picking' | 'done' | 'cancelled';
+  picker_id: number | null;
+  planned_metres: number;
+  lower_bound_metres: number;
+  s_shape_metres: number | null;
+  est_seconds: number;
+  totes: number;
+  kg: number;
+  litres: number;
+  depot_node: number;
+  due: string | null;
+  assigned_at: string | null;
+  started_at: string | null;
+  finished_at: string | null;
+  cancelled_at: string | null;
+  walked_metres: number | null;
+}
+
+export interface DbWaveRow {
+  id: number;
+  site_id: number;
+  plan_id: number;
+  name: string;
+  status: 'released' | 'picking' | 'completed' | 'cancelled';
+  depot_idx: number;
+  created_at: string;
+  completed_at: string | null;
+  report_mailed_at: string | null;
+}
+
+export interface DbStopRow {
+  id: number;
+  trip_id: number;
+  n: number;
+  node: number;
+  x_m: number;
+  y_m: number;
+  bins: string;
+  status: 'open' | 'done';
+  done_at: string | null;
+  done_seq: number | null;
+  skipped_at: string | null;
+}
+
+export interface DbLineRow {
+  id: number;
+  trip_id: number;
+  stop_id: number;
+  order_id: number;
+  order_line_id: number;
+  order_ref: string;
+  sku: string;
+  description: string;
+  bin: string;
+  qty: number;
+  tote: number;
+  status: 'open' | 'picked' | 'short' | 'cancelled';
+  picked_qty: number | null;
+  short_reason: string | null;
+  confirmed_by: number | null;
+  confirmed_at: string | null;
+}
+
+export const ACTIVE_TRIP = ['assigned', 'picking'] as const;
+
+export const getTripRow = (db: Q, id: number): Promise<DbTripRow | undefined> => db<DbTripRow>('trips').where({ id }).first();
+export const getWaveRow = (db: Q, id: number): Promise<DbWaveRow | undefined> => db<DbWaveRow>('waves').where({ id }).first();
+export const stopsOf = (db: Q, tripId: number): Promise<DbStopRow[]> => db<DbStopRow>('stops').where({ trip_id: tripId }).orderBy([{ column: 'n' }, { column: 'id' }]);
+export const linesOf = (db: Q, tripId: number): Promise<DbLineRow[]> => db<DbLineRow>('pick_lines').where({ trip_id: tripId }).orderBy('id');
+
+/** Stop bins are stored as a JSON array, or a comma list in older rows. */
+export function binsOf(raw: string): string[] {
+  try {
+    const v: unknown = JSON.parse(raw);
+    if (Array.isArray(v)) return v.map(String);
+  } catch {
+    // plain text below
+  }
+  return raw.split(',').map((s) => s.trim()).filter(Boolean);
+}
+
+/** Open stops in walking order, done stops in the order they were finished. */
+export function splitStops(stops: DbStopRow[]): { done: DbStopRow[]; open: DbStopRow[] } {
+  const done = stops.filter((s) => s.status === 'done').sort((a, b) => (a.done_seq ?? a.n) - (b.done_seq ?? b.n) || a.id - b.id);
+  const open = stops.filter((s) => s.status !== 'done').sort((a, b) => a.n - b.n || a.id - b.id);
+  return { done, open };
+}
+
+/** The wave's depot on its plan (trips store the wave's depot index, not always a node). */
+export const depotNodeOf = (plan: LoadedPlan, wave: Pick<DbWaveRow, 'depot_idx'>): number => plan.depotNodes[wave.depot_idx] ?? plan.depotNodes[0]!;
+
+export const distanceOf = (plan: LoadedPlan) => (a: number, b: number) => pairDistance(plan.index, a, b);
+
+/** The trip as the picker's tablet shows it (one row read per table, the plan index from cache). */
+export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | null> {
+  const trip = await getTripRow(db, tripId);
+  if (!trip) return null;
+  const wave = (await getWaveRow(db, trip.wave_id))!;
+  const site = (await db('sites').where({ id: trip.site_id }).first<{ name: string; confirm_scan: 'bin' | 'sku' }>('name', 'confirm_scan'))!;
+  const picker = trip.picker_id ? await db('users').where({ id: trip.picker_id }).first<{ name: string }>('name') : undefined;
+  const orders: { ref: string }[] = await db('trip_orders').join('orders', 'orders.id', 'trip_orders.order_id').where('trip_orders.trip_id', tripId).orderBy('orders.ref').select('orders.ref');
+  const [stops, lines] = await Promise.all([stopsOf(db, tripId), linesOf(db, tripId)]);
+  const plan = await loadPlanIndex(db, wave.plan_id);
+  const depotNode = depotNodeOf(plan, wave);
+
+  const byStop = new Map<number, DbLineRow[]>();
+  for (const l of lines) {
+    const list = byStop.get(l.stop_id) ?? [];
+    list.push(l);
+    byStop.set(l.stop_id, list);
+  }
+  const stopList: PickStop[] = stops.map((s) => ({
+    id: s.id,
+    n: s.n,
+    x: s.x_m,
+    y: s.y_m,
+    bins: binsOf(s.bins),
+    status: s.status === 'done' ? 'done' : 'open',
+    skipped: s.skipped_at !== null && s.status !== 'done',
+    lines: (byStop.get(s.id) ?? []).map((l) => ({
+      id: l.id,
+      orderRef: l.order_ref,
+      sku: l.sku,
+      description: l.description,
+      bin: l.bin,
+      qty: l.qty,
+      tote: l.tote,
+      status: l.status,
+      pickedQty: l.picked_qty,
+      shortReason: l.short_reason,
+    })),
+  }));
+  const current = stopList.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
+  const poly = circuitPolyline(plan.graph, [depotNode, ...stops.map((s) => s.node)], true, plan.index);
+  const path: [number, number][] = [];
+  if (poly) for (let i = 0; i + 1 < poly.length; i += 2) path.push([poly[i]!, poly[i + 1]!]);
+  const depot = plan.geometry.depots[wave.depot_idx];
+  return {
+    id: trip.id,
+    n: trip.n,
+    status: trip.status,
+    pickerId: trip.picker_id,
+    pickerName: picker?.name ?? null,
+    orders: orders.map((o) => o.ref),
+    stops: stops.length,
+    lines: lines.length,
+    plannedMetres: trip.planned_metres,
+    lowerBoundMetres: trip.lower_bound_metres,
+    estMinutes: trip.est_seconds / 60,
+    totes: trip.totes,
+    kg: trip.kg,
+    litres: trip.litres,
+    waveId: wave.id,
+    waveName: wave.name,
+    planId: wave.plan_id,
+    siteName: site.name,
+    siteId: trip.site_id,
+    stopList,
+    path,
+    depot: [plan.graph.x[depotNode]!, plan.graph.y[depotNode]!],
+    depotCode: depot?.code ?? 'Depot',
+    confirmScan: site.confirm_scan,
+    startedAt: trip.started_at,
+    finishedAt: trip.finished_at,
+    currentStopId: current?.id ?? null,
+  };
+}

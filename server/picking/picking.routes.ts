@@ -1,0 +1,210 @@
+/**
+ * Picking routes (the picker's tablet) and the live board (supervisors). A picker reads and writes
+ * only trips assigned to them: another picker's trip is 403 on every picking route. Every picker
+ * write carries an Idempotency-Key header (retries and the tablet's offline queue reuse it).
+ */
+import type { Request } from 'express';
+import type { Role } from '../../shared/common';
+import { Ok } from '../../shared/common';
+import {
+  AssignBody,
+  Board,
+  CancelResult,
+  CancelTripBody,
+  CloseWaveBody,
+  CloseWaveResult,
+  ConfirmBody,
+  CurrentTrip,
+  DEVICE_HEADER,
+  FinishBody,
+  IDEMPOTENCY_HEADER,
+  PickAnswer,
+  PickTrip,
+  ShortBody,
+  SkipBody,
+  TripPlan,
+  TripResult,
+} from '../../shared/picking';
+import { loadPlanIndex } from '../floor-plans/plan-index';
+import { notFound } from '../http/errors';
+import { defineRoute, type RouteContext } from '../http/route';
+import type { SessionUser } from '../http/session';
+import * as board from './board.service';
+import { onSiteChange } from './events';
+import { getWaveRow } from './picking.repository';
+import * as picking from './picking.service';
+import { buildWaveReport } from './report';
+
+const PICKER: readonly Role[] = ['picker'];
+const SUPERVISE: readonly Role[] = ['supervisor', 'admin'];
+const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+/** SSE comment line this often, so proxies and the browser keep an idle stream open. */
+const HEARTBEAT_MS = 20_000;
+
+function idOf(params: Record<string, string>, name: string, what: string): number {
+  const v = Number(params[name]);
+  if (!Number.isInteger(v) || v <= 0) throw notFound(what);
+  return v;
+}
+
+function actorOf(user: SessionUser | null, req: Request): picking.Actor {
+  const u = user!;
+  const device = (req.get(DEVICE_HEADER) ?? req.get('user-agent') ?? '').slice(0, 200) || null;
+  return { id: u.id, name: u.name, role: u.role, siteIds: u.siteIds, device };
+}
+
+function keyed<B, Q>(ctx: RouteContext<B, Q>): picking.KeyedRequest {
+  return { key: ctx.req.get(IDEMPOTENCY_HEADER) || undefined, method: ctx.req.method, path: ctx.req.path, body: ctx.body };
+}
+
+const trip = '/api/picking/trips/:tripId';
+const siteBoard = '/api/sites/:siteId/board';
+
+export const pickingRoutes = [
+  defineRoute({
+    method: 'get', path: '/api/sites/:siteId/picking/current', access: PICKER, summary: "The picker's trip at this site (null when none) and how many released trips wait",
+    response: CurrentTrip,
+    handler: ({ deps, user, req, siteId }) => picking.currentTrip(deps.db, actorOf(user, req), siteId!),
+  }),
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/picking/next', access: PICKER, summary: 'Take the assigned trip, else the next released one (oldest due first); two pickers never get the same trip',
+    response: CurrentTrip,
+    handler: ({ deps, user, req, siteId }) => picking.takeNextTrip(deps.db, actorOf(user, req), siteId!),
+  }),
+  defineRoute({
+    method: 'get', path: trip, access: PICKER, summary: 'Your trip: numbered stops, lines, route (403 for another picker\'s trip)',
+    response: PickTrip,
+    handler: ({ deps, user, req, params }) => picking.getPickTrip(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip')),
+  }),
+  defineRoute({
+    method: 'get', path: `${trip}/plan`, access: PICKER, summary: "Geometry of your trip's floor plan, for the trip map",
+    response: TripPlan,
+    handler: async ({ deps, user, req, params }) => {
+      const t = await picking.readableTrip(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip'));
+      const wave = (await getWaveRow(deps.db, t.wave_id))!;
+      const plan = await loadPlanIndex(deps.db, wave.plan_id);
+      return { geometry: plan.geometry, closures: plan.closures };
+    },
+  }),
+  defineRoute({
+    method: 'post', path: `${trip}/start`, access: PICKER, summary: 'Start the trip after the safety caution (a second call changes nothing)',
+    response: PickTrip,
+    handler: ({ deps, user, req, params }) => picking.startTrip(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip')),
+  }),
+  defineRoute({
+    method: 'post', path: `${trip}/lines/:lineId/confirm`, access: PICKER, body: ConfirmBody,
+    summary: 'Confirm a line (scan or tap). Idempotency-Key required: same key and body → stored answer; other body → 422; line done by someone → 409 with who and when; wrong scan → 422 wrong_scan',
+    response: PickAnswer,
+    handler: (ctx) => picking.confirmLine(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'lineId', 'Pick line'), ctx.body, keyed(ctx)),
+  }),
+  defineRoute({
+    method: 'post', path: `${trip}/lines/:lineId/short`, access: PICKER, body: ShortBody,
+    summary: 'Report a line short: quantity found and reason; the supervisor is alerted. Idempotency-Key required',
+    response: PickAnswer,
+    handler: (ctx) => picking.shortLine(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'lineId', 'Pick line'), ctx.body, keyed(ctx)),
+  }),
+  defineRoute({
+    method: 'post', path: `${trip}/stops/:stopId/skip`, access: PICKER, body: SkipBody,
+    summary: 'Skip a stop for now: it moves to the end and the other open stops are re-sequenced. Idempotency-Key required',
+    response: PickAnswer,
+    handler: (ctx) => picking.skipStop(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'stopId', 'Stop'), ctx.body, keyed(ctx)),
+  }),
+  defineRoute({
+    method: 'post', path: `${trip}/finish`, access: PICKER, body: FinishBody,
+    summary: 'Return to depot: the trip is done when no line is open (409 lines_open otherwise). Idempotency-Key required',
+    response: TripResult,
+    handler: (ctx) => picking.finishTrip(ctx.deps.db, ctx.deps.mailer, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), keyed(ctx)),
+  }),
+  defineRoute({
+    method: 'get', path: `${trip}/result`, access: PICKER, summary: 'Trip summary: lines, shorts, metres walked and planned, minutes',
+    response: TripResult,
+    handler: ({ deps, user, req, params }) => picking.getTripResult(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip')),
+  }),
+
+  defineRoute({
+    method: 'get', path: siteBoard, access: SUPERVISE, summary: 'Live board snapshot: waves in progress, trips, forecasts, shorts needing attention',
+    response: Board,
+    handler: ({ deps, siteId }) => board.boardSnapshot(deps.db, siteId!),
+  }),
+  defineRoute({
+    method: 'get', path: `${siteBoard}/events`, access: SUPERVISE, summary: 'Live board as server-sent events: `board` with the whole snapshot on every change',
+    handler: async ({ req, res, deps, siteId }) => {
+      const site = siteId!;
+      res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
+      let closed = false;
+      let sending = false;
+      let again = false;
+      const send = async () => {
+        if (closed) return;
+        if (sending) {
+          again = true;
+          return;
+        }
+        sending = true;
+        try {
+          const snap = await board.boardSnapshot(deps.db, site);
+          if (!closed) res.write(`event: board\ndata: ${JSON.stringify(snap)}\n\n`);
+        } catch (err) {
+          deps.logger.warn({ err }, 'board snapshot failed');
+        } finally {
+          sending = false;
+          if (again) {
+            again = false;
+            void send();
+          }
+        }
+      };
+      // The browser's EventSource reconnects by itself; this says after how long.
+      res.write('retry: 3000\n\n');
+      const stop = onSiteChange(site, () => void send());
+      const beat = setInterval(() => res.write(': ping\n\n'), HEARTBEAT_MS);
+      req.on('close', () => {
+        closed = true;
+        clearInterval(beat);
+        stop();
+      });
+      await send();
+      return undefined;
+    },
+  }),
+  defineRoute({
+    method: 'post', path: `${siteBoard}/trips/:tripId/assign`, access: SUPERVISE, body: AssignBody, summary: 'Assign or reassign a trip to a picker',
+    response: Ok,
+    handler: async ({ deps, user, req, siteId, params, body }) => {
+      await board.assignTrip(deps.db, actorOf(user, req), siteId!, idOf(params, 'tripId', 'Trip'), body.pickerId);
+      return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'post', path: `${siteBoard}/trips/:tripId/cancel`, access: SUPERVISE, body: CancelTripBody, summary: 'Cancel the rest of a trip: its open lines go back to open orders',
+    response: CancelResult,
+    handler: ({ deps, user, req, siteId, params, body }) => board.cancelTrip(deps.db, deps.mailer, actorOf(user, req), siteId!, idOf(params, 'tripId', 'Trip'), body.reason ?? null),
+  }),
+  defineRoute({
+    method: 'post', path: `${siteBoard}/waves/:waveId/close`, access: SUPERVISE, body: CloseWaveBody, summary: 'Close a wave: trips not done are cancelled (open lines back to open orders); the report is mailed',
+    response: CloseWaveResult,
+    handler: ({ deps, user, req, siteId, params, body }) => board.closeWave(deps.db, deps.mailer, actorOf(user, req), siteId!, idOf(params, 'waveId', 'Wave'), body.reason ?? null),
+  }),
+  defineRoute({
+    method: 'post', path: `${siteBoard}/shorts/:shortId/handled`, access: SUPERVISE, summary: 'Mark a short as handled (it leaves the attention list)',
+    response: Ok,
+    handler: async ({ deps, user, req, siteId, params }) => {
+      await board.handleShort(deps.db, actorOf(user, req), siteId!, idOf(params, 'shortId', 'Short'));
+      return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'get', path: `${siteBoard}/waves/:waveId/report.xlsx`, access: SUPERVISE, summary: 'The wave report as xlsx (per trip planned and walked metres, lines, shorts, times)',
+    handler: async ({ deps, res, siteId, params }) => {
+      const waveId = idOf(params, 'waveId', 'Wave');
+      const wave = await getWaveRow(deps.db, waveId);
+      if (!wave || wave.site_id !== siteId) throw notFound('Wave');
+      const report = await buildWaveReport(deps.db, waveId);
+      res.setHeader('Content-Type', XLSX_TYPE);
+      res.setHeader('Content-Disposition', `attachment; filename="${report.filename}"`);
+      res.setHeader('Cache-Control', 'no-store');
+      res.send(report.xlsx);
+      return undefined;
+    },
+  }),
+];

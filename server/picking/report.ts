@@ -1,0 +1,112 @@
+/**
+ * The wave report: per trip the planned and walked metres (walked = depot → stops in the order
+ * actually finished → depot, on the plan's distance index), lines, shorts and times; one sheet of
+ * shorts. Built as xlsx for the mail attachment and the board's download.
+ */
+import * as XLSX from 'xlsx';
+import type { Knex } from 'knex';
+import { SHORT_REASON_LABELS, type ShortReason } from '../../shared/picking';
+import { getWaveRow, linesOf, stopsOf, type DbTripRow } from './picking.repository';
+import { walkedMetres } from './walked';
+
+export interface WaveReportRow {
+  trip: number;
+  picker: string | null;
+  status: string;
+  stops: number;
+  stopsDone: number;
+  lines: number;
+  picked: number;
+  shorts: number;
+  cancelled: number;
+  plannedMetres: number;
+  walkedMetres: number;
+  estMinutes: number;
+  minutes: number | null;
+  startedAt: string | null;
+  finishedAt: string | null;
+}
+
+export interface WaveReport {
+  filename: string;
+  xlsx: Buffer;
+  text: string;
+  rows: WaveReportRow[];
+  summary: { trips: number; lines: number; picked: number; shorts: number; cancelled: number; plannedMetres: number; walkedMetres: number };
+}
+
+const round1 = (v: number) => Math.round(v * 10) / 10;
+
+export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveReport> {
+  const wave = (await getWaveRow(db, waveId))!;
+  const trips: (DbTripRow & { picker_name: string | null })[] = await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').where('trips.wave_id', waveId).orderBy('trips.n').select('trips.*', 'users.name as picker_name');
+  const rows: WaveReportRow[] = [];
+  for (const t of trips) {
+    const lines = await linesOf(db, t.id);
+    const stops = await stopsOf(db, t.id);
+    const minutes = t.started_at && t.finished_at ? (Date.parse(t.finished_at) - Date.parse(t.started_at)) / 60_000 : null;
+    rows.push({
+      trip: t.n,
+      picker: t.picker_name,
+      status: t.status,
+      stops: stops.length,
+      stopsDone: stops.filter((s) => s.status === 'done').length,
+      lines: lines.length,
+      picked: lines.filter((l) => l.status === 'picked').length,
+      shorts: lines.filter((l) => l.status === 'short').length,
+      cancelled: lines.filter((l) => l.status === 'cancelled').length,
+      plannedMetres: t.planned_metres,
+      walkedMetres: t.walked_metres ?? (await walkedMetres(db, t)),
+      estMinutes: t.est_seconds / 60,
+      minutes,
+      startedAt: t.started_at,
+      finishedAt: t.finished_at,
+    });
+  }
+  const sum = (f: (r: WaveReportRow) => number) => rows.reduce((a, r) => a + f(r), 0);
+  const summary = {
+    trips: rows.length,
+    lines: sum((r) => r.lines),
+    picked: sum((r) => r.picked),
+    shorts: sum((r) => r.shorts),
+    cancelled: sum((r) => r.cancelled),
+    plannedMetres: sum((r) => r.plannedMetres),
+    walkedMetres: sum((r) => r.walkedMetres),
+  };
+
+  const shorts: { order_ref: string; sku: string; bin: string; qty_ordered: number; qty_found: number; reason: ShortReason; reported_at: string; name: string | null; n: number }[] = await db('pick_shorts')
+    .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
+    .join('trips', 'trips.id', 'pick_shorts.trip_id')
+    .leftJoin('users', 'users.id', 'pick_shorts.reported_by')
+    .where('pick_shorts.wave_id', waveId)
+    .orderBy('pick_shorts.reported_at')
+    .select('pick_lines.order_ref', 'pick_lines.sku', 'pick_lines.bin', 'pick_shorts.qty_ordered', 'pick_shorts.qty_found', 'pick_shorts.reason', 'pick_shorts.reported_at', 'users.name', 'trips.n');
+
+  const wb = XLSX.utils.book_new();
+  const tripSheet = XLSX.utils.aoa_to_sheet([
+    ['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', 'started (UTC)', 'finished (UTC)'],
+    ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, round1(r.plannedMetres), round1(r.walkedMetres), round1(r.estMinutes), r.minutes === null ? '' : round1(r.minutes), r.startedAt ?? '', r.finishedAt ?? '']),
+    ['total', '', '', sum((r) => r.stops), sum((r) => r.stopsDone), summary.lines, summary.picked, summary.shorts, summary.cancelled, round1(summary.plannedMetres), round1(summary.walkedMetres), round1(sum((r) => r.estMinutes)), '', '', ''],
+  ]);
+  XLSX.utils.book_append_sheet(wb, tripSheet, 'trips');
+  const shortSheet = XLSX.utils.aoa_to_sheet([
+    ['trip', 'order', 'sku', 'bin', 'ordered', 'found', 'reason', 'reported by', 'reported (UTC)'],
+    ...shorts.map((s) => [s.n, s.order_ref, s.sku, s.bin, s.qty_ordered, s.qty_found, SHORT_REASON_LABELS[s.reason] ?? s.reason, s.name ?? '', s.reported_at]),
+  ]);
+  XLSX.utils.book_append_sheet(wb, shortSheet, 'shorts');
+  const xlsx = XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
+
+  const safeName = wave.name.replace(/[^A-Za-z0-9-]+/g, '-').replace(/^-|-$/g, '') || `wave-${wave.id}`;
+  const text = [
+    `Wave ${wave.name} is ${wave.status === 'completed' ? 'complete' : wave.status}.`,
+    '',
+    `Trips: ${summary.trips}. Lines: ${summary.lines} (${summary.picked} picked, ${summary.shorts} short, ${summary.cancelled} cancelled).`,
+    `Walking: ${round1(summary.walkedMetres)} m walked against ${round1(summary.plannedMetres)} m planned.`,
+    '',
+    'Per trip:',
+    ...rows.map((r) => `  Trip ${r.trip}${r.picker ? ` (${r.picker})` : ''}: ${r.status}, ${r.lines} lines, ${r.shorts} short, planned ${round1(r.plannedMetres)} m, walked ${round1(r.walkedMetres)} m, ${r.minutes === null ? 'not timed' : `${round1(r.minutes)} min`}`),
+    '',
+    'The attached workbook has one row per trip and one per short.',
+  ].join('\n');
+  return { filename: `wave-report-${safeName}.xlsx`, xlsx, text, rows, summary };
+}

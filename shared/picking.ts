@@ -1,0 +1,168 @@
+/**
+ * Picking on the tablet and the supervisor's live board: what the tablet sends, what it gets back,
+ * and the board's snapshot (sent whole on every change over server-sent events).
+ */
+import { z } from 'zod';
+import { PlanGeometry } from './floor-plans';
+import { StopView, TripDetail } from './waves';
+
+/** Header carrying the tablet's key for one intended action (retries and queued resends reuse it). */
+export const IDEMPOTENCY_HEADER = 'idempotency-key';
+/** Header naming the tablet, recorded in the audit trail beside who and when. */
+export const DEVICE_HEADER = 'x-aislewright-device';
+
+export const IdempotencyKey = z.string().regex(/^[A-Za-z0-9_-]{8,64}$/, '8–64 letters, digits, - or _');
+
+export const SHORT_REASONS = ['empty_bin', 'damaged', 'cannot_reach'] as const;
+export const ShortReason = z.enum(SHORT_REASONS);
+export type ShortReason = z.infer<typeof ShortReason>;
+export const SHORT_REASON_LABELS: Record<ShortReason, string> = {
+  empty_bin: 'Empty bin',
+  damaged: 'Damaged',
+  cannot_reach: 'Cannot reach',
+};
+
+/** When the picker acted, by the tablet's clock: queued work done before a reassignment still counts. */
+const PickedAt = z.iso.datetime({ offset: true }).optional();
+
+export const ConfirmBody = z.strictObject({
+  via: z.enum(['scan', 'tap']),
+  /** What the scanner typed (bin or SKU barcode per the site's setting); null for a tap. */
+  scan: z.string().trim().max(128).nullable().default(null),
+  pickedAt: PickedAt,
+});
+export type ConfirmBody = z.infer<typeof ConfirmBody>;
+
+export const ShortBody = z.strictObject({
+  qtyFound: z.number().int().min(0).max(100000),
+  reason: ShortReason,
+  pickedAt: PickedAt,
+});
+export type ShortBody = z.infer<typeof ShortBody>;
+
+export const SkipBody = z.strictObject({ pickedAt: PickedAt });
+export type SkipBody = z.infer<typeof SkipBody>;
+export const FinishBody = z.strictObject({});
+
+export const PickStop = StopView.extend({ skipped: z.boolean() });
+export type PickStop = z.infer<typeof PickStop>;
+
+export const PickTrip = TripDetail.extend({
+  stopList: z.array(PickStop),
+  siteId: z.number().int(),
+  confirmScan: z.enum(['bin', 'sku']),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  /** First open stop in stop order; null when every line is done. */
+  currentStopId: z.number().int().nullable(),
+});
+export type PickTrip = z.infer<typeof PickTrip>;
+
+export const CurrentTrip = z.object({ trip: PickTrip.nullable(), releasedTrips: z.number().int() });
+export type CurrentTrip = z.infer<typeof CurrentTrip>;
+
+export const TripResult = z.object({
+  tripId: z.number().int(),
+  n: z.number().int(),
+  waveName: z.string(),
+  status: z.enum(['released', 'assigned', 'picking', 'done', 'cancelled']),
+  lines: z.number().int(),
+  picked: z.number().int(),
+  shorts: z.number().int(),
+  cancelled: z.number().int(),
+  stops: z.number().int(),
+  plannedMetres: z.number(),
+  /** Depot → stops in the order actually finished → depot, on the plan's distances. */
+  walkedMetres: z.number(),
+  estMinutes: z.number(),
+  /** Start to finish (or to now while the trip runs); null before the start. */
+  minutes: z.number().nullable(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+});
+export type TripResult = z.infer<typeof TripResult>;
+
+/** Answer to a confirmation, short or skip: the trip as it now stands. */
+export const PickAnswer = z.object({ trip: PickTrip });
+export type PickAnswer = z.infer<typeof PickAnswer>;
+
+/** 409 already_confirmed details: who confirmed the line, and when. */
+export const AlreadyConfirmed = z.object({ lineId: z.number().int(), by: z.string().nullable(), byId: z.number().int().nullable(), at: z.string().nullable(), status: z.string() });
+
+// ---- live board ----
+
+export const BoardTrip = z.object({
+  id: z.number().int(),
+  n: z.number().int(),
+  status: z.enum(['released', 'assigned', 'picking', 'done', 'cancelled']),
+  pickerId: z.number().int().nullable(),
+  pickerName: z.string().nullable(),
+  stops: z.number().int(),
+  stopsDone: z.number().int(),
+  lines: z.number().int(),
+  linesDone: z.number().int(),
+  shorts: z.number().int(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  elapsedMinutes: z.number().nullable(),
+  /** Walk from the last finished stop through the open ones and back, plus handling, at site speeds. */
+  remainingMinutes: z.number(),
+  estMinutes: z.number(),
+});
+export type BoardTrip = z.infer<typeof BoardTrip>;
+
+export const BoardWave = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  status: z.enum(['released', 'picking', 'completed', 'cancelled']),
+  trips: z.array(BoardTrip),
+  lines: z.number().int(),
+  linesDone: z.number().int(),
+  shorts: z.number().int(),
+  remainingMinutes: z.number(),
+  /** Pickers the forecast divides the remaining work among (at least 1). */
+  pickersCounted: z.number().int(),
+  /** now + remaining work ÷ pickers counted; null when nothing remains. */
+  forecastAt: z.string().nullable(),
+});
+export type BoardWave = z.infer<typeof BoardWave>;
+
+export const BoardShort = z.object({
+  id: z.number().int(),
+  waveId: z.number().int(),
+  waveName: z.string(),
+  tripId: z.number().int(),
+  tripN: z.number().int(),
+  orderRef: z.string(),
+  sku: z.string(),
+  description: z.string(),
+  bin: z.string(),
+  qtyOrdered: z.number().int(),
+  qtyFound: z.number().int(),
+  reason: ShortReason,
+  reportedBy: z.string().nullable(),
+  reportedAt: z.string(),
+});
+export type BoardShort = z.infer<typeof BoardShort>;
+
+export const Board = z.object({
+  siteId: z.number().int(),
+  at: z.string(),
+  waves: z.array(BoardWave),
+  shorts: z.array(BoardShort),
+  pickers: z.array(z.object({ id: z.number().int(), name: z.string(), tripId: z.number().int().nullable() })),
+});
+export type Board = z.infer<typeof Board>;
+
+export const AssignBody = z.strictObject({ pickerId: z.number().int().positive() });
+export const CancelTripBody = z.strictObject({ reason: z.string().trim().max(200).optional() });
+export const CloseWaveBody = z.strictObject({ reason: z.string().trim().max(200).optional() });
+export const CancelResult = z.object({ tripId: z.number().int(), linesCancelled: z.number().int(), ordersReopened: z.array(z.string()) });
+export const CloseWaveResult = z.object({ waveId: z.number().int(), tripsCancelled: z.number().int(), linesCancelled: z.number().int(), reportMailedTo: z.array(z.string()) });
+
+/** The trip's floor plan for the tablet's map: geometry and the closures its routes avoid. */
+export const TripPlan = z.object({
+  geometry: PlanGeometry,
+  closures: z.array(z.object({ kind: z.enum(['aisle', 'cross_aisle']), code: z.string(), from: z.number(), to: z.number() })),
+});
+export type TripPlan = z.infer<typeof TripPlan>;
