@@ -7,7 +7,8 @@ import type { ImportLimits } from '../../imports/limits';
 import { resolveLimits } from '../../imports/limits';
 import { preflight, runImportJob } from '../../imports/run';
 import type { PlanLayout } from './check';
-import type { FloorPlanJob } from './check-worker';
+import type { FloorPlanJob, PackedFloorPlanCheck } from './check-worker';
+import { unpackBins } from './pack';
 
 export type { PlanLayout } from './check';
 export { buildFloorPlanTemplate, floorPlanToWorkbook } from './template';
@@ -35,7 +36,8 @@ export async function checkFloorPlanFile(bytes: Uint8Array, filename: string, op
   const refused = preflight(bytes, filename, limits);
   if (refused) return { ok: false, errors: [refused], warnings: [], stats: NO_STATS, plan: null };
   const job: FloorPlanJob = { bytes, filename, limits, layout: options.layout ?? null };
-  const out = await runImportJob<FloorPlanCheck, FloorPlanCheckProgress>(new URL('./check-worker.ts', import.meta.url), job, limits, options.onProgress);
+  const out = await runImportJob<PackedFloorPlanCheck, FloorPlanCheckProgress>(new URL('./check-worker.ts', import.meta.url), job, limits, options.onProgress);
   if (!out.ok) return { ok: false, errors: [out.issue], warnings: [], stats: NO_STATS, plan: null };
-  return out.result;
+  const { plan } = out.result;
+  return { ...out.result, plan: plan ? { ...plan, bins: unpackBins(plan.bins) } : null };
 }

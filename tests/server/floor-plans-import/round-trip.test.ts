@@ -3,7 +3,11 @@ import type { FloorPlanCheckProgress } from '../../../shared/floor-plans';
 import { FloorPlanCheck } from '../../../shared/floor-plans';
 import { generateRectangularPlan } from '../../../server/core/plan/generate';
 import { buildWalkGraph } from '../../../server/core/plan/walk-graph';
+import { checkFloorPlanRead } from '../../../server/floor-plans/import/check';
 import { buildFloorPlanTemplate, checkFloorPlanFile, floorPlanToWorkbook } from '../../../server/floor-plans/import/index';
+import { FLOOR_PLAN_SPEC } from '../../../server/floor-plans/import/spec';
+import { DEFAULT_IMPORT_LIMITS } from '../../../server/imports/limits';
+import { readSpreadsheet } from '../../../server/imports/spreadsheet';
 
 describe('checkFloorPlanFile', () => {
   it('passes the template with ok = true, and its answer matches the shared schema', async () => {
@@ -11,6 +15,10 @@ describe('checkFloorPlanFile', () => {
     expect(r.ok).toBe(true);
     expect(r.errors).toEqual([]);
     expect(FloorPlanCheck.parse(r)).toEqual(r);
+    // The bins come back from the worker packed into arrays; unpacked they equal an in-process check.
+    const inProcess = checkFloorPlanRead(readSpreadsheet(buildFloorPlanTemplate(), 't.xlsx', FLOOR_PLAN_SPEC, DEFAULT_IMPORT_LIMITS), { maxIssues: 10 });
+    expect(r).toEqual(inProcess);
+    expect(new Set(r.plan!.bins.map((b) => b.zone))).toEqual(new Set(['fast', 'bulk']));
   });
 
   it('round-trips a generated plan written to xlsx to the same geometry and walk graph', async () => {
