@@ -1,3 +1,4 @@
+// @vitest-environment node
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { binCentre, binRect, buildPlanIndex, hitTestBin, querySlots, type PlanIndex } from '../../../client/components/floor-map/plan-index';

@@ -1,3 +1,4 @@
+// @vitest-environment node
 import { describe, expect, it } from 'vitest';
 import { splitRoute, stopPointIndices, stopState } from '../../../client/components/floor-map/route';
 import type { FloorMapRoute } from '../../../client/components/floor-map/types';

@@ -1,3 +1,4 @@
+// @vitest-environment node
 import fc from 'fast-check';
 import Konva from 'konva';
 import { describe, expect, it } from 'vitest';
@@ -23,6 +24,12 @@ const viewport = fc.record({ scale, ox: coord, oy: coord, flipY: fc.boolean() })
 function konvaTransform(vp: Viewport): Konva.Transform {
   return new Konva.Transform().translate(vp.ox, vp.oy).scale(vp.scale, vp.flipY ? -vp.scale : vp.scale);
 }
+
+describe('environment', () => {
+  it('runs without a DOM, so the helpers stay pure', () => {
+    expect(typeof document).toBe('undefined');
+  });
+});
 
 describe('world ↔ screen', () => {
   it('maps a world point where Konva.Transform maps it, and back through its inverse', () => {
