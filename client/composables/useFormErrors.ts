@@ -5,9 +5,31 @@ import { describeError } from './useAsync';
 
 export type FieldErrors = Record<string, string>;
 
-/** Empty fields read "Required" rather than zod's "expected number, received null". */
-function requiredMessage(issue: { code?: string; input?: unknown }): string | undefined {
-  if (issue.code === 'invalid_type' && (issue.input === null || issue.input === undefined || issue.input === '')) return 'Required';
+interface IssueLike {
+  code?: string;
+  input?: unknown;
+  origin?: string;
+  minimum?: unknown;
+  maximum?: unknown;
+  inclusive?: boolean;
+}
+
+/**
+ * Plain words for the common zod failures ("Required", "At most 3") in place of its developer wording.
+ * Schemas with their own message (passwords, PINs, site codes) keep it: zod prefers those.
+ */
+export function friendlyMessage(issue: IssueLike): string | undefined {
+  const { code, input, origin, minimum, maximum, inclusive } = issue;
+  if (code === 'invalid_type' && (input === null || input === undefined || input === '')) return 'Required';
+  if (code === 'too_small') {
+    if (origin === 'string') return Number(minimum) <= 1 ? 'Required' : `At least ${String(minimum)} characters`;
+    if (origin === 'array') return Number(minimum) <= 1 ? 'Choose at least one' : `Choose at least ${String(minimum)}`;
+    if (origin === 'number') return inclusive ? `At least ${String(minimum)}` : `More than ${String(minimum)}`;
+  }
+  if (code === 'too_big') {
+    if (origin === 'string') return `At most ${String(maximum)} characters`;
+    if (origin === 'number') return inclusive ? `At most ${String(maximum)}` : `Less than ${String(maximum)}`;
+  }
   return undefined;
 }
 
@@ -46,7 +68,7 @@ export function useFormErrors() {
 
   function check<S extends z.ZodType>(schema: S, value: unknown): z.infer<S> | null {
     clear();
-    const parsed = schema.safeParse(value, { error: requiredMessage });
+    const parsed = schema.safeParse(value, { error: friendlyMessage });
     if (parsed.success) return parsed.data;
     Object.assign(fields, issuesToFields(parsed.error.issues));
     if (Object.keys(fields).length === 0) general.value = 'Check the form.';
@@ -61,10 +83,14 @@ export function useFormErrors() {
     code.value = error instanceof ApiError ? error.code : null;
   }
 
-  /** Props for an NFormItem: red state plus the message right under the field. */
-  function item(field: string): { validationStatus: 'error' | undefined; feedback: string | undefined } {
+  /**
+   * Props for an NFormItem: red state plus the message right under the field. With `unit`, a bound
+   * such as "At most 3" reads "At most 3 m/s" (numbers always carry units).
+   */
+  function item(field: string, unit?: string): { validationStatus: 'error' | undefined; feedback: string | undefined } {
     const message = fields[field];
-    return { validationStatus: message ? 'error' : undefined, feedback: message };
+    const withUnit = message && unit && /^(At most|At least|More than|Less than) -?[\d.]+$/.test(message) ? `${message} ${unit}` : message;
+    return { validationStatus: message ? 'error' : undefined, feedback: withUnit };
   }
 
   return { fields, general, code, clear, check, fromError, item };

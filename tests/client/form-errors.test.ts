@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { ApiError } from '@client/api/http';
 import { apiErrorToFields, issuesToFields, useFormErrors } from '@client/composables/useFormErrors';
 import { SiteSettings } from '@shared/sites';
+import { Pin } from '@shared/auth';
 
 describe('form errors', () => {
   it('keys zod issues by their dotted path, first message per field', () => {
@@ -33,5 +34,22 @@ describe('form errors', () => {
     form.fromError(new ApiError('too_many_attempts', 'Too many sign-in attempts.', 429, { retryAfterSeconds: 29.2 }));
     expect(form.general.value).toBe('Too many sign-in attempts. Try again in 30 s.');
     expect(form.code.value).toBe('too_many_attempts');
+  });
+});
+
+describe('friendly messages', () => {
+  const messages = (schema: z.ZodType, value: unknown) => {
+    const form = useFormErrors();
+    form.check(schema, value);
+    return { ...form.fields };
+  };
+  it('says Required, At most, More than instead of zod wording', () => {
+    expect(messages(z.object({ name: z.string().min(1) }), { name: '' })).toEqual({ name: 'Required' });
+    expect(messages(SiteSettings.partial(), { walkingSpeedMps: 5 })).toEqual({ walkingSpeedMps: 'At most 3' });
+    expect(messages(SiteSettings.partial(), { walkingSpeedMps: 0 })).toEqual({ walkingSpeedMps: 'More than 0' });
+    expect(messages(z.object({ siteIds: z.array(z.number()).min(1) }), { siteIds: [] })).toEqual({ siteIds: 'Choose at least one' });
+  });
+  it("keeps a schema's own message", () => {
+    expect(messages(z.object({ pin: Pin }), { pin: '12' })).toEqual({ pin: '6 to 12 digits' });
   });
 });
