@@ -30,7 +30,8 @@ export const routes: RouteRecordRaw[] = [
 
   { path: '/pick', name: 'pick', component: () => import('@client/views/PickHomeView.vue'), meta: { roles: ['picker'], title: 'My trip', menu: { label: 'My trip', group: 'Picking' } } },
 
-  { path: '/floor-plans', name: 'floor-plans', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Floor plans', menu: { label: 'Floor plans', group: 'Floor' }, later: 'Upload a floor-plan workbook, check every row, preview the walk graph and activate it.' } },
+  { path: '/floor-plans', name: 'floor-plans', component: () => import('@client/views/floor-plans/FloorPlansView.vue'), meta: { roles: ['supervisor', 'engineer', 'admin'], title: 'Floor plans', menu: { label: 'Floor plans', group: 'Floor' } } },
+  { path: '/floor-plans/:planId(\\d+)', name: 'floor-plan', component: () => import('@client/views/floor-plans/FloorPlanView.vue'), meta: { roles: ['supervisor', 'engineer', 'admin'], title: 'Floor plan' } },
   { path: '/orders', name: 'orders', component: later, meta: { roles: ['supervisor'], title: 'Orders', menu: { label: 'Orders', group: 'Floor' }, later: 'Import the open orders from a workbook, CSV or the JSON API.' } },
   { path: '/waves', name: 'waves', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Waves', menu: { label: 'Waves', group: 'Floor' }, later: 'Build waves by cut-off and priority, choose a cart profile, batching and routing method, preview the trips and release them.' } },
   { path: '/live', name: 'live-board', component: later, meta: { roles: ['supervisor'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' }, later: 'Follow every released trip as pickers confirm their stops; handle shorts and blocked aisles.' } },
