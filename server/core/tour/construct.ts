@@ -7,13 +7,8 @@ import type { DistanceMatrix } from '../matrix';
 import { circuitLength } from '../matrix';
 import type { Budget } from './budget';
 import { canonicalize } from './circuit';
+import type { Neighbors } from './local';
 import { DEFAULT_NEIGHBORS, neighborLists } from './local';
-
-/** K nearest others per point, as built by `neighborLists` in ./local (nearest first, lower index on ties). */
-export interface Neighbors {
-  k: number;
-  list: Int32Array;
-}
 
 /**
  * Nearest neighbor from `start`: always walk to the closest unvisited point, then back.

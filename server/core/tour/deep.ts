@@ -8,6 +8,7 @@ import type { Rng } from '../rng';
 import type { Budget } from './budget';
 import { TimeLimitError } from './budget';
 import { heldKarp } from './exact';
+import type { Neighbors } from './local';
 import { createLocalSearch } from './local';
 
 /** Up to this many points the exact method takes less time than one search pass is worth. */
@@ -24,7 +25,7 @@ export function improveDeep(
   order: ArrayLike<number>,
   budget: Budget,
   rng: Rng,
-  neighbors?: { k: number; list: Int32Array },
+  neighbors?: Neighbors,
 ): number[] {
   const n = m.n;
   if (budget.deadline === Infinity) throw new RangeError('deep improvement needs a finite timeLimitMs');

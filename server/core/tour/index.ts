@@ -14,6 +14,7 @@ import { canonicalize } from './circuit';
 import { nearestNeighbor, repeatedNearestNeighbor, sortedEdges } from './construct';
 import { improveDeep } from './deep';
 import { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
+import type { Neighbors } from './local';
 import { DEFAULT_NEIGHBORS, improveLocal, neighborLists } from './local';
 
 export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
@@ -90,8 +91,8 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
   const budget = budgetOf({ timeLimitMs: opts.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS, clock });
 
   // One set of neighbour lists serves repeated nearest neighbor and the improvement.
-  const lazy: { lists?: ReturnType<typeof neighborLists> } = {};
-  const lists = (): ReturnType<typeof neighborLists> => (lazy.lists ??= neighborLists(m, DEFAULT_NEIGHBORS));
+  let cached: Neighbors | undefined;
+  const lists = (): Neighbors => (cached ??= neighborLists(m, DEFAULT_NEIGHBORS));
 
   let order: number[];
   switch (method) {

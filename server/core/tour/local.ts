@@ -17,11 +17,17 @@ export interface LocalMoves {
 
 const BOTH: LocalMoves = { twoOpt: true, orOpt: true };
 
+/** Each point's K nearest others, row-major in n·K entries: nearest first, lower index on ties. */
+export interface Neighbors {
+  k: number;
+  list: Int32Array;
+}
+
 /**
  * For each point its `k` nearest others, nearest first (ties: lower index first), row-major in one
  * array of n·k entries. O(n²·k) time.
  */
-export function neighborLists(m: DistanceMatrix, k: number): { k: number; list: Int32Array } {
+export function neighborLists(m: DistanceMatrix, k: number): Neighbors {
   const n = m.n;
   const kk = Math.max(0, Math.min(k, n - 1));
   const list = new Int32Array(n * kk);
@@ -330,7 +336,7 @@ export function improveLocal(
   order: ArrayLike<number>,
   budget?: Budget,
   moves: LocalMoves = BOTH,
-  neighbors?: { k: number; list: Int32Array },
+  neighbors?: Neighbors,
 ): number[] {
   if (m.n < 4) return Array.from(order);
   const ls = createLocalSearch(m, moves, neighbors);
