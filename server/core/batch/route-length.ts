@@ -3,8 +3,8 @@
  * compares batches by: the tour engine's nearest-neighbor construction (O(k²) for k stops), the
  * fast construction, since batching evaluates thousands of candidate batches.
  */
-import { matrixOf } from '../matrix';
-import { solveTour } from '../tour/index';
+import { circuitLength, matrixOf } from '../matrix';
+import { nearestNeighbor } from '../tour/construct';
 
 /** A dense table up to this many points (2,048² × 8 B = 32 MiB); above it, distances come from the callback. */
 const DENSE_MAX_POINTS = 2048;
@@ -20,6 +20,8 @@ export class NodeTable {
   private readonly local = new Map<number, number>();
   private readonly dense: Float64Array | null;
   private readonly distance: (a: number, b: number) => number;
+  /** Scratch matrix reused by every `routeLength` call: batching evaluates tens of thousands of them. */
+  private scratch = new Float64Array(64 * 64);
 
   constructor(depotNode: number, nodes: Iterable<number>, distance: (a: number, b: number) => number) {
     const list = [depotNode];
@@ -66,19 +68,23 @@ export class NodeTable {
   routeLength(stops: ArrayLike<number>): number {
     const k = stops.length + 1;
     if (k === 1) return 0;
-    const d = new Float64Array(k * k);
+    if (this.scratch.length < k * k) this.scratch = new Float64Array(k * k * 2);
+    const d = this.scratch.subarray(0, k * k);
+    d[0] = 0;
     for (let i = 1; i < k; i++) {
       const a = stops[i - 1]!;
       const v = this.d(0, a);
       d[i] = v;
       d[i * k] = v;
+      d[i * k + i] = 0;
       for (let j = i + 1; j < k; j++) {
         const w = this.d(a, stops[j - 1]!);
         d[i * k + j] = w;
         d[j * k + i] = w;
       }
     }
-    return solveTour(matrixOf(k, d), { method: 'nearest-neighbor', improve: 'none', timeLimitMs: Infinity }).length;
+    const m = matrixOf(k, d);
+    return circuitLength(m, nearestNeighbor(m, 0));
   }
 }
 

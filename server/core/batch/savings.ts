@@ -118,12 +118,14 @@ function neighbourLists(ctx: BatchContext): number[][] {
   const all = Array.from({ length: n }, (_, p) => p);
   if (n - 1 <= NEIGHBOURS) return all.map((p) => all.filter((q) => q !== p));
   const close = new Float64Array(n * n);
+  // Index loops over typed arrays: this runs n² · k² times.
   const oneWay = (from: Int32Array, to: Int32Array): number => {
     let sum = 0;
-    for (const s of from) {
+    for (let i = 0; i < from.length; i++) {
+      const s = from[i]!;
       let best = Infinity;
-      for (const t of to) {
-        const v = table.d(s, t);
+      for (let j = 0; j < to.length; j++) {
+        const v = table.d(s, to[j]!);
         if (v < best) best = v;
       }
       sum += best;
@@ -131,16 +133,20 @@ function neighbourLists(ctx: BatchContext): number[][] {
     return sum;
   };
   for (let p = 0; p < n; p++) {
+    const sp = stops[p]!;
     for (let q = p + 1; q < n; q++) {
-      const v = oneWay(stops[p]!, stops[q]!) + oneWay(stops[q]!, stops[p]!);
+      const sq = stops[q]!;
+      const v = oneWay(sp, sq) + oneWay(sq, sp);
       close[p * n + q] = v;
       close[q * n + p] = v;
     }
   }
-  return all.map((p) =>
-    all
-      .filter((q) => q !== p)
-      .sort((x, y) => close[p * n + x]! - close[p * n + y]! || x - y)
-      .slice(0, NEIGHBOURS),
-  );
+  const ids = new Int32Array(n);
+  return all.map((p) => {
+    for (let q = 0; q < n; q++) ids[q] = q;
+    const row = close.subarray(p * n, (p + 1) * n);
+    row[p] = Infinity;
+    const sorted = ids.slice().sort((x, y) => row[x]! - row[y]! || x - y);
+    return Array.from(sorted.subarray(0, NEIGHBOURS));
+  });
 }
