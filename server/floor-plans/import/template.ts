@@ -5,6 +5,7 @@
 import * as XLSX from 'xlsx';
 import type { PlanGeometry } from '../../core/plan/types';
 import { DEPOT_LINK_MAX_M } from '../../core/plan/types';
+import { DEFAULT_IMPORT_LIMITS } from '../../imports/limits';
 import { FLOOR_PLAN_SPEC } from './spec';
 
 type Cell = string | number | null;
@@ -37,7 +38,7 @@ const INSTRUCTIONS: string[][] = [
   [`  depot: its code. x_m, y_m: its position, within ${DEPOT_LINK_MAX_M} m of an aisle or cross aisle. At least one depot.`],
   [''],
   ['Codes must not start with = + - or @, so they stay plain text in every program that opens them.'],
-  ['Other sheets (such as this one) are ignored. At most 200,000 rows a sheet; a file of at most 20 MiB.'],
+  [`Other sheets (such as this one) are ignored. At most ${DEFAULT_IMPORT_LIMITS.maxRowsPerSheet.toLocaleString('en')} rows a sheet; a file of at most ${DEFAULT_IMPORT_LIMITS.maxFileBytes / 1024 / 1024} MiB.`],
   [''],
   ['The example rows describe an invented warehouse of three aisles. Replace them with your own.'],
 ];
