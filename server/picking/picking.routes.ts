@@ -26,7 +26,7 @@ import {
   TripResult,
 } from '../../shared/picking';
 import { loadPlanIndex } from '../floor-plans/plan-index';
-import { notFound } from '../http/errors';
+import { AppError, notFound } from '../http/errors';
 import { defineRoute, type RouteContext } from '../http/route';
 import type { SessionUser } from '../http/session';
 import * as board from './board.service';
@@ -130,6 +130,10 @@ export const pickingRoutes = [
     method: 'get', path: `${siteBoard}/events`, access: SUPERVISE, summary: 'Live board as server-sent events: `board` with the whole snapshot on every change',
     handler: async ({ req, res, deps, siteId }) => {
       const site = siteId!;
+      // Only an event stream client may open the endless stream (EventSource always sends this).
+      if (!(req.get('accept') ?? '').includes('text/event-stream')) {
+        throw new AppError('validation', 'event_stream_only', 'Open this with an EventSource (Accept: text/event-stream)', [{ field: 'Accept', message: 'must accept text/event-stream' }]);
+      }
       res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
       let closed = false;
       let sending = false;

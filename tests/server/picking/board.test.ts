@@ -1,0 +1,215 @@
+/**
+ * The live board: snapshot figures, server-sent events after a confirmation, reassignment, cancelling
+ * the rest of a trip, closing a wave, and the wave report mailed when a wave completes.
+ */
+import type { AddressInfo } from 'node:net';
+import http from 'node:http';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import * as XLSX from 'xlsx';
+import { Board, CancelResult, CloseWaveResult } from '../../../shared/picking';
+import { SESSION_COOKIE } from '../../../server/http/session';
+import { csrf } from '../../helpers/app';
+import { planDistance } from '../../helpers/picking';
+import { confirm, makePickingApp, post, readTrip, type PickingFixture } from './setup';
+
+let t: PickingFixture;
+beforeAll(async () => {
+  t = await makePickingApp();
+});
+afterAll(() => t.close());
+
+async function freePickers(): Promise<void> {
+  await t.deps.db('trips').whereIn('status', ['released', 'assigned', 'picking']).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
+}
+
+const boardNow = async () => Board.parse((await t.as.supervisor.get(`/api/sites/${t.siteId}/board`)).body);
+
+describe('the board snapshot', () => {
+  it('shows per trip the picker, progress, shorts, elapsed and remaining time, and a wave forecast', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 4, pickerId: t.ids.picker }, { stops: 3 }], 'Board wave A');
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    const before = (await boardNow()).waves.find((x) => x.id === w.waveId)!;
+    expect(before.trips[0]).toMatchObject({ pickerName: 'Pat Picker', stopsDone: 0, linesDone: 0, elapsedMinutes: null });
+    // Nothing walked yet: the remaining estimate is the trip's own estimate (same walk, same speeds).
+    expect(before.trips[0]!.remainingMinutes).toBeCloseTo(before.trips[0]!.estMinutes, 6);
+    await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id);
+    await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${trip.stopList[1]!.lines[0]!.id}/short`, { qtyFound: 0, reason: 'empty_bin' });
+    const after = (await boardNow()).waves.find((x) => x.id === w.waveId)!;
+    expect(after.status).toBe('picking');
+    expect(after.trips[0]).toMatchObject({ status: 'picking', stopsDone: 2, linesDone: 2, shorts: 1 });
+    expect(after.trips[0]!.elapsedMinutes).toBeGreaterThanOrEqual(0);
+    expect(after.trips[0]!.remainingMinutes).toBeLessThan(before.trips[0]!.remainingMinutes);
+    expect(after.remainingMinutes).toBeCloseTo(after.trips[0]!.remainingMinutes + after.trips[1]!.remainingMinutes, 6);
+    // One picker on the wave: the forecast is now + all remaining work.
+    expect(after.pickersCounted).toBe(1);
+    const forecastMin = (Date.parse(after.forecastAt!) - Date.now()) / 60_000;
+    expect(Math.abs(forecastMin - after.remainingMinutes)).toBeLessThan(0.5);
+  });
+});
+
+describe('server-sent events', () => {
+  it('sends the snapshot on connect and again after a confirmation', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }], 'Board wave SSE');
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    const server = t.app.listen(0, '127.0.0.1');
+    await new Promise((r) => server.once('listening', r));
+    const port = (server.address() as AddressInfo).port;
+    // The supervisor's session cookie, from the supertest agent's jar.
+    const signIn = await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' });
+    const cookie = (signIn.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith(SESSION_COOKIE))!.split(';')[0]!;
+    const events: Board[] = [];
+    const req = http.get({ host: '127.0.0.1', port, path: `/api/sites/${t.siteId}/board/events`, headers: { cookie, accept: 'text/event-stream' } });
+    const got = new Promise<void>((resolve, reject) => {
+      req.on('response', (res) => {
+        expect(res.headers['content-type']).toContain('text/event-stream');
+        let buf = '';
+        res.on('data', (chunk: Buffer) => {
+          buf += chunk.toString('utf8');
+          let i;
+          while ((i = buf.indexOf('\n\n')) >= 0) {
+            const block = buf.slice(0, i);
+            buf = buf.slice(i + 2);
+            const data = block.split('\n').find((l) => l.startsWith('data: '));
+            if (block.includes('event: board') && data) {
+              events.push(Board.parse(JSON.parse(data.slice(6))));
+              // Supertest sends only when awaited or then-ed.
+              if (events.length === 1) confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id).then(() => undefined, reject);
+              if (events.length === 2) resolve();
+            }
+          }
+        });
+      });
+      req.on('error', reject);
+      setTimeout(() => reject(new Error(`no second board event in 5 s (got ${events.length})`)), 5000);
+    });
+    try {
+      await got;
+    } finally {
+      req.destroy();
+      server.close();
+    }
+    const tripOf = (b: Board) => b.waves.find((x) => x.id === w.waveId)!.trips[0]!;
+    expect(tripOf(events[0]!).linesDone).toBe(0);
+    expect(tripOf(events[1]!).linesDone).toBe(1);
+  });
+});
+
+describe('supervisor actions', () => {
+  it('reassigns a trip and audits it; refuses a picker who already holds a trip', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }, { stops: 2, pickerId: t.ids.picker2 }]);
+    const busy = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${w.tripIds[0]}/assign`).set(csrf).send({ pickerId: t.ids.picker2 });
+    expect(busy.status).toBe(409);
+    expect(busy.body.error.code).toBe('picker_busy');
+    await t.deps.db('trips').where({ id: w.tripIds[1] }).update({ status: 'cancelled' });
+    const ok = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${w.tripIds[0]}/assign`).set(csrf).send({ pickerId: t.ids.picker2 });
+    expect(ok.status).toBe(200);
+    expect((await t.as.picker2.get(`/api/picking/trips/${w.tripIds[0]}`)).status).toBe(200);
+    expect((await t.as.picker.get(`/api/picking/trips/${w.tripIds[0]}`)).status).toBe(403);
+    const a = await t.deps.db('audit_log').where({ action: 'trip.reassign', subject: `trip:${w.tripIds[0]}` }).first();
+    expect(JSON.parse(a.detail)).toEqual({ from: t.ids.picker, to: t.ids.picker2 });
+    expect(a.user_id).toBe(t.ids.supervisor);
+    expect((await t.as.picker.post(`/api/sites/${t.siteId}/board/trips/${w.tripIds[0]}/assign`).set(csrf).send({ pickerId: t.ids.picker })).status).toBe(403);
+  });
+
+  it('cancels the rest of a trip: open lines cancelled, their orders open again, the picker stopped', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 4, pickerId: t.ids.picker }]);
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id);
+    const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${trip.id}/cancel`).set(csrf).send({ reason: 'aisle blocked' });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const out = CancelResult.parse(res.body);
+    expect(out.linesCancelled).toBe(trip.lines - 1);
+    const lines = await t.deps.db('pick_lines').where({ trip_id: trip.id }).orderBy('id').pluck('status');
+    expect(lines.filter((s: string) => s === 'picked')).toHaveLength(1);
+    expect(lines.filter((s: string) => s === 'cancelled')).toHaveLength(trip.lines - 1);
+    const orders = await t.deps.db('orders').whereIn('ref', out.ordersReopened);
+    expect(orders.length).toBeGreaterThan(0);
+    for (const o of orders) expect([o.status, o.wave_id]).toEqual(['open', null]);
+    const late = await confirm(t.as.picker, trip.id, trip.stopList[1]!.lines[0]!.id);
+    expect(late.status).toBe(409);
+    expect(late.body.error.code).toBe('trip_closed');
+    const a = await t.deps.db('audit_log').where({ action: 'trip.cancel', subject: `trip:${trip.id}` }).first();
+    expect(JSON.parse(a.detail)).toMatchObject({ reason: 'aisle blocked', linesCancelled: trip.lines - 1 });
+  });
+
+  it('mails the wave report with walked metres in the order actually picked once the last trip is done', async () => {
+    await freePickers();
+    await t.deps.db('mail_outbox').delete();
+    const w = await t.wave([{ stops: 5, pickerId: t.ids.picker }], 'Report wave');
+    let trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    // Skip the first stop, pick the rest, then the skipped one: the walk is not the planned circuit.
+    const first = trip.stopList[0]!;
+    trip = (await post(t.as.picker, `/api/picking/trips/${trip.id}/stops/${first.id}/skip`, {})).body.trip;
+    const finishOrder: number[] = [];
+    for (const s of trip.stopList) {
+      for (const l of s.lines) expect((await confirm(t.as.picker, trip.id, l.id)).status).toBe(200);
+      finishOrder.push(s.id);
+    }
+    const fin = await post(t.as.picker, `/api/picking/trips/${trip.id}/finish`, {});
+    expect(fin.status).toBe(200);
+    // Walked metres recomputed here from the stop nodes in finishing order on the plan's distances.
+    const nodes = new Map((await t.deps.db('stops').where({ trip_id: trip.id }).select('id', 'node')).map((r: { id: number; node: number }) => [r.id, r.node]));
+    const d = await planDistance(t.deps.db, t.planId);
+    const plan = await import('../../../server/floor-plans/plan-index').then((m) => m.loadPlanIndex(t.deps.db, t.planId));
+    const depot = plan.depotNodes[0]!;
+    const seq = [depot, ...finishOrder.map((id) => nodes.get(id)!), depot];
+    let walked = 0;
+    for (let i = 1; i < seq.length; i++) walked += d(seq[i - 1]!, seq[i]!);
+    expect(fin.body.walkedMetres).toBeCloseTo(walked, 6);
+    expect(fin.body.walkedMetres).toBeGreaterThanOrEqual(fin.body.plannedMetres - 1e-6);
+
+    const wave = await t.deps.db('waves').where({ id: w.waveId }).first();
+    expect(wave.status).toBe('completed');
+    const mails = await t.deps.db('mail_outbox').where({ site_id: t.siteId });
+    expect(mails).toHaveLength(1);
+    expect(mails[0].to).toBe('supervisor@demo.aislewright.test');
+    expect(mails[0].subject).toContain('Report wave');
+    const att = JSON.parse(mails[0].attachments)[0];
+    expect(att.filename).toMatch(/\.xlsx$/);
+    const wb = XLSX.read(Buffer.from(att.base64, 'base64'), { type: 'buffer' });
+    const rows = XLSX.utils.sheet_to_json<unknown[]>(wb.Sheets.trips!, { header: 1 });
+    expect(rows[0]).toEqual(['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', 'started (UTC)', 'finished (UTC)']);
+    expect(rows[1]!.slice(0, 9)).toEqual([1, 'Pat Picker', 'done', 5, 5, trip.lines, trip.lines, 0, 0]);
+    expect(rows[1]![10]).toBeCloseTo(Math.round(walked * 10) / 10, 6);
+    // A second completion path (closing the finished wave) does not mail again.
+    expect((await t.as.supervisor.post(`/api/sites/${t.siteId}/board/waves/${w.waveId}/close`).set(csrf).send({})).status).toBe(409);
+    expect(await t.deps.db('mail_outbox').where({ site_id: t.siteId })).toHaveLength(1);
+  });
+
+  it('closes a wave: open trips cancelled, the report mailed, the board shows it completed', async () => {
+    await freePickers();
+    await t.deps.db('mail_outbox').delete();
+    const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }, { stops: 2 }], 'Closed wave');
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id);
+    const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/waves/${w.waveId}/close`).set(csrf).send({ reason: 'end of shift' });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(CloseWaveResult.parse(res.body)).toMatchObject({ tripsCancelled: 2, reportMailedTo: ['supervisor@demo.aislewright.test'] });
+    const b = (await boardNow()).waves.find((x) => x.id === w.waveId)!;
+    expect(b.status).toBe('completed');
+    expect(b.trips.map((x) => x.status)).toEqual(['cancelled', 'cancelled']);
+    expect(await t.deps.db('audit_log').where({ action: 'wave.close', subject: `wave:${w.waveId}` })).toHaveLength(1);
+    const report = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse((res2, cb) => {
+      const chunks: Buffer[] = [];
+      res2.on('data', (c: Buffer) => chunks.push(c));
+      res2.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+    expect(report.status).toBe(200);
+    const wb = XLSX.read(report.body as Buffer, { type: 'buffer' });
+    expect(wb.SheetNames).toEqual(['trips', 'shorts']);
+  });
+
+  it('lets a supervisor mark a short handled, which takes it off the attention list', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${trip.stopList[0]!.lines[0]!.id}/short`, { qtyFound: 0, reason: 'empty_bin' });
+    const short = (await boardNow()).shorts.find((s) => s.tripId === trip.id)!;
+    expect((await t.as.supervisor.post(`/api/sites/${t.siteId}/board/shorts/${short.id}/handled`).set(csrf).send({})).status).toBe(200);
+    expect((await boardNow()).shorts.find((s) => s.tripId === trip.id)).toBeUndefined();
+  });
+});
