@@ -51,6 +51,7 @@ export function waveOutput(wave: PlanWaveResult, unplacedBefore: readonly Unplac
       litres: metres(t.litres),
       stops: t.stops.map((s) => ({ n: s.n, bins: s.bins, lines: s.lines.map((l) => ({ order: l.order, sku: l.sku, qty: l.qty, bin: l.bin, tote: l.tote })) })),
       metres: metres(t.metres),
+      minutes: Math.round(t.minutes * 10) / 10,
       lowerBound: metres(t.lowerBound),
       aboveBoundPct: pct(t.aboveBoundPct),
     })),

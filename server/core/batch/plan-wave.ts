@@ -52,6 +52,8 @@ export interface PlanWaveOptions {
   timeLimitMs?: number;
   /** Budget of each trip's lower bound, milliseconds; default 50. */
   boundTimeLimitMs?: number;
+  /** Site figures for the minutes estimate; defaults from PRODUCT.md (1.0 m/s, 10 s per line, 0 s per stop). */
+  estimate?: { walkingMps?: number; secondsPerLine?: number; secondsPerStop?: number };
   /** Seed for `deep` improvement; default 1. */
   seed?: number;
   clock?: Clock;
@@ -96,6 +98,8 @@ export interface WaveTrip {
   stops: TripStop[];
   /** Closed walk from the depot through every stop and back, metres. */
   metres: number;
+  /** Walking at the site's speed plus handling per line and per stop, minutes. */
+  minutes: number;
   /** Held–Karp 1-tree bound: no circuit through these stops is shorter, metres. */
   lowerBound: number;
   /** (metres / lowerBound − 1) × 100; 0 when the bound is 0. */
@@ -112,6 +116,8 @@ export interface WaveTotals {
   orders: number;
   lines: number;
   metres: number;
+  /** Sum of the trips' minutes. */
+  minutes: number;
   lowerBound: number;
   aboveBoundPct: number;
   /** Metres if every order went on its own trip, routed the same way. */
@@ -165,6 +171,11 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
   const boundMs = opts.boundTimeLimitMs ?? DEFAULT_BOUND_TIME_LIMIT_MS;
   const report = opts.progress ?? (() => {});
   const notes: string[] = [];
+  // Walking speed 1.0 m/s and 10 s per line: PRODUCT.md defaults (order-picking studies; common practice).
+  const speed = opts.estimate?.walkingMps ?? 1.0;
+  const perLine = opts.estimate?.secondsPerLine ?? 10;
+  const perStop = opts.estimate?.secondsPerStop ?? 0;
+  if (!(speed > 0) || !(perLine >= 0) || !(perStop >= 0)) throw new RangeError('walking speed must be positive and handling seconds non-negative');
 
   const batched = batchOrders({
     orders: opts.orders,
@@ -231,7 +242,10 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
       if (typeof s === 'string') sShapeNote = s;
       else sShapeMetres = s;
     }
-    trips.push(buildTrip(t + 1, batch, opts.orders, opts.cart, table, stops, r, bound.lowerBound, sShapeMetres));
+    const trip = buildTrip(t + 1, batch, opts.orders, opts.cart, table, stops, r, bound.lowerBound, sShapeMetres);
+    const lineCount = trip.stops.reduce((n, s) => n + s.lines.length, 0);
+    trip.minutes = (trip.metres / speed + lineCount * perLine + trip.stops.length * perStop) / 60;
+    trips.push(trip);
     report(0.45 + (0.55 * (t + 1)) / batches.length);
   }
   if (fallbacks > 0) notes.push(`${fallbacks} circuit(s) could not use ${method} (over ${HELD_KARP_MAX_POINTS - 1} stops or out of time) and used best + local`);
@@ -246,6 +260,7 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
     orders: needs.length,
     lines: needs.reduce((s, nd) => s + opts.orders[nd.index]!.lines.length, 0),
     metres,
+    minutes: trips.reduce((s, t) => s + t.minutes, 0),
     lowerBound,
     aboveBoundPct: lowerBound > 0 ? (metres / lowerBound - 1) * 100 : 0,
     singleMetres,
@@ -350,6 +365,7 @@ function buildTrip(
     litres: batch.litres,
     stops: tripStops,
     metres: r.length,
+    minutes: 0,
     lowerBound,
     aboveBoundPct: lowerBound > 0 ? (r.length / lowerBound - 1) * 100 : 0,
     method: r.method,

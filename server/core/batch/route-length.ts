@@ -3,8 +3,8 @@
  * compares batches by: the tour engine's nearest-neighbor construction (O(k²) for k stops), the
  * fast construction, since batching evaluates thousands of candidate batches.
  */
-import { circuitLength, matrixOf } from '../matrix';
-import { nearestNeighbor } from '../tour/construct';
+import { matrixOf } from '../matrix';
+import { solveTour } from '../tour/index';
 
 /** A dense table up to this many points (2,048² × 8 B = 32 MiB); above it, distances come from the callback. */
 const DENSE_MAX_POINTS = 2048;
@@ -83,8 +83,7 @@ export class NodeTable {
         d[j * k + i] = w;
       }
     }
-    const m = matrixOf(k, d);
-    return circuitLength(m, nearestNeighbor(m, 0));
+    return solveTour(matrixOf(k, d), { method: 'nearest-neighbor', improve: 'none', timeLimitMs: Infinity }).length;
   }
 }
 

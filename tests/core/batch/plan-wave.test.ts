@@ -135,6 +135,17 @@ describe('planWave', () => {
     expect(wave.trips[0]!.orders.map((o) => o.totes)).toEqual([[1, 2, 3], [4]]);
   });
 
+  it('estimates minutes as walking at the site speed plus seconds per line and per stop', () => {
+    const wave = planWave(base({ estimate: { walkingMps: 0.8, secondsPerLine: 12, secondsPerStop: 5 } }));
+    for (const t of wave.trips) {
+      const lines = t.stops.reduce((n, s) => n + s.lines.length, 0);
+      expect(t.minutes).toBeCloseTo((t.metres / 0.8 + 12 * lines + 5 * t.stops.length) / 60, 9);
+    }
+    // PRODUCT.md defaults: 1.0 m/s, 10 s per line.
+    const plain = planWave(base());
+    expect(plain.trips[0]!.minutes).toBeCloseTo((plain.trips[0]!.metres + 10 * plain.trips[0]!.stops.reduce((n, s) => n + s.lines.length, 0)) / 60, 9);
+  });
+
   it('refuses an unknown routing method', () => {
     expect(() => planWave(base({ routing: { method: 'fastest' as never } }))).toThrow(RangeError);
   });
