@@ -34,6 +34,7 @@ export function fits(load: { kg: number; litres: number; totes: number }, need: 
   return load.totes + need.totes <= cart.totes && load.kg + need.kg <= cart.maxKg && load.litres + need.litres <= cart.maxLitres;
 }
 
+/** Puts the need at `position` on the load (no capacity check: call `fits` first). */
 export function addTo(load: Load, position: number, need: OrderNeed): void {
   load.members.push(position);
   load.kg += need.kg;
