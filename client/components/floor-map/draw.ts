@@ -291,6 +291,8 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
 export interface OverlayScene {
   plan: PlanGeometry;
   compact: boolean;
+  /** Pixels at the top covered by the map's tools; sticky labels go below them. */
+  topInset: number;
   route: FloorMapRoute | null;
   walked: MapPoint[];
   remaining: MapPoint[];
@@ -358,6 +360,43 @@ function outlineBin(ctx: CanvasRenderingContext2D, vp: Viewport, index: PlanInde
   return [cx, cy];
 }
 
+/**
+ * Zoomed in, the codes at the aisle ends are off screen: repeat each visible aisle's code along the
+ * top edge, and each cross aisle's at the left edge, so the picker always knows where they look.
+ */
+export function drawStickyLabels(ctx: CanvasRenderingContext2D, plan: PlanGeometry, p: MapPalette, vp: Viewport, width: number, height: number, topInset: number): void {
+  const px = 12;
+  const topY = topInset + px;
+  ctx.textBaseline = 'middle';
+  ctx.textAlign = 'center';
+  let lastRight = -Infinity;
+  const aisles = plan.aisles.slice().sort((a, b) => a.x - b.x);
+  ctx.font = `600 ${px}px ${MAP_FONT}`;
+  for (const a of aisles) {
+    const sx = vp.ox + a.x * vp.scale;
+    if (sx < 0 || sx > width) continue;
+    const y0 = vp.oy + (vp.flipY ? -a.yStart : a.yStart) * vp.scale;
+    const y1 = vp.oy + (vp.flipY ? -a.yEnd : a.yEnd) * vp.scale;
+    const top = Math.min(y0, y1);
+    const bottom = Math.max(y0, y1);
+    // Only when the aisle crosses the label row and its top-end code is hidden.
+    if (top > topY - px || bottom < topY) continue;
+    const w = ctx.measureText(a.code).width;
+    if (sx - w / 2 < lastRight + 6) continue;
+    lastRight = sx + w / 2;
+    label(ctx, a.code, sx, topY, p, px);
+  }
+  ctx.textAlign = 'left';
+  for (const c of plan.crossAisles) {
+    const sy = vp.oy + (vp.flipY ? -c.y : c.y) * vp.scale;
+    if (sy < topY + px || sy > height) continue;
+    const left = vp.ox + Math.min(c.xStart, c.xEnd) * vp.scale;
+    const right = vp.ox + Math.max(c.xStart, c.xEnd) * vp.scale;
+    if (left > 0 || right < 80) continue;
+    label(ctx, c.code, 8, sy, p, px);
+  }
+}
+
 /** Draws highlights, hover, the route and its stop markers. */
 export function drawOverlayScene(ctx: CanvasRenderingContext2D, o: OverlayScene, p: MapPalette, vp: Viewport, width: number, height: number): void {
   const view = visibleWorldRect(vp, width, height, 40);
@@ -396,6 +435,8 @@ export function drawOverlayScene(ctx: CanvasRenderingContext2D, o: OverlayScene,
     }
   }
   drawDepots(ctx, o.plan, p, vp, view, o.compact);
+  // Above the route lines (their halo keeps them legible), below the stop markers.
+  if (!o.compact) drawStickyLabels(ctx, o.plan, p, vp, width, height, o.topInset);
   if (route) {
     ctx.textAlign = 'center';
     ctx.textBaseline = 'middle';
