@@ -78,3 +78,17 @@ test('wrong password shows a message on the sign-in page', async ({ page }) => {
   await expect(page.getByRole('alert')).toBeVisible();
   await expect(page).toHaveURL('/sign-in');
 });
+
+test('when the session ends mid-work, the next call leads to sign-in and back to the same page', async ({ page, context }) => {
+  await signInByEmail(page, 'admin@demo.aislewright.test');
+  await expect(page).toHaveURL('/admin/users');
+  // Dropping the cookie stands in for a session that expired or was ended by an admin.
+  await context.clearCookies();
+  await page.getByRole('navigation', { name: 'Main' }).getByRole('menuitem', { name: 'Mail outbox' }).click();
+  await expect(page).toHaveURL(/\/sign-in\?next=(%2F|\/)admin(%2F|\/)outbox/);
+  await expect(page.getByText('Your session has ended')).toBeVisible();
+  await page.getByLabel('E-mail').fill('admin@demo.aislewright.test');
+  await page.getByLabel('Password').fill(PASSWORD);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await expect(page).toHaveURL('/admin/outbox');
+});
