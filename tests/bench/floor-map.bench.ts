@@ -286,7 +286,10 @@ export async function run(): Promise<void> {
     await page.waitForFunction(() => (window as unknown as { __floorMap?: { ready: boolean } }).__floorMap?.ready === true, null, { timeout: 60_000 });
     await page.screenshot({ path: '/tmp/floor-map-dark.png' });
     await page.locator('.trip-mini-map').screenshot({ path: '/tmp/floor-map-mini-dark.png' });
-    console.log('\nscreenshots: /tmp/floor-map-{fit,mini,zoom0,zoom4,zoom7,search,dark,mini-dark}.png');
+    await page.goto(`${url}?stops=7&span=6`);
+    await page.waitForFunction(() => (window as unknown as { __floorMap?: { ready: boolean } }).__floorMap?.ready === true, null, { timeout: 60_000 });
+    await page.locator('.trip-mini-map').screenshot({ path: '/tmp/floor-map-mini-short.png' });
+    console.log('\nscreenshots: /tmp/floor-map-{fit,mini,zoom0,zoom4,zoom7,search,dark,mini-dark,mini-short}.png');
   } finally {
     await browser.close();
     await server?.close();

@@ -2,7 +2,8 @@
  * Visual harness for the floor map (not part of the app): a generated 20,000-bin plan with a trip,
  * two closures and the picker's mini map. `npx vite --port 5199`, then open
  * /tests/e2e/harness/floor-map.html — query `dark=1` for the dark palette, `aisles=N` to resize,
- * `mini=0` to hide the mini map. `window.__floorMap` exposes the maps and timings to scripts.
+ * `mini=0` to hide the mini map, `stops=N&span=K` for a trip of N stops in the first K aisles.
+ * `window.__floorMap` exposes the maps and timings to scripts.
  */
 import '@fontsource/ibm-plex-sans/400.css';
 import '@fontsource/ibm-plex-sans/600.css';
@@ -19,6 +20,9 @@ const params = new URLSearchParams(location.search);
 const aisleCount = Number(params.get('aisles') ?? 40);
 const dark = params.get('dark') === '1';
 const showMini = params.get('mini') !== '0';
+const stopCount = Number(params.get('stops') ?? 24);
+// Pick only from the first `span` aisles: a short trip shows the mini map framing the trip.
+const span = Number(params.get('span') ?? aisleCount);
 
 // 40 aisles × 50 bays × 2 sides × 5 levels = 20,000 bins; spacing fits two 1 m racks and a 3 m aisle.
 const plan: PlanGeometry = markRaw(
@@ -36,14 +40,16 @@ const plan: PlanGeometry = markRaw(
  * A trip drawn the S-shape way (traverse every aisle with a pick, alternating direction, then back
  * along the last aisle to the front): enough to look at, not the engine's routing.
  */
-function sShapeTrip(p: PlanGeometry, stopsWanted: number, seed: number): FloorMapRoute {
+function sShapeTrip(p: PlanGeometry, stopsWanted: number, seed: number, aisles: number): FloorMapRoute {
   const rng = createRng(seed);
+  const allowed = new Set(p.aisles.slice(0, aisles).map((a) => a.code));
+  const pool = p.bins.filter((b) => allowed.has(b.aisle));
   const depot = p.depots[0] ?? { code: 'D1', x: 0, y: -2 };
   const length = Math.max(...p.aisles.map((a) => a.yEnd));
   const picks = new Map<string, { aisle: string; x: number; y: number; bins: string[] }>();
   const ax = new Map(p.aisles.map((a) => [a.code, a.x]));
   while (picks.size < stopsWanted) {
-    const bin = p.bins[rng.int(p.bins.length)];
+    const bin = pool[rng.int(pool.length)];
     if (!bin) break;
     const key = `${bin.aisle}@${bin.y.toFixed(2)}`;
     const at = picks.get(key) ?? { aisle: bin.aisle, x: ax.get(bin.aisle) ?? 0, y: bin.y, bins: [] };
@@ -51,11 +57,11 @@ function sShapeTrip(p: PlanGeometry, stopsWanted: number, seed: number): FloorMa
     picks.set(key, at);
   }
   const byAisle = [...picks.values()].sort((a, b) => a.x - b.x || a.y - b.y);
-  const aisles = [...new Set(byAisle.map((s) => s.x))];
+  const visited = [...new Set(byAisle.map((s) => s.x))];
   const points: MapPoint[] = [{ x: depot.x, y: depot.y }, { x: depot.x, y: 0 }];
   const stops: RouteStop[] = [];
   let end = 0;
-  for (const x of aisles) {
+  for (const x of visited) {
     points.push({ x, y: end });
     const here = byAisle.filter((s) => s.x === x);
     if (end !== 0) here.reverse();
@@ -66,12 +72,13 @@ function sShapeTrip(p: PlanGeometry, stopsWanted: number, seed: number): FloorMa
     end = end === 0 ? length : 0;
     points.push({ x, y: end });
   }
-  if (end !== 0) points.push({ x: aisles[aisles.length - 1] ?? 0, y: 0 });
+  if (end !== 0) points.push({ x: visited[visited.length - 1] ?? 0, y: 0 });
   points.push({ x: depot.x, y: 0 }, { x: depot.x, y: depot.y });
-  return { points, stops, walkedToStop: 8, currentStop: 9 };
+  const done = Math.floor(stops.length / 3);
+  return { points, stops, walkedToStop: done, currentStop: done + 1 };
 }
 
-const route = markRaw(sShapeTrip(plan, 24, 7));
+const route = markRaw(sShapeTrip(plan, stopCount, 7, span));
 const closures: PlanClosure[] = markRaw([
   { kind: 'aisle', code: plan.aisles[5]?.code ?? 'F', from: 40, to: 60 },
   { kind: 'cross_aisle', code: 'middle-1', from: 60, to: 80 },
