@@ -192,8 +192,9 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
   const { table, needs } = batched;
   const needOf = new Map<number, OrderNeed>(needs.map((nd) => [nd.index, nd]));
 
-  // Singles first when they are not the wave itself: cheap, and the comparison must not be starved.
+  // `deep` spends its whole budget on every circuit; hundreds of one-order trips get `local` instead.
   const comparisonImprove: ImproveMode = improve === 'deep' ? 'local' : improve;
+  if (comparisonImprove !== improve && opts.batching !== 'single') notes.push('the one-order-per-trip figure is routed with local improvement, not deep');
   let fallbacks = 0;
   const route = (stops: Int32Array, m: TourMethod, imp: ImproveMode, limit: number): { order: number[]; length: number; method: TourMethod; improve: ImproveMode; matrix: DistanceMatrix } => {
     const matrix = subMatrix(table, stops);
@@ -215,6 +216,7 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
 
   const batches = batched.batches;
   let singleMetres = 0;
+  // Singles before the wave's own trips: cheap, and the comparison must not be starved of budget.
   if (opts.batching !== 'single') {
     for (const nd of needs) {
       const stops = Int32Array.from(nd.nodes, (v) => table.localOf(v)).sort();
