@@ -1,0 +1,334 @@
+/**
+ * Studies: gather the work (recorded waves, or a plan and generated orders), run it in a worker with
+ * progress and cancel, save inputs and results, and answer the screens (plans, routes, workbook).
+ */
+import type { Worker } from 'node:worker_threads';
+import type { Knex } from 'knex';
+import type { Deps } from '../deps';
+import { nowIso } from '../db/knex';
+import { generateRectangularPlan } from '../core/plan/generate';
+import { loadPlanIndex, activePlanId } from '../floor-plans/plan-index';
+import { getPlanRowById } from '../floor-plans/floor-plans.repository';
+import { engineParams } from '../floor-plans/floor-plans.service';
+import { AppError, notFound } from '../http/errors';
+import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
+import { spawnTsWorker } from '../workers/spawn';
+import type { PlannerOrder } from '../waves/wave-planner';
+import {
+  ROUTING_LABELS,
+  StudyInputs,
+  type RoutingMethodKey,
+  type StudyDetail,
+  type StudyInputsBody,
+  type StudyResults,
+  type StudyRoute,
+  type StudySummary,
+} from '../../shared/studies';
+import type { PlanGeometry } from '../core/plan/types';
+import { applyChanges, buildPlan, StudyInputError, tripRoute, type BuiltPlan, type RecordedTrip, type StudyEngineInput, type StudyPlanInput, type StudyWave } from './study-engine';
+import { generateStudyOrders } from './generate-orders';
+import type { StudyProgress } from './study.worker';
+import {
+  getStudyRow, insertStudy, linesOfTrips, listStudyRows, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
+} from './studies.repository';
+
+/** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
+const FALLBACK_CART = { totes: 8, maxKg: 150, maxLitres: 400 };
+/** A study worker is stopped after this long; the engine's own budgets are step counts, not time. */
+const STUDY_TIMEOUT_MS = 15 * 60_000;
+
+type Work = Omit<StudyEngineInput, 'progress'>;
+
+/** Stop bins are stored as a JSON array (a comma list in older rows). */
+function binsOf(raw: string): string[] {
+  try {
+    const v: unknown = JSON.parse(raw);
+    if (Array.isArray(v)) return v.map(String);
+  } catch {
+    // plain text below
+  }
+  return raw.split(',').map((s) => s.trim()).filter(Boolean);
+}
+
+async function storedPlanInput(db: Knex, siteId: number, planId: number, depotIdx: number): Promise<StudyPlanInput> {
+  const row = await getPlanRowById(db, planId);
+  if (!row || row.site_id !== siteId) throw new AppError('validation', 'validation_failed', 'Unknown floor plan', [{ field: 'work.plan.planId', message: 'no such plan on this site' }]);
+  const plan = await loadPlanIndex(db, planId);
+  if (depotIdx >= plan.geometry.depots.length) throw new AppError('validation', 'validation_failed', 'The plan has no such depot', [{ field: 'depot', message: 'no such depot' }]);
+  return { geometry: plan.geometry, closures: plan.closures, depotIdx };
+}
+
+/** The base plan of a study: a stored plan with its open closures, or one generated from parameters. */
+async function basePlanOf(db: Knex, siteId: number, inputs: StudyInputs, recordedPlanId: number | null, depotIdx: number): Promise<StudyPlanInput> {
+  if (inputs.work.kind === 'recorded') return storedPlanInput(db, siteId, recordedPlanId!, depotIdx);
+  const src = inputs.work.plan;
+  if (src.source === 'generated') {
+    try {
+      return { geometry: generateRectangularPlan(engineParams(src.params)), closures: [], depotIdx: 0 };
+    } catch (e) {
+      throw new AppError('validation', 'validation_failed', (e as Error).message, [{ field: 'work.plan.params', message: (e as Error).message }]);
+    }
+  }
+  if (src.source === 'active') throw new AppError('internal', 'unresolved_plan', 'The active plan should have been resolved to its id');
+  return storedPlanInput(db, siteId, src.planId, 0);
+}
+
+/** Recorded waves as engine work: their orders (from the pick lines) and their trips as released. */
+async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Promise<{ waves: StudyWave[]; planId: number; depotIdx: number; days: number }> {
+  if (inputs.work.kind !== 'recorded') throw new Error('not a recorded study');
+  const sel = inputs.work;
+  if (!sel.waveIds?.length && !sel.from && !sel.to) {
+    throw new AppError('validation', 'validation_failed', 'Choose waves by hand or a date range', [{ field: 'work.waveIds', message: 'choose waves or dates' }]);
+  }
+  const rows = await recordedWaves(db, siteId, sel);
+  if (rows.length === 0) throw new AppError('validation', 'no_waves', 'No released waves match; choose other waves or dates', [{ field: 'work', message: 'no waves' }]);
+  const plans = new Set(rows.map((w) => w.plan_id));
+  if (plans.size > 1) {
+    throw new AppError('validation', 'mixed_plans', `These waves were planned on ${plans.size} different floor plans; a study compares waves of one plan`, [{ field: 'work', message: 'waves of several plans' }]);
+  }
+  const trips = await tripsOfWaves(db, rows.map((w) => w.id));
+  const tripIds = trips.map((t) => t.id);
+  const [stops, lines, units] = await Promise.all([stopsOfTrips(db, tripIds), linesOfTrips(db, tripIds), skuUnits(db, siteId)]);
+  const unitOf = new Map(units.map((u) => [u.sku, u]));
+  const waves: StudyWave[] = rows.map((w) => {
+    const mine = trips.filter((t) => t.wave_id === w.id);
+    const byOrder = new Map<string, PlannerOrder>();
+    const recorded: RecordedTrip[] = mine.map((t) => {
+      const ls = lines.filter((l) => l.trip_id === t.id);
+      for (const l of ls) {
+        const o = byOrder.get(l.order_ref) ?? { ref: l.order_ref, due: null, priority: null, lines: [] };
+        const u = unitOf.get(l.sku);
+        o.lines.push({ sku: l.sku, qty: l.qty, bin: l.bin, unitKg: u?.unit_weight_kg ?? 0, unitLitres: u?.unit_volume_l ?? 0 });
+        byOrder.set(l.order_ref, o);
+      }
+      const ss = stops.filter((s) => s.trip_id === t.id);
+      const confirmed = ss.filter((s) => s.status === 'done').sort((a, b) => (a.done_seq ?? a.n) - (b.done_seq ?? b.n) || a.id - b.id);
+      return {
+        orders: [...new Set(ls.map((l) => l.order_ref))],
+        stopBins: ss.map((s) => binsOf(s.bins)),
+        lines: ls.length,
+        plannedMetres: t.planned_metres,
+        walkedMetres: t.walked_metres,
+        confirmedBins: confirmed.map((s) => binsOf(s.bins)),
+      };
+    });
+    return { id: w.id, name: w.name, orders: [...byOrder.values()], cart: { totes: w.cart_totes, maxKg: w.cart_max_kg, maxLitres: w.cart_max_litres }, recorded };
+  });
+  const days = new Set(rows.map((w) => w.created_at.slice(0, 10))).size;
+  return { waves, planId: rows[0]!.plan_id, depotIdx: rows[0]!.depot_idx, days };
+}
+
+/** Everything the worker needs, read from the database and generated from the seed. */
+async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promise<Work> {
+  const site = (await getSiteRow(db, siteId))!;
+  const speeds = settingsOf(site);
+  let waves: StudyWave[];
+  let base: StudyPlanInput;
+  let dayScale: number;
+  if (inputs.work.kind === 'recorded') {
+    const r = await recordedWork(db, siteId, inputs);
+    waves = r.waves;
+    base = await basePlanOf(db, siteId, inputs, r.planId, r.depotIdx);
+    dayScale = 1 / r.days;
+  } else {
+    const w = inputs.work;
+    base = await basePlanOf(db, siteId, inputs, null, 0);
+    let cart = FALLBACK_CART;
+    if (w.cartProfileId !== undefined) {
+      const c = await getCartProfile(db, siteId, w.cartProfileId);
+      if (!c) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'work.cartProfileId', message: 'unknown cart profile' }]);
+      cart = { totes: c.totes, maxKg: c.maxKg, maxLitres: c.maxLitres };
+    }
+    waves = generateStudyOrders(base.geometry.bins, w.orders, inputs.seed).map((orders, i) => ({ id: i + 1, name: `Generated wave ${i + 1}`, orders, cart }));
+    dayScale = w.wavesPerDay / w.orders.waves;
+  }
+  try {
+    for (const wi of inputs.whatIfs) applyChanges(base, wi.changes);
+  } catch (e) {
+    if (e instanceof StudyInputError) throw new AppError('validation', 'validation_failed', e.message, [{ field: 'whatIfs', message: e.message }]);
+    throw e;
+  }
+  return {
+    base, whatIfs: inputs.whatIfs, waves, tripsFrom: inputs.work.kind === 'recorded' ? 'recorded' : inputs.work.batching,
+    routing: inputs.routing, batching: inputs.batching, speeds, dayScale, seed: inputs.seed,
+  };
+}
+
+interface Job {
+  progress: number;
+  phase: string | null;
+  worker: Worker | null;
+  cancelled: boolean;
+}
+
+/** Live state of queued and running studies; the database holds everything else. */
+const jobs = new Map<number, Job>();
+/** Studies run one at a time: the machine has two cores shared with every request. */
+let queue: Promise<unknown> = Promise.resolve();
+
+function runWorker(id: number, job: Job, work: Work): Promise<StudyResults> {
+  return new Promise<StudyResults>((resolve, reject) => {
+    const worker = spawnTsWorker(new URL('./study.worker.ts', import.meta.url), work, { maxOldGenerationSizeMb: 1536 });
+    job.worker = worker;
+    let settled = false;
+    const finish = (fn: () => void) => {
+      if (settled) return;
+      settled = true;
+      clearTimeout(timer);
+      job.worker = null;
+      fn();
+      void worker.terminate();
+    };
+    const timer = setTimeout(() => finish(() => reject(new Error(`the study did not finish within ${STUDY_TIMEOUT_MS / 60_000} minutes`))), STUDY_TIMEOUT_MS);
+    worker.on('message', (msg: { type: string; progress?: StudyProgress; result?: StudyResults; message?: string }) => {
+      if (msg.type === 'progress' && msg.progress) {
+        job.progress = msg.progress.fraction;
+        job.phase = msg.progress.phase;
+      } else if (msg.type === 'result') finish(() => resolve(msg.result!));
+      else if (msg.type === 'error') finish(() => reject(new Error(msg.message)));
+    });
+    worker.on('error', (err) => finish(() => reject(err)));
+    worker.on('exit', (code) => finish(() => reject(new Error(job.cancelled ? 'cancelled' : `the study worker stopped (code ${code})`))));
+  });
+}
+
+function enqueue(deps: Deps, id: number, work: Work): void {
+  const job: Job = { progress: 0, phase: 'queued', worker: null, cancelled: false };
+  jobs.set(id, job);
+  const run = queue.then(async () => {
+    if (job.cancelled) return;
+    await setStudyStatus(deps.db, id, { status: 'running' });
+    job.phase = 'starting';
+    try {
+      const results = await runWorker(id, job, work);
+      if (job.cancelled) return;
+      await setStudyStatus(deps.db, id, { status: 'done', results: JSON.stringify(results), finished_at: nowIso() });
+    } catch (err) {
+      if (job.cancelled) return;
+      deps.logger.warn({ err, study: id }, 'study failed');
+      await setStudyStatus(deps.db, id, { status: 'failed', error: (err as Error).message, finished_at: nowIso() });
+    } finally {
+      jobs.delete(id);
+    }
+  });
+  queue = run.catch((err: unknown) => deps.logger.error({ err, study: id }, 'study bookkeeping failed'));
+}
+
+/**
+ * Saves a study and starts it. The active plan is resolved to its id first, so a rerun uses the same
+ * plan after another one is activated. Validation and work preparation happen before anything is saved.
+ */
+export async function createStudy(deps: Deps, siteId: number, userId: number, body: StudyInputsBody, rerunOf: number | null = null): Promise<StudySummary> {
+  const inputs = StudyInputs.parse(body);
+  if (inputs.work.kind === 'generated' && inputs.work.plan.source === 'active') {
+    const planId = await activePlanId(deps.db, siteId);
+    if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; choose a draft or generate one');
+    inputs.work.plan = { source: 'plan', planId };
+  }
+  const work = await prepareWork(deps.db, siteId, inputs);
+  const id = await insertStudy(deps.db, {
+    site_id: siteId, name: inputs.name, kind: inputs.work.kind, seed: inputs.seed, inputs: JSON.stringify(inputs), status: 'queued',
+    rerun_of: rerunOf, created_by: userId, created_at: nowIso(),
+  });
+  enqueue(deps, id, work);
+  return (await getStudySummary(deps.db, siteId, id))!;
+}
+
+async function getStudySummary(db: Knex, siteId: number, id: number): Promise<StudySummary | null> {
+  const row = await getStudyRow(db, siteId, id);
+  return row ? toSummary(row, jobs.get(id)) : null;
+}
+
+/** A row still queued or running with no job in memory was cut off by a restart. */
+async function settleOrphan<T extends { id: number; status: string }>(db: Knex, row: T): Promise<T> {
+  if ((row.status === 'queued' || row.status === 'running') && !jobs.has(row.id)) {
+    const error = 'The server restarted while this study ran; rerun it';
+    await setStudyStatus(db, row.id, { status: 'failed', error, finished_at: nowIso() });
+    return { ...row, status: 'failed', error };
+  }
+  return row;
+}
+
+export async function listStudies(db: Knex, siteId: number): Promise<StudySummary[]> {
+  const rows = await listStudyRows(db, siteId);
+  return Promise.all(rows.map(async (r) => toSummary(await settleOrphan(db, r), jobs.get(r.id))));
+}
+
+export async function getStudy(db: Knex, siteId: number, id: number): Promise<StudyDetail> {
+  const row = await getStudyRow(db, siteId, id);
+  if (!row) throw notFound('Study');
+  return toDetail(await settleOrphan(db, row), jobs.get(id));
+}
+
+/** Stops a queued or running study (its worker is terminated); a finished one is left as it is. */
+export async function cancelStudy(deps: Deps, siteId: number, id: number): Promise<StudySummary> {
+  const row = await getStudyRow(deps.db, siteId, id);
+  if (!row) throw notFound('Study');
+  const job = jobs.get(id);
+  if (!job) throw new AppError('conflict', 'not_running', `This study is ${row.status}; only a queued or running study can be cancelled`);
+  job.cancelled = true;
+  await job.worker?.terminate();
+  jobs.delete(id);
+  await setStudyStatus(deps.db, id, { status: 'cancelled', finished_at: nowIso() });
+  return (await getStudySummary(deps.db, siteId, id))!;
+}
+
+/** A new study with the same inputs and seed (named "… (rerun)"). */
+export async function rerunStudy(deps: Deps, siteId: number, userId: number, id: number): Promise<StudySummary> {
+  const row = await getStudyRow(deps.db, siteId, id);
+  if (!row) throw notFound('Study');
+  const inputs = StudyInputs.parse(JSON.parse(row.inputs));
+  const name = inputs.name.endsWith('(rerun)') ? inputs.name : `${inputs.name.slice(0, 110)} (rerun)`;
+  return createStudy(deps, siteId, userId, { ...inputs, name }, id);
+}
+
+/** Built variant plans of recently viewed studies (route drawing), a few at a time. */
+const planCache = new Map<string, BuiltPlan>();
+const PLAN_CACHE_LIMIT = 6;
+
+async function variantPlan(db: Knex, siteId: number, detail: StudyDetail, variant: string): Promise<BuiltPlan> {
+  const key = `${detail.id}:${variant}`;
+  const hit = planCache.get(key);
+  if (hit) return hit;
+  const results = detail.results;
+  const v = results?.variants.find((x) => x.key === variant);
+  if (!results || !v) throw notFound('Study plan');
+  let recordedPlanId: number | null = null;
+  let depotIdx = 0;
+  if (detail.inputs.work.kind === 'recorded') {
+    const r = await recordedWork(db, siteId, detail.inputs);
+    recordedPlanId = r.planId;
+    depotIdx = r.depotIdx;
+  }
+  const base = await basePlanOf(db, siteId, detail.inputs, recordedPlanId, depotIdx);
+  const built = buildPlan(v.changes.length ? applyChanges(base, v.changes) : base);
+  planCache.set(key, built);
+  while (planCache.size > PLAN_CACHE_LIMIT) planCache.delete(planCache.keys().next().value!);
+  return built;
+}
+
+async function doneStudy(db: Knex, siteId: number, id: number): Promise<StudyDetail & { results: StudyResults }> {
+  const detail = await getStudy(db, siteId, id);
+  if (!detail.results) throw new AppError('conflict', 'study_not_done', 'This study has no results yet');
+  return detail as StudyDetail & { results: StudyResults };
+}
+
+/** The plan of one variant (geometry and closures) for the maps. */
+export async function studyPlan(db: Knex, siteId: number, id: number, variant: string): Promise<{ geometry: PlanGeometry; closures: { kind: 'aisle' | 'cross_aisle'; code: string; from: number; to: number }[] }> {
+  const detail = await doneStudy(db, siteId, id);
+  const plan = await variantPlan(db, siteId, detail, variant);
+  return { geometry: plan.input.geometry, closures: plan.input.closures };
+}
+
+/** One trip's route by one method on one variant. */
+export async function studyRoute(db: Knex, siteId: number, id: number, q: { variant: string; trip: number; method: RoutingMethodKey }): Promise<StudyRoute> {
+  const detail = await doneStudy(db, siteId, id);
+  const v = detail.results.variants.find((x) => x.key === q.variant);
+  const trip = v?.trips.find((t) => t.n === q.trip);
+  if (!v || !trip) throw notFound('Trip');
+  const plan = await variantPlan(db, siteId, detail, q.variant);
+  const r = tripRoute(plan, trip, q.method, detail.results.seed);
+  return { method: q.method, label: ROUTING_LABELS[q.method], ...r };
+}
+
+export { doneStudy };

@@ -1,0 +1,512 @@
+/**
+ * The study computation: the same work (orders grouped in waves, or trips as recorded) on a base plan
+ * and on what-if changes of it, routed by every chosen method and batched by every chosen batching
+ * method, with Held–Karp bounds and hours at the site's speeds. Imports only the engine and pure
+ * helpers, so the worker and the tests call this very function.
+ *
+ * Reproducible: every budget inside runs on a step counter (`stepClock`), not on wall time, so the
+ * same inputs and seed give the same figures on any machine and under any load. Only the compute
+ * times (`ms`) are wall-clock.
+ */
+import { batchOrders } from '../core/batch/index';
+import type { Cart, Order } from '../core/batch/types';
+import type { Clock } from '../core/clock';
+import { circuitLength } from '../core/matrix';
+import type { DistanceMatrix } from '../core/matrix';
+import { buildDistanceIndex, circuitPolyline, pairDistance, tripMatrix, type DistanceIndex } from '../core/plan/distances';
+import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import { buildWalkGraph, type WalkGraph } from '../core/plan/walk-graph';
+import { toBlockLayout, type BlockLayout } from '../core/policy/layout';
+import { combined, largestGap, midpoint, returnPolicy, sShape } from '../core/policy/policies';
+import { ratliffRosenthal } from '../core/policy/ratliff-rosenthal';
+import { isNotApplicable, type PolicyResult, type PolicyStop } from '../core/policy/types';
+import { HELD_KARP_MAX_POINTS, heldKarpBound, solveTour, type ImproveMode, type TourMethod } from '../core/tour/index';
+import { estimateMinutes, type PlannerOrder, type SiteSpeeds } from '../waves/wave-planner';
+import { BATCHING_LABELS, type BatchingName } from '../../shared/waves';
+import {
+  DEFAULT_ROUTING,
+  ROUTING_LABELS,
+  type BatchingRow,
+  type PlanChange,
+  type RecordedWaveRow,
+  type RoutingMethodKey,
+  type RoutingRow,
+  type StudyResults,
+  type StudyTrip,
+  type StudyVariant,
+  type WhatIf,
+  type WhatIfRow,
+} from '../../shared/studies';
+
+/** A clock that advances one unit per reading: budgets become step counts, the same on every run. */
+export function stepClock(): Clock {
+  let t = 0;
+  return () => ++t;
+}
+
+/** Budgets in steps of `stepClock`. Deep search reads the clock a few times per kick. */
+export const DEEP_STEPS = 1500;
+const BOUND_STEPS = 400;
+/** Effectively unlimited, but finite where a method insists on a finite budget. */
+const UNLIMITED_STEPS = 1e12;
+
+export interface StudyPlanInput {
+  geometry: PlanGeometry;
+  closures: PlanClosure[];
+  depotIdx: number;
+}
+
+export interface RecordedTrip {
+  /** Order refs carried. */
+  orders: string[];
+  /** Bin codes of each planned stop, in planned order. */
+  stopBins: string[][];
+  lines: number;
+  plannedMetres: number;
+  /** Stored walked metres when the picking side saved them, else null. */
+  walkedMetres: number | null;
+  /** Bin codes of each confirmed stop, in the order the picker confirmed them. */
+  confirmedBins: string[][];
+}
+
+export interface StudyWave {
+  id: number;
+  name: string;
+  orders: PlannerOrder[];
+  cart: Cart;
+  /** Present for recorded waves: the trips as released. */
+  recorded?: RecordedTrip[];
+}
+
+export interface StudyEngineInput {
+  base: StudyPlanInput;
+  whatIfs: WhatIf[];
+  waves: StudyWave[];
+  /** Trips compared by the routing methods: as recorded, or batched by this method. */
+  tripsFrom: 'recorded' | BatchingName;
+  routing: RoutingMethodKey[];
+  batching: BatchingName[];
+  speeds: SiteSpeeds;
+  dayScale: number;
+  seed: number;
+  progress?: (fraction: number, phase: string) => void;
+}
+
+export class StudyInputError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'StudyInputError';
+  }
+}
+
+/**
+ * The plan with what-if changes applied: aisle stretches closed, cross aisles added across every
+ * aisle, the depot moved. Bins stay where they are. Throws StudyInputError for a change that names no
+ * aisle or falls outside the plan. O(aisles + changes).
+ */
+export function applyChanges(base: StudyPlanInput, changes: readonly PlanChange[]): StudyPlanInput {
+  const geometry: PlanGeometry = { ...base.geometry, crossAisles: [...base.geometry.crossAisles], depots: [...base.geometry.depots] };
+  const closures = [...base.closures];
+  const xs = geometry.aisles.map((a) => a.x);
+  const ys = geometry.aisles.flatMap((a) => [a.yStart, a.yEnd]);
+  const [xMin, xMax, yMin, yMax] = [Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)];
+  let added = 0;
+  for (const c of changes) {
+    if (c.kind === 'close_aisle') {
+      const aisle = geometry.aisles.find((a) => a.code === c.aisle);
+      if (!aisle) throw new StudyInputError(`what-if: aisle ${c.aisle} is not on the plan`);
+      if (!(c.toM > c.fromM)) throw new StudyInputError(`what-if: the closed stretch of aisle ${c.aisle} must end after it starts`);
+      closures.push({ kind: 'aisle', code: c.aisle, from: c.fromM, to: c.toM });
+    } else if (c.kind === 'add_cross_aisle') {
+      if (!(c.yM > yMin && c.yM < yMax)) throw new StudyInputError(`what-if: a cross aisle at y = ${c.yM} m lies outside the aisles (y ${yMin}–${yMax} m)`);
+      if (geometry.crossAisles.some((x) => Math.abs(x.y - c.yM) < 0.5)) throw new StudyInputError(`what-if: the plan already has a cross aisle at y = ${c.yM} m`);
+      geometry.crossAisles.push({ code: `added-${++added}`, y: c.yM, xStart: xMin, xEnd: xMax });
+    } else {
+      const depot = geometry.depots[base.depotIdx];
+      if (!depot) throw new StudyInputError('what-if: the plan has no depot to move');
+      geometry.depots[base.depotIdx] = { code: depot.code, x: c.xM, y: c.yM };
+    }
+  }
+  return { geometry, closures, depotIdx: base.depotIdx };
+}
+
+export interface BuiltPlan {
+  input: StudyPlanInput;
+  graph: WalkGraph;
+  index: DistanceIndex;
+  depotNode: number;
+  nodeOfBin: Map<string, number>;
+  /** Block layout for the routing policies, or why they do not apply. */
+  layout: BlockLayout | { reason: string };
+  stopOf: (node: number) => PolicyStop | null;
+}
+
+/** Walk graph and distance index of a plan (O(bins log bins + hubs² log hubs), ~70 ms at 2,880 bins). */
+export function buildPlan(input: StudyPlanInput): BuiltPlan {
+  const graph = buildWalkGraph(input.geometry, input.closures);
+  const index = buildDistanceIndex(graph, { budgetMs: 120_000 });
+  const depotNode = graph.depotNode[input.depotIdx];
+  if (depotNode === undefined) throw new StudyInputError(`the plan has no depot number ${input.depotIdx + 1}`);
+  const nodeOfBin = new Map<string, number>();
+  input.geometry.bins.forEach((b, i) => {
+    const node = graph.binNode[i]!;
+    if (node >= 0) nodeOfBin.set(b.code, node);
+  });
+  const depot = input.geometry.depots[input.depotIdx]!;
+  const layout = toBlockLayout(input.geometry, { depot: depot.code, closures: input.closures });
+  const stopOf = (node: number): PolicyStop | null => {
+    if (isNotApplicable(layout)) return null;
+    const a = graph.aisle[node] ?? -1;
+    if (a < 0) return null;
+    const i = layout.aisleIndex.get(input.geometry.aisles[a]!.code);
+    return i === undefined ? null : { aisle: i, y: graph.y[node]! };
+  };
+  return { input, graph, index, depotNode, nodeOfBin, layout, stopOf };
+}
+
+const POLICY_FNS = {
+  's-shape': sShape,
+  return: returnPolicy,
+  midpoint,
+  'largest-gap': largestGap,
+  combined,
+  'ratliff-rosenthal': ratliffRosenthal,
+} as const;
+type PolicyKey = keyof typeof POLICY_FNS;
+const isPolicy = (k: RoutingMethodKey): k is PolicyKey => k in POLICY_FNS;
+
+export interface RouteAnswer {
+  /** Metres, depot to depot; null when the method does not apply. */
+  length: number | null;
+  /** Visiting order as indices into the trip's stops. */
+  visits: number[];
+  reason: string | null;
+  /** Axis-parallel path of a policy, depot to depot (policies only). */
+  path?: { x: number; y: number }[];
+}
+
+/**
+ * One trip (`nodes` ascending, the depot not among them) routed by one method. Tour methods solve the
+ * matrix over depot + stops; policies walk the block layout and add the depot's link to the front
+ * cross aisle twice, as the wave planner does. Deterministic (step-clock budgets).
+ */
+export function routeTrip(plan: BuiltPlan, nodes: readonly number[], m: DistanceMatrix, key: RoutingMethodKey, seed: number): RouteAnswer {
+  if (isPolicy(key)) {
+    if (isNotApplicable(plan.layout)) return { length: null, visits: [], reason: plan.layout.reason };
+    const layout = plan.layout;
+    const stops: PolicyStop[] = [];
+    for (const node of nodes) {
+      const s = plan.stopOf(node);
+      if (!s) return { length: null, visits: [], reason: `a stop (node ${node}) is not on the layout's aisles` };
+      stops.push(s);
+    }
+    const depot = layout.depots[0]!;
+    const r: PolicyResult = POLICY_FNS[key](layout, depot.x, stops);
+    if (isNotApplicable(r)) return { length: null, visits: [], reason: r.reason };
+    const d = plan.input.geometry.depots[plan.input.depotIdx]!;
+    return { length: r.length + 2 * depot.offset, visits: r.order, reason: null, path: [{ x: d.x, y: d.y }, ...r.path, { x: d.x, y: d.y }] };
+  }
+  let method: TourMethod;
+  let improve: ImproveMode;
+  if (key === 'exact') {
+    if (m.n > HELD_KARP_MAX_POINTS) return { length: null, visits: [], reason: `more than ${HELD_KARP_MAX_POINTS - 1} stops` };
+    method = 'exact';
+    improve = 'none';
+  } else {
+    const [c, i] = key.split('+') as [TourMethod, ImproveMode];
+    method = c;
+    improve = i;
+  }
+  const r = solveTour(m, { method, improve, clock: stepClock(), timeLimitMs: improve === 'deep' ? DEEP_STEPS : UNLIMITED_STEPS, seed });
+  return { length: r.length, visits: r.order.slice(1).map((k) => k - 1), reason: null };
+}
+
+/** Metres no circuit through the trip can beat: Held–Karp's optimum up to 16 stops, else its 1-tree bound. */
+export function tripBound(m: DistanceMatrix, bestKnown: number): number {
+  if (m.n <= 1) return 0;
+  if (m.n <= HELD_KARP_MAX_POINTS) return solveTour(m, { method: 'exact', clock: stepClock(), timeLimitMs: UNLIMITED_STEPS }).length;
+  return heldKarpBound(m, { upperBound: bestKnown, clock: stepClock(), timeLimitMs: BOUND_STEPS }).lowerBound;
+}
+
+/** Engine orders of a wave on a plan; orders naming a bin not on it are returned as unplaced. */
+function engineOrders(plan: BuiltPlan, orders: readonly PlannerOrder[]): { orders: Order[]; unplaced: { order: string; reason: string }[] } {
+  const out: Order[] = [];
+  const unplaced: { order: string; reason: string }[] = [];
+  for (const o of orders) {
+    const missing = o.lines.filter((l) => !plan.nodeOfBin.has(l.bin)).map((l) => l.bin);
+    if (missing.length) {
+      unplaced.push({ order: o.ref, reason: `bin ${[...new Set(missing)].join(', ')} is not on this plan or has no access point` });
+      continue;
+    }
+    out.push({
+      ref: o.ref,
+      ...(o.due ? { due: Date.parse(o.due) } : {}),
+      ...(o.priority !== null ? { priority: o.priority } : {}),
+      lines: o.lines.map((l) => ({ sku: l.sku, qty: l.qty, node: plan.nodeOfBin.get(l.bin)!, bin: l.bin, unitKg: l.unitKg, unitLitres: l.unitLitres })),
+    });
+  }
+  return { orders: out, unplaced };
+}
+
+interface WorkTrip {
+  wave: number;
+  orders: number;
+  lines: number;
+  nodes: number[];
+}
+
+/** Trips of one wave by a batching method: distinct stop nodes (ascending) per batch. */
+function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: BatchingName, wave: number): { trips: WorkTrip[]; unplaced: { order: string; reason: string }[] } {
+  const r = batchOrders({
+    orders, cart, method, depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), clock: stepClock(), timeLimitMs: UNLIMITED_STEPS,
+  });
+  const trips = r.batches.map((b) => {
+    const nodes = new Set<number>();
+    let lines = 0;
+    for (const i of b.orders) for (const l of orders[i]!.lines) {
+      nodes.add(l.node);
+      lines++;
+    }
+    return { wave, orders: b.orders.length, lines, nodes: [...nodes].filter((v) => v !== plan.depotNode).sort((a, b2) => a - b2) };
+  });
+  return { trips, unplaced: r.unplaced.map((u) => ({ order: u.order, reason: u.reason })) };
+}
+
+const matrixOfTrip = (plan: BuiltPlan, nodes: readonly number[]): DistanceMatrix => tripMatrix(plan.index, [plan.depotNode, ...nodes]);
+const pct = (a: number, b: number): number => (b > 0 ? (a / b - 1) * 100 : 0);
+const hoursOf = (trips: readonly { lines: number; stops: number; metres: number }[], s: SiteSpeeds): number =>
+  trips.reduce((h, t) => h + estimateMinutes(t.metres, t.lines, t.stops, s) / 60, 0);
+
+/** Runs the whole study. Cost: per plan, the build plus (methods × trips) routings and one bound per trip. */
+export function runStudy(input: StudyEngineInput): StudyResults {
+  const t0 = performance.now();
+  const report = input.progress ?? (() => {});
+  const notes: string[] = [];
+  const variantsIn: { key: string; label: string; changes: PlanChange[] }[] = [
+    { key: 'base', label: 'Plan as it is', changes: [] },
+    ...input.whatIfs.map((w, i) => ({ key: `what-if-${i + 1}`, label: w.label, changes: w.changes })),
+  ];
+  const routingKeys = [...new Set<RoutingMethodKey>([...input.routing, DEFAULT_ROUTING])];
+  const tripCount = input.waves.reduce((s, w) => s + (w.recorded?.length ?? w.orders.length), 0);
+  const unitsPerVariant = 1 + input.batching.length * Math.max(1, tripCount / 4) + tripCount;
+  let done = 0;
+  const tick = (units: number, phase: string) => {
+    done += units;
+    report(Math.min(0.99, done / (unitsPerVariant * variantsIn.length)), phase);
+  };
+
+  const variants: StudyVariant[] = [];
+  let recorded: RecordedWaveRow[] | null = null;
+  for (const v of variantsIn) {
+    const planInput = v.changes.length ? applyChanges(input.base, v.changes) : input.base;
+    const plan = buildPlan(planInput);
+    tick(1, `${v.label}: walk graph built`);
+    const unplaced: { order: string; reason: string }[] = [];
+    const ordersByWave = input.waves.map((w) => {
+      const r = engineOrders(plan, w.orders);
+      unplaced.push(...r.unplaced);
+      return r.orders;
+    });
+
+    // Batching table: every method, each trip routed by the default method.
+    const batching: BatchingRow[] = [];
+    const batchedTrips = new Map<BatchingName, WorkTrip[]>();
+    for (const method of input.batching) {
+      const tb = performance.now();
+      const trips: WorkTrip[] = [];
+      input.waves.forEach((w, wi) => {
+        const r = batchWave(plan, ordersByWave[wi]!, w.cart, method, wi + 1);
+        trips.push(...r.trips);
+        if (method === input.batching[0]) unplaced.push(...r.unplaced);
+      });
+      batchedTrips.set(method, trips);
+      let metres = 0;
+      let bound = 0;
+      const figures = trips.map((t) => {
+        const m = matrixOfTrip(plan, t.nodes);
+        const len = routeTrip(plan, t.nodes, m, DEFAULT_ROUTING, input.seed).length!;
+        metres += len;
+        bound += tripBound(m, len);
+        return { lines: t.lines, stops: t.nodes.length, metres: len };
+      });
+      const hours = hoursOf(figures, input.speeds);
+      const lines = trips.reduce((s, t) => s + t.lines, 0);
+      batching.push({
+        method, label: BATCHING_LABELS[method], trips: trips.length, orders: trips.reduce((s, t) => s + t.orders, 0), lines, metres,
+        metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBestPct: 0,
+        aboveBoundPct: pct(metres, bound), hours, hoursPerDay: hours * input.dayScale, ms: performance.now() - tb,
+      });
+      tick(Math.max(1, tripCount / 4), `${v.label}: batching by ${BATCHING_LABELS[method]}`);
+    }
+    const bestBatch = Math.min(...batching.map((b) => b.metres));
+    for (const b of batching) b.aboveBestPct = pct(b.metres, bestBatch);
+
+    // The trips the routing methods are compared on.
+    let work: WorkTrip[];
+    if (input.tripsFrom === 'recorded') {
+      work = [];
+      input.waves.forEach((w, wi) => {
+        for (const t of w.recorded ?? []) {
+          const nodes = new Set<number>();
+          let missing = 0;
+          for (const bins of t.stopBins) for (const b of bins) {
+            const node = plan.nodeOfBin.get(b);
+            if (node === undefined) missing++;
+            else if (node !== plan.depotNode) nodes.add(node);
+          }
+          if (missing) notes.push(`${v.label}: ${missing} bin(s) of a trip of ${w.name} are not on this plan and were left out`);
+          work.push({ wave: wi + 1, orders: t.orders.length, lines: t.lines, nodes: [...nodes].sort((a, b) => a - b) });
+        }
+      });
+    } else {
+      work = batchedTrips.get(input.tripsFrom) ?? [];
+      if (!batchedTrips.has(input.tripsFrom)) {
+        input.waves.forEach((w, wi) => work.push(...batchWave(plan, ordersByWave[wi]!, w.cart, input.tripsFrom as BatchingName, wi + 1).trips));
+      }
+    }
+
+    const ms = new Map<RoutingMethodKey, number>(routingKeys.map((k) => [k, 0]));
+    // Why each method failed on each trip; only the first reason per method reaches the table.
+    const tripReasons: Record<string, string>[] = [];
+    const trips: StudyTrip[] = work.map((t, ti) => {
+      const m = matrixOfTrip(plan, t.nodes);
+      const metres: Record<string, number | null> = {};
+      const visits: Record<string, number[]> = {};
+      const reasons: Record<string, string> = {};
+      for (const key of routingKeys) {
+        const tr = performance.now();
+        const r = routeTrip(plan, t.nodes, m, key, input.seed);
+        ms.set(key, ms.get(key)! + performance.now() - tr);
+        metres[key] = r.length;
+        visits[key] = r.visits;
+        if (r.reason) reasons[key] = r.reason;
+      }
+      const known = Object.values(metres).filter((x): x is number => x !== null);
+      const lowerBound = tripBound(m, Math.min(...known));
+      tripReasons.push(reasons);
+      tick(1, `${v.label}: routing trip ${ti + 1} of ${work.length}`);
+      return { n: ti + 1, wave: t.wave, orders: t.orders, lines: t.lines, nodes: t.nodes, lowerBound, metres, visits };
+    });
+    const lowerBound = trips.reduce((s, t) => s + t.lowerBound, 0);
+    const lines = trips.reduce((s, t) => s + t.lines, 0);
+    const routing: RoutingRow[] = routingKeys.filter((k) => input.routing.includes(k) || k === DEFAULT_ROUTING).map((key) => {
+      const missing = trips.filter((t) => t.metres[key] === null);
+      const row: RoutingRow = {
+        key, label: ROUTING_LABELS[key], applicable: missing.length === 0 && trips.length > 0, reason: null, metres: null, metresPerTrip: null,
+        metresPerLine: null, aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null, ms: ms.get(key)!,
+      };
+      if (missing.length) {
+        const why = tripReasons[missing[0]!.n - 1]![key] ?? 'does not apply';
+        row.reason = missing.length === trips.length ? why : `${missing.length} of ${trips.length} trips: ${why}`;
+        return row;
+      }
+      const metres = trips.reduce((s, t) => s + t.metres[key]!, 0);
+      const hours = hoursOf(trips.map((t) => ({ lines: t.lines, stops: t.nodes.length, metres: t.metres[key]! })), input.speeds);
+      return { ...row, metres, metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBoundPct: pct(metres, lowerBound), hours, hoursPerDay: hours * input.dayScale };
+    });
+    const best = Math.min(...routing.filter((r) => r.metres !== null).map((r) => r.metres!));
+    for (const r of routing) if (r.metres !== null) r.aboveBestPct = pct(r.metres, best);
+
+    if (v.key === 'base' && input.tripsFrom === 'recorded') recorded = recordedRows(plan, input.waves, trips);
+    variants.push({
+      key: v.key, label: v.label, changes: v.changes,
+      layout: {
+        aisles: planInput.geometry.aisles.length, crossAisles: planInput.geometry.crossAisles.length, bins: planInput.geometry.bins.length,
+        blocks: isNotApplicable(plan.layout) ? null : plan.layout.blocks, policyNote: isNotApplicable(plan.layout) ? plan.layout.reason : null,
+      },
+      depotNode: plan.depotNode, routing, batching, trips, unplaced, lowerBound, lines,
+    });
+  }
+
+  report(1, 'done');
+  return {
+    seed: input.seed,
+    speeds: { walkingSpeedMps: input.speeds.walkingSpeedMps, secondsPerLine: input.speeds.secondsPerLine, secondsPerStop: input.speeds.secondsPerStop },
+    cart: input.waves[0]?.cart ?? { totes: 0, maxKg: 0, maxLitres: 0 },
+    dayScale: input.dayScale,
+    defaultRouting: DEFAULT_ROUTING,
+    variants,
+    whatIf: whatIfRows(variants),
+    recorded,
+    notes: [...new Set(notes)],
+    ms: performance.now() - t0,
+  };
+}
+
+/** Per method and per batching method: each what-if against the plan as it is. */
+function whatIfRows(variants: StudyVariant[]): WhatIfRow[] {
+  const base = variants[0];
+  if (!base) return [];
+  const rows: WhatIfRow[] = [];
+  for (const v of variants.slice(1)) {
+    for (const r of v.routing) {
+      const b = base.routing.find((x) => x.key === r.key);
+      rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay));
+    }
+    for (const r of v.batching) {
+      const b = base.batching.find((x) => x.method === r.method);
+      rows.push(diffRow(v, `batching:${r.method}`, `${r.label} (routed by the default method)`, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay));
+    }
+  }
+  return rows;
+}
+
+function diffRow(v: StudyVariant, method: string, methodLabel: string, baseMetres: number | null, metres: number | null, baseHours: number | null, hours: number | null): WhatIfRow {
+  const both = baseMetres !== null && metres !== null;
+  return {
+    variant: v.key, label: v.label, method, methodLabel, baseMetres, metres,
+    deltaMetres: both ? metres - baseMetres : null,
+    deltaPct: both ? pct(metres, baseMetres) : null,
+    deltaHoursPerDay: baseHours !== null && hours !== null ? hours - baseHours : null,
+  };
+}
+
+/** Recorded waves: planned metres against the walk as confirmed, and the default method today. */
+function recordedRows(plan: BuiltPlan, waves: readonly StudyWave[], trips: readonly StudyTrip[]): RecordedWaveRow[] {
+  return waves.map((w, wi) => {
+    const rec = w.recorded ?? [];
+    let plannedConfirmed = 0;
+    let walked = 0;
+    let confirmed = 0;
+    for (const t of rec) {
+      if (t.confirmedBins.length === 0 && t.walkedMetres === null) continue;
+      confirmed++;
+      plannedConfirmed += t.plannedMetres;
+      walked += t.walkedMetres ?? confirmedWalk(plan, t.confirmedBins);
+    }
+    const mine = trips.filter((t) => t.wave === wi + 1);
+    const defaults = mine.map((t) => t.metres[DEFAULT_ROUTING] ?? null);
+    return {
+      waveId: w.id, name: w.name, trips: rec.length, confirmedTrips: confirmed,
+      plannedMetres: rec.reduce((s, t) => s + t.plannedMetres, 0), plannedConfirmedMetres: plannedConfirmed,
+      walkedMetres: confirmed ? walked : null, walkedAbovePlannedPct: confirmed && plannedConfirmed > 0 ? pct(walked, plannedConfirmed) : null,
+      defaultMetres: defaults.every((d) => d !== null) ? defaults.reduce<number>((s, d) => s + d!, 0) : null,
+    };
+  });
+}
+
+/** Depot → each confirmed stop in confirmation order → depot, on the plan's shortest walking distances. */
+export function confirmedWalk(plan: BuiltPlan, confirmedBins: readonly string[][]): number {
+  const nodes: number[] = [plan.depotNode];
+  for (const bins of confirmedBins) {
+    const node = bins.map((b) => plan.nodeOfBin.get(b)).find((n) => n !== undefined);
+    if (node !== undefined) nodes.push(node);
+  }
+  if (nodes.length === 1) return 0;
+  return circuitLength(tripMatrix(plan.index, nodes), nodes.map((_, i) => i));
+}
+
+/** Polyline and numbered stops of one trip by one method, for the side-by-side maps. */
+export function tripRoute(plan: BuiltPlan, trip: StudyTrip, key: RoutingMethodKey, seed: number): { points: { x: number; y: number }[]; stops: { n: number; x: number; y: number }[]; metres: number | null; reason: string | null } {
+  const m = matrixOfTrip(plan, trip.nodes);
+  const r = routeTrip(plan, trip.nodes, m, key, seed);
+  if (r.length === null) return { points: [], stops: [], metres: null, reason: r.reason };
+  const g = plan.graph;
+  const stops = r.visits.map((k, i) => ({ n: i + 1, x: g.x[trip.nodes[k]!]!, y: g.y[trip.nodes[k]!]! }));
+  if (r.path) return { points: r.path, stops, metres: r.length, reason: null };
+  const circuit = [plan.depotNode, ...r.visits.map((k) => trip.nodes[k]!)];
+  const poly = circuitPolyline(g, circuit, true, plan.index);
+  const points: { x: number; y: number }[] = [];
+  if (poly) for (let i = 0; i + 1 < poly.length; i += 2) points.push({ x: poly[i]!, y: poly[i + 1]! });
+  return { points, stops, metres: r.length, reason: null };
+}

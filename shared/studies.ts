@@ -1,0 +1,280 @@
+/**
+ * Studies: an engineer's saved comparison of routing and batching methods on recorded waves or a
+ * generated scenario, on the plan as it is and on what-if changes of it. One schema per shape, used by
+ * the server to validate and by the client to parse.
+ */
+import { z } from 'zod';
+import { GeneratePlanParams } from './floor-plans';
+import { BatchingName } from './waves';
+
+/**
+ * Every routing method a study can compare. Tour methods are `<construction>+<improvement>` on the
+ * shortest walking distances; the rest are the warehouse routing policies and the two exact methods.
+ */
+export const ROUTING_METHOD_KEYS = [
+  'nearest-neighbor+none', 'nearest-neighbor+local', 'nearest-neighbor+deep',
+  'repeated-nearest-neighbor+none', 'repeated-nearest-neighbor+local', 'repeated-nearest-neighbor+deep',
+  'sorted-edges+none', 'sorted-edges+local', 'sorted-edges+deep',
+  'best+none', 'best+local', 'best+deep',
+  'exact',
+  's-shape', 'return', 'midpoint', 'largest-gap', 'combined',
+  'ratliff-rosenthal',
+] as const;
+export const RoutingMethodKey = z.enum(ROUTING_METHOD_KEYS);
+export type RoutingMethodKey = z.infer<typeof RoutingMethodKey>;
+
+/** What a wave is routed with unless someone chooses otherwise (the wave builder's default). */
+export const DEFAULT_ROUTING: RoutingMethodKey = 'best+local';
+
+const CONSTRUCTION_LABELS: Record<string, string> = {
+  'nearest-neighbor': 'Nearest neighbor',
+  'repeated-nearest-neighbor': 'Repeated nearest neighbor',
+  'sorted-edges': 'Sorted edges',
+  best: 'Best of repeated NN and sorted edges',
+};
+const IMPROVE_SUFFIX: Record<string, string> = { none: '', local: ' + 2-opt/Or-opt', deep: ' + deep search' };
+
+export const ROUTING_LABELS: Record<RoutingMethodKey, string> = Object.fromEntries(
+  ROUTING_METHOD_KEYS.map((k) => {
+    const [c, imp] = k.split('+');
+    if (imp !== undefined) return [k, `${CONSTRUCTION_LABELS[c!]}${IMPROVE_SUFFIX[imp]}`];
+    const named: Record<string, string> = {
+      exact: 'Exact (Held–Karp, ≤ 16 stops)',
+      's-shape': 'S-shape (traversal)',
+      return: 'Return',
+      midpoint: 'Midpoint',
+      'largest-gap': 'Largest gap',
+      combined: 'Combined',
+      'ratliff-rosenthal': 'Exact single block (Ratliff & Rosenthal)',
+    };
+    return [k, named[k]!];
+  }),
+) as Record<RoutingMethodKey, string>;
+
+/** One change of a what-if plan. Metres in the plan's coordinates. */
+export const PlanChange = z.discriminatedUnion('kind', [
+  z.strictObject({ kind: z.literal('close_aisle'), aisle: z.string().trim().min(1).max(40), fromM: z.number(), toM: z.number() }),
+  z.strictObject({ kind: z.literal('add_cross_aisle'), yM: z.number() }),
+  z.strictObject({ kind: z.literal('move_depot'), xM: z.number(), yM: z.number() }),
+]);
+export type PlanChange = z.infer<typeof PlanChange>;
+
+export const WhatIf = z.strictObject({
+  label: z.string().trim().min(1).max(80),
+  changes: z.array(PlanChange).min(1).max(5),
+});
+export type WhatIf = z.infer<typeof WhatIf>;
+
+export const StudyPlanSource = z.discriminatedUnion('source', [
+  z.strictObject({ source: z.literal('active') }),
+  z.strictObject({ source: z.literal('plan'), planId: z.number().int().positive() }),
+  z.strictObject({ source: z.literal('generated'), params: GeneratePlanParams }),
+]);
+export type StudyPlanSource = z.infer<typeof StudyPlanSource>;
+
+/** Generated orders: SKUs slotted at random over the bins; popularity follows an ABC curve. */
+export const GeneratedOrders = z
+  .strictObject({
+    waves: z.number().int().min(1).max(20),
+    ordersPerWave: z.number().int().min(1).max(400),
+    linesMin: z.number().int().min(1).max(40),
+    linesMax: z.number().int().min(1).max(40),
+    /** SKUs in the range; capped at the plan's bin count. */
+    skus: z.number().int().min(1).max(50_000),
+    /** "skuPct % of the SKUs draw linesPct % of the lines", e.g. 20/80. */
+    skewSkuPct: z.number().gt(0).lt(100),
+    skewLinesPct: z.number().gt(0).lt(100),
+    qtyMax: z.number().int().min(1).max(50).default(3),
+  })
+  .refine((o) => o.linesMin <= o.linesMax, { message: 'linesMin must not exceed linesMax', path: ['linesMin'] })
+  .refine((o) => o.skewLinesPct >= o.skewSkuPct, { message: 'the popular share of lines must be at least the share of SKUs', path: ['skewLinesPct'] });
+export type GeneratedOrders = z.infer<typeof GeneratedOrders>;
+
+export const StudyWork = z.discriminatedUnion('kind', [
+  z.strictObject({
+    kind: z.literal('recorded'),
+    /** Chosen by hand; or all released waves created in [from, to] (ISO dates, inclusive). */
+    waveIds: z.array(z.number().int().positive()).max(200).optional(),
+    from: z.iso.date().optional(),
+    to: z.iso.date().optional(),
+  }),
+  z.strictObject({
+    kind: z.literal('generated'),
+    plan: StudyPlanSource,
+    orders: GeneratedOrders,
+    /** Batching of the trips the routing methods are compared on. */
+    batching: BatchingName.default('savings'),
+    cartProfileId: z.number().int().positive().optional(),
+    /** How many waves like these the site picks a day: scales hours to hours per day. */
+    wavesPerDay: z.number().positive().max(200),
+  }),
+]);
+export type StudyWork = z.infer<typeof StudyWork>;
+
+export const StudyInputs = z.strictObject({
+  name: z.string().trim().min(1).max(120),
+  work: StudyWork,
+  routing: z.array(RoutingMethodKey).min(1).default([...ROUTING_METHOD_KEYS]),
+  batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings']),
+  whatIfs: z.array(WhatIf).max(4).default([]),
+  seed: z.number().int().min(0).max(2 ** 31 - 1).default(1),
+});
+export type StudyInputs = z.infer<typeof StudyInputs>;
+export type StudyInputsBody = z.input<typeof StudyInputs>;
+
+const num = z.number();
+const maybe = num.nullable();
+
+/** One routing method on one plan: the whole work routed by it. */
+export const RoutingRow = z.object({
+  key: RoutingMethodKey,
+  label: z.string(),
+  /** False when the method does not apply (layout, trip size); `reason` says why. */
+  applicable: z.boolean(),
+  reason: z.string().nullable(),
+  metres: maybe,
+  metresPerTrip: maybe,
+  metresPerLine: maybe,
+  aboveBestPct: maybe,
+  aboveBoundPct: maybe,
+  /** Walking plus handling at the site's speeds, for the work in the study. */
+  hours: maybe,
+  hoursPerDay: maybe,
+  /** Compute time, milliseconds (wall clock; the only figure that changes between runs). */
+  ms: num,
+});
+export type RoutingRow = z.infer<typeof RoutingRow>;
+
+export const BatchingRow = z.object({
+  method: BatchingName,
+  label: z.string(),
+  trips: z.number().int(),
+  orders: z.number().int(),
+  lines: z.number().int(),
+  metres: num,
+  metresPerTrip: num,
+  metresPerLine: num,
+  aboveBestPct: num,
+  aboveBoundPct: num,
+  hours: num,
+  hoursPerDay: num,
+  ms: num,
+});
+export type BatchingRow = z.infer<typeof BatchingRow>;
+
+/** One trip of the routed work: its stops and what each method makes of it. */
+export const StudyTrip = z.object({
+  /** 1-based across the study. */
+  n: z.number().int(),
+  wave: z.number().int(),
+  orders: z.number().int(),
+  lines: z.number().int(),
+  /** Walk-graph nodes of the stops, ascending (the engine's input order). */
+  nodes: z.array(z.number().int()),
+  lowerBound: num,
+  metres: z.record(z.string(), maybe),
+  /** Visiting order per method, as indices into `nodes`. */
+  visits: z.record(z.string(), z.array(z.number().int())),
+});
+export type StudyTrip = z.infer<typeof StudyTrip>;
+
+export const StudyVariant = z.object({
+  key: z.string(),
+  label: z.string(),
+  changes: z.array(PlanChange),
+  layout: z.object({ aisles: z.number().int(), crossAisles: z.number().int(), bins: z.number().int(), blocks: z.number().int().nullable(), policyNote: z.string().nullable() }),
+  depotNode: z.number().int(),
+  routing: z.array(RoutingRow),
+  batching: z.array(BatchingRow),
+  trips: z.array(StudyTrip),
+  unplaced: z.array(z.object({ order: z.string(), reason: z.string() })),
+  lowerBound: num,
+  lines: z.number().int(),
+});
+export type StudyVariant = z.infer<typeof StudyVariant>;
+
+export const WhatIfRow = z.object({
+  variant: z.string(),
+  label: z.string(),
+  method: z.string(),
+  methodLabel: z.string(),
+  baseMetres: maybe,
+  metres: maybe,
+  deltaMetres: maybe,
+  deltaPct: maybe,
+  deltaHoursPerDay: maybe,
+});
+export type WhatIfRow = z.infer<typeof WhatIfRow>;
+
+/** Recorded waves: what was planned against what pickers walked, stops in the order they confirmed them. */
+export const RecordedWaveRow = z.object({
+  waveId: z.number().int(),
+  name: z.string(),
+  trips: z.number().int(),
+  confirmedTrips: z.number().int(),
+  plannedMetres: num,
+  /** Planned metres of the trips with confirmed stops only, so it compares with `walkedMetres`. */
+  plannedConfirmedMetres: num,
+  walkedMetres: maybe,
+  walkedAbovePlannedPct: maybe,
+  /** The same trips routed now by the default method on the study's base plan. */
+  defaultMetres: maybe,
+});
+export type RecordedWaveRow = z.infer<typeof RecordedWaveRow>;
+
+export const StudyResults = z.object({
+  seed: z.number().int(),
+  speeds: z.object({ walkingSpeedMps: num, secondsPerLine: num, secondsPerStop: num }),
+  cart: z.object({ totes: z.number().int(), maxKg: num, maxLitres: num }),
+  /** Hours per day = hours × dayScale (waves per day ÷ waves in the study, or 1 ÷ days covered). */
+  dayScale: num,
+  defaultRouting: RoutingMethodKey,
+  variants: z.array(StudyVariant),
+  whatIf: z.array(WhatIfRow),
+  recorded: z.array(RecordedWaveRow).nullable(),
+  notes: z.array(z.string()),
+  ms: num,
+});
+export type StudyResults = z.infer<typeof StudyResults>;
+
+export const StudyStatus = z.enum(['queued', 'running', 'done', 'failed', 'cancelled']);
+export type StudyStatus = z.infer<typeof StudyStatus>;
+
+export const StudySummary = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  kind: z.enum(['recorded', 'generated']),
+  status: StudyStatus,
+  progress: num,
+  phase: z.string().nullable(),
+  seed: z.number().int(),
+  createdBy: z.string().nullable(),
+  createdAt: z.string(),
+  finishedAt: z.string().nullable(),
+  rerunOf: z.number().int().nullable(),
+  error: z.string().nullable(),
+});
+export type StudySummary = z.infer<typeof StudySummary>;
+
+export const StudyDetail = StudySummary.extend({
+  inputs: StudyInputs,
+  results: StudyResults.nullable(),
+});
+export type StudyDetail = z.infer<typeof StudyDetail>;
+
+/** A route of one trip by one method, drawn on the variant's plan. */
+export const StudyRoute = z.object({
+  method: z.string(),
+  label: z.string(),
+  metres: maybe,
+  points: z.array(z.object({ x: num, y: num })),
+  stops: z.array(z.object({ n: z.number().int(), x: num, y: num })),
+  reason: z.string().nullable(),
+});
+export type StudyRoute = z.infer<typeof StudyRoute>;
+
+export const StudyRouteQuery = z.strictObject({
+  variant: z.string().min(1).max(40),
+  trip: z.coerce.number().int().positive(),
+  method: RoutingMethodKey,
+});

@@ -1,0 +1,230 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import * as XLSX from 'xlsx';
+import { planWave } from '../../../server/core/batch/plan-wave';
+import { generateRectangularPlan } from '../../../server/core/plan/generate';
+import { pairDistance, tripMatrix } from '../../../server/core/plan/distances';
+import { sShape } from '../../../server/core/policy/policies';
+import { isNotApplicable } from '../../../server/core/policy/types';
+import { solveTour } from '../../../server/core/tour/index';
+import { engineParams } from '../../../server/floor-plans/floor-plans.service';
+import { generateStudyOrders } from '../../../server/studies/generate-orders';
+import { buildPlan } from '../../../server/studies/study-engine';
+import type { GeneratePlanParams } from '../../../shared/floor-plans';
+import type { StudyDetail, StudyInputsBody, StudyResults, StudySummary } from '../../../shared/studies';
+import { csrf, type TestApp } from '../../helpers/app';
+import { makeDemoApp, releaseDemoWave } from '../../helpers/waves';
+
+/** One block (front and back cross aisles only): every routing policy applies. */
+const SINGLE_BLOCK: GeneratePlanParams = {
+  aisles: 8, aisleLengthM: 30, aisleSpacingM: 3.2, baysPerAisle: 15, levels: 2, bothSides: true,
+  crossAisles: { front: true, back: true, middle: 0 }, crossAisleWidthM: 3, depot: 'front_left',
+};
+
+const generated = (name: string, seed: number, extra: Partial<StudyInputsBody> = {}): StudyInputsBody => ({
+  name,
+  seed,
+  work: {
+    kind: 'generated',
+    plan: { source: 'generated', params: SINGLE_BLOCK },
+    orders: { waves: 2, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 },
+    batching: 'savings',
+    wavesPerDay: 10,
+  },
+  routing: ['best+local', 'best+deep', 'nearest-neighbor+none', 'exact', 's-shape', 'return', 'midpoint', 'largest-gap', 'combined', 'ratliff-rosenthal'],
+  batching: ['single', 'fcfs', 'seed', 'savings'],
+  whatIfs: [{ label: 'Middle cross aisle', changes: [{ kind: 'add_cross_aisle', yM: 15 }] }],
+  ...extra,
+});
+
+let t: TestApp;
+const base = () => `/api/sites/${t.siteId}/studies`;
+
+async function waitDone(id: number): Promise<StudyDetail & { results: StudyResults }> {
+  for (let i = 0; i < 1200; i++) {
+    const res = await t.as.engineer.get(`${base()}/${id}`);
+    expect(res.status).toBe(200);
+    const s = res.body as StudyDetail;
+    if (s.status === 'done') return s as StudyDetail & { results: StudyResults };
+    if (s.status === 'failed' || s.status === 'cancelled') throw new Error(`study ${id} ${s.status}: ${s.error}`);
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error('study did not finish in 120 s');
+}
+
+async function start(body: StudyInputsBody): Promise<StudySummary> {
+  const res = await t.as.engineer.post(base()).set(csrf).send(body);
+  expect(res.status, JSON.stringify(res.body)).toBe(202);
+  return res.body as StudySummary;
+}
+
+/** Figures only: compute times are wall-clock and differ between runs by design. */
+function figures(r: StudyResults): unknown {
+  return r.variants.map((v) => ({
+    routing: v.routing.map(({ ms: _ms, ...rest }) => rest),
+    batching: v.batching.map(({ ms: _ms, ...rest }) => rest),
+    trips: v.trips,
+  }));
+}
+
+let first: StudyDetail & { results: StudyResults };
+
+beforeAll(async () => {
+  t = await makeDemoApp();
+  first = await waitDone((await start(generated('Single block, 2–4 lines', 42))).id);
+}, 180_000);
+afterAll(() => t.close());
+
+describe('studies', () => {
+  it('lets engineers and supervisors in and keeps pickers and admins out', async () => {
+    expect((await t.as.engineer.get(base())).status).toBe(200);
+    expect((await t.as.supervisor.get(base())).status).toBe(200);
+    expect((await t.as.picker.get(base())).status).toBe(403);
+    expect((await t.as.picker.post(base()).set(csrf).send(generated('x', 1))).status).toBe(403);
+    expect((await t.as.picker.get(`${base()}/${first.id}/export.xlsx`)).status).toBe(403);
+    expect((await t.as.admin.get(base())).status).toBe(403);
+  });
+
+  it('gives identical figures when rerun with the same seed, and other figures with another seed', async () => {
+    const res = await t.as.engineer.post(`${base()}/${first.id}/rerun`).set(csrf).send({});
+    expect(res.status).toBe(202);
+    expect(res.body.rerunOf).toBe(first.id);
+    const again = await waitDone(res.body.id);
+    expect(again.inputs.seed).toBe(42);
+    expect(figures(again.results)).toEqual(figures(first.results));
+    const other = await waitDone((await start(generated('Other seed', 43))).id);
+    expect(figures(other.results)).not.toEqual(figures(first.results));
+  }, 240_000);
+
+  it("equals the engine's direct results for the same trips", () => {
+    const plan = buildPlan({ geometry: generateRectangularPlan(engineParams(SINGLE_BLOCK)), closures: [], depotIdx: 0 });
+    const v = first.results.variants[0]!;
+    expect(v.depotNode).toBe(plan.depotNode);
+    for (const trip of v.trips) {
+      const m = tripMatrix(plan.index, [plan.depotNode, ...trip.nodes]);
+      expect(trip.metres['best+local']).toBeCloseTo(solveTour(m, { method: 'best', improve: 'local', timeLimitMs: 10_000 }).length, 6);
+      expect(trip.metres['nearest-neighbor+none']).toBeCloseTo(solveTour(m, { method: 'nearest-neighbor' }).length, 6);
+      if (trip.nodes.length <= 16) expect(trip.metres.exact).toBeCloseTo(solveTour(m, { method: 'exact', timeLimitMs: 10_000 }).length, 6);
+      const layout = plan.layout;
+      if (isNotApplicable(layout)) throw new Error(layout.reason);
+      const s = sShape(layout, layout.depots[0]!.x, trip.nodes.map((n) => plan.stopOf(n)!));
+      if (isNotApplicable(s)) throw new Error(s.reason);
+      // The wave planner's convention: the depot's link to the front cross aisle is walked out and back.
+      expect(trip.metres['s-shape']).toBeCloseTo(s.length + 2 * layout.depots[0]!.offset, 6);
+    }
+    // The whole savings row against the engine's wave planner on the same generated orders.
+    const waves = generateStudyOrders(plan.input.geometry.bins, { waves: 2, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 }, 42);
+    let direct = 0;
+    for (const orders of waves) {
+      const r = planWave({
+        orders: orders.map((o) => ({ ref: o.ref, lines: o.lines.map((l) => ({ ...l, node: plan.nodeOfBin.get(l.bin)! })) })),
+        cart: first.results.cart, batching: 'savings', depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), timeLimitMs: 60_000,
+      });
+      direct += r.totals.metres;
+    }
+    expect(v.batching.find((b) => b.method === 'savings')!.metres).toBeCloseTo(direct, 6);
+    // Ratliff & Rosenthal is optimal on one block and Held–Karp is optimal: they agree where both apply.
+    for (const trip of v.trips) if (trip.nodes.length <= 16) expect(trip.metres['ratliff-rosenthal']).toBeCloseTo(trip.metres.exact!, 6);
+  });
+
+  it('ranks S-shape longer than largest gap and the default method on one block (Petersen 1997; Roodbergen & de Koster 2001)', () => {
+    const routing = first.results.variants[0]!.routing;
+    const m = (k: string) => routing.find((r) => r.key === k)!.metres!;
+    expect(m('s-shape')).toBeGreaterThan(m('largest-gap'));
+    expect(m('s-shape')).toBeGreaterThan(m('best+local'));
+    // No route is shorter than the optimum, and the bound is below every route.
+    expect(m('best+local')).toBeGreaterThanOrEqual(m('ratliff-rosenthal') - 1e-6);
+    for (const r of routing) if (r.metres !== null) expect(r.aboveBoundPct!).toBeGreaterThanOrEqual(-1e-9);
+  });
+
+  it('reduces total metres by batching orders of 2–4 lines against one order per trip (de Koster, van der Poort & Wolters 1999)', () => {
+    const b = first.results.variants[0]!.batching;
+    const single = b.find((x) => x.method === 'single')!;
+    for (const method of ['fcfs', 'seed', 'savings'] as const) expect(b.find((x) => x.method === method)!.metres).toBeLessThan(single.metres);
+    expect(single.trips).toBe(48);
+  });
+
+  it('reports the what-if per method: a middle cross aisle shortens S-shape routes here', () => {
+    const row = first.results.whatIf.find((w) => w.method === 's-shape')!;
+    expect(row.deltaMetres).toBeLessThan(0);
+    expect(row.deltaMetres).toBeCloseTo(row.metres! - row.baseMetres!, 6);
+    const whatIf = first.results.variants[1]!;
+    expect(whatIf.layout.blocks).toBe(2);
+    expect(whatIf.routing.find((r) => r.key === 'largest-gap')!.applicable).toBe(false);
+  });
+
+  it('exports a workbook whose sheets hold the same figures as the page', async () => {
+    const res = await t.as.engineer.get(`${base()}/${first.id}/export.xlsx`).buffer(true).parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+    expect(res.status).toBe(200);
+    const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
+    expect(wb.SheetNames[0]).toBe('inputs');
+    expect(wb.SheetNames).toEqual(expect.arrayContaining(['routing', 'batching', 'trips', 'routing what-if 1', 'what-if']));
+    const inputs = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.inputs!, { header: 1 });
+    expect(inputs.find((r) => r[0] === 'seed')![1]).toBe(42);
+    const rows = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.routing!, { header: 1 }).slice(2);
+    const page = first.results.variants[0]!.routing;
+    expect(rows.length).toBe(page.length);
+    for (const r of page) {
+      const row = rows.find((x) => x[0] === r.key)!;
+      expect(row[2]).toBe(r.metres === null ? '' : Math.round(r.metres * 10) / 10);
+      expect(row[8]).toBe(r.hoursPerDay === null ? '' : Math.round(r.hoursPerDay * 100) / 100);
+    }
+    const batching = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.batching!, { header: 1 }).slice(2);
+    for (const b of first.results.variants[0]!.batching) expect(batching.find((x) => x[0] === b.method)![5]).toBe(Math.round(b.metres * 10) / 10);
+  });
+
+  it('draws one trip by two methods for the side-by-side maps', async () => {
+    const q = (method: string) => t.as.engineer.get(`${base()}/${first.id}/route`).query({ variant: 'base', trip: 1, method });
+    const [a, b] = await Promise.all([q('s-shape'), q('best+local')]);
+    expect(a.status).toBe(200);
+    expect(b.status).toBe(200);
+    const trip = first.results.variants[0]!.trips[0]!;
+    expect(a.body.metres).toBeCloseTo(trip.metres['s-shape']!, 6);
+    expect(b.body.stops).toHaveLength(trip.nodes.length);
+    // The drawn polyline is as long as the figure in the table.
+    const len = (pts: { x: number; y: number }[]) => pts.slice(1).reduce((s, p, i) => s + Math.hypot(p.x - pts[i]!.x, p.y - pts[i]!.y), 0);
+    expect(len(a.body.points)).toBeCloseTo(trip.metres['s-shape']!, 3);
+    expect(len(b.body.points)).toBeCloseTo(trip.metres['best+local']!, 3);
+    const plan = await t.as.engineer.get(`${base()}/${first.id}/plans/what-if-1`);
+    expect(plan.status).toBe(200);
+    expect(plan.body.geometry.crossAisles).toHaveLength(3);
+  });
+
+  it('cancels a running study by stopping its worker', async () => {
+    const big = generated('Big', 5, { work: { ...(generated('x', 5).work as object), orders: { waves: 6, ordersPerWave: 200, linesMin: 2, linesMax: 8, skus: 200, skewSkuPct: 20, skewLinesPct: 80 } } as StudyInputsBody['work'] });
+    const s = await start(big);
+    const res = await t.as.engineer.post(`${base()}/${s.id}/cancel`).set(csrf).send({});
+    expect(res.status).toBe(200);
+    expect(res.body.status).toBe('cancelled');
+    const after = await t.as.engineer.get(`${base()}/${s.id}`);
+    expect(after.body.status).toBe('cancelled');
+    expect((await t.as.engineer.post(`${base()}/${s.id}/cancel`).set(csrf).send({})).status).toBe(409);
+  });
+
+  it('compares a recorded wave: planned metres as released, walked metres as confirmed', async () => {
+    const wave = await releaseDemoWave(t, { orders: 12, batching: 'savings' });
+    const s = await start({ name: 'Recorded', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local', 's-shape'], batching: ['single', 'savings'] });
+    let done = await waitDone(s.id);
+    const rec = done.results.recorded![0]!;
+    expect(rec.waveId).toBe(wave.id);
+    expect(rec.plannedMetres).toBeCloseTo(wave.plannedMetres, 1);
+    expect(rec.walkedMetres).toBeNull();
+    // A picker confirms the first trip's stops in reverse order: the walk is the reversed circuit, the same length.
+    const trip = (await t.deps.db('trips').where({ wave_id: wave.id }).orderBy('n').first<{ id: number; planned_metres: number }>())!;
+    const stops: { id: number }[] = await t.deps.db('stops').where({ trip_id: trip.id }).orderBy('n', 'desc');
+    for (const [i, st] of stops.entries()) await t.deps.db('stops').where({ id: st.id }).update({ status: 'done', done_seq: i + 1 });
+    done = await waitDone((await start({ name: 'Recorded again', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['savings'] })).id);
+    const again = done.results.recorded![0]!;
+    expect(again.confirmedTrips).toBe(1);
+    expect(again.walkedMetres!).toBeCloseTo(trip.planned_metres, 1);
+  }, 120_000);
+
+  it('refuses what-ifs outside the plan before saving anything', async () => {
+    const res = await t.as.engineer.post(base()).set(csrf).send(generated('Bad', 1, { whatIfs: [{ label: 'No such aisle', changes: [{ kind: 'close_aisle', aisle: 'ZZ', fromM: 0, toM: 5 }] }] }));
+    expect(res.status).toBe(400);
+    expect(res.body.error.message).toMatch(/aisle ZZ/);
+  });
+});
