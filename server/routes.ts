@@ -10,6 +10,7 @@ import { tokenRoutes } from './integrations/tokens.routes';
 import { mailRoutes } from './mail/mail.routes';
 import { orderRoutes } from './orders/orders.routes';
 import { siteRoutes } from './sites/sites.routes';
+import { studyRoutes } from './studies/studies.routes';
 import { systemRoutes } from './system/system.routes';
 import { userRoutes } from './users/users.routes';
 import { waveRoutes } from './waves/waves.routes';
@@ -24,4 +25,5 @@ export const routeTable: readonly AnyRoute[] = [
   ...floorPlanRoutes,
   ...orderRoutes,
   ...waveRoutes,
+  ...studyRoutes,
 ];
