@@ -12,7 +12,8 @@ import { fileURLToPath } from 'node:url';
 import { chromium, type Page } from '@playwright/test';
 import { createServer, type ViteDevServer } from 'vite';
 
-const CHROMIUM = '/usr/bin/chromium';
+// Overridable so the skip path can be tried without touching the machine's browser.
+const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 // STACK.md, gotcha 9: Debian's Chromium, never a downloaded browser.
 const CHROMIUM_ARGS = [
   '--headless',
