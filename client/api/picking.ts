@@ -1,0 +1,78 @@
+/** Typed calls for the picker's tablet and the supervisor's live board (shared/picking.ts). */
+import { z } from 'zod';
+import { Ok } from '@shared/common';
+import { Board, CancelResult, CloseWaveResult, CurrentTrip, PickAnswer, PickTrip, TripPlan, TripResult, type ShortReason } from '@shared/picking';
+import { ApiError, http } from './http';
+
+export const currentTrip = (siteId: number) => http('GET', `/api/sites/${siteId}/picking/current`, CurrentTrip);
+export const takeNextTrip = (siteId: number) => http('POST', `/api/sites/${siteId}/picking/next`, CurrentTrip);
+export const getTrip = (tripId: number) => http('GET', `/api/picking/trips/${tripId}`, PickTrip);
+export const getTripPlan = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/plan`, TripPlan);
+export const startTrip = (tripId: number) => http('POST', `/api/picking/trips/${tripId}/start`, PickTrip);
+export const getTripResult = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/result`, TripResult);
+
+/** One queued picker write: what the offline queue stores and replays with the same key. */
+export type PickAction =
+  | { kind: 'confirm'; tripId: number; lineId: number; body: { via: 'scan' | 'tap'; scan: string | null; pickedAt: string } }
+  | { kind: 'short'; tripId: number; lineId: number; body: { qtyFound: number; reason: ShortReason; pickedAt: string } }
+  | { kind: 'skip'; tripId: number; stopId: number; body: { pickedAt: string } }
+  | { kind: 'finish'; tripId: number; body: Record<string, never> };
+
+export function actionPath(a: PickAction): string {
+  const base = `/api/picking/trips/${a.tripId}`;
+  switch (a.kind) {
+    case 'confirm':
+      return `${base}/lines/${a.lineId}/confirm`;
+    case 'short':
+      return `${base}/lines/${a.lineId}/short`;
+    case 'skip':
+      return `${base}/stops/${a.stopId}/skip`;
+    case 'finish':
+      return `${base}/finish`;
+  }
+}
+
+export type SendOutcome =
+  | { ok: true; answer: z.infer<typeof PickAnswer> | z.infer<typeof TripResult> }
+  | { ok: false; error: ApiError };
+
+/**
+ * Sends one picker write with its idempotency key. Not through `http`: the key and device headers
+ * are per request, and a network failure must come back as a value the queue can keep.
+ */
+export async function sendAction(a: PickAction, key: string, device: string, fetchFn: typeof fetch = globalThis.fetch): Promise<SendOutcome> {
+  let response: Response;
+  try {
+    response = await fetchFn(actionPath(a), {
+      method: 'POST',
+      credentials: 'same-origin',
+      headers: { accept: 'application/json', 'content-type': 'application/json', 'x-aislewright': '1', 'idempotency-key': key, 'x-aislewright-device': device },
+      body: JSON.stringify(a.body),
+    });
+  } catch {
+    return { ok: false, error: new ApiError('network', 'No connection to the server', 0) };
+  }
+  let json: unknown;
+  try {
+    json = await response.json();
+  } catch {
+    json = undefined;
+  }
+  if (!response.ok) {
+    const e = (json as { error?: { code?: string; message?: string; details?: unknown } } | undefined)?.error;
+    return { ok: false, error: new ApiError(e?.code ?? 'http_error', e?.message ?? `The server answered ${response.status}`, response.status, e?.details) };
+  }
+  const schema = a.kind === 'finish' ? TripResult : PickAnswer;
+  const parsed = schema.safeParse(json);
+  if (!parsed.success) return { ok: false, error: new ApiError('bad_response', 'Unexpected answer from the server', response.status) };
+  return { ok: true, answer: parsed.data };
+}
+
+// ---- live board ----
+export const getBoard = (siteId: number) => http('GET', `/api/sites/${siteId}/board`, Board);
+export const boardEventsUrl = (siteId: number) => `/api/sites/${siteId}/board/events`;
+export const assignTrip = (siteId: number, tripId: number, pickerId: number) => http('POST', `/api/sites/${siteId}/board/trips/${tripId}/assign`, Ok, { body: { pickerId } });
+export const cancelTrip = (siteId: number, tripId: number, reason?: string) => http('POST', `/api/sites/${siteId}/board/trips/${tripId}/cancel`, CancelResult, { body: reason ? { reason } : {} });
+export const closeWave = (siteId: number, waveId: number, reason?: string) => http('POST', `/api/sites/${siteId}/board/waves/${waveId}/close`, CloseWaveResult, { body: reason ? { reason } : {} });
+export const markShortHandled = (siteId: number, shortId: number) => http('POST', `/api/sites/${siteId}/board/shorts/${shortId}/handled`, Ok, { body: {} });
+export const waveReportUrl = (siteId: number, waveId: number) => `/api/sites/${siteId}/board/waves/${waveId}/report.xlsx`;

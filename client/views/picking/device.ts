@@ -1,0 +1,72 @@
+/** The tablet's own feedback and identity: a name for the audit trail, sound, vibration, screen wake. */
+const DEVICE_KEY = 'aislewright.device';
+
+/** A stable name for this tablet (kept in localStorage), recorded beside every confirmation. */
+export function deviceName(): string {
+  let name = localStorage.getItem(DEVICE_KEY);
+  if (!name) {
+    const bytes = new Uint8Array(3);
+    crypto.getRandomValues(bytes);
+    name = `tablet-${Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('')}`;
+    localStorage.setItem(DEVICE_KEY, name);
+  }
+  return name;
+}
+
+let audio: AudioContext | null = null;
+
+/** A short tone through Web Audio: low and double for a wrong scan, high and single for a good one. */
+export function beep(kind: 'error' | 'ok'): void {
+  try {
+    audio ??= new AudioContext();
+    const ctx = audio;
+    const tones = kind === 'error' ? [220, 0, 220] : [880];
+    let t = ctx.currentTime;
+    for (const f of tones) {
+      if (f > 0) {
+        const osc = ctx.createOscillator();
+        const gain = ctx.createGain();
+        osc.type = kind === 'error' ? 'square' : 'sine';
+        osc.frequency.value = f;
+        gain.gain.setValueAtTime(0.25, t);
+        gain.gain.exponentialRampToValueAtTime(0.001, t + 0.18);
+        osc.connect(gain).connect(ctx.destination);
+        osc.start(t);
+        osc.stop(t + 0.18);
+      }
+      t += 0.2;
+    }
+  } catch {
+    // No audio output on this device: the message on screen still says what happened.
+  }
+}
+
+export function vibrate(kind: 'error' | 'ok'): void {
+  if (typeof navigator.vibrate === 'function') navigator.vibrate(kind === 'error' ? [180, 80, 180] : 60);
+}
+
+/**
+ * Keeps the screen on while a trip is open (Screen Wake Lock where the browser has it). The lock
+ * drops whenever the page is hidden, so it is asked for again when the page comes back.
+ */
+export function keepScreenOn(): () => void {
+  let lock: WakeLockSentinel | null = null;
+  let active = true;
+  const request = async () => {
+    if (!active || document.visibilityState !== 'visible' || !('wakeLock' in navigator)) return;
+    try {
+      lock = await navigator.wakeLock.request('screen');
+    } catch {
+      lock = null;
+    }
+  };
+  const onVisible = () => void request();
+  document.addEventListener('visibilitychange', onVisible);
+  void request();
+  return () => {
+    active = false;
+    document.removeEventListener('visibilitychange', onVisible);
+    void lock?.release().catch(() => undefined);
+    lock = null;
+  };
+}
