@@ -1,5 +1,6 @@
 import { flushPromises, mount } from '@vue/test-utils';
 import { afterEach, describe, expect, it } from 'vitest';
+import VueKonva from 'vue-konva';
 import FloorMap from '../../../client/components/floor-map/FloorMap.vue';
 import TripMiniMap from '../../../client/components/floor-map/TripMiniMap.vue';
 import { binCentre, buildPlanIndex } from '../../../client/components/floor-map/plan-index';
@@ -77,6 +78,14 @@ describe('FloorMap', () => {
     el.dispatchEvent(pointer('pointerup', s.x + 40, s.y + 10));
     await flushPromises();
     expect(w.emitted('bin-select')).toHaveLength(1);
+  });
+
+  it('also works when the shell installs vue-konva globally', async () => {
+    const w = mount(FloorMap, { props: { plan, width: 400, height: 300 }, global: { plugins: [VueKonva] }, attachTo: document.body });
+    wrappers.push(w);
+    await flushPromises();
+    expect(w.findAll('canvas').length).toBeGreaterThanOrEqual(2);
+    expect((w.vm as unknown as FloorMapApi).focusBin('B-02-01-1')).toBe(true);
   });
 
   it('exposes fit, focusBin and drawing stats through its ref', async () => {
