@@ -3,14 +3,12 @@
  * engine's planWave, and add what the screens need (route polylines, minutes at the site's speeds).
  * Pure apart from its inputs, so the server's worker and the CLI call the very same function.
  */
-import { planWave, type PlanWaveResult } from '../core/batch/plan-wave';
+import { planWave, policyComparisonOf, type PlanWaveResult } from '../core/batch/plan-wave';
 import type { Order } from '../core/batch/types';
 import { circuitPolyline, pairDistance, type DistanceIndex } from '../core/plan/distances';
 import type { PlanGeometry } from '../core/plan/types';
 import type { WalkGraph } from '../core/plan/walk-graph';
 import { isNotApplicable } from '../core/policy/types';
-import { stopOfBin, toBlockLayout } from '../core/policy/layout';
-import { sShape } from '../core/policy/policies';
 import type { ImproveMode, TourMethod } from '../core/tour/index';
 import type { BatchingName } from '../../shared/waves';
 
@@ -101,17 +99,8 @@ export function planWaveOnPlan(input: PlannerInput): PlannerOutput {
   }
 
   const depot = geometry.depots[input.depotIdx]!;
-  const layout = toBlockLayout(geometry, { depot: depot.code });
-  const policyLayout = isNotApplicable(layout)
-    ? undefined
-    : {
-        layout,
-        stopOf: (node: number) => {
-          const a = graph.aisle[node]!;
-          return a >= 0 ? stopOfBin(layout, { aisle: geometry.aisles[a]!.code, y: graph.y[node]! }) : null;
-        },
-        sShape: (l: typeof layout, stops: Parameters<typeof sShape>[2]) => sShape(l, l.depots[0]!.x, stops),
-      };
+  const policy = policyComparisonOf(geometry, graph, depot.code);
+  const policyLayout = isNotApplicable(policy) ? undefined : policy;
 
   const result = planWave({
     orders,
