@@ -39,13 +39,12 @@ for (const user of OFFICE) {
   });
 }
 
-test('picker signs in with badge and PIN, sees the safety note first, then the empty trip screen', async ({ page }) => {
+test('picker signs in with badge and PIN and lands on the trip screen with the safety caution', async ({ page }) => {
   await signInByBadge(page, 'P-1001', '246810');
   await expect(page).toHaveURL('/pick');
-  await expect(page.getByRole('heading', { name: 'Safety first' })).toBeVisible();
-  await page.getByRole('button', { name: 'I understand' }).click();
-  await expect(page.getByRole('heading', { name: 'No trip assigned yet' })).toBeVisible();
-  await expect(page.getByText(/forklift traffic rules/)).toBeVisible();
+  // PRODUCT.md, Safety: every picker screen carries the caution, shown from the start.
+  await expect(page.getByRole('note').filter({ hasText: 'forklift traffic rules' }).first()).toBeVisible();
+  await expect(page.getByRole('button', { name: 'Sign out' })).toBeVisible();
 });
 
 test('a picker who opens an admin page sees the not-allowed page, not the page or a blank screen', async ({ page }) => {
