@@ -58,7 +58,11 @@ function label(ctx: CanvasRenderingContext2D, text: string, x: number, y: number
 
 let scratch: Uint32Array = new Uint32Array(4096);
 
-/** Draws the plan (floor, racks, bins, closures, depots, labels). Returns bins drawn and the detail used. */
+/**
+ * Draws the plan (floor, racks, bins, closures, labels). Returns bins drawn and the detail used.
+ * `inset`: pixels of the drawing that lie outside the visible screen on each side (the cached
+ * bitmap's margin), so labels kept on screen are kept on the visible part.
+ */
 export function drawStaticScene(
   ctx: CanvasRenderingContext2D,
   g: SceneGeometry,
@@ -67,6 +71,7 @@ export function drawStaticScene(
   width: number,
   height: number,
   maxLevels: number,
+  inset = 0,
 ): { binsDrawn: number; detail: BinDetail } {
   const { plan, index } = g;
   const view = visibleWorldRect(vp, width, height, 24);
@@ -157,7 +162,7 @@ export function drawStaticScene(
   }
 
   drawClosures(ctx, g, p, vp, view);
-  drawLabels(ctx, g, p, vp, view);
+  drawLabels(ctx, g, p, vp, view, inset);
   return { binsDrawn, detail };
 }
 
@@ -248,7 +253,7 @@ export function drawDepotMarker(ctx: CanvasRenderingContext2D, sx: number, sy: n
   ctx.textAlign = 'left';
 }
 
-function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalette, vp: Viewport, view: WorldRect): void {
+function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalette, vp: Viewport, view: WorldRect, inset: number): void {
   const px = 12;
   ctx.font = `600 ${px}px ${MAP_FONT}`;
   ctx.textAlign = 'center';
@@ -281,7 +286,7 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
     const sy = vp.oy + (vp.flipY ? -c.y : c.y) * vp.scale;
     const w = ctx.measureText(c.code).width;
     // Left of the plan when there is room there, else just inside its left end (halo keeps it legible).
-    const x = Math.max(sx - 6, w + 8);
+    const x = Math.max(sx - 6, inset + w + 8);
     ctx.textAlign = 'right';
     label(ctx, c.code, x, sy, p, px);
   }
