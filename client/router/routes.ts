@@ -35,7 +35,9 @@ export const routes: RouteRecordRaw[] = [
   { path: '/orders', name: 'orders', component: later, meta: { roles: ['supervisor'], title: 'Orders', menu: { label: 'Orders', group: 'Floor' }, later: 'Import the open orders from a workbook, CSV or the JSON API.' } },
   { path: '/waves', name: 'waves', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Waves', menu: { label: 'Waves', group: 'Floor' }, later: 'Build waves by cut-off and priority, choose a cart profile, batching and routing method, preview the trips and release them.' } },
   { path: '/live', name: 'live-board', component: later, meta: { roles: ['supervisor'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' }, later: 'Follow every released trip as pickers confirm their stops; handle shorts and blocked aisles.' } },
-  { path: '/studies', name: 'studies', component: later, meta: { roles: ['engineer'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' }, later: 'Compare walking distance and time per method on recorded waves or generated scenarios, and export the figures.' } },
+  { path: '/studies', name: 'studies', component: () => import('@client/views/studies/StudiesView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' } } },
+  { path: '/studies/new', name: 'study-new', component: () => import('@client/views/studies/StudyNewView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'New study' } },
+  { path: '/studies/:id(\\d+)', name: 'study', component: () => import('@client/views/studies/StudyView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Study' } },
 
   { path: '/admin/users', name: 'admin-users', component: () => import('@client/views/AdminUsersView.vue'), meta: { roles: ['admin'], title: 'Users', menu: { label: 'Users', group: 'Admin' } } },
   { path: '/admin/sites', name: 'admin-sites', component: () => import('@client/views/AdminSitesView.vue'), meta: { roles: ['admin'], title: 'Sites & settings', menu: { label: 'Sites & settings', group: 'Admin' } } },

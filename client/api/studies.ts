@@ -1,0 +1,23 @@
+import { z } from 'zod';
+import { PlanGeometry } from '@shared/floor-plans';
+import { StudyDetail, StudyRoute, StudySummary, type RoutingMethodKey, type StudyInputsBody } from '@shared/studies';
+import { http } from './http';
+
+const base = (siteId: number) => `/api/sites/${siteId}/studies`;
+
+export const StudyPlan = z.object({
+  geometry: PlanGeometry,
+  closures: z.array(z.object({ kind: z.enum(['aisle', 'cross_aisle']), code: z.string(), from: z.number(), to: z.number() })),
+});
+export type StudyPlan = z.infer<typeof StudyPlan>;
+
+export const listStudies = (siteId: number) => http('GET', base(siteId), StudySummary.array());
+export const getStudy = (siteId: number, id: number) => http('GET', `${base(siteId)}/${id}`, StudyDetail);
+export const createStudy = (siteId: number, body: StudyInputsBody) => http('POST', base(siteId), StudySummary, { body });
+export const cancelStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/cancel`, StudySummary);
+export const rerunStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/rerun`, StudySummary);
+export const getStudyPlan = (siteId: number, id: number, variant: string) => http('GET', `${base(siteId)}/${id}/plans/${encodeURIComponent(variant)}`, StudyPlan);
+export const getStudyRoute = (siteId: number, id: number, q: { variant: string; trip: number; method: RoutingMethodKey }) =>
+  http('GET', `${base(siteId)}/${id}/route?${new URLSearchParams({ variant: q.variant, trip: String(q.trip), method: q.method })}`, StudyRoute);
+/** The workbook is a plain download: the browser keeps the session cookie on a same-origin link. */
+export const studyWorkbookUrl = (siteId: number, id: number) => `${base(siteId)}/${id}/export.xlsx`;
