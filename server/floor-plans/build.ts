@@ -1,12 +1,13 @@
 /** The main-thread side of build.worker.ts: its input, output and progress, and how to run it. */
 import type { FloorPlanStats } from '../../shared/floor-plans';
-import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import type { PlanClosure } from '../core/plan/types';
+import type { PackedPlan } from './packed-plan';
 import type { RectangularPlanParams } from '../core/plan/generate';
 import { AppError } from '../http/errors';
 import { runInWorker } from '../workers/spawn';
 
 export type BuildInput =
-  | { kind: 'geometry'; plan: PlanGeometry; closures: PlanClosure[]; budgetMs: number }
+  | { kind: 'geometry'; plan: PackedPlan; closures: PlanClosure[]; budgetMs: number }
   | { kind: 'generate'; params: RectangularPlanParams; closures: PlanClosure[]; budgetMs: number };
 
 export interface BuildProgress {
@@ -21,7 +22,7 @@ export interface SerializedSet {
 
 export interface BuildOutput {
   /** The generated geometry (generate jobs only; geometry jobs already have theirs). */
-  plan: PlanGeometry | null;
+  plan: PackedPlan | null;
   graph: SerializedSet;
   index: SerializedSet;
   storedBytes: number;

@@ -11,12 +11,13 @@ import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import { buildWalkGraph, NODE_ACCESS } from '../core/plan/walk-graph';
 import { serveJob } from '../workers/worker-protocol';
 import type { BuildInput, BuildOutput, BuildProgress, BuildRefusal } from './build';
+import { packPlan, unpackPlan } from './packed-plan';
 import { unreachableBinCodes } from './reachability';
 
 function build(input: BuildInput, progress: (p: BuildProgress) => void): BuildOutput {
   const t0 = defaultClock();
   progress({ phase: 'building_graph', fraction: 0 });
-  const plan: PlanGeometry = input.kind === 'generate' ? generateRectangularPlan(input.params as RectangularPlanParams) : input.plan;
+  const plan: PlanGeometry = input.kind === 'generate' ? generateRectangularPlan(input.params as RectangularPlanParams) : unpackPlan(input.plan);
   const closures: PlanClosure[] = input.closures;
   const graph = buildWalkGraph(plan, closures);
   progress({ phase: 'building_distances', fraction: 0 });
@@ -31,7 +32,7 @@ function build(input: BuildInput, progress: (p: BuildProgress) => void): BuildOu
   const g = serializeWalkGraph(graph);
   const ix = serializeDistanceIndex(index);
   return {
-    plan: input.kind === 'generate' ? plan : null,
+    plan: input.kind === 'generate' ? packPlan(plan) : null,
     graph: { json: g.json, blobs: g.blobs },
     index: { json: ix.json, blobs: ix.blobs },
     storedBytes: g.byteLength + ix.byteLength,

@@ -6,6 +6,7 @@ import type { Knex } from 'knex';
 import type { GeneratePlanParams } from '../../shared/floor-plans';
 import { BUILD_BUDGET_MS, runBuild } from './build';
 import { activatePlan, engineParams, saveBuiltPlan } from './floor-plans.service';
+import { unpackPlan } from './packed-plan';
 
 export const DEMO_PLAN_PARAMS: GeneratePlanParams = {
   aisles: 12,
@@ -25,7 +26,7 @@ export async function seedDemoFloorPlan(db: Knex, siteId: number, userIds: Recor
   const planId = await saveBuiltPlan(
     db,
     { siteId, userId, name: 'East hall (demo layout)', source: 'generated', sourceFilename: null, generatorParams: DEMO_PLAN_PARAMS, warnings: [] },
-    built.plan!,
+    unpackPlan(built.plan!),
     built,
   );
   await activatePlan(db, siteId, planId, userId);

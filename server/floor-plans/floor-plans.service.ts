@@ -31,6 +31,7 @@ import * as repo from './floor-plans.repository';
 import { checkFloorPlanFile } from './import';
 import { startJob, type JobControl, type JobOutcome } from './jobs';
 import { forgetPlanIndex, loadPlanIndex } from './plan-index';
+import { packPlan, unpackPlan } from './packed-plan';
 import { unreachableBinCodes } from './reachability';
 
 type CloseSegment = z.output<typeof CloseSegmentSchema>;
@@ -218,7 +219,7 @@ export function startUpload({ db, logger }: { db: Knex; logger: Logger }, input:
         return { status: 'invalid', errors: check.errors, warnings: check.warnings, message: `${check.errors.length} problem${check.errors.length === 1 ? '' : 's'} found; nothing was saved` };
       }
       const plan = check.plan;
-      const built = await buildWithProgress(control, { kind: 'geometry', plan, closures: [], budgetMs: BUILD_BUDGET_MS });
+      const built = await buildWithProgress(control, { kind: 'geometry', plan: packPlan(plan), closures: [], budgetMs: BUILD_BUDGET_MS });
       control.progress('saving', 0);
       const name = input.name?.trim() || stripExtension(input.filename) || 'Uploaded plan';
       const planId = await saveBuiltPlan(
@@ -257,7 +258,7 @@ export function startGenerate({ db, logger }: { db: Knex; logger: Logger }, inpu
       const planId = await saveBuiltPlan(
         db,
         { siteId: input.siteId, userId: input.userId, name: input.name, source: 'generated', sourceFilename: null, generatorParams: input.params, warnings: [] },
-        built.plan!,
+        unpackPlan(built.plan!),
         built,
         (f) => control.progress('saving', f),
       );
@@ -312,7 +313,7 @@ async function rebuildWithClosures(
 ): Promise<{ before: string[]; after: string[] }> {
   const loaded = await loadPlanIndex(db, planId);
   const before = unreachableBinCodes(loaded.geometry, loaded.graph);
-  const built = await runBuild({ kind: 'geometry', plan: loaded.geometry, closures, budgetMs: BUILD_BUDGET_MS });
+  const built = await runBuild({ kind: 'geometry', plan: packPlan(loaded.geometry), closures, budgetMs: BUILD_BUDGET_MS });
   const row = await mustPlan(db, siteId, planId);
   const nextVersion = row.closure_version + 1;
   await db.transaction(async (trx) => {

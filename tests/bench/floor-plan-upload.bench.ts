@@ -2,12 +2,13 @@
  * Upload to draft through the real HTTP stack (createApp on a file database, multipart upload, the
  * check and build workers, chunked saving), for the template and for 20,000- and 50,000-bin
  * workbooks; meanwhile GET /api/health is timed every 25 ms, showing whether the build blocks other
- * requests. Prints one row per workbook.
+ * requests, and the server's own event-loop delay is sampled. Prints one row per workbook.
  */
 import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { AddressInfo } from 'node:net';
+import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { generateRectangularPlan, type RectangularPlanParams } from '../../server/core/plan/generate';
 import { buildFloorPlanTemplate, floorPlanToWorkbook } from '../../server/floor-plans/import';
 import { FloorPlanDetail, FloorPlanJob } from '../../shared/floor-plans';
@@ -49,8 +50,23 @@ export async function run(): Promise<void> {
   });
   const cookie = signIn.headers.get('set-cookie')!.split(';')[0]!;
 
-  console.log('| workbook | file | upload → draft | check + build + save phases | stored graph + index | DB file after | health during build: n, median, p95, max |');
-  console.log('|---|---|---|---|---|---|---|');
+  console.log('| workbook | file | upload → draft | check + build + save phases | stored graph + index | DB file after | health during build: n, median, p95, max | event-loop delay: p99, max |');
+  console.log('|---|---|---|---|---|---|---|---|');
+  // Baseline: the same probes for 3 s with no build, so the rows below compare against this machine's load.
+  {
+    const health: number[] = [];
+    const lag = monitorEventLoopDelay({ resolution: 5 });
+    lag.enable();
+    const until = performance.now() + 3000;
+    while (performance.now() < until) {
+      const t0 = performance.now();
+      await fetch(`${url}/api/health`);
+      health.push(performance.now() - t0);
+      await new Promise((r) => setTimeout(r, 25));
+    }
+    lag.disable();
+    console.log(`| (no build, 3 s idle) | | | | | | ${health.length}, ${percentile(health, 50).toFixed(1)} ms, ${percentile(health, 95).toFixed(1)} ms, ${Math.max(...health).toFixed(1)} ms | ${(lag.percentile(99) / 1e6).toFixed(0)} ms, ${(lag.max / 1e6).toFixed(0)} ms |`);
+  }
   for (const p of plans) {
     const bytes = p.params ? floorPlanToWorkbook(generateRectangularPlan(p.params)) : buildFloorPlanTemplate();
     const health: number[] = [];
@@ -63,6 +79,8 @@ export async function run(): Promise<void> {
         await new Promise((r) => setTimeout(r, 25));
       }
     })();
+    const lag = monitorEventLoopDelay({ resolution: 5 });
+    lag.enable();
     const form = new FormData();
     form.append('file', new Blob([new Uint8Array(bytes)]), `${p.name}.xlsx`);
     const t0 = performance.now();
@@ -79,13 +97,14 @@ export async function run(): Promise<void> {
       }
     }
     const wall = performance.now() - t0;
+    lag.disable();
     building = false;
     await probe;
     if (job.status !== 'done') throw new Error(`${p.name}: ${job.status} ${job.message} ${JSON.stringify(job.errors.slice(0, 3))}`);
     const detail = FloorPlanDetail.parse(await (await fetch(`${url}/api/sites/${siteId}/floor-plans/${job.planId}`, { headers: { cookie } })).json());
     const fileMb = (statSync(file).size + (statSync(`${file}-wal`, { throwIfNoEntry: false })?.size ?? 0)) / 1024 / 1024;
     console.log(
-      `| ${p.name} (${detail.stats.bins} bins) | ${(bytes.length / 1024).toFixed(0)} KiB | ${Math.round(wall)} ms (job ${job.totalMs} ms) | ${phases.join(', ')} | ${(detail.storedBytes / 1024).toFixed(0)} KiB | ${fileMb.toFixed(1)} MB | ${health.length}, ${percentile(health, 50).toFixed(1)} ms, ${percentile(health, 95).toFixed(1)} ms, ${Math.max(...health).toFixed(1)} ms |`,
+      `| ${p.name} (${detail.stats.bins} bins) | ${(bytes.length / 1024).toFixed(0)} KiB | ${Math.round(wall)} ms (job ${job.totalMs} ms) | ${phases.join(', ')} | ${(detail.storedBytes / 1024).toFixed(0)} KiB | ${fileMb.toFixed(1)} MB | ${health.length}, ${percentile(health, 50).toFixed(1)} ms, ${percentile(health, 95).toFixed(1)} ms, ${Math.max(...health).toFixed(1)} ms | ${(lag.percentile(99) / 1e6).toFixed(0)} ms, ${(lag.max / 1e6).toFixed(0)} ms |`,
     );
   }
   server.close();
