@@ -26,7 +26,7 @@ export function drawRank(rng: Rng, skus: number, s: number): number {
 /**
  * `spec.waves` waves of `spec.ordersPerWave` orders each, lines uniform in [linesMin, linesMax]
  * (distinct SKUs in an order), quantities uniform in 1..qtyMax. Unit weight 0.2–3 kg and volume
- * 0.3–5 L per SKU (invented), so the cart's totes, not its load, usually limit a trip.
+ * 0.3–5 L per SKU (invented, the demo SKU master's ranges), so a large order can fill two totes.
  * O(bins + orders × lines). Deterministic for a seed.
  */
 export function generateStudyOrders(bins: readonly PlanBin[], spec: GeneratedOrders, seed: number): PlannerOrder[][] {
