@@ -9,6 +9,7 @@ import type { AnyRoute } from './http/route';
 import { tokenRoutes } from './integrations/tokens.routes';
 import { mailRoutes } from './mail/mail.routes';
 import { orderRoutes } from './orders/orders.routes';
+import { pickingRoutes } from './picking/picking.routes';
 import { siteRoutes } from './sites/sites.routes';
 import { studyRoutes } from './studies/studies.routes';
 import { systemRoutes } from './system/system.routes';
@@ -25,5 +26,6 @@ export const routeTable: readonly AnyRoute[] = [
   ...floorPlanRoutes,
   ...orderRoutes,
   ...waveRoutes,
+  ...pickingRoutes,
   ...studyRoutes,
 ];

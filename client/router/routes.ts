@@ -28,13 +28,13 @@ export const routes: RouteRecordRaw[] = [
   { path: '/', name: 'home', component: later, meta: { roleHome: true } },
   { path: '/account/password', name: 'change-password', component: () => import('@client/views/ChangePasswordView.vue'), meta: { roles: OFFICE, title: 'Change password' } },
 
-  { path: '/pick', name: 'pick', component: () => import('@client/views/PickHomeView.vue'), meta: { roles: ['picker'], title: 'My trip', menu: { label: 'My trip', group: 'Picking' } } },
+  { path: '/pick', name: 'pick', component: () => import('@client/views/picking/PickTripView.vue'), meta: { roles: ['picker'], title: 'My trip', menu: { label: 'My trip', group: 'Picking' } } },
 
   { path: '/floor-plans', name: 'floor-plans', component: () => import('@client/views/floor-plans/FloorPlansView.vue'), meta: { roles: ['supervisor', 'engineer', 'admin'], title: 'Floor plans', menu: { label: 'Floor plans', group: 'Floor' } } },
   { path: '/floor-plans/:planId(\\d+)', name: 'floor-plan', component: () => import('@client/views/floor-plans/FloorPlanView.vue'), meta: { roles: ['supervisor', 'engineer', 'admin'], title: 'Floor plan' } },
   { path: '/orders', name: 'orders', component: later, meta: { roles: ['supervisor'], title: 'Orders', menu: { label: 'Orders', group: 'Floor' }, later: 'Import the open orders from a workbook, CSV or the JSON API.' } },
   { path: '/waves', name: 'waves', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Waves', menu: { label: 'Waves', group: 'Floor' }, later: 'Build waves by cut-off and priority, choose a cart profile, batching and routing method, preview the trips and release them.' } },
-  { path: '/live', name: 'live-board', component: later, meta: { roles: ['supervisor'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' }, later: 'Follow every released trip as pickers confirm their stops; handle shorts and blocked aisles.' } },
+  { path: '/live', name: 'live-board', component: () => import('@client/views/board/LiveBoardView.vue'), meta: { roles: ['supervisor', 'admin'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' } } },
   { path: '/studies', name: 'studies', component: () => import('@client/views/studies/StudiesView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' } } },
   { path: '/studies/new', name: 'study-new', component: () => import('@client/views/studies/StudyNewView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'New study' } },
   { path: '/studies/:id(\\d+)', name: 'study', component: () => import('@client/views/studies/StudyView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Study' } },

@@ -1,0 +1,163 @@
+/**
+ * A whole trip on a tablet-sized browser: badge + PIN sign-in, take the trip, confirm every stop by
+ * typed scans, one short, a network drop with two confirmations queued, back online, Return to
+ * depot, summary. The server must then hold each confirmation exactly once, and the supervisor's
+ * live board must show the trip done with one short.
+ */
+import Database from 'better-sqlite3';
+import { expect, request, test, type APIRequestContext, type Page } from '@playwright/test';
+
+const DB_FILE = 'test-results/e2e-db/aislewright.sqlite';
+const CSRF = { 'x-aislewright': '1' };
+const PICKER = { badge: 'P-1003', pin: '246810', name: 'Kai Picker' };
+
+async function supervisorApi(baseURL: string): Promise<APIRequestContext> {
+  const api = await request.newContext({ baseURL, extraHTTPHeaders: CSRF });
+  const res = await api.post('/api/auth/sign-in', { data: { email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' } });
+  expect(res.status()).toBe(200);
+  return api;
+}
+
+/** Releases a wave of four open orders (first come, first served) and gives its longest trip to the picker. */
+async function releaseTrip(api: APIRequestContext): Promise<{ siteId: number; tripId: number; lines: number; waveName: string }> {
+  const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
+  const site = sites[0]!;
+  const page = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
+  const orderIds = page.rows.slice(0, 4).map((o) => o.id);
+  expect(orderIds).toHaveLength(4);
+  let job = (await (await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })).json()) as { id: string; state: string };
+  for (let i = 0; i < 300 && job.state === 'running'; i++) {
+    await new Promise((r) => setTimeout(r, 200));
+    job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
+  }
+  expect(job.state).toBe('done');
+  const waveName = `Tablet test wave ${Date.now()}`;
+  const released = await api.post(`/api/sites/${site.id}/waves`, { data: { previewId: job.id, releaseKey: `tablet-${job.id}`, name: waveName } });
+  expect(released.status()).toBe(201);
+  const wave = (await released.json()) as { tripList: { id: number; lines: number }[] };
+  const trip = [...wave.tripList].sort((a, b) => b.lines - a.lines)[0]!;
+  expect(trip.lines, 'the trip needs lines for a short, two offline confirmations and more').toBeGreaterThanOrEqual(5);
+  const pickers = (await (await api.get(`/api/sites/${site.id}/board`)).json()) as { pickers: { id: number; name: string }[] };
+  const picker = pickers.pickers.find((p) => p.name === PICKER.name)!;
+  const assigned = await api.post(`/api/sites/${site.id}/board/trips/${trip.id}/assign`, { data: { pickerId: picker.id } });
+  expect(assigned.status(), await assigned.text()).toBe(200);
+  return { siteId: site.id, tripId: trip.id, lines: trip.lines, waveName };
+}
+
+async function scan(page: Page, code: string): Promise<void> {
+  const field = page.getByTestId('scan-field');
+  // The field keeps the focus: a hardware scanner types into it and ends with Enter.
+  await expect(field).toBeFocused();
+  await page.keyboard.type(code);
+  await page.keyboard.press('Enter');
+}
+
+test('a picker picks a whole trip through a network drop; nothing is lost or doubled and the board follows', async ({ page, context, baseURL, browser }) => {
+  const errors: string[] = [];
+  page.on('pageerror', (e) => errors.push(e.message));
+  const api = await supervisorApi(baseURL!);
+  const { siteId, tripId, lines, waveName } = await releaseTrip(api);
+
+  await page.goto('/sign-in/badge');
+  await page.locator('#badge').fill(PICKER.badge);
+  await page.keyboard.press('Enter');
+  for (const d of PICKER.pin) await page.keyboard.press(d);
+  await page.keyboard.press('Enter');
+  await page.waitForURL('**/pick');
+
+  // The trip assigned to the picker is the one they take (the supervisor assigned it above).
+  await expect(page.getByRole('heading', { name: new RegExp(waveName) })).toBeVisible();
+  // The safety caution is shown at trip start, before any work.
+  await expect(page.getByRole('heading', { name: 'Safety first' })).toBeVisible();
+  await page.getByRole('button', { name: 'I understand' }).click();
+  await expect(page.getByTestId('current-bin')).toBeVisible();
+
+  // Sizes from the product's picker rules: current pick 40–64 px bold, primary ≥ 72 px, others ≥ 56 px.
+  const binFont = await page.getByTestId('current-bin').evaluate((el) => getComputedStyle(el));
+  expect(Number.parseFloat(binFont.fontSize)).toBeGreaterThanOrEqual(40);
+  expect(Number.parseFloat(binFont.fontSize)).toBeLessThanOrEqual(64);
+  expect(Number(binFont.fontWeight)).toBeGreaterThanOrEqual(700);
+  expect((await page.getByTestId('confirm').boundingBox())!.height).toBeGreaterThanOrEqual(72);
+  for (const id of ['short', 'skip', 'scan-field']) expect((await page.getByTestId(id).boundingBox())!.height).toBeGreaterThanOrEqual(56);
+
+  // A wrong scan names what was expected and what was scanned, and confirms nothing.
+  const firstBin = (await page.getByTestId('current-bin').textContent())!.trim();
+  await scan(page, 'NOT-A-BIN');
+  await expect(page.getByTestId('wrong-scan')).toContainText(`Expected bin ${firstBin}`);
+  await expect(page.getByTestId('wrong-scan')).toContainText('Scanned NOT-A-BIN');
+  await expect(page.getByTestId('progress')).toContainText(`0 of ${lines} lines`);
+
+  let done = 0;
+  const confirmByScan = async () => {
+    const bin = (await page.getByTestId('current-bin').textContent())!.trim();
+    await scan(page, bin);
+    done += 1;
+    // After the last line the stop card gives way to "Return to depot".
+    if (done === lines) await expect(page.getByTestId('return-to-depot')).toBeVisible();
+    else await expect(page.getByTestId('progress')).toContainText(`${done} of ${lines} lines`);
+  };
+
+  await confirmByScan();
+  // One short: one found less than ordered, or none.
+  const qty = Number(await page.getByTestId('current-qty').textContent());
+  await page.getByTestId('short').click();
+  if (qty > 1) await page.getByRole('button', { name: 'One more' }).click();
+  await page.getByTestId('reason-empty_bin').click();
+  await page.getByTestId('short-submit').click();
+  done += 1;
+  await expect(page.getByTestId('progress')).toContainText(`${done} of ${lines} lines`);
+  await expect(page.getByTestId('progress')).toContainText('1 short');
+  await expect(page.getByTestId('queue-banner')).toBeHidden();
+
+  // Wi-Fi drops: two confirmations are kept on the tablet.
+  await context.setOffline(true);
+  await confirmByScan();
+  await confirmByScan();
+  await expect(page.getByTestId('queue-banner')).toContainText('offline — 2 waiting');
+  await context.setOffline(false);
+  await expect(page.getByTestId('queue-banner')).toBeHidden({ timeout: 15_000 });
+
+  while (done < lines) await confirmByScan();
+  await page.getByTestId('return-to-depot').click();
+  const summary = page.getByTestId('trip-summary');
+  await expect(summary).toBeVisible();
+  await expect(page.getByTestId('summary-lines')).toHaveText(`${lines - 1} of ${lines} picked`);
+  await expect(page.getByTestId('summary-shorts')).toHaveText('1 short');
+  await expect(page.getByTestId('summary-metres')).toContainText(' m');
+  await expect(page.getByTestId('summary-minutes')).toContainText('min');
+  await expect(page.getByTestId('next-trip')).toBeVisible();
+
+  // The server holds each confirmation exactly once (read straight from its database file).
+  const db = new Database(DB_FILE, { readonly: true, fileMustExist: true });
+  try {
+    const rows = db.prepare('SELECT id, status FROM pick_lines WHERE trip_id = ?').all(tripId) as { id: number; status: string }[];
+    expect(rows).toHaveLength(lines);
+    expect(rows.filter((r) => r.status === 'picked')).toHaveLength(lines - 1);
+    expect(rows.filter((r) => r.status === 'short')).toHaveLength(1);
+    const audits = db.prepare("SELECT subject, COUNT(*) AS n FROM audit_log WHERE action IN ('pick.confirm', 'pick.short') AND subject IN (" + rows.map(() => '?').join(',') + ') GROUP BY subject').all(...rows.map((r) => `line:${r.id}`)) as { subject: string; n: number }[];
+    expect(audits).toHaveLength(lines);
+    for (const a of audits) expect(a.n, a.subject).toBe(1);
+    const trip = db.prepare('SELECT status FROM trips WHERE id = ?').get(tripId) as { status: string };
+    expect(trip.status).toBe('done');
+  } finally {
+    db.close();
+  }
+  expect(errors).toEqual([]);
+
+  // The supervisor's live board shows the trip done with one short.
+  const office = await browser.newContext({ viewport: { width: 1366, height: 900 } });
+  const board = await office.newPage();
+  await board.goto('/sign-in');
+  await board.locator('#sign-in-email').fill('supervisor@demo.aislewright.test');
+  await board.locator('#sign-in-password').fill('demo-password-1');
+  await board.keyboard.press('Enter');
+  await board.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
+  await board.goto('/live');
+  await expect(board.getByTestId('board-link')).toContainText('Live');
+  await expect(board.getByText(waveName, { exact: true })).toBeVisible();
+  await expect(board.getByTestId(`trip-status-${tripId}`)).toHaveText('Done');
+  await expect(board.getByTestId(`trip-shorts-${tripId}`)).toHaveText('1');
+  await office.close();
+  await api.dispose();
+  expect(siteId).toBeGreaterThan(0);
+});
