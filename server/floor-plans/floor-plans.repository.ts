@@ -167,6 +167,14 @@ export async function insertBuildingPlan(db: Q, p: NewPlanRow, now: string): Pro
   return id!;
 }
 
+/**
+ * Deletes plans left in state 'building' by a server that stopped mid-save. Only call where no save
+ * can be running (saves run one at a time, behind the job queue).
+ */
+export async function purgeUnfinishedPlans(db: Q): Promise<number> {
+  return db('floor_plans').where({ state: 'building' }).delete();
+}
+
 /** Next version number of a site: one past the highest ever given (deleted drafts leave gaps). */
 export async function nextVersion(db: Q, siteId: number): Promise<number> {
   const r = await db('floor_plans').where({ site_id: siteId }).max<{ v: number | null }>({ v: 'version' }).first();

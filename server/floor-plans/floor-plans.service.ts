@@ -148,6 +148,8 @@ interface SaveMeta {
  * On any failure the half-saved plan is deleted, so nothing of it remains.
  */
 export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry, built: BuildOutput, onProgress?: (fraction: number) => void): Promise<number> {
+  // Saves run one at a time, so any plan still 'building' now was left by a stopped server.
+  await repo.purgeUnfinishedPlans(db);
   const planId = await repo.insertBuildingPlan(
     db,
     {

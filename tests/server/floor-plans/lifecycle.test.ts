@@ -155,3 +155,22 @@ describe('a generated plan the engine refuses', () => {
     expect(await t.deps.db('floor_plans').count<{ n: number }[]>({ n: '*' })).toEqual([{ n: 0 }]);
   });
 });
+
+describe('a save interrupted by a stopped server', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await makeTestApp();
+  });
+  afterAll(() => t.close());
+
+  it('leaves an unlisted plan that the next save removes with its rows', async () => {
+    const [stale] = await t.deps.db('floor_plans').insert({ site_id: t.siteId, name: 'half saved', state: 'building', source: 'upload', created_at: new Date().toISOString() });
+    await t.deps.db('floor_plan_aisles').insert({ plan_id: stale, idx: 0, code: 'A', x_m: 0, y_start_m: 0, y_end_m: 10 });
+    expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans`)).body).toEqual([]);
+    expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans/${stale}`)).status).toBe(404);
+    const id = await generatePlan(t.as.supervisor, t.siteId, 'Next', { aisles: 2, baysPerAisle: 2 });
+    expect(await t.deps.db('floor_plans').pluck('id')).toEqual([id]);
+    expect(await t.deps.db('floor_plan_aisles').where({ plan_id: stale }).count<{ n: number }[]>({ n: '*' })).toEqual([{ n: 0 }]);
+    expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans/${id}`)).body.version).toBe(1);
+  });
+});
