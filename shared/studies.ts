@@ -203,6 +203,8 @@ export const WhatIfRow = z.object({
   deltaMetres: maybe,
   deltaPct: maybe,
   deltaHoursPerDay: maybe,
+  /** Set when the two plans did not carry the same lines (orders unreachable on one): no difference is given. */
+  note: z.string().nullable().default(null),
 });
 export type WhatIfRow = z.infer<typeof WhatIfRow>;
 

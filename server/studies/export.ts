@@ -67,8 +67,8 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }): B
 
   if (res.whatIf.length) {
     const rows = [
-      ['what-if', 'method', 'plan as it is m', 'what-if m', 'difference m', 'difference %', 'difference picker hours per day'],
-      ...res.whatIf.map((w) => [w.label, w.methodLabel, r1(w.baseMetres), r1(w.metres), r1(w.deltaMetres), r2(w.deltaPct), r2(w.deltaHoursPerDay)]),
+      ['what-if', 'method', 'plan as it is m', 'what-if m', 'difference m', 'difference %', 'difference picker hours per day', 'note'],
+      ...res.whatIf.map((w) => [w.label, w.methodLabel, r1(w.baseMetres), r1(w.metres), r1(w.deltaMetres), r2(w.deltaPct), r2(w.deltaHoursPerDay), w.note ?? '']),
     ];
     XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(rows), 'what-if');
   }

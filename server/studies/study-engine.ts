@@ -439,25 +439,28 @@ function whatIfRows(variants: StudyVariant[]): WhatIfRow[] {
   if (!base) return [];
   const rows: WhatIfRow[] = [];
   for (const v of variants.slice(1)) {
+    // Orders unreachable on one plan leave it with less work: a difference would not be like for like.
+    const unlike = (a: number, b: number) => (a === b ? null : `the plans carry different work (${b} lines here, ${a} on the plan as it is; ${v.unplaced.length} order(s) cannot be placed): compare metres per line instead`);
     for (const r of v.routing) {
       const b = base.routing.find((x) => x.key === r.key);
-      rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay));
+      rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, unlike(base.lines, v.lines)));
     }
     for (const r of v.batching) {
       const b = base.batching.find((x) => x.method === r.method);
-      rows.push(diffRow(v, `batching:${r.method}`, `${r.label} (routed by the default method)`, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay));
+      rows.push(diffRow(v, `batching:${r.method}`, `${r.label} (routed by the default method)`, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, unlike(b?.lines ?? 0, r.lines)));
     }
   }
   return rows;
 }
 
-function diffRow(v: StudyVariant, method: string, methodLabel: string, baseMetres: number | null, metres: number | null, baseHours: number | null, hours: number | null): WhatIfRow {
-  const both = baseMetres !== null && metres !== null;
+function diffRow(v: StudyVariant, method: string, methodLabel: string, baseMetres: number | null, metres: number | null, baseHours: number | null, hours: number | null, note: string | null): WhatIfRow {
+  const both = note === null && baseMetres !== null && metres !== null;
   return {
     variant: v.key, label: v.label, method, methodLabel, baseMetres, metres,
     deltaMetres: both ? metres - baseMetres : null,
     deltaPct: both ? pct(metres, baseMetres) : null,
-    deltaHoursPerDay: baseHours !== null && hours !== null ? hours - baseHours : null,
+    deltaHoursPerDay: both && baseHours !== null && hours !== null ? hours - baseHours : null,
+    note,
   };
 }
 

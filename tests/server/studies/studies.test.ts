@@ -222,6 +222,21 @@ describe('studies', () => {
     expect(again.walkedMetres!).toBeCloseTo(trip.planned_metres, 1);
   }, 120_000);
 
+  it('gives no what-if difference when a closed stretch leaves orders unreachable, and says why', async () => {
+    const closed = await waitDone((await start(generated('Closed stretch', 7, {
+      work: { ...(generated('x', 7).work as object), orders: { waves: 1, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80 } } as StudyInputsBody['work'],
+      routing: ['best+local', 's-shape'], batching: ['savings'],
+      whatIfs: [{ label: 'Aisle D closed 2–28 m', changes: [{ kind: 'close_aisle', aisle: 'D', fromM: 2, toM: 28 }] }],
+    }))).id);
+    const v = closed.results.variants[1]!;
+    expect(v.unplaced.length).toBeGreaterThan(0);
+    expect(v.routing.find((r) => r.key === 's-shape')!.reason).toMatch(/closed aisle stretches/);
+    const row = closed.results.whatIf.find((w) => w.method === 'best+local')!;
+    expect(row.deltaMetres).toBeNull();
+    expect(row.deltaHoursPerDay).toBeNull();
+    expect(row.note).toMatch(/different work/);
+  }, 120_000);
+
   it('refuses what-ifs outside the plan before saving anything', async () => {
     const res = await t.as.engineer.post(base()).set(csrf).send(generated('Bad', 1, { whatIfs: [{ label: 'No such aisle', changes: [{ kind: 'close_aisle', aisle: 'ZZ', fromM: 0, toM: 5 }] }] }));
     expect(res.status).toBe(400);
