@@ -1,5 +1,4 @@
-import type { z } from 'zod';
-import { CSRF_HEADER, CSRF_VALUE, ErrorBody, Ok } from '@shared/common';
+import { Ok } from '@shared/common';
 import {
   ActiveFloorPlan,
   ClosureResult,
@@ -11,7 +10,8 @@ import {
   type CloseSegmentBody,
   type GenerateFloorPlanBody,
 } from '@shared/floor-plans';
-import { ApiError, http } from './http';
+import { http } from './http';
+import { uploadFile } from './upload';
 
 const base = (siteId: number) => `/api/sites/${siteId}/floor-plans`;
 
@@ -38,39 +38,7 @@ export const jobErrorsUrl = (siteId: number, jobId: string, format: 'xlsx' | 'cs
  * XMLHttpRequest rather than fetch: it reports the upload's own progress (0…1).
  */
 export function uploadFloorPlan(siteId: number, file: Blob, filename: string, onProgress?: (fraction: number) => void): Promise<FloorPlanJob> {
-  return sendFile(`${base(siteId)}/uploads`, file, filename, FloorPlanJob, onProgress);
-}
-
-function sendFile<S extends z.ZodType>(path: string, file: Blob, filename: string, schema: S, onProgress?: (fraction: number) => void): Promise<z.infer<S>> {
-  return new Promise((resolve, reject) => {
-    const xhr = new XMLHttpRequest();
-    xhr.open('POST', path);
-    xhr.setRequestHeader(CSRF_HEADER, CSRF_VALUE);
-    xhr.setRequestHeader('accept', 'application/json');
-    xhr.upload.onprogress = (e) => {
-      if (e.lengthComputable) onProgress?.(e.loaded / e.total);
-    };
-    xhr.onerror = () => reject(new ApiError('network', 'The server could not be reached. Check the connection and try again.', 0));
-    xhr.onload = () => {
-      let json: unknown;
-      try {
-        json = xhr.responseText ? JSON.parse(xhr.responseText) : undefined;
-      } catch {
-        json = undefined;
-      }
-      if (xhr.status < 200 || xhr.status >= 300) {
-        const body = ErrorBody.safeParse(json);
-        reject(body.success ? new ApiError(body.data.error.code, body.data.error.message, xhr.status, body.data.error.details) : new ApiError('http_error', `The server answered ${xhr.status}`, xhr.status));
-        return;
-      }
-      const parsed = schema.safeParse(json);
-      if (parsed.success) resolve(parsed.data);
-      else reject(new ApiError('bad_response', `Unexpected answer from POST ${path}.`, xhr.status, parsed.error.issues));
-    };
-    const form = new FormData();
-    form.append('file', file, filename);
-    xhr.send(form);
-  });
+  return uploadFile(`${base(siteId)}/uploads`, file, filename, FloorPlanJob, onProgress);
 }
 
 /** Polls a job until it ends, reporting each state; rejects when polling fails. */

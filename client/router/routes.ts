@@ -11,6 +11,8 @@ declare module 'vue-router' {
     menu?: { label: string; group: MenuGroup };
     /** Screens not built yet show this line in a tidy empty state. */
     later?: string;
+    /** Drawn without the app shell (printable pages). */
+    bare?: boolean;
   }
 }
 
@@ -32,8 +34,12 @@ export const routes: RouteRecordRaw[] = [
 
   { path: '/floor-plans', name: 'floor-plans', component: () => import('@client/views/floor-plans/FloorPlansView.vue'), meta: { roles: ['supervisor', 'engineer', 'admin'], title: 'Floor plans', menu: { label: 'Floor plans', group: 'Floor' } } },
   { path: '/floor-plans/:planId(\\d+)', name: 'floor-plan', component: () => import('@client/views/floor-plans/FloorPlanView.vue'), meta: { roles: ['supervisor', 'engineer', 'admin'], title: 'Floor plan' } },
-  { path: '/orders', name: 'orders', component: later, meta: { roles: ['supervisor'], title: 'Orders', menu: { label: 'Orders', group: 'Floor' }, later: 'Import the open orders from a workbook, CSV or the JSON API.' } },
-  { path: '/waves', name: 'waves', component: later, meta: { roles: ['supervisor', 'engineer'], title: 'Waves', menu: { label: 'Waves', group: 'Floor' }, later: 'Build waves by cut-off and priority, choose a cart profile, batching and routing method, preview the trips and release them.' } },
+  { path: '/orders', name: 'orders', component: () => import('@client/views/orders/OrdersView.vue'), meta: { roles: ['supervisor'], title: 'Orders', menu: { label: 'Orders', group: 'Floor' } } },
+  { path: '/waves', name: 'waves', component: () => import('@client/views/waves/WavesView.vue'), meta: { roles: ['supervisor', 'engineer'], title: 'Waves', menu: { label: 'Waves', group: 'Floor' } } },
+  { path: '/waves/new', name: 'wave-builder', component: () => import('@client/views/waves/WaveBuilderView.vue'), meta: { roles: ['supervisor'], title: 'Build a wave' } },
+  { path: '/waves/:id(\\d+)', name: 'wave', component: () => import('@client/views/waves/WaveView.vue'), meta: { roles: ['supervisor', 'engineer'], title: 'Wave' } },
+  { path: '/print/trips/:id(\\d+)', name: 'print-trip', component: () => import('@client/views/waves/PrintTripsView.vue'), meta: { roles: ['supervisor', 'engineer'], title: 'Pick list', bare: true } },
+  { path: '/print/waves/:id(\\d+)', name: 'print-wave', component: () => import('@client/views/waves/PrintTripsView.vue'), meta: { roles: ['supervisor', 'engineer'], title: 'Pick lists', bare: true } },
   { path: '/live', name: 'live-board', component: () => import('@client/views/board/LiveBoardView.vue'), meta: { roles: ['supervisor', 'admin'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' } } },
   { path: '/studies', name: 'studies', component: () => import('@client/views/studies/StudiesView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' } } },
   { path: '/studies/new', name: 'study-new', component: () => import('@client/views/studies/StudyNewView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'New study' } },

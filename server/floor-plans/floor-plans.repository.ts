@@ -327,19 +327,15 @@ export async function countPlanRows(db: Q, siteId?: number): Promise<number> {
   return Number(r[0]!.n);
 }
 
-/**
- * True when a wave was planned on this plan. Waves live in another domain: a plan counts as used once
- * a `waves` table with a `floor_plan_id` column names it.
- */
+/** True when a wave was planned on this plan (waves keep the plan they were planned on). */
 export async function isPlanInUse(db: Q, planId: number): Promise<boolean> {
-  if (!(await db.schema.hasTable('waves')) || !(await db.schema.hasColumn('waves', 'floor_plan_id'))) return false;
-  const r = await db('waves').where({ floor_plan_id: planId }).first('id');
+  const r = await db('waves').where({ plan_id: planId }).first('id');
   return r !== undefined;
 }
 
-/** The subset of `planIds` that waves were planned on (see isPlanInUse). */
+/** The subset of `planIds` that waves were planned on. */
 export async function plansInUse(db: Q, planIds: number[]): Promise<Set<number>> {
-  if (!planIds.length || !(await db.schema.hasTable('waves')) || !(await db.schema.hasColumn('waves', 'floor_plan_id'))) return new Set();
-  const rows = await db('waves').whereIn('floor_plan_id', planIds).distinct<{ floor_plan_id: number }[]>('floor_plan_id');
-  return new Set(rows.map((r) => r.floor_plan_id));
+  if (!planIds.length) return new Set();
+  const rows = await db('waves').whereIn('plan_id', planIds).distinct<{ plan_id: number }[]>('plan_id');
+  return new Set(rows.map((r) => r.plan_id));
 }

@@ -52,6 +52,8 @@ export async function setUserSites(db: Q, userId: number, siteIds: number[]): Pr
 }
 
 export async function updateUser(db: Q, id: number, patch: Partial<Omit<DbUserRow, 'id'>>): Promise<void> {
+  // An empty patch (only sites changed) has nothing to write here; Knex refuses an empty update.
+  if (Object.keys(patch).length === 0) return;
   await db('users').where({ id }).update(patch);
 }
 

@@ -139,6 +139,15 @@ describe('admin: users', () => {
     expect((await request(t.app).post('/api/auth/badge-sign-in').set(csrf).send({ badge: 'P-1003', pin: '975310' })).status).toBe(200);
   });
 
+  it('changes only the sites of a user (regression: an empty field update answered 500)', async () => {
+    const other = await t.as.admin.post('/api/sites').set(csrf).send({ code: 'SITES2', name: 'Second site' });
+    const id = (await t.as.admin.get('/api/users')).body.find((u: { badge: string }) => u.badge === 'P-1002').id;
+    const res = await t.as.admin.patch(`/api/users/${id}`).set(csrf).send({ siteIds: [t.siteId, other.body.id] });
+    expect(res.status).toBe(200);
+    expect(res.body.siteIds).toEqual([t.siteId, other.body.id]);
+    await t.as.admin.patch(`/api/users/${id}`).set(csrf).send({ siteIds: [t.siteId] });
+  });
+
   it('will not let an admin lock themselves out', async () => {
     const me = (await t.as.admin.get('/api/auth/me')).body;
     const res = await t.as.admin.patch(`/api/users/${me.id}`).set(csrf).send({ active: false });

@@ -22,7 +22,7 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const push = (body: unknown, siteId = t.siteId, bearer = token) =>
+const push = (body: object, siteId = t.siteId, bearer = token) =>
   request(t.app).post(`/api/sites/${siteId}/orders/push`).set('Authorization', `Bearer ${bearer}`).send(body);
 
 describe('orders pushed by the host system', () => {

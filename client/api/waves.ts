@@ -1,0 +1,23 @@
+import { TripDetail, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
+import { http } from './http';
+
+const base = (siteId: number) => `/api/sites/${siteId}`;
+
+export const startPreview = (siteId: number, body: WavePreviewBody) => http('POST', `${base(siteId)}/wave-previews`, WaveJob, { body });
+export const getPreviewJob = (siteId: number, id: string) => http('GET', `${base(siteId)}/wave-previews/${id}`, WaveJob);
+export const releaseWave = (siteId: number, body: { previewId: string; releaseKey: string; name?: string }) => http('POST', `${base(siteId)}/waves`, WaveDetail, { body });
+export const listWaves = (siteId: number) => http('GET', `${base(siteId)}/waves`, WaveSummary.array());
+export const getWave = (siteId: number, id: number) => http('GET', `${base(siteId)}/waves/${id}`, WaveDetail);
+export const cancelWave = (siteId: number, id: number) => http('POST', `${base(siteId)}/waves/${id}/cancel`, WaveDetail);
+export const getTrip = (siteId: number, id: number) => http('GET', `${base(siteId)}/trips/${id}`, TripDetail);
+
+/** Polls a preview job until it ends, reporting progress; resolves to the finished job. */
+export async function waitForPreview(siteId: number, id: string, onProgress: (job: WaveJob) => void, signal?: AbortSignal): Promise<WaveJob> {
+  for (;;) {
+    const job = await getPreviewJob(siteId, id);
+    onProgress(job);
+    if (job.state !== 'running') return job;
+    if (signal?.aborted) return job;
+    await new Promise((r) => setTimeout(r, 250));
+  }
+}
