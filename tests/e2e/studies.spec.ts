@@ -33,6 +33,11 @@ test('an engineer runs a generated study, reads the table and both charts, compa
   await expect(page.getByTestId('chart-total').locator('canvas')).toBeVisible({ timeout: 30_000 });
   await expect(page.getByTestId('chart-stops').locator('canvas')).toBeVisible();
 
+  // A chart saved as PNG through echarts' own renderer.
+  const [png] = await Promise.all([page.waitForEvent('download'), page.getByTestId('png-total').click()]);
+  expect(png.suggestedFilename()).toMatch(/total-distance\.png$/);
+  expect(readFileSync(await png.path()).subarray(0, 8)).toEqual(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]));
+
   // Two routes of the same trip side by side, each with its metres, on two maps.
   const routes = page.getByTestId('routes-side-by-side');
   await routes.scrollIntoViewIfNeeded();
