@@ -212,6 +212,8 @@ describe('studies', () => {
     expect(rec.waveId).toBe(wave.id);
     expect(rec.plannedMetres).toBeCloseTo(wave.plannedMetres, 1);
     expect(rec.walkedMetres).toBeNull();
+    // Routed again by the default method on the same plan, the released trips measure what the wave planner planned.
+    expect(rec.defaultMetres!).toBeCloseTo(wave.plannedMetres, 0);
     // A picker confirms the first trip's stops in reverse order: the walk is the reversed circuit, the same length.
     const trip = (await t.deps.db('trips').where({ wave_id: wave.id }).orderBy('n').first<{ id: number; planned_metres: number }>())!;
     const stops: { id: number }[] = await t.deps.db('stops').where({ trip_id: trip.id }).orderBy('n', 'desc');
