@@ -13,6 +13,13 @@ export function formatDateTime(iso: string): string {
   return new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(date);
 }
 
+/** Short date and time for dense tables, e.g. "Dec 2, 14:00". */
+export function formatShortDateTime(iso: string): string {
+  const date = new Date(iso);
+  if (Number.isNaN(date.getTime())) return iso;
+  return new Intl.DateTimeFormat(undefined, { month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit' }).format(date);
+}
+
 /** A number with its unit, e.g. `1.0 m/s`, `10 s`, `120 kg`. */
 export function withUnit(value: number, unit: string, fractionDigits = 0): string {
   return `${value.toFixed(fractionDigits)} ${unit}`;

@@ -2,7 +2,7 @@
  * What the tablet shows: the server's trip with the writes still queued on the device applied on
  * top, so a picker working through a Wi-Fi drop sees each confirmation at once. Pure, for tests.
  */
-import type { PickStop, PickTrip } from '@shared/picking';
+import type { LineAnswer, PickStop, PickTrip } from '@shared/picking';
 import type { PickLineView } from '@shared/waves';
 import type { QueuedAction } from './offline-queue';
 
@@ -31,6 +31,16 @@ export function applyPending(trip: PickTrip, pending: readonly QueuedAction[]): 
   }
   const current = stops.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
   return { ...trip, stopList: stops, currentStopId: current?.id ?? null };
+}
+
+/** The trip after a confirmation or short answered by the server (the line, its stop, the revision). */
+export function mergeLineAnswer(trip: PickTrip, a: LineAnswer): PickTrip {
+  if (a.tripId !== trip.id) return trip;
+  const stopList = trip.stopList.map((s) =>
+    s.id !== a.stop.id ? s : { ...s, status: a.stop.status, lines: s.lines.map((l) => (l.id === a.line.id ? a.line : l)) },
+  );
+  const current = stopList.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
+  return { ...trip, stopList, status: a.tripStatus, revision: Math.max(trip.revision, a.revision), currentStopId: current?.id ?? null };
 }
 
 export interface TripProgress {
