@@ -1,12 +1,13 @@
 /** Typed calls for the picker's tablet and the supervisor's live board (shared/picking.ts). */
 import { z } from 'zod';
 import { Ok } from '@shared/common';
-import { Board, CancelResult, CloseWaveResult, CurrentTrip, PickAnswer, PickTrip, TripPlan, TripResult, type ShortReason } from '@shared/picking';
+import { Board, CancelResult, CloseWaveResult, CurrentTrip, LineAnswer, PickAnswer, PickTrip, TripPlan, TripPulse, TripResult, type ShortReason } from '@shared/picking';
 import { ApiError, http } from './http';
 
 export const currentTrip = (siteId: number) => http('GET', `/api/sites/${siteId}/picking/current`, CurrentTrip);
 export const takeNextTrip = (siteId: number) => http('POST', `/api/sites/${siteId}/picking/next`, CurrentTrip);
 export const getTrip = (tripId: number) => http('GET', `/api/picking/trips/${tripId}`, PickTrip);
+export const getTripPulse = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/status`, TripPulse);
 export const getTripPlan = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/plan`, TripPlan);
 export const startTrip = (tripId: number) => http('POST', `/api/picking/trips/${tripId}/start`, PickTrip);
 export const getTripResult = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/result`, TripResult);
@@ -33,7 +34,7 @@ export function actionPath(a: PickAction): string {
 }
 
 export type SendOutcome =
-  | { ok: true; answer: z.infer<typeof PickAnswer> | z.infer<typeof TripResult> }
+  | { ok: true; answer: z.infer<typeof LineAnswer> | z.infer<typeof PickAnswer> | z.infer<typeof TripResult> }
   | { ok: false; error: ApiError };
 
 /**
@@ -62,8 +63,7 @@ export async function sendAction(a: PickAction, key: string, device: string, fet
     const e = (json as { error?: { code?: string; message?: string; details?: unknown } } | undefined)?.error;
     return { ok: false, error: new ApiError(e?.code ?? 'http_error', e?.message ?? `The server answered ${response.status}`, response.status, e?.details) };
   }
-  const schema = a.kind === 'finish' ? TripResult : PickAnswer;
-  const parsed = schema.safeParse(json);
+  const parsed = (a.kind === 'finish' ? TripResult : a.kind === 'skip' ? PickAnswer : LineAnswer).safeParse(json);
   if (!parsed.success) return { ok: false, error: new ApiError('bad_response', 'Unexpected answer from the server', response.status) };
   return { ok: true, answer: parsed.data };
 }

@@ -33,6 +33,13 @@ describe('wave preview', () => {
     expect(p.totals.sShapeMetres).not.toBeNull();
   });
 
+  it('never routes a trip longer than S-shape on the same stops (regression: a 24-stop demo trip was 3.5 % longer)', async () => {
+    const job = await previewWave(t, { orders: 160 });
+    const p = job.preview!;
+    expect(p.trips.length).toBeGreaterThan(10);
+    for (const trip of p.trips) expect(trip.metres, `trip ${trip.n}`).toBeLessThanOrEqual(trip.sShapeMetres! + 0.05);
+  });
+
   it('names orders that fit no cart instead of dropping them', async () => {
     const id = (await openOrderIds(t, 1))[0]!;
     const line = (await t.deps.db('order_lines').where({ order_id: id }).first())!;
