@@ -8,6 +8,7 @@
  * same inputs and seed give the same figures on any machine and under any load. Only the compute
  * times (`ms`) are wall-clock.
  */
+import { improveFromVisits } from '../core/batch/plan-wave';
 import { batchOrders } from '../core/batch/index';
 import type { Cart, Order } from '../core/batch/types';
 import type { Clock } from '../core/clock';
@@ -218,6 +219,13 @@ export function routeTrip(plan: BuiltPlan, nodes: readonly number[], m: Distance
     improve = i;
   }
   const r = solveTour(m, { method, improve, clock: stepClock(), timeLimitMs: improve === 'deep' ? DEEP_STEPS : UNLIMITED_STEPS, seed });
+  // The product's default (best + local) also restarts local search from the S-shape order on block
+  // layouts, exactly as the wave planner does, so studies and released waves agree.
+  if (key === 'best+local' && !isNotApplicable(plan.layout)) {
+    const s = routeTrip(plan, nodes, m, 's-shape', seed);
+    const better = s.length !== null ? improveFromVisits(m, r.length, s.visits) : null;
+    if (better) return { length: better.length, visits: better.order.slice(1).map((k) => k - 1), reason: null };
+  }
   return { length: r.length, visits: r.order.slice(1).map((k) => k - 1), reason: null };
 }
 

@@ -249,11 +249,9 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
         // Local search restarted from the S-shape visiting order: an improved circuit is then never
         // longer than the S-shape walk, which a supervisor comparing the two would rightly expect.
         if (r.improve !== 'none' && r.method !== 'exact') {
-          const start = [0, ...s.order.map((i) => i + 1)];
-          const improved = canonicalize(improveLocal(r.matrix, start), 0);
-          const len = circuitLength(r.matrix, improved);
-          if (len < r.length - 1e-9) {
-            r = { ...r, order: improved, length: len };
+          const better = improveFromVisits(r.matrix, r.length, s.order);
+          if (better) {
+            r = { ...r, ...better };
             fromSShape++;
           }
         }
@@ -316,6 +314,18 @@ function subMatrix(table: NodeTable, stops: Int32Array): DistanceMatrix {
 }
 
 /** S-shape metres through `stops` from the depot and back, the depot's link to the front cross aisle included; or why not. */
+/**
+ * Local search (2-opt + Or-opt) restarted from another visiting order of the stops (indices into the
+ * trip's stops; matrix position 0 is the depot). Returns the improved circuit from the depot when it is
+ * shorter than `currentLength`, else null. O(local search) on the trip's matrix.
+ */
+export function improveFromVisits(m: DistanceMatrix, currentLength: number, visits: readonly number[]): { order: number[]; length: number } | null {
+  const start = [0, ...visits.map((i) => i + 1)];
+  const order = canonicalize(improveLocal(m, start), 0);
+  const length = circuitLength(m, order);
+  return length < currentLength - 1e-9 ? { order, length } : null;
+}
+
 /** S-shape walk of a trip's stops: metres (depot link included) and the visiting order (indices into `stops`). */
 function sShapeLength(p: PolicyComparison, table: NodeTable, stops: Int32Array): { length: number; order: number[] } | string {
   const points: PolicyStop[] = [];
