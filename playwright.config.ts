@@ -30,11 +30,11 @@ export default defineConfig({
   ],
   webServer: {
     // A fresh database per run; the demo seed gives every role its sign-in.
-    command: `rm -rf test-results/e2e-db && node --import tsx server/main.ts`,
+    command: `rm -rf test-results/e2e-db-${PORT} && node --import tsx server/main.ts`,
     url: `http://localhost:${PORT}/api/health`,
     reuseExistingServer: false,
     timeout: 120_000,
-    env: { PORT: String(PORT), DATABASE_FILE: 'test-results/e2e-db/aislewright.sqlite', LOG_LEVEL: 'warn', PUBLIC_URL: `http://localhost:${PORT}` },
+    env: { PORT: String(PORT), DATABASE_FILE: `test-results/e2e-db-${PORT}/aislewright.sqlite`, LOG_LEVEL: 'warn', PUBLIC_URL: `http://localhost:${PORT}` },
     stdout: 'ignore',
     stderr: 'pipe',
   },
