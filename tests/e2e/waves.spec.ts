@@ -27,7 +27,7 @@ test('supervisor imports SKUs and orders, builds a wave, releases it and prints 
   await page.getByPlaceholder('Search order reference').fill('WEB-1000');
   await expect(page.getByRole('cell', { name: 'WEB-10001' })).toBeVisible();
 
-  await page.getByRole('button', { name: 'Build a wave' }).click();
+  await page.getByRole('link', { name: 'Build a wave' }).click();
   await expect(page).toHaveURL('/waves/new');
   await page.getByPlaceholder('Search reference').fill('WEB-1000');
   await expect(page.getByText('2 of 2 open orders selected')).toBeVisible();
