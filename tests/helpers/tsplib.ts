@@ -1,13 +1,21 @@
 /**
- * Reader for the TSPLIB 95 files in /work/shared/reference/tsplib (Reinelt 1991; distance functions
+ * Reader for the TSPLIB 95 files in ../shared/reference/tsplib beside the checkout (Reinelt 1991; distance functions
  * from the TSPLIB 95 documentation, section 2, as restated in the README there). Test-only helper.
  */
-import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { existsSync, readFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import type { DistanceMatrix } from '../../server/core/matrix';
 import { matrixFromFunction } from '../../server/core/matrix';
 
-export const TSPLIB_DIR = '/work/shared/reference/tsplib';
+/** The shared reference folder lies beside the checkout (CI lays it the same way); TSPLIB_DIR overrides. */
+function findTsplibDir(): string {
+  const beside = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', 'shared', 'reference', 'tsplib');
+  const candidates = [process.env.TSPLIB_DIR, beside, '/work/shared/reference/tsplib'].filter((d): d is string => !!d);
+  return candidates.find((d) => existsSync(join(d, 'README.md'))) ?? beside;
+}
+
+export const TSPLIB_DIR = findTsplibDir();
 
 export type EdgeWeightType = 'EUC_2D' | 'ATT' | 'GEO';
 
