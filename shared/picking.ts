@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { PlanGeometry } from './floor-plans';
-import { StopView, TripDetail } from './waves';
+import { PickLineView, StopView, TripDetail } from './waves';
 
 /** Header carrying the tablet's key for one intended action (retries and queued resends reuse it). */
 export const IDEMPOTENCY_HEADER = 'idempotency-key';
@@ -55,6 +55,8 @@ export const PickTrip = TripDetail.extend({
   finishedAt: z.string().nullable(),
   /** First open stop in stop order; null when every line is done. */
   currentStopId: z.number().int().nullable(),
+  /** Raised by every change to the trip (see TripPulse). */
+  revision: z.number().int(),
 });
 export type PickTrip = z.infer<typeof PickTrip>;
 
@@ -82,7 +84,7 @@ export const TripResult = z.object({
 });
 export type TripResult = z.infer<typeof TripResult>;
 
-/** Answer to a confirmation, short or skip: the trip as it now stands. */
+/** Answer to a skip: the trip as it now stands, re-sequenced. */
 export const PickAnswer = z.object({ trip: PickTrip });
 export type PickAnswer = z.infer<typeof PickAnswer>;
 
@@ -166,3 +168,17 @@ export const TripPlan = z.object({
   closures: z.array(z.object({ kind: z.enum(['aisle', 'cross_aisle']), code: z.string(), from: z.number(), to: z.number() })),
 });
 export type TripPlan = z.infer<typeof TripPlan>;
+
+/** Answer to a confirmation or a short: the line as recorded, its stop, and the trip's revision. */
+export const LineAnswer = z.object({
+  tripId: z.number().int(),
+  tripStatus: z.enum(['released', 'assigned', 'picking', 'done', 'cancelled']),
+  revision: z.number().int(),
+  line: PickLineView,
+  stop: z.object({ id: z.number().int(), status: z.enum(['open', 'done']) }),
+});
+export type LineAnswer = z.infer<typeof LineAnswer>;
+
+/** The tablet's 5-second poll: one row; a changed revision means "read the trip again". */
+export const TripPulse = z.object({ id: z.number().int(), status: z.enum(['released', 'assigned', 'picking', 'done', 'cancelled']), revision: z.number().int() });
+export type TripPulse = z.infer<typeof TripPulse>;

@@ -12,7 +12,7 @@ import { getSiteRow, settingsOf } from '../sites/sites.repository';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { estimateMinutes } from '../waves/wave-planner';
 import { siteChanged } from './events';
-import { depotNodeOf, distanceOf, splitStops, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow, type Q } from './picking.repository';
+import { bumpRevision, depotNodeOf, distanceOf, splitStops, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow, type Q } from './picking.repository';
 import { remainingMetres } from './route-math';
 import { walkedMetres } from './walked';
 import type { Actor } from './picking.service';
@@ -159,6 +159,7 @@ export async function assignTrip(db: Knex, actor: Actor, siteId: number, tripId:
     if (trip.picker_id !== null) await trx('trip_assignments').where({ trip_id: tripId, picker_id: trip.picker_id }).whereNull('ended_at').update({ ended_at: at });
     await trx('trip_assignments').insert({ trip_id: tripId, picker_id: pickerId, assigned_by: actor.id, assigned_at: at });
     await trx('trips').where({ id: tripId }).update({ picker_id: pickerId, status: trip.started_at ? 'picking' : 'assigned', assigned_at: at });
+    await bumpRevision(trx, tripId);
     await audit(trx, { siteId, userId: actor.id, action: trip.picker_id === null ? 'trip.assign' : 'trip.reassign', subject: `trip:${tripId}`, detail: { from: trip.picker_id, to: pickerId }, device: actor.device });
   });
   siteChanged(siteId);
@@ -176,6 +177,7 @@ async function cancelRest(trx: Knex.Transaction, actor: Actor, trip: DbTripRow, 
   if (orderIds.length) await trx('orders').whereIn('id', orderIds).update({ status: 'open', wave_id: null });
   const walked = await walkedMetres(trx, trip);
   await trx('trips').where({ id: trip.id }).update({ status: 'cancelled', cancelled_at: at, finished_at: trip.finished_at ?? at, walked_metres: walked });
+  await bumpRevision(trx, trip.id);
   await trx('trip_assignments').where({ trip_id: trip.id }).whereNull('ended_at').update({ ended_at: at });
   await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cancel', subject: `trip:${trip.id}`, detail: { reason, linesCancelled: open.length, ordersReopened: refs.map((r) => r.ref), picker: trip.picker_id }, device: actor.device });
   return { linesCancelled: open.length, ordersReopened: refs.map((r) => r.ref) };

@@ -27,6 +27,7 @@ export interface DbTripRow {
   finished_at: string | null;
   cancelled_at: string | null;
   walked_metres: number | null;
+  revision: number;
 }
 
 export interface DbWaveRow {
@@ -130,18 +131,7 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     bins: binsOf(s.bins),
     status: s.status === 'done' ? 'done' : 'open',
     skipped: s.skipped_at !== null && s.status !== 'done',
-    lines: (byStop.get(s.id) ?? []).map((l) => ({
-      id: l.id,
-      orderRef: l.order_ref,
-      sku: l.sku,
-      description: l.description,
-      bin: l.bin,
-      qty: l.qty,
-      tote: l.tote,
-      status: l.status,
-      pickedQty: l.picked_qty,
-      shortReason: l.short_reason,
-    })),
+    lines: (byStop.get(s.id) ?? []).map(lineView),
   }));
   const current = stopList.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
   const poly = circuitPolyline(plan.graph, [depotNode, ...stops.map((s) => s.node)], true, plan.index);
@@ -176,5 +166,17 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     startedAt: trip.started_at,
     finishedAt: trip.finished_at,
     currentStopId: current?.id ?? null,
+    revision: trip.revision,
   };
+}
+
+/** Raises a trip's revision: every write calls it, so the tablet's poll sees the change. */
+export async function bumpRevision(db: Q, tripId: number): Promise<number> {
+  // One statement (SQLite ≥ 3.35 RETURNING): this runs inside every confirmation.
+  const rows = (await db.raw('UPDATE trips SET revision = revision + 1 WHERE id = ? RETURNING revision', [tripId])) as { revision: number }[];
+  return rows[0]!.revision;
+}
+
+export function lineView(l: DbLineRow) {
+  return { id: l.id, orderRef: l.order_ref, sku: l.sku, description: l.description, bin: l.bin, qty: l.qty, tote: l.tote, status: l.status, pickedQty: l.picked_qty, shortReason: l.short_reason };
 }

@@ -18,11 +18,13 @@ import {
   DEVICE_HEADER,
   FinishBody,
   IDEMPOTENCY_HEADER,
+  LineAnswer,
   PickAnswer,
   PickTrip,
   ShortBody,
   SkipBody,
   TripPlan,
+  TripPulse,
   TripResult,
 } from '../../shared/picking';
 import { loadPlanIndex } from '../floor-plans/plan-index';
@@ -77,6 +79,11 @@ export const pickingRoutes = [
     handler: ({ deps, user, req, params }) => picking.getPickTrip(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip')),
   }),
   defineRoute({
+    method: 'get', path: `${trip}/status`, access: PICKER, summary: "The tablet's poll: status and revision of your trip (one row)",
+    response: TripPulse,
+    handler: ({ deps, user, req, params }) => picking.tripPulse(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip')),
+  }),
+  defineRoute({
     method: 'get', path: `${trip}/plan`, access: PICKER, summary: "Geometry of your trip's floor plan, for the trip map",
     response: TripPlan,
     handler: async ({ deps, user, req, params }) => {
@@ -94,13 +101,13 @@ export const pickingRoutes = [
   defineRoute({
     method: 'post', path: `${trip}/lines/:lineId/confirm`, access: PICKER, body: ConfirmBody,
     summary: 'Confirm a line (scan or tap). Idempotency-Key required: same key and body → stored answer; other body → 422; line done by someone → 409 with who and when; wrong scan → 422 wrong_scan',
-    response: PickAnswer,
+    response: LineAnswer,
     handler: (ctx) => picking.confirmLine(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'lineId', 'Pick line'), ctx.body, keyed(ctx)),
   }),
   defineRoute({
     method: 'post', path: `${trip}/lines/:lineId/short`, access: PICKER, body: ShortBody,
     summary: 'Report a line short: quantity found and reason; the supervisor is alerted. Idempotency-Key required',
-    response: PickAnswer,
+    response: LineAnswer,
     handler: (ctx) => picking.shortLine(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'lineId', 'Pick line'), ctx.body, keyed(ctx)),
   }),
   defineRoute({

@@ -6,7 +6,7 @@
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
-import type { ConfirmBody, PickTrip, ShortBody, SkipBody, TripResult } from '../../shared/picking';
+import type { ConfirmBody, LineAnswer, PickTrip, ShortBody, SkipBody, TripPulse, TripResult } from '../../shared/picking';
 import { audit } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
@@ -14,10 +14,12 @@ import { loadPlanIndex } from '../floor-plans/plan-index';
 import { siteChanged } from './events';
 import {
   ACTIVE_TRIP,
+  bumpRevision,
   depotNodeOf,
   distanceOf,
   getTripRow,
   getWaveRow,
+  lineView,
   linesOf,
   loadPickTrip,
   splitStops,
@@ -26,6 +28,7 @@ import {
   type DbTripRow,
   type Q,
 } from './picking.repository';
+import { groupCommit } from './group-commit';
 import { resequenceFree } from './route-math';
 import { walkedMetres } from './walked';
 import { afterTripClosed } from './waves-progress';
@@ -64,6 +67,12 @@ async function writableTrip(db: Q, actor: Actor, tripId: number): Promise<{ trip
   const former = await db('trip_assignments').where({ trip_id: tripId, picker_id: actor.id }).whereNotNull('ended_at').orderBy('ended_at', 'desc').first<{ ended_at: string }>('ended_at');
   if (!former) throw notYourTrip();
   return { trip, formerUntil: former.ended_at };
+}
+
+/** The tablet's poll: status and revision of its trip, one row read. */
+export async function tripPulse(db: Q, actor: Actor, tripId: number): Promise<TripPulse> {
+  const trip = await readableTrip(db, actor, tripId);
+  return { id: trip.id, status: trip.status, revision: trip.revision };
 }
 
 export async function getPickTrip(db: Q, actor: Actor, tripId: number): Promise<PickTrip> {
@@ -108,6 +117,7 @@ export async function takeNextTrip(db: Knex, actor: Actor, siteId: number): Prom
       const claimed = await trx('trips').where({ id: next.id, status: 'released' }).whereNull('picker_id').update({ status: 'assigned', picker_id: actor.id, assigned_at: at });
       if (claimed !== 1) continue;
       await trx('trip_assignments').insert({ trip_id: next.id, picker_id: actor.id, assigned_by: actor.id, assigned_at: at });
+      await bumpRevision(trx, next.id);
       await audit(trx, { siteId, userId: actor.id, action: 'trip.take', subject: `trip:${next.id}`, detail: { tripId: next.id }, device: actor.device });
       return next.id;
     }
@@ -123,6 +133,7 @@ export async function startTrip(db: Knex, actor: Actor, tripId: number): Promise
     const trip = await readableTrip(trx, actor, tripId);
     if (trip.status !== 'assigned') return false;
     await markStarted(trx, trip);
+    await bumpRevision(trx, trip.id);
     await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.start', subject: `trip:${trip.id}`, device: actor.device });
     return true;
   });
@@ -171,7 +182,8 @@ interface WriteOutcome<T> {
 
 /**
  * Runs one picker write under its idempotency key. Same key, same request → the stored answer; same
- * key, another request → 422; no key → 400. The record, the change and its audit entry commit together.
+ * key, another request → 422; no key → 400. The record, the change and its audit entry commit together
+ * (in a group commit with writes arriving at the same time), before the answer.
  */
 async function idempotent<T>(
   db: Knex,
@@ -182,13 +194,19 @@ async function idempotent<T>(
   run: (trx: Knex.Transaction, trip: DbTripRow) => Promise<WriteOutcome<T>>,
   mailer?: Mailer,
 ): Promise<T> {
-  // Access first: another picker's trip is 403 whatever else is wrong with the request.
-  await writableTrip(db, actor, tripId);
-  if (!req.key) throw new AppError('validation', 'idempotency_key_required', 'Send an Idempotency-Key header with every picking request', [{ field: 'Idempotency-Key', message: 'required' }]);
-  if (!/^[A-Za-z0-9_-]{8,64}$/.test(req.key)) throw invalid('Invalid Idempotency-Key', [{ field: 'Idempotency-Key', message: '8–64 letters, digits, - or _' }]);
+  if (!req.key) {
+    // Access first: another picker's trip is 403 whatever else is wrong with the request.
+    await writableTrip(db, actor, tripId);
+    throw new AppError('validation', 'idempotency_key_required', 'Send an Idempotency-Key header with every picking request', [{ field: 'Idempotency-Key', message: 'required' }]);
+  }
+  if (!/^[A-Za-z0-9_-]{8,64}$/.test(req.key)) {
+    await writableTrip(db, actor, tripId);
+    throw invalid('Invalid Idempotency-Key', [{ field: 'Idempotency-Key', message: '8–64 letters, digits, - or _' }]);
+  }
   const hash = requestHash(req);
   const key = req.key;
-  const out = await db.transaction(async (trx) => {
+  const out = await groupCommit(db).run(async (trx) => {
+    // Keys are per user: a stored answer goes back only to the picker who made it.
     const stored = await trx('pick_requests').where({ user_id: actor.id, idem_key: key }).first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
     if (stored) {
       if (stored.request_hash !== hash) {
@@ -241,14 +259,14 @@ async function assertLineOpen(trx: Q, line: DbLineRow): Promise<void> {
   });
 }
 
-/** After a line leaves 'open': its stop is done when none of its lines is open. */
-async function closeStopIfDone(trx: Q, stopId: number): Promise<void> {
-  const open = await trx('pick_lines').where({ stop_id: stopId, status: 'open' }).count<{ n: number }[]>({ n: '*' });
-  if (Number(open[0]!.n) > 0) return;
-  const stop = await trx('stops').where({ id: stopId }).first<{ trip_id: number; status: string }>('trip_id', 'status');
-  if (!stop || stop.status === 'done') return;
-  const seq = await trx('stops').where({ trip_id: stop.trip_id }).max<{ m: number | null }[]>({ m: 'done_seq' });
-  await trx('stops').where({ id: stopId }).update({ status: 'done', done_at: nowIso(), done_seq: (seq[0]!.m ?? 0) + 1 });
+/** After a line leaves 'open': its stop is done when none of its lines is open. Returns the stop's status. */
+async function closeStopIfDone(trx: Q, tripId: number, stopId: number): Promise<'open' | 'done'> {
+  // trip_id first: the (trip_id, stop_id) index serves this; stop_id alone would scan every line.
+  const open = await trx('pick_lines').where({ trip_id: tripId, stop_id: stopId, status: 'open' }).count<{ n: number }[]>({ n: '*' });
+  if (Number(open[0]!.n) > 0) return 'open';
+  const seq = await trx('stops').where({ trip_id: tripId }).max<{ m: number | null }[]>({ m: 'done_seq' });
+  await trx('stops').where({ id: stopId, status: 'open' }).update({ status: 'done', done_at: nowIso(), done_seq: (seq[0]!.m ?? 0) + 1 });
+  return 'done';
 }
 
 /** What the scanner must read for a line at this site. */
@@ -259,13 +277,19 @@ export function expectedScan(line: Pick<DbLineRow, 'bin' | 'sku'>, confirmScan: 
 /** Scanners differ in case and padding, never in the code itself. */
 export const sameCode = (a: string, b: string): boolean => a.trim().toUpperCase() === b.trim().toUpperCase();
 
-export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId: number, body: ConfirmBody, req: KeyedRequest): Promise<{ trip: PickTrip }> {
+/** What a confirmation or short answers: the line as recorded, its stop, the trip's new revision. */
+async function lineAnswer(trx: Q, trip: DbTripRow, line: DbLineRow, stopStatus: 'open' | 'done'): Promise<LineAnswer> {
+  const revision = await bumpRevision(trx, trip.id);
+  return { tripId: trip.id, tripStatus: trip.status, revision, line: lineView(line), stop: { id: line.stop_id, status: stopStatus } };
+}
+
+export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId: number, body: ConfirmBody, req: KeyedRequest): Promise<LineAnswer> {
   return idempotent(db, actor, tripId, req, body.pickedAt, async (trx, trip) => {
     assertOpenTrip(trip);
     const line = await lineOfTrip(trx, trip, lineId);
     await assertLineOpen(trx, line);
-    const site = (await trx('sites').where({ id: trip.site_id }).first<{ confirm_scan: 'bin' | 'sku' }>('confirm_scan'))!;
     if (body.via === 'scan') {
+      const site = (await trx('sites').where({ id: trip.site_id }).first<{ confirm_scan: 'bin' | 'sku' }>('confirm_scan'))!;
       const expected = expectedScan(line, site.confirm_scan);
       if (!body.scan || !sameCode(body.scan, expected)) {
         throw new AppError('unprocessable', 'wrong_scan', `Expected ${site.confirm_scan === 'bin' ? 'bin' : 'SKU'} ${expected}, scanned ${body.scan ?? '(nothing)'}`, {
@@ -278,7 +302,8 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
     await markStarted(trx, trip);
     const at = nowIso();
     await trx('pick_lines').where({ id: line.id, status: 'open' }).update({ status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at });
-    await closeStopIfDone(trx, line.stop_id);
+    Object.assign(line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at });
+    const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id);
     await audit(trx, {
       siteId: trip.site_id,
       userId: actor.id,
@@ -287,11 +312,11 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
       detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, qty: line.qty, via: body.via, scan: body.scan, pickedAt: body.pickedAt ?? null, key: req.key },
       device: actor.device,
     });
-    return { answer: { trip: (await loadPickTrip(trx, trip.id))! }, siteId: trip.site_id };
+    return { answer: await lineAnswer(trx, trip, line, stopStatus), siteId: trip.site_id };
   });
 }
 
-export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: number, body: ShortBody, req: KeyedRequest): Promise<{ trip: PickTrip }> {
+export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: number, body: ShortBody, req: KeyedRequest): Promise<LineAnswer> {
   return idempotent(db, actor, tripId, req, body.pickedAt, async (trx, trip) => {
     assertOpenTrip(trip);
     const line = await lineOfTrip(trx, trip, lineId);
@@ -303,7 +328,8 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
     const at = nowIso();
     await trx('pick_lines').where({ id: line.id, status: 'open' }).update({ status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at });
     await trx('pick_shorts').insert({ site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
-    await closeStopIfDone(trx, line.stop_id);
+    Object.assign(line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at });
+    const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id);
     await audit(trx, {
       siteId: trip.site_id,
       userId: actor.id,
@@ -312,7 +338,7 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
       detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key },
       device: actor.device,
     });
-    return { answer: { trip: (await loadPickTrip(trx, trip.id))! }, siteId: trip.site_id };
+    return { answer: await lineAnswer(trx, trip, line, stopStatus), siteId: trip.site_id };
   });
 }
 
@@ -347,6 +373,7 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
     }
     for (const [i, s] of done.entries()) await trx('stops').where({ id: s.id }).update({ n: i + 1 });
     await markStarted(trx, trip);
+    await bumpRevision(trx, trip.id);
     await audit(trx, {
       siteId: trip.site_id,
       userId: actor.id,
@@ -405,6 +432,7 @@ export async function finishTrip(db: Knex, mailer: Mailer, actor: Actor, tripId:
     const walked = await walkedMetres(trx, trip);
     const at = nowIso();
     await trx('trips').where({ id: trip.id }).update({ status: 'done', finished_at: at, walked_metres: walked });
+    await bumpRevision(trx, trip.id);
     const orderIds = trx('trip_orders').where({ trip_id: trip.id }).select('order_id');
     await trx('orders').whereIn('id', orderIds).whereIn('status', ['planned', 'picking']).update({ status: 'done' });
     await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.finish', subject: `trip:${trip.id}`, detail: { walkedMetres: walked }, device: actor.device });

@@ -8,6 +8,7 @@ import { pairDistance, tripMatrix } from '../../server/core/plan/distances';
 import { solveTour } from '../../server/core/tour/index';
 import { BUILD_BUDGET_MS, runBuild } from '../../server/floor-plans/build';
 import { activatePlan, engineParams, saveBuiltPlan } from '../../server/floor-plans/floor-plans.service';
+import { unpackPlan } from '../../server/floor-plans/packed-plan';
 import { loadPlanIndex } from '../../server/floor-plans/plan-index';
 import { estimateMinutes } from '../../server/waves/wave-planner';
 import type { GeneratePlanParams } from '../../shared/floor-plans';
@@ -28,7 +29,7 @@ export const SMALL_PLAN: GeneratePlanParams = {
 /** Builds, saves and activates a generated plan; returns its id. */
 export async function seedPlan(db: Knex, siteId: number, userId: number, params: GeneratePlanParams = SMALL_PLAN): Promise<number> {
   const built = await runBuild({ kind: 'generate', params: engineParams(params), closures: [], budgetMs: BUILD_BUDGET_MS });
-  const planId = await saveBuiltPlan(db, { siteId, userId, name: 'Picking test hall', source: 'generated', sourceFilename: null, generatorParams: params, warnings: [] }, built.plan!, built);
+  const planId = await saveBuiltPlan(db, { siteId, userId, name: 'Picking test hall', source: 'generated', sourceFilename: null, generatorParams: params, warnings: [] }, unpackPlan(built.plan!), built);
   await activatePlan(db, siteId, planId, userId);
   return planId;
 }

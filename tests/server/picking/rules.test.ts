@@ -5,7 +5,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { routeTable } from '../../../server/routes';
 import { csrf } from '../../helpers/app';
-import { CurrentTrip, IDEMPOTENCY_HEADER, DEVICE_HEADER, PickAnswer, TripResult } from '../../../shared/picking';
+import { CurrentTrip, IDEMPOTENCY_HEADER, DEVICE_HEADER, LineAnswer, PickAnswer, TripPulse, TripResult } from '../../../shared/picking';
 import { confirm, makePickingApp, newKey, post, readTrip, type PickingFixture } from './setup';
 
 let t: PickingFixture;
@@ -69,6 +69,7 @@ describe("another picker's trip", () => {
       'get /api/picking/trips/:tripId',
       'get /api/picking/trips/:tripId/plan',
       'get /api/picking/trips/:tripId/result',
+      'get /api/picking/trips/:tripId/status',
       'post /api/picking/trips/:tripId/finish',
       'post /api/picking/trips/:tripId/lines/:lineId/confirm',
       'post /api/picking/trips/:tripId/lines/:lineId/short',
@@ -107,7 +108,7 @@ describe('idempotency keys', () => {
     const again = await confirm(t.as.picker, trip.id, line.id, { via: 'scan', scan: line.bin }, key);
     expect(again.status).toBe(200);
     expect(again.body).toEqual(first.body);
-    expect(PickAnswer.parse(again.body).trip.stopList[0]!.lines[0]!.status).toBe('picked');
+    expect(LineAnswer.parse(again.body).line.status).toBe('picked');
     const audits = await t.deps.db('audit_log').where({ action: 'pick.confirm', subject: `line:${line.id}` });
     expect(audits).toHaveLength(1);
     expect(await t.deps.db('pick_requests').where({ idem_key: key })).toHaveLength(1);
@@ -198,6 +199,27 @@ describe('idempotency keys', () => {
   });
 });
 
+describe("the tablet's poll", () => {
+  it('reads status and a revision that every write raises', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    const pulse = async () => TripPulse.parse((await t.as.picker.get(`/api/picking/trips/${trip.id}/status`)).body);
+    const r0 = await pulse();
+    expect(r0).toEqual({ id: trip.id, status: 'assigned', revision: trip.revision });
+    const c = LineAnswer.parse((await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id)).body);
+    const r1 = await pulse();
+    expect(r1.status).toBe('picking');
+    expect(r1.revision).toBe(c.revision);
+    expect(r1.revision).toBeGreaterThan(r0.revision);
+    // A supervisor's cancel shows up in the poll too.
+    await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${trip.id}/cancel`).set(csrf).send({});
+    const r2 = await pulse();
+    expect(r2.status).toBe('cancelled');
+    expect(r2.revision).toBeGreaterThan(r1.revision);
+  });
+});
+
 describe('scans', () => {
   it('refuses a wrong bin scan with what was expected and what was scanned, confirming nothing', async () => {
     await freePickers();
@@ -242,7 +264,7 @@ describe('shorts, skips and the end of a trip', () => {
     expect(tooMany.body.error.details[0].field).toBe('qtyFound');
     const res = await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${line.id}/short`, { qtyFound: line.qty - 1, reason: 'damaged' });
     expect(res.status, JSON.stringify(res.body)).toBe(200);
-    const l = PickAnswer.parse(res.body).trip.stopList[0]!.lines.find((x) => x.id === line.id)!;
+    const l = LineAnswer.parse(res.body).line;
     expect(l).toMatchObject({ status: 'short', pickedQty: line.qty - 1, shortReason: 'damaged' });
     const board = await t.as.supervisor.get(`/api/sites/${t.siteId}/board`);
     expect(board.body.shorts.find((s: { tripId: number }) => s.tripId === trip.id)).toMatchObject({ sku: line.sku, qtyOrdered: line.qty, qtyFound: line.qty - 1, reason: 'damaged', reportedBy: 'Pat Picker' });
