@@ -7,7 +7,6 @@
 import Database from 'better-sqlite3';
 import { expect, request, test, type APIRequestContext, type Page } from '@playwright/test';
 
-const DB_FILE = 'test-results/e2e-db/aislewright.sqlite';
 const CSRF = { 'x-aislewright': '1' };
 const PICKER = { badge: 'P-1003', pin: '246810', name: 'Kai Picker' };
 
@@ -128,7 +127,8 @@ test('a picker picks a whole trip through a network drop; nothing is lost or dou
   await expect(page.getByTestId('next-trip')).toBeVisible();
 
   // The server holds each confirmation exactly once (read straight from its database file).
-  const db = new Database(DB_FILE, { readonly: true, fileMustExist: true });
+  // The suite's server keeps its database per port (playwright.config.ts).
+  const db = new Database(`test-results/e2e-db-${new URL(baseURL!).port}/aislewright.sqlite`, { readonly: true, fileMustExist: true });
   try {
     const rows = db.prepare('SELECT id, status FROM pick_lines WHERE trip_id = ?').all(tripId) as { id: number; status: string }[];
     expect(rows).toHaveLength(lines);

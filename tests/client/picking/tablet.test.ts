@@ -1,0 +1,145 @@
+/** The tablet's pure parts: queued writes shown at once, answers merged, scans compared, the queue's resend rules. */
+import { describe, expect, it, vi } from 'vitest';
+import type { PickTrip } from '@shared/picking';
+import { contrast, DARK, LIGHT } from '@client/adapters/palette';
+import { sendAction, type PickAction } from '@client/api/picking';
+import { applyPending, mergeLineAnswer, progressOf, scanMatches } from '@client/views/picking/trip-view';
+
+const store = new Map<string, unknown>();
+vi.mock('idb-keyval', () => ({
+  createStore: () => 'store',
+  get: async (k: string) => store.get(k),
+  set: async (k: string, v: unknown) => void store.set(k, structuredClone(v)),
+}));
+const { PickQueue, isRetryable, newIdempotencyKey } = await import('@client/views/picking/offline-queue');
+
+const line = (id: number, bin: string) => ({ id, orderRef: 'WEB-1', sku: `SKU-${id}`, description: 'Brass hinge', bin, qty: 2, tote: 1, status: 'open' as const, pickedQty: null, shortReason: null });
+function trip(): PickTrip {
+  return {
+    id: 9, n: 1, status: 'picking', pickerId: 4, pickerName: 'Pat', orders: ['WEB-1'], stops: 3, lines: 4, plannedMetres: 100, lowerBoundMetres: 95, estMinutes: 5,
+    totes: 1, kg: 1, litres: 1, waveId: 1, waveName: 'W', planId: 1, siteName: 'S', siteId: 1, path: [], depot: [0, 0], depotCode: 'D1', confirmScan: 'bin',
+    startedAt: null, finishedAt: null, currentStopId: 1, revision: 3,
+    stopList: [
+      { id: 1, n: 1, x: 0, y: 0, bins: ['A-01'], status: 'open', skipped: false, lines: [line(11, 'A-01'), line(12, 'A-01')] },
+      { id: 2, n: 2, x: 0, y: 5, bins: ['A-02'], status: 'open', skipped: false, lines: [line(21, 'A-02')] },
+      { id: 3, n: 3, x: 0, y: 9, bins: ['A-03'], status: 'open', skipped: false, lines: [line(31, 'A-03')] },
+    ],
+  };
+}
+const queued = (action: PickAction) => ({ key: newIdempotencyKey(), action, queuedAt: '2026-12-02T04:00:00Z' });
+const at = '2026-12-02T04:00:00Z';
+
+describe('applyPending', () => {
+  it('shows queued confirmations and shorts at once, and moves to the next stop when one is done', () => {
+    const view = applyPending(trip(), [
+      queued({ kind: 'confirm', tripId: 9, lineId: 11, body: { via: 'scan', scan: 'A-01', pickedAt: at } }),
+      queued({ kind: 'short', tripId: 9, lineId: 12, body: { qtyFound: 1, reason: 'damaged', pickedAt: at } }),
+    ]);
+    expect(view.stopList[0]!.status).toBe('done');
+    expect(view.stopList[0]!.lines.map((l) => l.status)).toEqual(['picked', 'short']);
+    expect(view.currentStopId).toBe(2);
+    expect(progressOf(view)).toEqual({ stopsDone: 1, linesDone: 2, lines: 4, shorts: 1 });
+  });
+
+  it('puts a stop skipped offline at the end until the server re-sequences', () => {
+    const view = applyPending(trip(), [queued({ kind: 'skip', tripId: 9, stopId: 1, body: { pickedAt: at } })]);
+    expect(view.stopList.map((s) => [s.id, s.n, s.skipped])).toEqual([[2, 1, false], [3, 2, false], [1, 3, true]]);
+    expect(view.currentStopId).toBe(2);
+  });
+
+  it('ignores writes for another trip and lines already done on the server', () => {
+    const t = trip();
+    t.stopList[0]!.lines[0]!.status = 'picked';
+    const view = applyPending(t, [
+      queued({ kind: 'short', tripId: 9, lineId: 11, body: { qtyFound: 0, reason: 'empty_bin', pickedAt: at } }),
+      queued({ kind: 'confirm', tripId: 8, lineId: 12, body: { via: 'tap', scan: null, pickedAt: at } }),
+    ]);
+    expect(view.stopList[0]!.lines.map((l) => l.status)).toEqual(['picked', 'open']);
+  });
+});
+
+describe('mergeLineAnswer', () => {
+  it('takes the line, the stop status and the higher revision from the answer', () => {
+    const merged = mergeLineAnswer(trip(), { tripId: 9, tripStatus: 'picking', revision: 7, line: { ...line(21, 'A-02'), status: 'picked', pickedQty: 2 }, stop: { id: 2, status: 'done' } });
+    expect(merged.stopList[1]!.status).toBe('done');
+    expect(merged.stopList[1]!.lines[0]!.status).toBe('picked');
+    expect(merged.revision).toBe(7);
+    expect(merged.currentStopId).toBe(1);
+  });
+});
+
+describe('scans', () => {
+  it('match whatever the case and padding, and only the same code', () => {
+    expect(scanMatches(' c-07-03-2\n', 'C-07-03-2')).toBe(true);
+    expect(scanMatches('C-07-03-3', 'C-07-03-2')).toBe(false);
+  });
+});
+
+describe('the offline queue', () => {
+  it('keeps writes through a network failure and sends each once, with the same key, when it is back', async () => {
+    store.clear();
+    const sent: string[] = [];
+    let up = false;
+    const answered: number[] = [];
+    const q = new PickQueue(
+      async (action, key) => {
+        sent.push(key);
+        if (!up) return { ok: false, error: { status: 0, code: 'network' } as never };
+        return { ok: true, answer: { tripId: 9, tripStatus: 'picking', revision: 1, line: line((action as { lineId: number }).lineId, 'A'), stop: { id: 1, status: 'open' } } };
+      },
+      { answered: (_i, a) => answered.push((a as { line: { id: number } }).line.id), refused: () => undefined, reachability: () => undefined },
+    );
+    await q.load();
+    const a = await q.enqueue({ kind: 'confirm', tripId: 9, lineId: 11, body: { via: 'tap', scan: null, pickedAt: at } });
+    const b = await q.enqueue({ kind: 'confirm', tripId: 9, lineId: 12, body: { via: 'tap', scan: null, pickedAt: at } });
+    await q.flush();
+    expect(q.pending).toHaveLength(2);
+    // Kept on the device: a reload finds both.
+    const reloaded = new PickQueue(async () => ({ ok: false, error: { status: 0 } as never }), { answered: () => undefined, refused: () => undefined, reachability: () => undefined });
+    expect((await reloaded.load()).map((i) => i.key)).toEqual([a.key, b.key]);
+    up = true;
+    await q.flush();
+    expect(q.pending).toHaveLength(0);
+    expect(answered).toEqual([11, 12]);
+    // Every send of a write carried its own key, resends the same one.
+    expect(new Set(sent.filter((k) => k === a.key)).size).toBe(1);
+    expect(sent.slice(-2)).toEqual([a.key, b.key]);
+  });
+
+  it('retries only network trouble and server errors; conflicts are final', () => {
+    expect(isRetryable({ status: 0, code: 'network' } as never)).toBe(true);
+    expect(isRetryable({ status: 503, code: 'x' } as never)).toBe(true);
+    expect(isRetryable({ status: 409, code: 'already_confirmed' } as never)).toBe(false);
+    expect(isRetryable({ status: 422, code: 'idempotency_key_reused' } as never)).toBe(false);
+    expect(newIdempotencyKey()).toMatch(/^[0-9a-f]{32}$/);
+  });
+});
+
+describe('sendAction', () => {
+  it('sends the key, the device and the CSRF header, and reports a dropped network as status 0', async () => {
+    const fetchFn = vi.fn(async () => new Response(JSON.stringify({ error: { code: 'already_confirmed', message: 'x', details: { by: 'Robin' } } }), { status: 409 }));
+    const out = await sendAction({ kind: 'confirm', tripId: 9, lineId: 11, body: { via: 'tap', scan: null, pickedAt: at } }, 'key-123456789', 'tablet-1', fetchFn as unknown as typeof fetch);
+    const init = (fetchFn.mock.calls[0] as unknown as [string, RequestInit])[1];
+    expect((fetchFn.mock.calls[0] as unknown as [string])[0]).toBe('/api/picking/trips/9/lines/11/confirm');
+    expect(init.headers).toMatchObject({ 'idempotency-key': 'key-123456789', 'x-aislewright-device': 'tablet-1', 'x-aislewright': '1' });
+    expect(out.ok).toBe(false);
+    if (!out.ok) expect([out.error.status, out.error.code]).toEqual([409, 'already_confirmed']);
+    const offline = await sendAction({ kind: 'finish', tripId: 9, body: {} }, 'key-123456789', 'tablet-1', (async () => { throw new TypeError('Failed to fetch'); }) as unknown as typeof fetch);
+    expect(!offline.ok && offline.error.status).toBe(0);
+  });
+});
+
+describe('wrong-scan colours', () => {
+  // WCAG 2.1 contrast (1.4.6 AAA, 7:1), the formula in client/adapters/palette.ts.
+  it('hold 7:1 in light and dark', () => {
+    expect(contrast('#5C0F08', '#FDECEA')).toBeGreaterThanOrEqual(7);
+    expect(contrast('#FFE1DC', '#3A1512')).toBeGreaterThanOrEqual(7);
+    // Text on the picker's own surfaces and buttons.
+    for (const p of [LIGHT, DARK]) {
+      expect(contrast(p.text1, p.surface)).toBeGreaterThanOrEqual(7);
+      expect(contrast(p.onAction, p.action)).toBeGreaterThanOrEqual(7);
+      expect(contrast(p.cautionText, p.cautionBg)).toBeGreaterThanOrEqual(7);
+      expect(contrast(p.text1, p.body)).toBeGreaterThanOrEqual(7);
+    }
+  });
+});
