@@ -163,6 +163,7 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
   const site = (await getSiteRow(db, siteId))!;
   const speeds = settingsOf(site);
   const skus = await skuMap(db, siteId);
+  const depotNode = (await loadPlanIndex(db, ctx.planId)).depotNodes[ctx.depotIdx]!;
   const now = new Date().toISOString();
   const waveName = name ?? `Wave ${now.slice(0, 16).replace('T', ' ')}`;
 
@@ -190,7 +191,7 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
       const [tripId] = await trx('trips').insert({
         wave_id: id, site_id: siteId, n: trip.n, status: 'released', planned_metres: trip.metres, lower_bound_metres: trip.lowerBound,
         s_shape_metres: trip.sShapeMetres, est_seconds: trip.estMinutes * 60, totes: trip.totes, kg: trip.kg, litres: trip.litres,
-        depot_node: -1, due: dues[0] ?? null,
+        depot_node: depotNode, due: dues[0] ?? null,
       });
       const toteOf = new Map<string, number>();
       for (const o of trip.orders) {
