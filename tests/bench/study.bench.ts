@@ -31,5 +31,12 @@ export async function run(): Promise<void> {
     for (const row of [...v.routing].sort((a, b) => b.ms - a.ms).slice(0, 6)) console.log(`| ${v.label} | ${row.key} | ${row.ms.toFixed(0)} |`);
     for (const b of v.batching) console.log(`| ${v.label} | batching ${b.method} (with bounds) | ${b.ms.toFixed(0)} |`);
   }
+  // The demo question's figures: S-shape against the default method, without and with the middle cross aisle.
+  console.log('\n| plan | method | metres | picker hours a day |\n|---|---|---:|---:|');
+  for (const v of r.variants) {
+    for (const row of v.routing.filter((x) => ['s-shape', 'largest-gap', 'best+local', 'ratliff-rosenthal'].includes(x.key))) {
+      console.log(`| ${v.label} | ${row.key} | ${row.metres?.toFixed(1) ?? '—'} | ${row.hoursPerDay?.toFixed(2) ?? '—'} |`);
+    }
+  }
   console.log(`\nwhole study: ${(ms / 1000).toFixed(1)} s for ${r.variants.map((v) => v.trips.length).join(' + ')} trips (target < ${TARGET_MS / 1000} s): ${ms < TARGET_MS ? 'met' : 'NOT met'}`);
 }
