@@ -1,0 +1,47 @@
+import { ref, watch, type Ref } from 'vue';
+import type { z } from 'zod';
+import { useFormErrors } from './useFormErrors';
+
+interface ModalFormOptions<S extends z.ZodType> {
+  /** The modal's v-model:show; the form resets each time it opens and closes after a good save. */
+  show: Ref<boolean>;
+  /** The same shared schema the server validates with. */
+  schema: S;
+  /** What to check: usually the form object itself. */
+  value: () => unknown;
+  /** Fill the form for a fresh start (after the errors are cleared). */
+  reset: () => void;
+  /** Send the checked body; a throw keeps the modal open with the server's field errors. */
+  save: (body: z.infer<S>) => Promise<void>;
+  /** While false, submitting does nothing (e.g. no user chosen yet). */
+  ready?: () => boolean;
+}
+
+/** Open/reset, check, save, busy and error handling shared by the admin form modals. */
+export function useModalForm<S extends z.ZodType>(options: ModalFormOptions<S>) {
+  const errors = useFormErrors();
+  const busy = ref(false);
+
+  watch(options.show, (open) => {
+    if (!open) return;
+    errors.clear();
+    options.reset();
+  });
+
+  async function submit(): Promise<void> {
+    if (options.ready && !options.ready()) return;
+    const body = errors.check(options.schema, options.value());
+    if (!body) return;
+    busy.value = true;
+    try {
+      await options.save(body);
+      options.show.value = false;
+    } catch (error) {
+      errors.fromError(error);
+    } finally {
+      busy.value = false;
+    }
+  }
+
+  return { errors, busy, submit };
+}
