@@ -86,10 +86,16 @@ export class PickQueue {
         return;
       }
       this.events.reachability(true);
+      // The write leaves the queue and its answer is handed over in the same tick: a screen reading
+      // the queue between the two would show the line open again. A crash before the store is
+      // written only resends it under the same key, which the server answers from its record.
       this.items = this.items.filter((i) => i.key !== item.key);
-      await set(ITEMS, this.items, this.store);
-      if (outcome.ok) this.events.answered(item, outcome.answer);
-      else this.events.refused(item, outcome.error);
+      try {
+        if (outcome.ok) this.events.answered(item, outcome.answer);
+        else this.events.refused(item, outcome.error);
+      } finally {
+        await set(ITEMS, this.items, this.store);
+      }
     }
   }
 }

@@ -43,6 +43,15 @@ export function mergeLineAnswer(trip: PickTrip, a: LineAnswer): PickTrip {
   return { ...trip, stopList, status: a.tripStatus, revision: Math.max(trip.revision, a.revision), currentStopId: current?.id ?? null };
 }
 
+/**
+ * Whether a trip read from the server may replace the one the tablet holds. A read that left the
+ * server before a confirmation's answer arrived carries a lower revision; taking it would reopen
+ * lines already confirmed (and already gone from the queue), so the picker's next scan would fail.
+ */
+export function supersedes(incoming: Pick<PickTrip, 'id' | 'revision'>, held: Pick<PickTrip, 'id' | 'revision'> | null): boolean {
+  return !held || incoming.id !== held.id || incoming.revision >= held.revision;
+}
+
 export interface TripProgress {
   stopsDone: number;
   linesDone: number;

@@ -3,7 +3,7 @@ import { describe, expect, it, vi } from 'vitest';
 import type { PickTrip } from '@shared/picking';
 import { contrast, DARK, LIGHT } from '@client/adapters/palette';
 import { sendAction, type PickAction } from '@client/api/picking';
-import { applyPending, mergeLineAnswer, progressOf, scanMatches } from '@client/views/picking/trip-view';
+import { applyPending, mergeLineAnswer, progressOf, scanMatches, supersedes } from '@client/views/picking/trip-view';
 
 const store = new Map<string, unknown>();
 vi.mock('idb-keyval', () => ({
@@ -68,6 +68,21 @@ describe('mergeLineAnswer', () => {
   });
 });
 
+describe('supersedes', () => {
+  it('keeps a confirmation answered after a trip read left the server when the read comes back late', () => {
+    const read = trip();
+    const held = mergeLineAnswer(trip(), { tripId: 9, tripStatus: 'picking', revision: 4, line: { ...line(11, 'A-01'), status: 'picked', pickedQty: 2 }, stop: { id: 1, status: 'open' } });
+    expect(supersedes(read, held)).toBe(false);
+    expect(progressOf(held).linesDone).toBe(1);
+    expect(supersedes({ ...read, revision: 4 }, held)).toBe(true);
+    expect(supersedes({ ...read, revision: 5 }, held)).toBe(true);
+  });
+  it('takes any read when the tablet holds no trip or another one', () => {
+    expect(supersedes(trip(), null)).toBe(true);
+    expect(supersedes({ id: 10, revision: 1 }, trip())).toBe(true);
+  });
+});
+
 describe('scans', () => {
   it('match whatever the case and padding, and only the same code', () => {
     expect(scanMatches(' c-07-03-2\n', 'C-07-03-2')).toBe(true);
@@ -76,6 +91,28 @@ describe('scans', () => {
 });
 
 describe('the offline queue', () => {
+  it('hands over an answer in the same step that takes its write off the queue', async () => {
+    store.clear();
+    const seen: { pendingHasIt: boolean; storedHasIt: boolean }[] = [];
+    const q = new PickQueue(
+      async () => ({ ok: true, answer: { tripId: 9, tripStatus: 'picking', revision: 4, line: { ...line(11, 'A-01'), status: 'picked', pickedQty: 2 }, stop: { id: 1, status: 'open' } } }),
+      {
+        answered: (item) =>
+          seen.push({
+            pendingHasIt: q.pending.some((i) => i.key === item.key),
+            storedHasIt: ((store.get('items') as { key: string }[] | undefined) ?? []).some((i) => i.key === item.key),
+          }),
+        refused: () => undefined,
+        reachability: () => undefined,
+      },
+    );
+    await q.load();
+    await q.enqueue({ kind: 'confirm', tripId: 9, lineId: 11, body: { via: 'scan', scan: 'A-01', pickedAt: at } });
+    await q.flush();
+    // Off the queue the screen already sees, still in the store until the answer is merged (a crash resends it under its key).
+    expect(seen).toEqual([{ pendingHasIt: false, storedHasIt: true }]);
+    expect(store.get('items')).toEqual([]);
+  });
   it('keeps writes through a network failure and sends each once, with the same key, when it is back', async () => {
     store.clear();
     const sent: string[] = [];
