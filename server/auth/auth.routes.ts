@@ -1,11 +1,14 @@
+import type { Request, Response } from 'express';
 import { z } from 'zod';
 import { BadgeSignInBody, ChangePasswordBody, InviteAcceptBody, InviteInfo, Me, ResetCompleteBody, ResetRequestBody, SignInBody } from '../../shared/auth';
 import { Ok } from '../../shared/common';
 import { audit } from '../audit/audit';
 import { AppError } from '../http/errors';
 import { defineRoute } from '../http/route';
+import { parseOr400 } from '../http/validate';
 import { clearSession, issueSession } from '../http/session';
-import { findUserById } from '../users/users.repository';
+import type { Deps } from '../deps';
+import { findUserById, type DbUserRow } from '../users/users.repository';
 import {
   acceptInvite, changePassword, completePasswordReset, inviteInfo, meOf, requestPasswordReset, signInWithBadge, signInWithPassword,
 } from './auth.service';
@@ -13,28 +16,24 @@ import {
 const nowS = () => Math.floor(Date.now() / 1000);
 const deviceOf = (ua: string | undefined) => (ua ?? '').slice(0, 200) || null;
 
+/** A fresh session for a user who just proved who they are: cookie, audit entry, and who they are. */
+async function startSession(ctx: { deps: Deps; res: Response; req: Request }, user: DbUserRow, action: string): Promise<Me> {
+  const t = nowS();
+  issueSession(ctx.deps, ctx.res, user.id, user.token_version, t);
+  await audit(ctx.deps.db, { userId: user.id, action, device: deviceOf(ctx.req.get('user-agent')) });
+  return meOf(ctx.deps.db, user, t);
+}
+
 export const authRoutes = [
   defineRoute({
     method: 'post', path: '/api/auth/sign-in', access: 'public', summary: 'Sign in with e-mail and password',
     body: SignInBody, response: Me,
-    handler: async ({ deps, body, res, req }) => {
-      const user = await signInWithPassword(deps, body.email, body.password);
-      const t = nowS();
-      issueSession(deps, res, user.id, user.token_version, t);
-      await audit(deps.db, { userId: user.id, action: 'sign-in', device: deviceOf(req.get('user-agent')) });
-      return meOf(deps.db, user, t);
-    },
+    handler: async (ctx) => startSession(ctx, await signInWithPassword(ctx.deps, ctx.body.email, ctx.body.password), 'sign-in'),
   }),
   defineRoute({
     method: 'post', path: '/api/auth/badge-sign-in', access: 'public', summary: 'Sign in on a shared tablet with badge code and PIN',
     body: BadgeSignInBody, response: Me,
-    handler: async ({ deps, body, res, req }) => {
-      const user = await signInWithBadge(deps, body.badge, body.pin);
-      const t = nowS();
-      issueSession(deps, res, user.id, user.token_version, t);
-      await audit(deps.db, { userId: user.id, action: 'badge-sign-in', device: deviceOf(req.get('user-agent')) });
-      return meOf(deps.db, user, t);
-    },
+    handler: async (ctx) => startSession(ctx, await signInWithBadge(ctx.deps, ctx.body.badge, ctx.body.pin), 'badge-sign-in'),
   }),
   defineRoute({
     method: 'post', path: '/api/auth/sign-out', access: 'public', summary: 'Sign out (clears the session cookie)',
@@ -83,16 +82,11 @@ export const authRoutes = [
   defineRoute({
     method: 'get', path: '/api/auth/invites/:token', access: 'public', summary: 'What an invitation is for',
     response: InviteInfo,
-    handler: ({ deps, params }) => inviteInfo(deps.db, z.string().max(200).parse(params.token)),
+    handler: ({ deps, params }) => inviteInfo(deps.db, parseOr400(z.string().max(200), params.token, 'invitation link')),
   }),
   defineRoute({
     method: 'post', path: '/api/auth/invites/accept', access: 'public', summary: 'Accept an invitation: choose a name and password',
     body: InviteAcceptBody, response: Me, status: 201,
-    handler: async ({ deps, body, res }) => {
-      const user = await acceptInvite(deps, body.token, body.name, body.password);
-      const t = nowS();
-      issueSession(deps, res, user.id, user.token_version, t);
-      return meOf(deps.db, user, t);
-    },
+    handler: async (ctx) => startSession(ctx, await acceptInvite(ctx.deps, ctx.body.token, ctx.body.name, ctx.body.password), 'sign-in'),
   }),
 ];

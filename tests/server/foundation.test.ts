@@ -119,6 +119,12 @@ describe('admin: users', () => {
     expect(again.status).toBe(404);
   });
 
+  it('answers an over-long invitation link with 400, not a server error', async () => {
+    const res = await t.anon.get(`/api/auth/invites/${'x'.repeat(300)}`);
+    expect(res.status).toBe(400);
+    expect(res.body.error.code).toBe('validation_failed');
+  });
+
   it('deactivating a user ends their sessions at once', async () => {
     await t.as.admin.post('/api/users/pickers').set(csrf).send({ name: 'Temp Picker', badge: 'P-2001', pin: '135790', siteIds: [t.siteId] });
     const agent = request.agent(t.app);
