@@ -3,13 +3,14 @@ import { PlanGeometry } from '../../shared/floor-plans';
 import { Id } from '../../shared/common';
 import { StudyDetail, StudyInputs, StudyRoute, StudyRouteQuery, StudySummary } from '../../shared/studies';
 import { defineRoute } from '../http/route';
+import { parseOr400 } from '../http/validate';
 import { studyWorkbook } from './export';
 import { cancelStudy, createStudy, doneStudy, getStudy, listStudies, rerunStudy, studyPlan, studyRoute } from './studies.service';
 
 /** Engineers run studies; supervisors read and run them too. Pickers and admins are not given them. */
 const STUDY_ROLES = ['engineer', 'supervisor'] as const;
 const base = '/api/sites/:siteId/studies';
-const idOf = (params: Record<string, string>) => Id.parse(params.id);
+const idOf = (params: Record<string, string>) => parseOr400(Id, params.id, 'study id');
 
 const StudyPlan = z.object({
   geometry: PlanGeometry,
