@@ -126,7 +126,7 @@ export async function deleteDraft(db: Knex, siteId: number, planId: number, user
   if (row.state !== 'draft') throw new AppError('conflict', 'not_a_draft', 'Only drafts can be deleted; active and retired plans are kept');
   if (await repo.isPlanInUse(db, planId)) throw new AppError('conflict', 'plan_read_only', 'Waves were planned on this plan; it is kept');
   await repo.deletePlan(db, planId);
-  forgetPlanIndex(planId);
+  forgetPlanIndex(db, planId);
   await audit(db, { siteId, userId, action: 'floor_plan.deleted', subject: `v${row.version}`, detail: { planId } });
 }
 

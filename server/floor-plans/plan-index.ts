@@ -31,20 +31,33 @@ export interface LoadedPlan {
   depotNodes: Int32Array;
 }
 
-/** Plans kept in memory; a 50,000-bin plan is a few MB with its geometry. */
+/** Plans kept in memory per database; a 50,000-bin plan is a few MB with its geometry. */
 const CACHE_LIMIT = 8;
-const cache = new Map<number, LoadedPlan>();
+/**
+ * Keyed by the database too: plan ids are only unique within one database, and one process can hold
+ * several (tests, benchmarks) — a cache by id alone once served another database's plan 1.
+ */
+const caches = new WeakMap<Knex, Map<number, LoadedPlan>>();
+const cacheOf = (db: Knex): Map<number, LoadedPlan> => {
+  let c = caches.get(db);
+  if (!c) {
+    c = new Map();
+    caches.set(db, c);
+  }
+  return c;
+};
 
-function remember(plan: LoadedPlan): void {
+function remember(db: Knex, plan: LoadedPlan): void {
+  const cache = cacheOf(db);
   cache.delete(plan.planId);
   cache.set(plan.planId, plan);
   while (cache.size > CACHE_LIMIT) cache.delete(cache.keys().next().value!);
 }
 
-/** Drops a plan from the cache (after deletion; tests). */
-export function forgetPlanIndex(planId?: number): void {
-  if (planId === undefined) cache.clear();
-  else cache.delete(planId);
+/** Drops a plan (or every plan) of a database from the cache (after deletion; tests). */
+export function forgetPlanIndex(db: Knex, planId?: number): void {
+  if (planId === undefined) caches.delete(db);
+  else cacheOf(db).delete(planId);
 }
 
 /**
@@ -54,9 +67,9 @@ export function forgetPlanIndex(planId?: number): void {
 export async function loadPlanIndex(db: Knex, planId: number): Promise<LoadedPlan> {
   const row = await getPlanRowById(db, planId);
   if (!row) throw notFound('Floor plan');
-  const hit = cache.get(planId);
+  const hit = cacheOf(db).get(planId);
   if (hit && hit.closureVersion === row.closure_version) {
-    remember(hit);
+    remember(db, hit);
     return hit;
   }
   const sets = await loadGraphSets(db, planId);
@@ -85,7 +98,7 @@ export async function loadPlanIndex(db: Knex, planId: number): Promise<LoadedPla
     },
     depotNodes: graph.depotNode,
   };
-  remember(loaded);
+  remember(db, loaded);
   return loaded;
 }
 
