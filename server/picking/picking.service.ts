@@ -301,19 +301,37 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
     }
     await markStarted(trx, trip);
     const at = nowIso();
-    await trx('pick_lines').where({ id: line.id, status: 'open' }).update({ status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at });
-    Object.assign(line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at });
-    const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id);
-    await audit(trx, {
-      siteId: trip.site_id,
-      userId: actor.id,
-      action: 'pick.confirm',
-      subject: `line:${line.id}`,
-      detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, qty: line.qty, via: body.via, scan: body.scan, pickedAt: body.pickedAt ?? null, key: req.key },
-      device: actor.device,
+    return settleLine(trx, actor, trip, line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at }, 'pick.confirm', {
+      qty: line.qty, via: body.via, scan: body.scan, pickedAt: body.pickedAt ?? null, key: req.key,
     });
-    return { answer: await lineAnswer(trx, trip, line, stopStatus), siteId: trip.site_id };
   });
+}
+
+/**
+ * Records a line's outcome (picked or short) on an open line: the row, the stop closed when it was its
+ * last open line, the audit entry, and the answer the tablet gets.
+ */
+async function settleLine(
+  trx: Knex.Transaction,
+  actor: Actor,
+  trip: Parameters<typeof lineAnswer>[1],
+  line: Parameters<typeof lineAnswer>[2],
+  outcome: Record<string, unknown>,
+  action: 'pick.confirm' | 'pick.short',
+  detail: Record<string, unknown>,
+) {
+  await trx('pick_lines').where({ id: line.id, status: 'open' }).update(outcome);
+  Object.assign(line, outcome);
+  const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id);
+  await audit(trx, {
+    siteId: trip.site_id,
+    userId: actor.id,
+    action,
+    subject: `line:${line.id}`,
+    detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, ...detail },
+    device: actor.device,
+  });
+  return { answer: await lineAnswer(trx, trip, line, stopStatus), siteId: trip.site_id };
 }
 
 export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: number, body: ShortBody, req: KeyedRequest): Promise<LineAnswer> {
@@ -326,19 +344,10 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
     }
     await markStarted(trx, trip);
     const at = nowIso();
-    await trx('pick_lines').where({ id: line.id, status: 'open' }).update({ status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at });
     await trx('pick_shorts').insert({ site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
-    Object.assign(line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at });
-    const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id);
-    await audit(trx, {
-      siteId: trip.site_id,
-      userId: actor.id,
-      action: 'pick.short',
-      subject: `line:${line.id}`,
-      detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key },
-      device: actor.device,
+    return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at }, 'pick.short', {
+      ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key,
     });
-    return { answer: await lineAnswer(trx, trip, line, stopStatus), siteId: trip.site_id };
   });
 }
 
