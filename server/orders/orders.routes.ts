@@ -7,6 +7,8 @@ import { importOrderRows, importSkus, pushOrders } from './orders.service';
 import { failed, orderTemplate, readTableFile, skuTemplate } from './orders.files';
 import { AppError } from '../http/errors';
 import type { Request, Response } from 'express';
+import type { ImportResult as ImportResultT } from '../../shared/orders';
+import type { InputRow } from './orders.validate';
 import { missingBinsOnActivePlan } from './bins';
 
 const uploaded = (req: Request) => {
@@ -14,6 +16,13 @@ const uploaded = (req: Request) => {
   if (!file) throw new AppError('validation', 'validation_failed', 'Attach the file in the field "file"', [{ field: 'file', message: 'missing' }]);
   return file;
 };
+
+/** Reads the uploaded SKU or order file in a worker; its rows go to `save`, or its reading issues come back. */
+async function importUpload(req: Request, which: 'skus' | 'orders', save: (rows: InputRow[]) => Promise<ImportResultT>): Promise<ImportResultT> {
+  const file = uploaded(req);
+  const read = await readTableFile(file.buffer, file.originalname, which);
+  return 'issues' in read ? failed(read.issues) : save(read.rows);
+}
 
 const sendXlsx = (res: Response, name: string, bytes: Buffer) => {
   res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
@@ -26,22 +35,13 @@ export const orderRoutes = [
   defineRoute({
     method: 'post', path: '/api/sites/:siteId/skus/import', access: ['supervisor', 'admin'], summary: 'Import the SKU master (xlsx sheet "skus" or CSV); any error → nothing saved',
     upload: 'single-file', response: ImportResult,
-    handler: async ({ deps, siteId, req, user }) => {
-      const file = uploaded(req);
-      const read = await readTableFile(file.buffer, file.originalname, 'skus');
-      if ('issues' in read) return failed(read.issues);
-      return importSkus(deps.db, siteId!, user!.id, 'skus', read.rows, (bins) => missingBinsOnActivePlan(deps.db, siteId!, bins));
-    },
+    handler: ({ deps, siteId, req, user }) =>
+      importUpload(req, 'skus', (rows) => importSkus(deps.db, siteId!, user!.id, 'skus', rows, (bins) => missingBinsOnActivePlan(deps.db, siteId!, bins))),
   }),
   defineRoute({
     method: 'post', path: '/api/sites/:siteId/orders/import', access: ['supervisor', 'admin'], summary: 'Import orders (xlsx sheet "orders" or CSV); any error → nothing saved',
     upload: 'single-file', response: ImportResult,
-    handler: async ({ deps, siteId, req, user }) => {
-      const file = uploaded(req);
-      const read = await readTableFile(file.buffer, file.originalname, 'orders');
-      if ('issues' in read) return failed(read.issues);
-      return importOrderRows(deps.db, siteId!, user!.id, 'orders', read.rows, 'upload');
-    },
+    handler: ({ deps, siteId, req, user }) => importUpload(req, 'orders', (rows) => importOrderRows(deps.db, siteId!, user!.id, 'orders', rows, 'upload')),
   }),
   defineRoute({
     method: 'get', path: '/api/templates/skus.xlsx', access: 'signed-in', summary: 'SKU master template with a worked example',
