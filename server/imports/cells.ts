@@ -12,6 +12,7 @@ const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 // Spreadsheet programs run a cell that starts with these as a formula (OWASP, "CSV Injection").
 const FORMULA_START = /^[=+\-@\t\r]/;
 // C0 control characters and DEL never belong in a code.
+// eslint-disable-next-line no-control-regex -- matching control characters is the point
 const CONTROL = /[\u0000-\u001f\u007f]/;
 
 /** The cell as a user would see it, for the `value` column of an issue. */

@@ -8,7 +8,7 @@
  * (a "slot"); its levels are drawn as bands across the rack depth, level 1 nearest the aisle,
  * because a plan view cannot show height.
  */
-import { POSITION_TOLERANCE_M } from '../../../server/core/plan/types';
+import { POSITION_TOLERANCE_M } from '../../../shared/plan-geometry';
 import type { PlanBin, PlanGeometry } from './types';
 import { unionRect, type WorldRect } from './viewport';
 

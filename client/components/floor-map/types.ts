@@ -2,7 +2,7 @@
  * Props and events of the floor map components. Geometry comes straight from the engine's plan types
  * (metres, x across the aisles, y along them), so the map draws what the engine routes on.
  */
-import type { PlanBin, PlanClosure, PlanGeometry } from '../../../server/core/plan/types';
+import type { PlanBin, PlanClosure, PlanGeometry } from '../../../shared/plan-geometry';
 
 export type { PlanBin, PlanClosure, PlanGeometry };
 
