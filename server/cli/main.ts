@@ -10,6 +10,7 @@ const commands: Record<string, () => Promise<{ run: (args: string[], io: CliIo) 
   bound: () => import('./commands/bound'),
   plan: () => import('./commands/plan'),
   waves: () => import('./commands/waves'),
+  slotting: () => import('./commands/slotting'),
 };
 
 const usage = `usage: aislewright <command> [options]
@@ -17,7 +18,8 @@ commands:
   route   sequence a closed circuit from JSON on stdin
   bound   Held–Karp lower bound for JSON on stdin
   plan    check a floor-plan workbook, or measure a walking distance on it
-  waves   batch and route orders on a floor plan`;
+  waves   batch and route orders on a floor plan
+  slotting  choose bins for SKUs from an order history and write the new SKU master`;
 
 async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;

@@ -14,7 +14,7 @@ import { buildWalkGraph } from '../core/plan/walk-graph';
 import { isNotApplicable } from '../core/policy/index';
 import { checkFloorPlanFile } from '../floor-plans/import/index';
 import { readTableFile } from '../orders/orders.files';
-import { validateOrderRows, validateSkuRows } from '../orders/orders.validate';
+import { validateOrderRows, validateSkuRows, type SkuRecord } from '../orders/orders.validate';
 
 export interface NamedFile {
   bytes: Uint8Array;
@@ -43,11 +43,24 @@ export interface WaveInputs {
 
 export type WaveInputsResult = ({ ok: true } & WaveInputs) | { ok: false; file: 'plan' | 'skus' | 'orders'; errors: RowIssue[] };
 
+export interface SiteFiles {
+  plan: PlanGeometry;
+  graph: WalkGraph;
+  depotIndex: number;
+  depotNode: number;
+  distance: (a: number, b: number) => number;
+  /** The SKU master as read, in file order. */
+  skuRecords: SkuRecord[];
+  skus: Map<string, SkuRecord>;
+}
+
+export type SiteFilesResult = ({ ok: true } & SiteFiles) | { ok: false; file: 'plan' | 'skus'; errors: RowIssue[] };
+
 /**
- * Reads and checks the three files, stopping at the first file with problems (its whole error table
- * is returned). `depot` names the depot trips start from (default: the plan's first).
+ * Reads and checks a floor-plan workbook and a SKU master, and builds the walk graph and distances
+ * with the depot trips start from (default: the plan's first). Stops at the first file with problems.
  */
-export async function readWaveInputs(files: WaveInputFiles, options: { depot?: string } = {}): Promise<WaveInputsResult> {
+export async function readSiteFiles(files: { plan: NamedFile; skus: NamedFile }, options: { depot?: string } = {}): Promise<SiteFilesResult> {
   const checked = await checkFloorPlanFile(files.plan.bytes, files.plan.name);
   if (!checked.ok || !checked.plan) return { ok: false, file: 'plan', errors: checked.errors };
   const plan = checked.plan as PlanGeometry;
@@ -56,12 +69,6 @@ export async function readWaveInputs(files: WaveInputFiles, options: { depot?: s
   if ('issues' in skuRead) return { ok: false, file: 'skus', errors: skuRead.issues };
   const skuCheck = validateSkuRows('skus', skuRead.rows);
   if (skuCheck.errors.length > 0) return { ok: false, file: 'skus', errors: skuCheck.errors };
-  const skus = new Map(skuCheck.skus.map((s) => [s.sku, s]));
-
-  const orderRead = await readTableFile(files.orders.bytes, files.orders.name, 'orders');
-  if ('issues' in orderRead) return { ok: false, file: 'orders', errors: orderRead.issues };
-  const orderCheck = validateOrderRows('orders', orderRead.rows, (sku) => skus.has(sku));
-  if (orderCheck.errors.length > 0) return { ok: false, file: 'orders', errors: orderCheck.errors };
 
   const depotIndex = options.depot === undefined ? 0 : plan.depots.findIndex((d) => d.code === options.depot);
   if (depotIndex < 0 || !plan.depots[depotIndex]) {
@@ -70,6 +77,31 @@ export async function readWaveInputs(files: WaveInputFiles, options: { depot?: s
   }
   const graph = buildWalkGraph(plan);
   const index = buildDistanceIndex(graph);
+  return {
+    ok: true,
+    plan,
+    graph,
+    depotIndex,
+    depotNode: graph.depotNode[depotIndex]!,
+    distance: (a, b) => pairDistance(index, a, b),
+    skuRecords: skuCheck.skus,
+    skus: new Map(skuCheck.skus.map((s) => [s.sku, s])),
+  };
+}
+
+/**
+ * Reads and checks the three files, stopping at the first file with problems (its whole error table
+ * is returned). `depot` names the depot trips start from (default: the plan's first).
+ */
+export async function readWaveInputs(files: WaveInputFiles, options: { depot?: string } = {}): Promise<WaveInputsResult> {
+  const site = await readSiteFiles(files, options);
+  if (!site.ok) return site;
+  const { plan, graph, skus, depotIndex } = site;
+
+  const orderRead = await readTableFile(files.orders.bytes, files.orders.name, 'orders');
+  if ('issues' in orderRead) return { ok: false, file: 'orders', errors: orderRead.issues };
+  const orderCheck = validateOrderRows('orders', orderRead.rows, (sku) => skus.has(sku));
+  if (orderCheck.errors.length > 0) return { ok: false, file: 'orders', errors: orderCheck.errors };
   const binIndex = new Map(plan.bins.map((b, i) => [b.code, i]));
 
   const orders: Order[] = [];
@@ -101,8 +133,8 @@ export async function readWaveInputs(files: WaveInputFiles, options: { depot?: s
     ok: true,
     plan,
     graph,
-    depotNode: graph.depotNode[depotIndex]!,
-    distance: (a, b) => pairDistance(index, a, b),
+    depotNode: site.depotNode,
+    distance: site.distance,
     orders,
     unplaced,
     policy: isNotApplicable(comparison) ? { reason: comparison.reason } : comparison,

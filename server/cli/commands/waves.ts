@@ -5,8 +5,6 @@
  * Prints `{ trips: [{ orders, stops: [{ n, bins, lines }], metres, … }], totalMetres, unplaced, comparison }`.
  * Exit 2 on bad flags or files (the file's problems are listed one per line on stderr).
  */
-import { readFile } from 'node:fs/promises';
-import { basename } from 'node:path';
 import type { CliIo } from '../io';
 import type { BatchingMethod, Cart, Unplaced } from '../../core/batch/types';
 import { BATCHING_METHODS } from '../../core/batch/types';
@@ -15,7 +13,7 @@ import { planWave } from '../../core/batch/plan-wave';
 import type { ImproveMode, TourMethod } from '../../core/tour/index';
 import { IMPROVE_MODES, TOUR_METHODS } from '../../core/tour/index';
 import { readWaveInputs } from '../../waves/cli-inputs';
-import type { NamedFile } from '../../waves/cli-inputs';
+import { issueLine, readNamed } from './files';
 import { InputError, parseFlags, parseTimeLimit } from './trip-input';
 
 const USAGE = `usage: aislewright waves plan --plan PLAN.xlsx --skus SKUS.xlsx --orders ORDERS.xlsx --cart totes=8,kg=150,litres=400 --batching ${BATCHING_METHODS.join('|')} [--routing ${TOUR_METHODS.join('|')}] [--improve ${IMPROVE_MODES.join('|')}] [--depot CODE] [--time-limit-ms N]`;
@@ -73,14 +71,6 @@ export function waveOutput(wave: PlanWaveResult, unplacedBefore: readonly Unplac
   };
 }
 
-async function readNamed(path: string, flag: string): Promise<NamedFile> {
-  try {
-    return { bytes: new Uint8Array(await readFile(path)), name: basename(path) };
-  } catch (e) {
-    throw new InputError(`--${flag} ${path}: ${(e as NodeJS.ErrnoException).code === 'ENOENT' ? 'no such file' : (e as Error).message}`);
-  }
-}
-
 export async function run(args: string[], io: CliIo): Promise<number> {
   try {
     const [sub, ...rest] = args;
@@ -109,10 +99,7 @@ export async function run(args: string[], io: CliIo): Promise<number> {
     const inputs = await readWaveInputs(files, depot === undefined ? {} : { depot });
     if (!inputs.ok) {
       io.err(`aislewright waves: the ${inputs.file} file has ${inputs.errors.length} problem(s); nothing was planned`);
-      for (const e of inputs.errors) {
-        const where = [e.sheet, e.row === null ? null : `row ${e.row}`, e.column].filter(Boolean).join(', ');
-        io.err(`  ${where}: ${e.message}${e.value === null ? '' : ` (value: ${e.value})`}`);
-      }
+      for (const e of inputs.errors) io.err(`  ${issueLine(e)}`);
       return 2;
     }
     const wave = planWave({
