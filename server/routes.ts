@@ -11,6 +11,7 @@ import { mailRoutes } from './mail/mail.routes';
 import { orderRoutes } from './orders/orders.routes';
 import { pickingRoutes } from './picking/picking.routes';
 import { siteRoutes } from './sites/sites.routes';
+import { slottingRoutes } from './slotting/slotting.routes';
 import { studyRoutes } from './studies/studies.routes';
 import { systemRoutes } from './system/system.routes';
 import { userRoutes } from './users/users.routes';
@@ -28,4 +29,5 @@ export const routeTable: readonly AnyRoute[] = [
   ...waveRoutes,
   ...pickingRoutes,
   ...studyRoutes,
+  ...slottingRoutes,
 ];
