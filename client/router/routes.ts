@@ -44,6 +44,8 @@ export const routes: RouteRecordRaw[] = [
   { path: '/studies', name: 'studies', component: () => import('@client/views/studies/StudiesView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' } } },
   { path: '/studies/new', name: 'study-new', component: () => import('@client/views/studies/StudyNewView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'New study' } },
   { path: '/studies/:id(\\d+)', name: 'study', component: () => import('@client/views/studies/StudyView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Study' } },
+  { path: '/slotting', name: 'slotting', component: () => import('@client/views/slotting/SlottingView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Slotting', menu: { label: 'Slotting', group: 'Analysis' } } },
+  { path: '/slotting/:id(\\d+)', name: 'slotting-run', component: () => import('@client/views/slotting/SlottingRunView.vue'), meta: { roles: ['engineer', 'supervisor', 'admin'], title: 'Slotting run' } },
 
   { path: '/admin/users', name: 'admin-users', component: () => import('@client/views/AdminUsersView.vue'), meta: { roles: ['admin'], title: 'Users', menu: { label: 'Users', group: 'Admin' } } },
   { path: '/admin/sites', name: 'admin-sites', component: () => import('@client/views/AdminSitesView.vue'), meta: { roles: ['admin'], title: 'Sites & settings', menu: { label: 'Sites & settings', group: 'Admin' } } },

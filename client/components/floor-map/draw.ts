@@ -306,6 +306,8 @@ export interface OverlayScene {
   index: PlanIndex;
   /** Bins outlined (indices into index.bins). */
   highlighted: readonly number[];
+  /** Bins filled by intensity 0…1 (index into index.bins, intensity), e.g. picks per bin; drawn under everything else. */
+  heat?: readonly (readonly [number, number])[];
   /** Bin found by search: outlined and ringed. -1: none. */
   focused: number;
   hovered: number;
@@ -409,6 +411,17 @@ export function drawOverlayScene(ctx: CanvasRenderingContext2D, o: OverlayScene,
     const r = binRect(o.index, b);
     return intersects(r, view);
   };
+  if (o.heat && o.heat.length > 0) {
+    // Intensity as opacity of one hue, and a darker edge on the hottest bins, so it reads without colour vision.
+    ctx.fillStyle = p.highlight;
+    for (const [b, v] of o.heat) {
+      if (!inView(b)) continue;
+      const [x, y, w, h] = screenRect(vp, binRect(o.index, b));
+      ctx.globalAlpha = 0.15 + 0.85 * Math.min(1, Math.max(0, v));
+      ctx.fillRect(x, y, Math.max(w, 2), Math.max(h, 2));
+    }
+    ctx.globalAlpha = 1;
+  }
   for (const b of o.highlighted) {
     if (inView(b)) outlineBin(ctx, vp, o.index, b, p.highlight, 2, 6);
   }

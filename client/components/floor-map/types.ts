@@ -50,6 +50,8 @@ export interface FloorMapProps {
   rackDepth?: number;
   /** Extra bins to highlight (outlined and hatched), e.g. a wave's bins. */
   highlightBins?: string[];
+  /** Bins filled by intensity from 0 to 1 (bin code → intensity), e.g. picks per bin as a heat map. */
+  binHeat?: Record<string, number> | null;
   /** Pan, zoom, hover and tap. Off: the map is a picture (mini map). */
   interactive?: boolean;
   /** Show the zoom and fit buttons. */

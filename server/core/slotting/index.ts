@@ -86,6 +86,8 @@ interface Model {
   ordersOf: number[][];
   /** Distinct SKU indices of each learning order. */
   orderSkus: Int32Array[];
+  /** 1 for learning orders kept to check the search's moves (the last third of the learning days). */
+  checkOrder: Uint8Array;
   skuIndex: Map<string, number>;
   weightRule: WeightRule | undefined;
   /** Free bins, nearest the depot first (ties: lower level, then bin code). */
@@ -266,6 +268,11 @@ function buildModel(opts: SlottingOptions, learn: readonly HistoryOrder[], notes
   }
   const orderSkus: Int32Array[] = [];
   const ordersOf: number[][] = skus.map(() => []);
+  // The last third of the learning days (when there are three or more) checks the search's moves:
+  // a move must not lengthen those days' orders, or it fits the rest by chance (overfitting).
+  const learnDays = [...new Set(learn.map((o) => o.day))].sort((a, b) => a - b);
+  const firstCheckDay = learnDays.length >= 3 ? learnDays[learnDays.length - Math.ceil(learnDays.length / 3)]! : Infinity;
+  const check: number[] = [];
   for (const o of learn) {
     const set = new Set<number>();
     for (const l of o.lines) {
@@ -277,13 +284,14 @@ function buildModel(opts: SlottingOptions, learn: readonly HistoryOrder[], notes
     if (set.size === 0) continue;
     const k = orderSkus.length;
     orderSkus.push(Int32Array.from(set));
+    check.push(o.day >= firstCheckDay ? 1 : 0);
     for (const i of set) ordersOf[i]!.push(k);
   }
   const binOrder = bins
     .map((_, i) => i)
     .filter((i) => binFree[i])
     .sort((a, b) => binDepot[a]! - binDepot[b]! || bins[a]!.level - bins[b]!.level || (bins[a]!.code < bins[b]!.code ? -1 : 1));
-  return { bins, skus, binDepot, binFree, skuFree, heavy, learnPicks, allPicks, ordersOf, orderSkus, skuIndex, weightRule: opts.weightRule, binOrder };
+  return { bins, skus, binDepot, binFree, skuFree, heavy, learnPicks, allPicks, ordersOf, orderSkus, checkOrder: Uint8Array.from(check), skuIndex, weightRule: opts.weightRule, binOrder };
 }
 
 function initialSlots(model: Model, notes: string[]): Slots {
@@ -404,16 +412,25 @@ class OrderRoutes {
 
   /** Change in summed order metres if SKU a goes to bin ba and SKU b (or −1) to bin bb. */
   delta(slots: Slots, a: number, ba: number, b: number, bb: number): number {
+    const [all] = this.deltas(slots, a, ba, b, bb);
+    return all;
+  }
+
+  /** The change over all learning orders, and over the check orders alone. */
+  deltas(slots: Slots, a: number, ba: number, b: number, bb: number): [number, number] {
     let d = 0;
+    let dc = 0;
     const seen = new Set<number>();
     for (const list of b >= 0 ? [this.model.ordersOf[a]!, this.model.ordersOf[b]!] : [this.model.ordersOf[a]!]) {
       for (const k of list) {
         if (seen.has(k)) continue;
         seen.add(k);
-        d += this.route(k, slots, a, ba, b, bb) - this.cost[k]!;
+        const v = this.route(k, slots, a, ba, b, bb) - this.cost[k]!;
+        d += v;
+        if (this.model.checkOrder[k]) dc += v;
       }
     }
-    return d;
+    return [d, dc];
   }
 
   commit(slots: Slots, a: number, b: number): void {
@@ -434,6 +451,8 @@ interface Candidate {
   /** SKU in `bin` that swaps into the mover's old bin, or −1 for a free bin. */
   other: number;
   gain: number;
+  /** Gain on the check orders alone. */
+  checkGain: number;
   moves: number;
 }
 
@@ -443,12 +462,12 @@ function candidateOf(model: Model, slots: Slots, proxy: OrderRoutes, sku: number
   if (bin === from || !allowed(model, sku, bin)) return null;
   const other = slots.skuIn[bin]!;
   if (other === NO) {
-    const gain = -proxy.delta(slots, sku, bin, -1, -1);
-    return { sku, bin, other: NO, gain, moves: 1 };
+    const [d, dc] = proxy.deltas(slots, sku, bin, -1, -1);
+    return { sku, bin, other: NO, gain: -d, checkGain: -dc, moves: 1 };
   }
   if (!model.skuFree[other] || from < 0 || !allowed(model, other, from)) return null;
-  const gain = -proxy.delta(slots, sku, bin, other, from);
-  return { sku, bin, other, gain, moves: 2 };
+  const [d, dc] = proxy.deltas(slots, sku, bin, other, from);
+  return { sku, bin, other, gain: -d, checkGain: -dc, moves: 2 };
 }
 
 function apply(slots: Slots, c: Candidate): void {
@@ -490,14 +509,14 @@ function towardsTarget(model: Model, today: Slots, target: Slots, budget: number
 }
 
 /** Applies candidates best gain per move first, each re-scored just before; false when none applied. */
-function takeBest(model: Model, today: Slots, slots: Slots, cands: Candidate[], budget: number, proxy: OrderRoutes): boolean {
+function takeBest(model: Model, today: Slots, slots: Slots, cands: Candidate[], budget: number, proxy: OrderRoutes, checked = false): boolean {
   cands.sort((a, b) => b.gain / b.moves - a.gain / a.moves || a.sku - b.sku);
   const touched = new Set<number>();
   let applied = false;
   for (const c of cands) {
     if (touched.has(c.sku) || (c.other !== NO && touched.has(c.other)) || touched.has(-1 - c.bin)) continue;
     const fresh = candidateOf(model, slots, proxy, c.sku, c.bin);
-    if (!fresh || fresh.gain <= 1e-9) continue;
+    if (!fresh || fresh.gain <= 1e-9 || (checked && fresh.checkGain < -1e-9)) continue;
     const before = movedCount(today, slots);
     const trial = cloneSlots(slots);
     apply(trial, fresh);
@@ -560,12 +579,12 @@ function improveBySearch(
       let best: Candidate | null = null;
       for (const b of bins) {
         const c = candidateOf(model, slots, proxy, s, b);
-        if (c && c.gain > 1e-9 && (!best || c.gain / c.moves > best.gain / best.moves)) best = c;
+        if (c && c.gain > 1e-9 && c.checkGain >= -1e-9 && (!best || c.gain / c.moves > best.gain / best.moves)) best = c;
       }
       if (best) cands.push(best);
     }
     progress(Math.min(1, (clock() - t0) / Math.max(1, deadline - t0)));
-    if (!takeBest(model, today, slots, cands, budget, proxy)) break;
+    if (!takeBest(model, today, slots, cands, budget, proxy, true)) break;
   }
   progress(1);
   return slots;
