@@ -17,6 +17,7 @@ export async function up(knex: Knex): Promise<void> {
     t.string('created_at').notNullable();
     t.string('revoked_at');
     t.index(['user_id']);
+    t.index(['auth_time']);
   });
   await knex.schema.createTable('auth_throttle', (t) => {
     // e.g. `acct:b:P-1001`, `pair:e:someone@x.test|10.0.0.7`, `reset:someone@x.test`.

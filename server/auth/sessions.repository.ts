@@ -6,10 +6,10 @@ import { siteIdsOf } from '../users/users.repository';
 
 type Q = Knex | Knex.Transaction;
 
-/** Starts a server-side session; older sessions of the user past the shift limit are removed. */
+/** Starts a server-side session; sessions past the shift limit (anyone's, revoked or not) are removed. */
 export async function createSession(db: Q, userId: number, authTime: number, device: string | null): Promise<string> {
   const id = randomBytes(18).toString('base64url');
-  await db('sessions').where({ user_id: userId }).andWhere('auth_time', '<', authTime - SESSION_MAX_S).delete();
+  await db('sessions').where('auth_time', '<', authTime - SESSION_MAX_S).delete();
   await db('sessions').insert({ id, user_id: userId, auth_time: authTime, device, created_at: new Date().toISOString(), revoked_at: null });
   return id;
 }

@@ -193,6 +193,14 @@ describe('sign-out (issue 11, item 3)', () => {
     expect(await t.deps.db('audit_log').where({ action: 'sign-out' }).count({ n: '*' }).first()).toEqual({ n: 1 });
   });
 
+  it('forgets sessions past the shift limit at the next sign-in', async () => {
+    const userId = (await t.deps.db('users').where({ role: 'engineer' }).first()).id;
+    const old = Math.floor(Date.now() / 1000) - 11 * 3600;
+    await t.deps.db('sessions').insert({ id: 'stale-session', user_id: userId, auth_time: old, created_at: new Date(old * 1000).toISOString() });
+    await signIn({ email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD });
+    expect(await t.deps.db('sessions').where({ id: 'stale-session' }).first()).toBeUndefined();
+  });
+
   it('holds on another app instance sharing the database', async () => {
     const second = createApp(t.deps);
     const cookie = await signIn({ email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD });
