@@ -1,6 +1,8 @@
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
-import express, { type Express } from 'express';
+import express, { type Express, type Request } from 'express';
+import type { z } from 'zod';
+import { BadgeSignInBody, InviteAcceptBody, ResetCompleteBody, ResetRequestBody, SignInBody } from '../shared/auth';
 import cookieParser from 'cookie-parser';
 import helmet from 'helmet';
 import { rateLimit } from 'express-rate-limit';
@@ -17,8 +19,21 @@ export interface AppOptions {
   routes?: readonly AnyRoute[];
 }
 
-/** Sign-in attempts per IP per 15 minutes: room for 100 tablets behind one NAT at shift start. */
-export const SIGN_IN_LIMIT_PER_IP = 1000;
+/**
+ * Raw request floods on the sign-in paths, per address per minute, counting only requests that are
+ * not well-formed attempts (they cost nothing to refuse, but logs and sockets). Well-formed attempts
+ * are never refused here: they are limited per account and per account + address, in the database
+ * (server/auth/backoff.ts), so one noisy address cannot lock out the tablets behind the same router.
+ */
+export const MALFORMED_SIGN_IN_LIMIT_PER_MINUTE = 600;
+const AUTH_ATTEMPT_BODIES: Record<string, z.ZodType> = {
+  '/api/auth/sign-in': SignInBody,
+  '/api/auth/badge-sign-in': BadgeSignInBody,
+  '/api/auth/reset-request': ResetRequestBody,
+  '/api/auth/reset': ResetCompleteBody,
+  '/api/auth/invites/accept': InviteAcceptBody,
+};
+const wellFormedAttempt = (req: Request): boolean => req.method === 'POST' && AUTH_ATTEMPT_BODIES[req.baseUrl + req.path.replace(/\/$/, '')]?.safeParse(req.body).success === true;
 
 /** Builds the Express app; never listens (main.ts does). */
 export function createApp(deps: Deps, options: AppOptions = {}): Express {
@@ -52,16 +67,22 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
     }),
   );
   app.use(cookieParser());
+  // Answers from the API hold private data: never stored by a browser or a proxy.
+  app.use('/api', (_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   app.use('/api', express.json({ limit: '2mb' }));
   app.use(
-    ['/api/auth/sign-in', '/api/auth/badge-sign-in', '/api/auth/reset-request', '/api/auth/reset', '/api/auth/invites/accept'],
+    Object.keys(AUTH_ATTEMPT_BODIES),
     rateLimit({
-      windowMs: 15 * 60_000,
-      limit: SIGN_IN_LIMIT_PER_IP,
+      windowMs: 60_000,
+      limit: MALFORMED_SIGN_IN_LIMIT_PER_MINUTE,
+      skip: wellFormedAttempt,
       standardHeaders: 'draft-8',
       legacyHeaders: false,
       handler: (_req, res) => {
-        res.status(429).json({ error: { code: 'too_many_requests', message: 'Too many sign-in attempts from this address; wait a few minutes' } });
+        res.status(429).json({ error: { code: 'too_many_requests', message: 'Too many malformed sign-in requests from this address; wait a minute' } });
       },
     }),
   );

@@ -4,6 +4,7 @@ import type { Db } from './db/knex';
 import type { Mailer } from './mail/mailer';
 import type { Hasher } from './auth/hasher';
 import type { SignInBackoff } from './auth/backoff';
+import type { Background } from './system/background';
 
 /** Everything the app needs, built in main.ts (or a test helper) and passed to createApp. */
 export interface Deps {
@@ -11,7 +12,9 @@ export interface Deps {
   db: Db;
   mailer: Mailer;
   hasher: Hasher;
+  /** Sign-in back-off and attempt limits, kept in the database. */
   backoff: SignInBackoff;
+  background: Background;
   jwtSecret: string;
   logger: Logger;
   version: string;

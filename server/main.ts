@@ -10,6 +10,7 @@ import { createHasher } from './auth/hasher';
 import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
 import { createMailer } from './mail/mailer';
+import { createBackground } from './system/background';
 import { demoSeeders } from './seed/seeders';
 import { seedDemoIfEmpty } from './seed/demo';
 import { VERSION } from './version';
@@ -44,7 +45,8 @@ async function main(): Promise<void> {
     config,
     db,
     hasher,
-    backoff: new SignInBackoff(),
+    backoff: new SignInBackoff(db),
+    background: createBackground(logger),
     mailer: createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM }),
     jwtSecret: jwtSecret(config.JWT_SECRET, dbFile === ':memory:' ? join(root, 'data') : dirname(dbFile)),
     logger,
@@ -63,7 +65,7 @@ async function main(): Promise<void> {
     console.log('');
   });
   const stop = () => {
-    server.close(() => void db.destroy().then(() => process.exit(0)));
+    server.close(() => void deps.background.settled().then(() => db.destroy()).then(() => process.exit(0)));
     setTimeout(() => process.exit(0), 3000).unref();
   };
   process.on('SIGINT', stop);

@@ -11,7 +11,11 @@ export const Email = z.string().trim().toLowerCase().email().max(200);
 export const SignInBody = z.strictObject({ email: Email, password: z.string().min(1).max(200) });
 export type SignInBody = z.infer<typeof SignInBody>;
 
-export const BadgeSignInBody = z.strictObject({ badge: z.string().trim().min(1).max(64), pin: z.string().min(1).max(12) });
+/** Badge codes are compared like scans: case and surrounding spaces never matter (stored upper-case). */
+export const normaliseBadge = (badge: string): string => badge.trim().toUpperCase();
+export const BadgeCode = z.string().trim().toUpperCase().min(1).max(64);
+
+export const BadgeSignInBody = z.strictObject({ badge: BadgeCode, pin: z.string().min(1).max(12) });
 export type BadgeSignInBody = z.infer<typeof BadgeSignInBody>;
 
 export const SiteRef = z.object({ id: z.number().int(), code: z.string(), name: z.string() });

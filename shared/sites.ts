@@ -70,6 +70,8 @@ export const OutboxMessage = z.object({
   status: z.enum(['stored', 'sent', 'failed']),
   error: z.string().nullable(),
   createdAt: z.string(),
+  /** A mail with a single-use link: live, or used / expired (the link is then removed from the text). */
+  linkState: z.enum(['live', 'used', 'expired']).nullable(),
 });
 export type OutboxMessage = z.infer<typeof OutboxMessage>;
 

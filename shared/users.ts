@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { Role } from './common';
-import { Email, Pin } from './auth';
+import { BadgeCode, Email, Pin } from './auth';
 
 export const UserRow = z.object({
   id: z.number().int(),
@@ -34,7 +34,7 @@ export type InviteRow = z.infer<typeof InviteRow>;
 /** Pickers have no mailbox on the floor: an admin creates them with a badge code and a PIN. */
 export const CreatePickerBody = z.strictObject({
   name: z.string().trim().min(1).max(120),
-  badge: z.string().trim().min(1).max(64),
+  badge: BadgeCode,
   pin: Pin,
   siteIds: z.array(z.number().int().positive()).min(1),
 });
@@ -49,3 +49,7 @@ export const UpdateUserBody = z.strictObject({
 export type UpdateUserBody = z.infer<typeof UpdateUserBody>;
 
 export const ResetPinBody = z.strictObject({ pin: Pin });
+
+/** How many live sessions a sign-out everywhere or an admin's "end sessions" ended. */
+export const SessionsEnded = z.object({ ended: z.number().int() });
+export type SessionsEnded = z.infer<typeof SessionsEnded>;

@@ -1,5 +1,5 @@
 import { Ok } from '@shared/common';
-import { InviteRow, UserRow, type CreatePickerBody, type InviteBody, type UpdateUserBody } from '@shared/users';
+import { InviteRow, SessionsEnded, UserRow, type CreatePickerBody, type InviteBody, type UpdateUserBody } from '@shared/users';
 import { http } from './http';
 
 export const listUsers = () => http('GET', '/api/users', UserRow.array());
@@ -8,3 +8,4 @@ export const inviteUser = (body: InviteBody) => http('POST', '/api/users/invites
 export const createPicker = (body: CreatePickerBody) => http('POST', '/api/users/pickers', UserRow, { body });
 export const updateUser = (id: number, body: UpdateUserBody) => http('PATCH', `/api/users/${id}`, UserRow, { body });
 export const resetPin = (id: number, pin: string) => http('POST', `/api/users/${id}/pin`, Ok, { body: { pin } });
+export const endSessions = (id: number) => http('POST', `/api/users/${id}/end-sessions`, SessionsEnded);

@@ -84,10 +84,19 @@ export const useSessionStore = defineStore('session', () => {
     }
   }
 
+  /** Ends every session of this user on the server (other devices included), then this one locally. */
+  async function signOutEverywhere(): Promise<number> {
+    try {
+      return (await authApi.signOutEverywhere()).ended;
+    } finally {
+      forget();
+    }
+  }
+
   function selectSite(id: number): void {
     storedSiteId.value = id;
     localStorage.setItem(SITE_KEY, String(id));
   }
 
-  return { me, loaded, role, sites, currentSite, siteId, signInMode, ensureLoaded, signIn, badgeSignIn, adopt, forget, signOut, selectSite };
+  return { me, loaded, role, sites, currentSite, siteId, signInMode, ensureLoaded, signIn, badgeSignIn, adopt, forget, signOut, signOutEverywhere, selectSite };
 });

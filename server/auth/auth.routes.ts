@@ -2,11 +2,13 @@ import type { Request, Response } from 'express';
 import { z } from 'zod';
 import { BadgeSignInBody, ChangePasswordBody, InviteAcceptBody, InviteInfo, Me, ResetCompleteBody, ResetRequestBody, SignInBody } from '../../shared/auth';
 import { Ok } from '../../shared/common';
+import { SessionsEnded } from '../../shared/users';
 import { audit } from '../audit/audit';
 import { AppError } from '../http/errors';
 import { defineRoute } from '../http/route';
 import { parseOr400 } from '../http/validate';
-import { clearSession, issueSession } from '../http/session';
+import { clearSession, issueSession, readSession } from '../http/session';
+import { createSession, revokeAllSessions, revokeSession } from './sessions.repository';
 import type { Deps } from '../deps';
 import { findUserById, type DbUserRow } from '../users/users.repository';
 import {
@@ -15,12 +17,16 @@ import {
 
 const nowS = () => Math.floor(Date.now() / 1000);
 const deviceOf = (ua: string | undefined) => (ua ?? '').slice(0, 200) || null;
+/** The caller's address as Express sees it (behind a proxy only with TRUST_PROXY). */
+const addressOf = (req: Request) => req.ip ?? req.socket.remoteAddress ?? 'unknown';
 
 /** A fresh session for a user who just proved who they are: cookie, audit entry, and who they are. */
 async function startSession(ctx: { deps: Deps; res: Response; req: Request }, user: DbUserRow, action: string): Promise<Me> {
   const t = nowS();
-  issueSession(ctx.deps, ctx.res, user.id, user.token_version, t);
-  await audit(ctx.deps.db, { userId: user.id, action, device: deviceOf(ctx.req.get('user-agent')) });
+  const device = deviceOf(ctx.req.get('user-agent'));
+  const sessionId = await createSession(ctx.deps.db, user.id, t, device);
+  issueSession(ctx.deps, ctx.res, user.id, user.token_version, t, sessionId);
+  await audit(ctx.deps.db, { userId: user.id, action, device });
   return meOf(ctx.deps.db, user, t);
 }
 
@@ -28,19 +34,33 @@ export const authRoutes = [
   defineRoute({
     method: 'post', path: '/api/auth/sign-in', access: 'public', summary: 'Sign in with e-mail and password',
     body: SignInBody, response: Me,
-    handler: async (ctx) => startSession(ctx, await signInWithPassword(ctx.deps, ctx.body.email, ctx.body.password), 'sign-in'),
+    handler: async (ctx) => startSession(ctx, await signInWithPassword(ctx.deps, ctx.body.email, ctx.body.password, addressOf(ctx.req)), 'sign-in'),
   }),
   defineRoute({
     method: 'post', path: '/api/auth/badge-sign-in', access: 'public', summary: 'Sign in on a shared tablet with badge code and PIN',
     body: BadgeSignInBody, response: Me,
-    handler: async (ctx) => startSession(ctx, await signInWithBadge(ctx.deps, ctx.body.badge, ctx.body.pin), 'badge-sign-in'),
+    handler: async (ctx) => startSession(ctx, await signInWithBadge(ctx.deps, ctx.body.badge, ctx.body.pin, addressOf(ctx.req)), 'badge-sign-in'),
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/sign-out', access: 'public', summary: 'Sign out (clears the session cookie)',
+    method: 'post', path: '/api/auth/sign-out', access: 'public', summary: 'Sign out: ends this session on the server and clears its cookie',
     response: Ok,
-    handler: ({ deps, res }) => {
+    handler: async ({ deps, req, res }) => {
+      const claims = readSession(deps, req);
+      if (claims && (await revokeSession(deps.db, claims.sid)) > 0) {
+        await audit(deps.db, { userId: Number(claims.sub), action: 'sign-out', device: deviceOf(req.get('user-agent')) });
+      }
       clearSession(deps, res);
       return { ok: true as const };
+    },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/auth/sign-out-everywhere', access: 'signed-in', summary: 'Sign out on every device: ends all your sessions, this one included',
+    response: SessionsEnded,
+    handler: async ({ deps, req, res, user }) => {
+      const ended = await revokeAllSessions(deps.db, user!.id);
+      await audit(deps.db, { userId: user!.id, action: 'sign-out.everywhere', detail: { ended }, device: deviceOf(req.get('user-agent')) });
+      clearSession(deps, res);
+      return { ended };
     },
   }),
   defineRoute({
@@ -59,7 +79,7 @@ export const authRoutes = [
       await changePassword(deps, user!.id, body.currentPassword, body.newPassword);
       // The token version moved on: give this device a fresh session so only other devices sign out.
       const row = (await findUserById(deps.db, user!.id))!;
-      issueSession(deps, res, row.id, row.token_version, user!.authTime);
+      issueSession(deps, res, row.id, row.token_version, user!.authTime, user!.sessionId);
       return { ok: true as const };
     },
   }),

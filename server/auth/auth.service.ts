@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import type { Me, InviteInfo } from '../../shared/auth';
+import { normaliseBadge, type Me, type InviteInfo } from '../../shared/auth';
 import type { Role } from '../../shared/common';
 import type { Deps } from '../deps';
 import { AppError } from '../http/errors';
@@ -8,6 +8,7 @@ import { listSitesOf } from '../sites/sites.repository';
 import { bumpTokenVersion, findUserByBadge, findUserByEmail, findUserById, insertUser, type DbUserRow } from '../users/users.repository';
 import { audit } from '../audit/audit';
 import { newToken, sha256 } from './tokens';
+import { closeOutboxLinks } from '../mail/mailer';
 
 const RESET_TTL_MS = 60 * 60_000;
 
@@ -31,33 +32,42 @@ export async function meOf(db: Knex, user: DbUserRow, authTime: number): Promise
   };
 }
 
+/** Sign-in attempts per account and address together, per 15 minutes (successes included). */
+export const PAIR_LIMIT = { limit: 60, windowMs: 15 * 60_000 } as const;
+/** Password-reset mails per e-mail address per hour. */
+export const RESET_MAIL_LIMIT = { limit: 3, windowMs: 60 * 60_000 } as const;
+
 /**
- * Checks a secret against the user's hash. Unknown users and users without that kind of secret
- * cost the same verify and get the same answer, so the response never tells which it was.
+ * Checks a secret against the user's hash. The attempt is counted before the check (in the
+ * database, atomically), so parallel guesses cost the same as serial ones. Unknown users and users
+ * without that kind of secret cost the same verify and get the same answer.
+ * `account` is the identifier as typed (normalised), `address` the caller's IP.
  */
-async function verifySecret(deps: Deps, key: string, user: DbUserRow | undefined, kind: 'password' | 'pin', secret: string): Promise<DbUserRow> {
-  const wait = deps.backoff.waitMs(key);
-  if (wait > 0) throw tooMany(wait);
+async function verifySecret(deps: Deps, account: string, address: string, user: DbUserRow | undefined, kind: 'password' | 'pin', secret: string): Promise<DbUserRow> {
+  // Per account and address together: one noisy address cannot lock out other accounts behind it.
+  const pair = await deps.backoff.claimWindow(`pair:${account}|${address}`, PAIR_LIMIT);
+  if (!pair.ok) throw tooMany(pair.waitMs);
+  const key = `acct:${account}`;
+  const claim = await deps.backoff.claimAttempt(key);
+  if (!claim.ok) throw tooMany(claim.waitMs);
   const hash = kind === 'password' ? user?.password_hash : user?.pin_hash;
   const ok = hash ? await deps.hasher.verify(hash, secret) : (await deps.hasher.dummyVerify(secret), false);
-  if (!ok || !user || !user.active) {
-    deps.backoff.fail(key);
-    throw invalidCredentials();
-  }
-  deps.backoff.succeed(key);
+  if (!ok || !user || !user.active) throw invalidCredentials();
+  await deps.backoff.succeed(key);
   return user;
 }
 
-export async function signInWithPassword(deps: Deps, email: string, password: string): Promise<DbUserRow> {
+export async function signInWithPassword(deps: Deps, email: string, password: string, address: string): Promise<DbUserRow> {
   const user = await findUserByEmail(deps.db, email);
   // Pickers sign in with badge and PIN only.
   const eligible = user && user.role !== 'picker' ? user : undefined;
-  return verifySecret(deps, `e:${email}`, eligible, 'password', password);
+  return verifySecret(deps, `e:${email}`, address, eligible, 'password', password);
 }
 
-export async function signInWithBadge(deps: Deps, badge: string, pin: string): Promise<DbUserRow> {
-  const user = await findUserByBadge(deps.db, badge);
-  return verifySecret(deps, `b:${badge.toLowerCase()}`, user, 'pin', pin);
+export async function signInWithBadge(deps: Deps, badge: string, pin: string, address: string): Promise<DbUserRow> {
+  const code = normaliseBadge(badge);
+  const user = await findUserByBadge(deps.db, code);
+  return verifySecret(deps, `b:${code}`, address, user, 'pin', pin);
 }
 
 export async function changePassword(deps: Deps, userId: number, current: string, next: string): Promise<void> {
@@ -71,17 +81,33 @@ export async function changePassword(deps: Deps, userId: number, current: string
   await audit(deps.db, { userId, action: 'password.changed' });
 }
 
+/**
+ * Answers a reset request with the same work whatever the address: one counter claim in the
+ * database (also the per-address mail limit), then the answer. Looking the address up, storing the
+ * token and mailing run after the answer, so neither time nor work tells a known address apart.
+ */
 export async function requestPasswordReset(deps: Deps, email: string): Promise<void> {
+  const claim = await deps.backoff.claimWindow(`reset:${email}`, RESET_MAIL_LIMIT);
+  if (!claim.ok) {
+    const s = Math.ceil(claim.waitMs / 1000);
+    throw new AppError('rate_limited', 'too_many_resets', `Reset links for this address were asked for ${RESET_MAIL_LIMIT.limit} times in the last hour; check your mail, or try again in ${Math.ceil(s / 60)} min`, { retryAfterSeconds: s });
+  }
+  deps.background.run('password reset mail', () => mailPasswordReset(deps, email));
+}
+
+async function mailPasswordReset(deps: Deps, email: string): Promise<void> {
+  const { token, hash } = newToken();
   const user = await findUserByEmail(deps.db, email);
   if (!user || !user.active || user.role === 'picker') return;
-  const { token, hash } = newToken();
   const now = Date.now();
-  await deps.db('password_resets').insert({ user_id: user.id, token_hash: hash, expires_at: new Date(now + RESET_TTL_MS).toISOString(), created_at: new Date(now).toISOString() });
+  const expiresAt = new Date(now + RESET_TTL_MS).toISOString();
+  await deps.db('password_resets').insert({ user_id: user.id, token_hash: hash, expires_at: expiresAt, created_at: new Date(now).toISOString() });
   const link = `${deps.config.publicUrl}/reset-password?token=${token}`;
   await deps.mailer.send({
     to: email,
     subject: 'Reset your Aislewright password',
     text: `Hello ${user.name},\n\nSomeone asked to reset the password of your Aislewright account. To choose a new one, open this link within 60 minutes:\n\n${link}\n\nIf it was not you, ignore this message; your password stays as it is.\n`,
+    link: { tokenHash: hash, expiresAt },
   });
 }
 
@@ -91,13 +117,19 @@ export async function completePasswordReset(deps: Deps, token: string, newPasswo
     throw new AppError('validation', 'invalid_token', 'This reset link is not valid any more; ask for a new one');
   }
   const hash = await deps.hasher.hash(newPassword);
-  await deps.db.transaction(async (trx) => {
+  const closed = await deps.db.transaction(async (trx) => {
     // Single use, even under a double submit: the update only succeeds while used_at is empty.
-    const n = await trx('password_resets').where({ id: row.id }).whereNull('used_at').update({ used_at: new Date().toISOString() });
+    const now = new Date().toISOString();
+    const n = await trx('password_resets').where({ id: row.id }).whereNull('used_at').update({ used_at: now });
     if (n !== 1) throw new AppError('validation', 'invalid_token', 'This reset link has already been used');
+    // Other reset links of the same account stop working too.
+    const others = await trx('password_resets').where({ user_id: row.user_id }).whereNull('used_at').pluck('token_hash');
+    await trx('password_resets').where({ user_id: row.user_id }).whereNull('used_at').update({ used_at: now });
     await trx('users').where({ id: row.user_id }).update({ password_hash: hash });
     await bumpTokenVersion(trx, row.user_id);
+    return [sha256(token), ...(others as string[])];
   });
+  await closeOutboxLinks(deps.db, closed, 'used');
   await audit(deps.db, { userId: row.user_id, action: 'password.reset' });
 }
 
@@ -133,6 +165,7 @@ export async function acceptInvite(deps: Deps, token: string, name: string, pass
     if (n !== 1) throw new AppError('not_found', 'invalid_token', 'This invitation has already been used');
     return insertUser(trx, { name, email: inv.email, badge: null, role: inv.role, password_hash: hash, pin_hash: null, created_at: new Date().toISOString() }, JSON.parse(inv.site_ids) as number[]);
   });
+  await closeOutboxLinks(deps.db, [inv.token_hash], 'used');
   await audit(deps.db, { userId: id, action: 'invite.accepted', subject: inv.email });
   return (await findUserById(deps.db, id))!;
 }

@@ -1,4 +1,4 @@
-import { mkdirSync } from 'node:fs';
+import { chmodSync, closeSync, existsSync, mkdirSync, openSync } from 'node:fs';
 import { dirname } from 'node:path';
 import knexFactory, { type Knex } from 'knex';
 import type BetterSqlite3 from 'better-sqlite3';
@@ -12,7 +12,7 @@ export type Db = Knex;
  * Knex's SQLite pool holds one connection.
  */
 export function openDb(file: string): Db {
-  if (file !== ':memory:') mkdirSync(dirname(file), { recursive: true });
+  if (file !== ':memory:') prepareDataFile(file);
   return knexFactory({
     client: 'better-sqlite3',
     connection: { filename: file },
@@ -22,7 +22,11 @@ export function openDb(file: string): Db {
       max: 1,
       afterCreate(conn: BetterSqlite3.Database, done: (err: Error | null, conn: unknown) => void) {
         try {
-          if (file !== ':memory:') conn.pragma('journal_mode = WAL');
+          if (file !== ':memory:') {
+            conn.pragma('journal_mode = WAL');
+            // SQLite gives -wal and -shm the main file's mode; made explicit for files from older versions.
+            for (const side of [`${file}-wal`, `${file}-shm`]) if (existsSync(side)) chmodSync(side, 0o600);
+          }
           conn.pragma('synchronous = FULL');
           conn.pragma('foreign_keys = ON');
           conn.pragma('busy_timeout = 5000');
@@ -33,6 +37,18 @@ export function openDb(file: string): Db {
       },
     },
   });
+}
+
+/**
+ * The database holds password hashes and live links: owner-only. A folder we create is 0700 (an
+ * existing folder is left as it is: it may be shared, like /tmp); the file is created 0600 before
+ * SQLite opens it, and an existing file is narrowed to 0600.
+ */
+function prepareDataFile(file: string): void {
+  const dir = dirname(file);
+  if (!existsSync(dir)) mkdirSync(dir, { recursive: true, mode: 0o700 });
+  if (!existsSync(file)) closeSync(openSync(file, 'a', 0o600));
+  chmodSync(file, 0o600);
 }
 
 export async function migrateLatest(db: Db): Promise<void> {

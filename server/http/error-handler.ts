@@ -7,6 +7,8 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
   return (err: unknown, req, res, _next) => {
     if (res.headersSent) return;
     if (err instanceof AppError) {
+      const retry = (err.details as { retryAfterSeconds?: unknown } | undefined)?.retryAfterSeconds;
+      if (err.kind === 'rate_limited' && typeof retry === 'number') res.setHeader('Retry-After', String(retry));
       res.status(STATUS_OF_KIND[err.kind]).json({ error: { code: err.code, message: err.message, ...(err.details === undefined ? {} : { details: err.details }) } });
       return;
     }

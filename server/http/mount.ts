@@ -2,7 +2,7 @@ import type { Express, NextFunction, Request, Response } from 'express';
 import multer from 'multer';
 import { CSRF_HEADER, CSRF_VALUE } from '../../shared/common';
 import type { Deps } from '../deps';
-import { loadSessionUser } from '../users/users.repository';
+import { loadLiveSession } from '../auth/sessions.repository';
 import { findActiveToken } from '../integrations/tokens.repository';
 import { AppError } from './errors';
 import type { AnyRoute } from './route';
@@ -46,11 +46,12 @@ function checkCsrf(req: Request): void {
 async function authenticate(deps: Deps, req: Request, res: Response): Promise<SessionUser | null> {
   const claims = readSession(deps, req);
   if (!claims) return null;
-  const user = await loadSessionUser(deps.db, Number(claims.sub));
-  // Deactivation and password changes raise token_version: older tokens stop at once.
-  if (!user || !user.active || user.tokenVersion !== claims.ver) return null;
-  if (shouldRenew(claims.exp)) issueSession(deps, res, user.id, user.tokenVersion, claims.auth);
-  return { id: user.id, role: user.role, name: user.name, siteIds: user.siteIds, authTime: claims.auth };
+  // Signed out (here or on another instance), ended by an admin, or the user deactivated: refused, never renewed.
+  const user = await loadLiveSession(deps.db, claims.sid, Number(claims.sub));
+  // Role and password changes raise token_version: older tokens stop at once.
+  if (!user || user.tokenVersion !== claims.ver) return null;
+  if (shouldRenew(claims.exp)) issueSession(deps, res, user.id, user.tokenVersion, claims.auth, claims.sid);
+  return { id: user.id, role: user.role, name: user.name, siteIds: user.siteIds, authTime: claims.auth, sessionId: claims.sid };
 }
 
 function runMulter(req: Request, res: Response): Promise<void> {

@@ -34,6 +34,8 @@ export interface SessionClaims {
   ver: number;
   /** Sign-in time, seconds since epoch; the absolute limit counts from here. */
   auth: number;
+  /** Server-side session id (table `sessions`): sign-out revokes it on every instance. */
+  sid: string;
 }
 
 export interface SessionUser {
@@ -42,10 +44,11 @@ export interface SessionUser {
   name: string;
   siteIds: number[];
   authTime: number;
+  sessionId: string;
 }
 
-export function issueSession(deps: Deps, res: Response, userId: number, tokenVersion: number, authTime: number): void {
-  const token = jwt.sign({ ver: tokenVersion, auth: authTime } satisfies Omit<SessionClaims, 'sub'>, keyOf(deps.jwtSecret), {
+export function issueSession(deps: Deps, res: Response, userId: number, tokenVersion: number, authTime: number, sessionId: string): void {
+  const token = jwt.sign({ ver: tokenVersion, auth: authTime, sid: sessionId } satisfies Omit<SessionClaims, 'sub'>, keyOf(deps.jwtSecret), {
     algorithm: 'HS256',
     subject: String(userId),
     issuer: ISSUER,
@@ -72,8 +75,10 @@ export function readSession(deps: Deps, req: Request): (SessionClaims & { exp: n
   try {
     const claims = jwt.verify(token, keyOf(deps.jwtSecret), { algorithms: ['HS256'], issuer: ISSUER, audience: AUDIENCE }) as jwt.JwtPayload;
     if (typeof claims.sub !== 'string' || typeof claims.ver !== 'number' || typeof claims.auth !== 'number' || typeof claims.exp !== 'number') return null;
+    // Tokens from before server-side sessions carry no sid: they no longer count.
+    if (typeof claims.sid !== 'string' || claims.sid.length === 0 || claims.sid.length > 64) return null;
     if (Date.now() / 1000 - claims.auth > SESSION_MAX_S) return null;
-    return { sub: claims.sub, ver: claims.ver, auth: claims.auth, exp: claims.exp };
+    return { sub: claims.sub, ver: claims.ver, auth: claims.auth, sid: claims.sid, exp: claims.exp };
   } catch {
     return null;
   }

@@ -15,6 +15,8 @@ export interface MailMessage {
   html?: string;
   attachments?: MailAttachment[];
   siteId?: number | null;
+  /** The single-use token the mail's link carries: the outbox hides the link once it is used or expired. */
+  link?: { tokenHash: string; expiresAt: string };
 }
 
 export interface Mailer {
@@ -33,6 +35,9 @@ interface DbOutboxRow {
   status: 'stored' | 'sent' | 'failed';
   error: string | null;
   created_at: string;
+  link_token_hash: string | null;
+  link_expires_at: string | null;
+  link_closed_at: string | null;
 }
 
 /**
@@ -53,6 +58,8 @@ export function createMailer(db: Knex, options: { smtpUrl?: string | undefined; 
         attachments: JSON.stringify(attachments),
         status: 'stored',
         created_at: new Date().toISOString(),
+        link_token_hash: m.link?.tokenHash ?? null,
+        link_expires_at: m.link?.expiresAt ?? null,
       });
       try {
         await transport.sendMail({
@@ -72,6 +79,41 @@ export function createMailer(db: Knex, options: { smtpUrl?: string | undefined; 
   };
 }
 
+/** A link that carries a single-use token (`…?token=…`). */
+const TOKEN_LINK = /https?:\/\/[^\s<>"']*[?&]token=[\w-]+/g;
+
+/** Replaces every token link of a mail with a note; the token itself is gone from the text. */
+export function maskTokenLinks(text: string, why: 'used' | 'expired'): string {
+  return text.replace(TOKEN_LINK, `[link ${why} — no longer shown]`);
+}
+
+/**
+ * Removes the links of used tokens from the stored mail (at rest, not only on screen). Called when a
+ * reset link or an invitation is used; expired links are closed when the outbox is read.
+ */
+export async function closeOutboxLinks(db: Knex, tokenHashes: string[], why: 'used' | 'expired'): Promise<void> {
+  if (tokenHashes.length === 0) return;
+  const rows = await db<DbOutboxRow>('mail_outbox').whereIn('link_token_hash', tokenHashes).whereNull('link_closed_at');
+  for (const r of rows) {
+    await db('mail_outbox').where({ id: r.id }).update({
+      text: maskTokenLinks(r.text, why),
+      html: r.html === null ? null : maskTokenLinks(r.html, why),
+      link_closed_at: new Date().toISOString(),
+    });
+  }
+}
+
+async function closeExpiredLinks(db: Knex): Promise<void> {
+  const expired = await db<DbOutboxRow>('mail_outbox').whereNotNull('link_token_hash').whereNull('link_closed_at').where('link_expires_at', '<', new Date().toISOString()).pluck('link_token_hash');
+  await closeOutboxLinks(db, expired as string[], 'expired');
+}
+
+function linkStateOf(r: DbOutboxRow): OutboxMessage['linkState'] {
+  if (r.link_token_hash === null) return null;
+  if (r.link_closed_at !== null) return /\[link used/.test(r.text) ? 'used' : 'expired';
+  return r.link_expires_at !== null && r.link_expires_at < new Date().toISOString() ? 'expired' : 'live';
+}
+
 function toMessage(r: DbOutboxRow): OutboxMessage {
   const atts = JSON.parse(r.attachments) as { filename: string; contentType: string; base64: string }[];
   return {
@@ -84,15 +126,18 @@ function toMessage(r: DbOutboxRow): OutboxMessage {
     status: r.status,
     error: r.error,
     createdAt: r.created_at,
+    linkState: linkStateOf(r),
   };
 }
 
 export async function listOutbox(db: Knex, limit = 200): Promise<OutboxMessage[]> {
+  await closeExpiredLinks(db);
   const rows = await db<DbOutboxRow>('mail_outbox').orderBy('id', 'desc').limit(limit);
   return rows.map(toMessage);
 }
 
 export async function getOutboxMessage(db: Knex, id: number): Promise<OutboxMessage | null> {
+  await closeExpiredLinks(db);
   const r = await db<DbOutboxRow>('mail_outbox').where({ id }).first();
   return r ? toMessage(r) : null;
 }

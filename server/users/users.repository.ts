@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
 import type { UserRow } from '../../shared/users';
+import { normaliseBadge } from '../../shared/auth';
 
 export interface DbUserRow {
   id: number;
@@ -22,18 +23,13 @@ export async function siteIdsOf(db: Q, userId: number): Promise<number[]> {
   return rows.map((r) => r.site_id);
 }
 
-export async function loadSessionUser(db: Q, id: number) {
-  const u = await db<DbUserRow>('users').where({ id }).first();
-  if (!u) return null;
-  return { id: u.id, name: u.name, role: u.role, active: !!u.active, tokenVersion: u.token_version, siteIds: await siteIdsOf(db, id) };
-}
-
 export async function findUserByEmail(db: Q, email: string): Promise<DbUserRow | undefined> {
   return db<DbUserRow>('users').where({ email }).first();
 }
 
+/** Badge codes are stored normalised (upper-case, trimmed), so any spelling of the code finds its user. */
 export async function findUserByBadge(db: Q, badge: string): Promise<DbUserRow | undefined> {
-  return db<DbUserRow>('users').where({ badge }).first();
+  return db<DbUserRow>('users').where({ badge: normaliseBadge(badge) }).first();
 }
 
 export async function findUserById(db: Q, id: number): Promise<DbUserRow | undefined> {
@@ -41,7 +37,7 @@ export async function findUserById(db: Q, id: number): Promise<DbUserRow | undef
 }
 
 export async function insertUser(db: Q, row: Omit<DbUserRow, 'id' | 'active' | 'token_version'>, siteIds: number[]): Promise<number> {
-  const [id] = await db('users').insert(row);
+  const [id] = await db('users').insert({ ...row, badge: row.badge === null ? null : normaliseBadge(row.badge) });
   if (siteIds.length) await db('user_sites').insert(siteIds.map((site_id) => ({ user_id: id, site_id })));
   return id!;
 }

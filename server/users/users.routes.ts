@@ -1,8 +1,8 @@
 import { z } from 'zod';
 import { Ok } from '../../shared/common';
-import { CreatePickerBody, InviteBody, InviteRow, ResetPinBody, UpdateUserBody, UserRow } from '../../shared/users';
+import { CreatePickerBody, InviteBody, InviteRow, ResetPinBody, SessionsEnded, UpdateUserBody, UserRow } from '../../shared/users';
 import { defineRoute } from '../http/route';
-import { createPicker, inviteUser, listInvites, resetPin, updateUserAsAdmin } from './users.service';
+import { createPicker, endSessionsOf, inviteUser, listInvites, resetPin, updateUserAsAdmin } from './users.service';
 import { listUsers } from './users.repository';
 
 export const userRoutes = [
@@ -36,5 +36,10 @@ export const userRoutes = [
       await resetPin(deps, user!.id, Number(params.id), body.pin);
       return { ok: true as const };
     },
+  }),
+  defineRoute({
+    method: 'post', path: '/api/users/:id/end-sessions', access: ['admin'], summary: "End all of a user's sessions on every device (they sign in again)",
+    response: SessionsEnded,
+    handler: ({ deps, user, params }) => endSessionsOf(deps, user!.id, Number(params.id)),
   }),
 ];

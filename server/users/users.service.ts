@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
-import type { CreatePickerBody, InviteBody, InviteRow, UpdateUserBody, UserRow } from '../../shared/users';
+import type { CreatePickerBody, InviteBody, InviteRow, SessionsEnded, UpdateUserBody, UserRow } from '../../shared/users';
+import { revokeAllSessions } from '../auth/sessions.repository';
 import { audit } from '../audit/audit';
 import { newToken } from '../auth/tokens';
 import type { Deps } from '../deps';
@@ -26,15 +27,17 @@ export async function inviteUser(deps: Deps, adminId: number, body: InviteBody):
   if (await findUserByEmail(deps.db, body.email)) throw new AppError('conflict', 'email_taken', 'A user with this e-mail already exists');
   const { token, hash } = newToken();
   const now = Date.now();
+  const expiresAt = new Date(now + INVITE_TTL_MS).toISOString();
   const [id] = await deps.db('invites').insert({
     email: body.email, role: body.role, site_ids: JSON.stringify(body.siteIds), token_hash: hash,
-    expires_at: new Date(now + INVITE_TTL_MS).toISOString(), invited_by: adminId, created_at: new Date(now).toISOString(),
+    expires_at: expiresAt, invited_by: adminId, created_at: new Date(now).toISOString(),
   });
   const link = `${deps.config.publicUrl}/accept-invite?token=${token}`;
   await deps.mailer.send({
     to: body.email,
     subject: 'You are invited to Aislewright',
     text: `Hello,\n\nYou have been invited to Aislewright as ${body.role}. Open this link within 72 hours to choose your name and password:\n\n${link}\n\nThe link works once.\n`,
+    link: { tokenHash: hash, expiresAt },
   });
   await audit(deps.db, { userId: adminId, action: 'user.invited', subject: body.email, detail: { role: body.role, siteIds: body.siteIds } });
   return (await listInvites(deps.db)).find((i) => i.id === id)!;
@@ -75,4 +78,12 @@ export async function resetPin(deps: Deps, adminId: number, id: number, pin: str
   await deps.db('users').where({ id }).update({ pin_hash: pinHash });
   await bumpTokenVersion(deps.db, id);
   await audit(deps.db, { userId: adminId, action: 'picker.pin-reset', subject: user.badge });
+}
+
+export async function endSessionsOf(deps: Deps, adminId: number, id: number): Promise<SessionsEnded> {
+  const user = await findUserById(deps.db, id);
+  if (!user) throw notFound('User');
+  const ended = await revokeAllSessions(deps.db, id);
+  await audit(deps.db, { userId: adminId, action: 'user.sessions-ended', subject: String(id), detail: { ended } });
+  return { ended };
 }

@@ -13,6 +13,7 @@ import { loadConfig } from '../../server/config';
 import type { Deps } from '../../server/deps';
 import { migrateLatest, openDb } from '../../server/db/knex';
 import { createMailer } from '../../server/mail/mailer';
+import { createBackground } from '../../server/system/background';
 import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS, seedDemoIfEmpty, type DemoSeeder } from '../../server/seed/demo';
 import { CSRF_HEADER, CSRF_VALUE, type Role } from '../../shared/common';
 
@@ -32,14 +33,16 @@ const testHasher = () => createHasher({ memoryCost: 1024, timeCost: 1 });
 export async function makeDeps(): Promise<Deps> {
   const db = openDb(':memory:');
   await migrateLatest(db);
+  const logger = pino({ level: 'silent' });
   return {
     config: loadConfig({ DATABASE_FILE: ':memory:', PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
     hasher: testHasher(),
-    backoff: new SignInBackoff(),
+    backoff: new SignInBackoff(db),
+    background: createBackground(logger),
     mailer: createMailer(db, { from: 'Aislewright <no-reply@aislewright.invalid>' }),
     jwtSecret: 'test-secret-that-is-long-enough-for-256-bits-0123456789',
-    logger: pino({ level: 'silent' }),
+    logger,
     version: 'test',
   };
 }

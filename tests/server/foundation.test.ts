@@ -53,7 +53,7 @@ describe('sign-in', () => {
     const right = await agent.post('/api/auth/sign-in').set(csrf).send({ email, password: DEMO_PASSWORD });
     expect(right.status).toBe(429);
     expect(right.body.error.details.retryAfterSeconds).toBeGreaterThan(0);
-    t.deps.backoff.succeed(`e:${email}`);
+    await t.deps.backoff.succeed(`acct:e:${email}`);
   });
 
   it('rejects unknown fields, naming them', async () => {
@@ -165,6 +165,8 @@ describe('passwords', () => {
   it('resets a forgotten password through the mailed link, once', async () => {
     expect((await t.anon.post('/api/auth/reset-request').set(csrf).send({ email: 'nobody@demo.aislewright.test' })).body).toEqual({ ok: true });
     await t.anon.post('/api/auth/reset-request').set(csrf).send({ email: 'engineer@demo.aislewright.test' });
+    // The mail goes out after the answer.
+    await t.deps.background.settled();
     const mail = (await t.as.admin.get('/api/mail/outbox')).body.find((m: { to: string; subject: string }) => m.to === 'engineer@demo.aislewright.test' && /Reset/.test(m.subject));
     const token = linkToken(mail.text, '/reset-password')!;
     expect((await t.anon.post('/api/auth/reset').set(csrf).send({ token, newPassword: 'short' })).status).toBe(400);
