@@ -76,7 +76,8 @@ test('on http://floor.test a supervisor plans and releases a wave, and a picker 
 
   // The supervisor gives the wave's first trip to the picker (same API the live board uses).
   const waveId = Number(/\/waves\/(\d+)$/.exec(page.url())![1]);
-  const siteId = (await api<{ id: number }[]>(page, 'GET', '/api/sites')).body[0]!.id;
+  // The demo site by its code: other tests add sites of their own.
+  const siteId = (await api<{ id: number; code: string }[]>(page, 'GET', '/api/sites')).body.find((s) => s.code === 'BWE')!.id;
   const wave = (await api<{ tripList: { id: number; lines: number }[] }>(page, 'GET', `/api/sites/${siteId}/waves/${waveId}`)).body;
   const trip = wave.tripList[0]!;
   const board = (await api<{ pickers: { id: number; name: string }[] }>(page, 'GET', `/api/sites/${siteId}/board`)).body;

@@ -1,7 +1,8 @@
 /**
  * The activation dialog (issue 10, item 8): activating a plan that drops bins shows what would be
  * lost and needs an explicit acknowledgement; the retired plan can be activated again from its page.
- * A site of its own, so the demo plan the other browser tests pick on is never touched.
+ * A site of its own, so the demo plan the other browser tests pick on is never touched; its name sorts
+ * after the demo site's, because sites are listed by name and the first one is the default.
  */
 import { expect, request, test, type APIRequestContext, type Page } from '@playwright/test';
 
@@ -36,7 +37,7 @@ const csv = (rows: (string | number)[][]) => Buffer.from(rows.map((r) => r.join(
 async function setUpSite(baseURL: string): Promise<{ siteId: number; twoAisles: number; oneAisle: number; dropped: number; skus: number }> {
   const admin = await signIn(baseURL, 'admin@demo.aislewright.test');
   const code = `PA${Date.now() % 100000}`;
-  const site = (await (await admin.post('/api/sites', { data: { code, name: `Activation test hall ${code}` } })).json()) as { id: number };
+  const site = (await (await admin.post('/api/sites', { data: { code, name: `Rollback test hall ${code}` } })).json()) as { id: number };
   const users = (await (await admin.get('/api/users')).json()) as { id: number; email: string | null; siteIds: number[] }[];
   const sup = users.find((u) => u.email === 'supervisor@demo.aislewright.test')!;
   expect((await admin.patch(`/api/users/${sup.id}`, { data: { siteIds: [...sup.siteIds, site.id] } })).status()).toBe(200);
