@@ -222,3 +222,64 @@ export const DistanceAnswer = z.object({ from: z.string(), to: z.string(), metre
 export type DistanceAnswer = z.infer<typeof DistanceAnswer>;
 
 export const RenameFloorPlanBody = z.strictObject({ name: z.string().trim().min(1).max(120) });
+
+// ---- Activation check (what a plan change would leave without a bin) ----
+
+/** Body of `POST …/floor-plans/:planId/activate`; `acknowledge` is required when the check finds losses. */
+export const ActivateFloorPlanBody = z.strictObject({ acknowledge: z.boolean().optional() });
+export type ActivateFloorPlanBody = z.input<typeof ActivateFloorPlanBody>;
+
+export const PlanRef = z.object({ id: z.number().int(), version: z.number().int(), name: z.string(), state: FloorPlanState });
+export type PlanRef = z.infer<typeof PlanRef>;
+
+export const SkuWithoutBin = z.object({
+  sku: z.string(),
+  description: z.string(),
+  bin: z.string(),
+  /** True when the bin is on the plan active now, i.e. activating takes the SKU's bin away. */
+  onCurrentPlan: z.boolean(),
+});
+export type SkuWithoutBin = z.infer<typeof SkuWithoutBin>;
+
+export const UnplaceableOrder = z.object({ ref: z.string(), reason: z.string(), placeableNow: z.boolean() });
+export type UnplaceableOrder = z.infer<typeof UnplaceableOrder>;
+
+export const RunningWave = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  status: z.string(),
+  planId: z.number().int(),
+  planVersion: z.number().int(),
+  /** Trips not yet done or cancelled. */
+  openTrips: z.number().int(),
+});
+export type RunningWave = z.infer<typeof RunningWave>;
+
+/** Lists in the answer are cut to this many rows; the downloads hold every row. */
+export const ACTIVATION_CHECK_SAMPLE = 50;
+
+export const ActivationCheck = z.object({
+  plan: PlanRef,
+  /** The plan active now, which activation would retire; null when the site has none (or it is this plan). */
+  currentPlan: PlanRef.nullable(),
+  /** SKUs in the site's SKU master. */
+  skus: z.number().int(),
+  /** SKUs whose bin is not on this plan. */
+  skusWithoutBin: z.number().int(),
+  /** Of those, SKUs whose bin is on the plan active now: activation takes their bin away. */
+  skusLosingBin: z.number().int(),
+  /** First rows (those losing their bin first); the full list is at `skusWithoutBinDownload`. */
+  skusWithoutBinList: z.array(SkuWithoutBin),
+  skusWithoutBinDownload: z.object({ xlsx: z.string(), csv: z.string() }),
+  openOrders: z.number().int(),
+  /** Open orders with a line this plan cannot slot (SKU unknown, its bin not on the plan, or unreachable). */
+  openOrdersUnplaceable: z.number().int(),
+  /** Of those, orders the plan active now can place: activation takes them off the floor. */
+  openOrdersLosingPlacement: z.number().int(),
+  openOrdersUnplaceableList: z.array(UnplaceableOrder),
+  /** Waves released or being picked on another plan; they keep the plan they were planned on. */
+  runningWaves: z.array(RunningWave),
+  /** True when activation would take bins or placements away: activate then needs `{ "acknowledge": true }`. */
+  needsAcknowledgement: z.boolean(),
+});
+export type ActivationCheck = z.infer<typeof ActivationCheck>;

@@ -1,5 +1,6 @@
 import { Ok } from '@shared/common';
 import {
+  ActivationCheck,
   ActiveFloorPlan,
   ClosureResult,
   DistanceAnswer,
@@ -7,6 +8,7 @@ import {
   FloorPlanJob,
   FloorPlanSummary,
   PlanGeometry,
+  type ActivateFloorPlanBody,
   type CloseSegmentBody,
   type GenerateFloorPlanBody,
 } from '@shared/floor-plans';
@@ -19,7 +21,8 @@ export const listFloorPlans = (siteId: number) => http('GET', base(siteId), Floo
 export const getFloorPlan = (siteId: number, planId: number) => http('GET', `${base(siteId)}/${planId}`, FloorPlanDetail);
 export const getPlanGeometry = (siteId: number, planId: number) => http('GET', `${base(siteId)}/${planId}/geometry`, PlanGeometry);
 export const getActivePlan = (siteId: number) => http('GET', `${base(siteId)}/active`, ActiveFloorPlan);
-export const activateFloorPlan = (siteId: number, planId: number) => http('POST', `${base(siteId)}/${planId}/activate`, FloorPlanDetail);
+export const activateFloorPlan = (siteId: number, planId: number, body: ActivateFloorPlanBody = {}) => http('POST', `${base(siteId)}/${planId}/activate`, FloorPlanDetail, { body });
+export const getActivationCheck = (siteId: number, planId: number) => http('GET', `${base(siteId)}/${planId}/activation-check`, ActivationCheck);
 export const deleteFloorPlan = (siteId: number, planId: number) => http('DELETE', `${base(siteId)}/${planId}`, Ok);
 export const renameFloorPlan = (siteId: number, planId: number, name: string) => http('PATCH', `${base(siteId)}/${planId}`, FloorPlanDetail, { body: { name } });
 export const generateFloorPlan = (siteId: number, body: GenerateFloorPlanBody) => http('POST', `${base(siteId)}/generate`, FloorPlanJob, { body });

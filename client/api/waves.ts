@@ -1,5 +1,5 @@
 import { TripDetail, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
-import { http } from './http';
+import { ApiError, http } from './http';
 
 const base = (siteId: number) => `/api/sites/${siteId}`;
 
@@ -11,10 +11,26 @@ export const getWave = (siteId: number, id: number) => http('GET', `${base(siteI
 export const cancelWave = (siteId: number, id: number) => http('POST', `${base(siteId)}/waves/${id}/cancel`, WaveDetail);
 export const getTrip = (siteId: number, id: number) => http('GET', `${base(siteId)}/trips/${id}`, TripDetail);
 
-/** Polls a preview job until it ends, reporting progress; resolves to the finished job. */
+/** Polling failures in a row (network blips) tolerated before giving up with the last error. */
+const POLL_RETRIES = 3;
+
+/**
+ * Polls a preview job until it ends, reporting progress; resolves to the finished job. A lost
+ * connection is retried a few times, then the error is thrown, so the caller can show it instead of
+ * waiting forever.
+ */
 export async function waitForPreview(siteId: number, id: string, onProgress: (job: WaveJob) => void, signal?: AbortSignal): Promise<WaveJob> {
+  let failures = 0;
   for (;;) {
-    const job = await getPreviewJob(siteId, id);
+    let job: WaveJob;
+    try {
+      job = await getPreviewJob(siteId, id);
+      failures = 0;
+    } catch (error) {
+      if (!(error instanceof ApiError) || error.status !== 0 || ++failures > POLL_RETRIES || signal?.aborted) throw error;
+      await new Promise((r) => setTimeout(r, 500 * failures));
+      continue;
+    }
     onProgress(job);
     if (job.state !== 'running') return job;
     if (signal?.aborted) return job;

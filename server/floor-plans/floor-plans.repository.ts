@@ -196,7 +196,7 @@ export async function retireActive(db: Q, siteId: number, now: string): Promise<
 }
 
 export async function setActive(db: Q, planId: number, now: string): Promise<void> {
-  await db('floor_plans').where({ id: planId }).update({ state: 'active', activated_at: now });
+  await db('floor_plans').where({ id: planId }).update({ state: 'active', activated_at: now, retired_at: null });
 }
 
 export async function renamePlan(db: Q, planId: number, name: string): Promise<void> {

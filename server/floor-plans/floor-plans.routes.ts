@@ -8,6 +8,8 @@ import type { Response } from 'express';
 import type { Role } from '../../shared/common';
 import { Ok } from '../../shared/common';
 import {
+  ActivateFloorPlanBody,
+  ActivationCheck,
   ActiveFloorPlan,
   CloseSegmentBody,
   ClosureResult,
@@ -25,6 +27,7 @@ import { defineRoute } from '../http/route';
 import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
 import { getJob, watchJob } from './jobs';
+import { skusWithoutBinCsv, skusWithoutBinXlsx } from './activation-check';
 
 const MANAGE: readonly Role[] = ['supervisor', 'admin'];
 const OFFICE: readonly Role[] = ['supervisor', 'admin', 'engineer'];
@@ -147,9 +150,28 @@ export const floorPlanRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: `${base}/:planId/activate`, access: MANAGE, summary: 'Activate a draft; the previous active plan is retired',
-    response: FloorPlanDetail,
-    handler: ({ deps, siteId, params, user }) => service.activatePlan(deps.db, siteId!, planIdOf(params), user!.id),
+    method: 'get', path: `${base}/:planId/activation-check`, access: OFFICE,
+    summary: 'What activating the plan would take away: SKUs without a bin, open orders it cannot place, waves still running on another plan',
+    response: ActivationCheck,
+    handler: ({ deps, siteId, params }) => service.activationCheck(deps.db, siteId!, planIdOf(params)),
+  }),
+  defineRoute({
+    method: 'get', path: `${base}/:planId/activation-check/skus-without-bin`, access: OFFICE,
+    summary: 'Every SKU whose bin is not on the plan, as xlsx (default) or CSV (?format=csv)',
+    query: z.strictObject({ format: z.enum(['xlsx', 'csv']).default('xlsx') }),
+    handler: async ({ deps, res, siteId, params, query }) => {
+      const check = await service.activationCheckFull(deps.db, siteId!, planIdOf(params));
+      const name = `skus-without-bin-v${check.plan.version}`;
+      return query.format === 'csv'
+        ? sendFile(res, skusWithoutBinCsv(check.allSkusWithoutBin), 'text/csv; charset=utf-8', `${name}.csv`)
+        : sendFile(res, skusWithoutBinXlsx(check.allSkusWithoutBin), XLSX_TYPE, `${name}.xlsx`);
+    },
+  }),
+  defineRoute({
+    method: 'post', path: `${base}/:planId/activate`, access: MANAGE,
+    summary: 'Activate a draft, or a retired plan again (rollback); the active plan is retired. 409 activation_needs_acknowledgement unless { "acknowledge": true } when SKUs or open orders would lose their bin',
+    body: ActivateFloorPlanBody, response: FloorPlanDetail,
+    handler: ({ deps, siteId, params, user, body }) => service.activatePlan(deps.db, siteId!, planIdOf(params), user!.id, { acknowledge: body.acknowledge ?? false }),
   }),
   defineRoute({
     method: 'post', path: `${base}/:planId/closures`, access: MANAGE, status: 201,

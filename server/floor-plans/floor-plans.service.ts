@@ -8,6 +8,7 @@ import { setImmediate as yieldToLoop } from 'node:timers/promises';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
 import type {
+  ActivationCheck,
   ActiveFloorPlan,
   ClosureResult,
   DistanceAnswer,
@@ -33,6 +34,7 @@ import { startJob, type JobControl, type JobOutcome } from './jobs';
 import { forgetPlanIndex, loadPlanIndex } from './plan-index';
 import { packPlan, unpackPlan } from './packed-plan';
 import { unreachableBinCodes } from './reachability';
+import { computeActivationCheck, publicCheck, type FullActivationCheck } from './activation-check';
 
 type CloseSegment = z.output<typeof CloseSegmentSchema>;
 
@@ -96,18 +98,52 @@ export async function binDistance(db: Knex, siteId: number, planId: number, from
 
 // ---- state changes ----
 
-export async function activatePlan(db: Knex, siteId: number, planId: number, userId: number): Promise<FloorPlanDetail> {
+const skusWithoutBinLinks = (siteId: number, planId: number) => {
+  const base = `/api/sites/${siteId}/floor-plans/${planId}/activation-check/skus-without-bin`;
+  return { xlsx: `${base}?format=xlsx`, csv: `${base}?format=csv` };
+};
+
+/** What activating the plan would take away (see activation-check.ts), with every SKU without a bin. */
+export async function activationCheckFull(db: Knex, siteId: number, planId: number): Promise<FullActivationCheck> {
+  const row = await mustPlan(db, siteId, planId);
+  return computeActivationCheck(db, siteId, row, skusWithoutBinLinks(siteId, planId));
+}
+
+export async function activationCheck(db: Knex, siteId: number, planId: number): Promise<ActivationCheck> {
+  return publicCheck(await activationCheckFull(db, siteId, planId));
+}
+
+/**
+ * Activates a draft, or a retired plan again (rollback, no re-upload); the active plan is retired.
+ * When SKUs would lose their bin or open orders their placement, it refuses (409
+ * activation_needs_acknowledgement, the check in `details`) unless `acknowledge` is set.
+ */
+export async function activatePlan(db: Knex, siteId: number, planId: number, userId: number, options: { acknowledge?: boolean } = {}): Promise<FloorPlanDetail> {
   const row = await mustPlan(db, siteId, planId);
   if (row.state === 'active') return getPlanDetail(db, siteId, planId);
-  if (row.state !== 'draft') throw new AppError('conflict', 'plan_read_only', `Version ${row.version} is retired and read-only; upload it again to use it`);
+  const check = publicCheck(await computeActivationCheck(db, siteId, row, skusWithoutBinLinks(siteId, planId)));
+  if (check.needsAcknowledgement && options.acknowledge !== true) {
+    const what = [
+      check.skusLosingBin ? `${check.skusLosingBin} SKU${check.skusLosingBin === 1 ? '' : 's'} without a bin` : null,
+      check.openOrdersLosingPlacement ? `${check.openOrdersLosingPlacement} open order${check.openOrdersLosingPlacement === 1 ? '' : 's'} that cannot be placed` : null,
+    ].filter(Boolean).join(' and ');
+    throw new AppError('conflict', 'activation_needs_acknowledgement', `Activating v${row.version} would leave ${what} compared with the active plan. Review the activation check and send { "acknowledge": true } to activate anyway.`, check);
+  }
   const now = nowIso();
   await db.transaction(async (trx) => {
-    // Re-read inside the transaction: a concurrent activation must not leave two active plans.
+    // Re-read inside the transaction: a concurrent activation must not leave two active plans, and
+    // the check must still be about the plan that gets retired.
     const fresh = await repo.getPlanRow(trx, siteId, planId);
-    if (fresh?.state !== 'draft') throw new AppError('conflict', 'plan_changed', 'The plan changed meanwhile; reload and try again');
+    const active = await repo.activePlanRow(trx, siteId);
+    if (fresh?.state !== row.state || (active?.id ?? null) !== (check.currentPlan?.id ?? null)) {
+      throw new AppError('conflict', 'plan_changed', 'The floor plans changed meanwhile; reload and try again');
+    }
     const retired = await repo.retireActive(trx, siteId, now);
     await repo.setActive(trx, planId, now);
-    await audit(trx, { siteId, userId, action: 'floor_plan.activated', subject: `v${row.version}`, detail: { planId, retired } });
+    await audit(trx, {
+      siteId, userId, action: row.state === 'retired' ? 'floor_plan.reactivated' : 'floor_plan.activated', subject: `v${row.version}`,
+      detail: { planId, retired, acknowledged: check.needsAcknowledgement, skusLosingBin: check.skusLosingBin, openOrdersLosingPlacement: check.openOrdersLosingPlacement },
+    });
   });
   return getPlanDetail(db, siteId, planId);
 }

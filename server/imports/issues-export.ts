@@ -31,7 +31,7 @@ export function rowIssuesToCsv(issues: readonly RowIssue[]): string {
   return `\ufeff${lines.join('\r\n')}\r\n`;
 }
 
-function csvCell(v: string | number): string {
+export function csvCell(v: string | number): string {
   if (typeof v === 'number') return String(v);
   const safe = /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
   return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;

@@ -1,13 +1,13 @@
 /** The tablet's own feedback and identity: a name for the audit trail, sound, vibration, screen wake. */
+import { newId } from '@client/utils/ids';
+
 const DEVICE_KEY = 'aislewright.device';
 
 /** A stable name for this tablet (kept in localStorage), recorded beside every confirmation. */
 export function deviceName(): string {
   let name = localStorage.getItem(DEVICE_KEY);
   if (!name) {
-    const bytes = new Uint8Array(3);
-    crypto.getRandomValues(bytes);
-    name = `tablet-${Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('')}`;
+    name = `tablet-${newId().slice(0, 6)}`;
     localStorage.setItem(DEVICE_KEY, name);
   }
   return name;

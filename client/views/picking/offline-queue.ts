@@ -4,6 +4,7 @@
  * resend, so the server records it once however often it is sent.
  */
 import { createStore, get, set, type UseStore } from 'idb-keyval';
+import { newId } from '@client/utils/ids';
 import type { ApiError } from '@client/api/http';
 import type { PickAction, SendOutcome } from '@client/api/picking';
 
@@ -26,12 +27,8 @@ export interface QueueEvents {
 
 const ITEMS = 'items';
 
-/** 32 hex digits from the platform's CSPRNG; crypto.randomUUID needs a secure origin, tablets on LAN HTTP lack one. */
-export function newIdempotencyKey(): string {
-  const bytes = new Uint8Array(16);
-  crypto.getRandomValues(bytes);
-  return Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('');
-}
+/** 32 hex digits from the platform's CSPRNG (see client/utils/ids.ts: no crypto.randomUUID on LAN HTTP). */
+export const newIdempotencyKey = (): string => newId();
 
 /** Network failures and server trouble (5xx, 429) are worth retrying; any other answer is final. */
 export function isRetryable(error: ApiError): boolean {
