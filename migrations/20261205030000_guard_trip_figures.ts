@@ -6,7 +6,7 @@ import type { Knex } from 'knex';
  *   release; "Skip for now" and re-routing after a closure change only the walking order.
  * - `trips.route_changed_at`: set when a closure change re-routed the trip's remaining stops.
  * - `pick_lines.received_at`: when the server got the confirmation or short (`confirmed_at` is the
- *   tablet's time, bounded).
+ *   tablet's time, bounded); `pick_lines.tablet_at` the tablet's time as sent.
  * - Metres, minutes and weights on waves and trips are finite numbers: SQLite stores Infinity as a
  *   REAL and a NaN as NULL, PostgreSQL stores both in float8. PostgreSQL gets CHECK constraints;
  *   SQLite gets BEFORE INSERT/UPDATE triggers that abort (adding a CHECK to an existing SQLite table
@@ -30,6 +30,8 @@ export async function up(knex: Knex): Promise<void> {
   await knex('stops').update({ walk_seq: knex.ref('n') });
   await knex.schema.alterTable('pick_lines', (t) => {
     t.string('received_at');
+    // The tablet's time exactly as sent (unbounded): the double-tap guard compares two taps by it.
+    t.string('tablet_at');
   });
   await knex.schema.alterTable('trips', (t) => {
     t.string('route_changed_at');
@@ -58,6 +60,9 @@ export async function down(knex: Knex): Promise<void> {
     }
   }
   await knex.schema.alterTable('trips', (t) => t.dropColumn('route_changed_at'));
-  await knex.schema.alterTable('pick_lines', (t) => t.dropColumn('received_at'));
+  await knex.schema.alterTable('pick_lines', (t) => {
+    t.dropColumn('received_at');
+    t.dropColumn('tablet_at');
+  });
   await knex.schema.alterTable('stops', (t) => t.dropColumn('walk_seq'));
 }

@@ -80,6 +80,8 @@ export interface DbLineRow {
   confirmed_at: string | null;
   /** When the server received the confirmation or short. */
   received_at: string | null;
+  /** The tablet's time as sent, unbounded (the double-tap guard). */
+  tablet_at: string | null;
 }
 
 export const ACTIVE_TRIP = ['assigned', 'picking'] as const;

@@ -297,7 +297,7 @@ async function assertShown(trx: Q, trip: DbTripRow, line: DbLineRow, body: Confi
   }
   if (body.via !== 'tap' || !body.pickedAt) return;
   const t = Date.parse(body.pickedAt);
-  const last = await trx('pick_lines').where({ trip_id: trip.id, status: 'picked' }).whereNot({ id: line.id }).max<{ m: string | null }[]>({ m: 'confirmed_at' });
+  const last = await trx('pick_lines').where({ trip_id: trip.id, status: 'picked' }).whereNot({ id: line.id }).max<{ m: string | null }[]>({ m: 'tablet_at' });
   const prev = last[0]?.m ? Date.parse(last[0].m) : NaN;
   if (Number.isFinite(prev) && Number.isFinite(t) && t >= prev && t - prev < TAP_GUARD_MS) {
     throw new AppError('conflict', 'line_not_shown', 'A second tap came too soon after the last confirmation; nothing was confirmed', { lineId: line.id, stopN: stop.n, shownStopN: body.stopN ?? null });
@@ -347,7 +347,7 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
     }
     const at = pickTime(body.pickedAt, trip);
     await markStarted(trx, trip, at);
-    return settleLine(trx, actor, trip, line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso() }, 'pick.confirm', {
+    return settleLine(trx, actor, trip, line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.confirm', {
       qty: line.qty, via: body.via, scan: body.scan, pickedAt: body.pickedAt ?? null, key: req.key,
     });
   });
@@ -391,7 +391,7 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
     const at = pickTime(body.pickedAt, trip);
     await markStarted(trx, trip, at);
     await trx('pick_shorts').insert({ site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
-    return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso() }, 'pick.short', {
+    return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.short', {
       ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key,
     });
   });
@@ -441,10 +441,10 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
  * the supervisor's correction. The caller checks who may and audits.
  */
 async function reopenLine(trx: Q, line: DbLineRow): Promise<void> {
-  await trx('pick_lines').where({ id: line.id }).update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null });
+  await trx('pick_lines').where({ id: line.id }).update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
   await trx('pick_shorts').where({ line_id: line.id }).del();
   await trx('stops').where({ id: line.stop_id }).update({ status: 'open', done_at: null, done_seq: null });
-  Object.assign(line, { status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null });
+  Object.assign(line, { status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
 }
 
 /**
