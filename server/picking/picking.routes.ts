@@ -165,6 +165,8 @@ export const pickingRoutes = [
           if (!closed) res.write(`event: board\ndata: ${JSON.stringify(snap)}\n\n`);
         } catch (err) {
           deps.logger.warn({ err }, 'board snapshot failed');
+          // The board must not keep saying "Live" over a snapshot it could not build.
+          if (!closed) res.write(`event: board-error\ndata: ${JSON.stringify({ message: 'The server could not build the board' })}\n\n`);
         } finally {
           sending = false;
           if (again) {
