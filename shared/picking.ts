@@ -30,6 +30,11 @@ export const ConfirmBody = z.strictObject({
   /** What the scanner typed (bin or SKU barcode per the site's setting); null for a tap. */
   scan: z.string().trim().max(128).nullable().default(null),
   pickedAt: PickedAt,
+  /**
+   * The printed stop number the tablet showed with this line when the finger went down. A confirm
+   * for a line of another stop is refused (409 line_not_shown): a double tap never confirms the next line.
+   */
+  stopN: z.number().int().positive().optional(),
 });
 export type ConfirmBody = z.infer<typeof ConfirmBody>;
 
@@ -41,10 +46,19 @@ export const ShortBody = z.strictObject({
 export type ShortBody = z.infer<typeof ShortBody>;
 
 export const SkipBody = z.strictObject({ pickedAt: PickedAt });
+export const UndoBody = z.strictObject({});
+/** The supervisor's correction of a recorded line: it goes back to open, with a reason for the audit trail. */
+export const ReopenLineBody = z.strictObject({ reason: z.string().trim().min(1).max(200) });
+/** A just-confirmed line can be undone on the tablet this long after the server received it. */
+export const UNDO_WINDOW_MS = 10_000;
 export type SkipBody = z.infer<typeof SkipBody>;
 export const FinishBody = z.strictObject({});
 
-export const PickStop = StopView.extend({ skipped: z.boolean() });
+export const PickStop = StopView.extend({
+  skipped: z.boolean(),
+  /** No walk reaches this stop now (a closed stretch): report its lines short as "cannot reach", or wait. */
+  cutOff: z.boolean(),
+});
 export type PickStop = z.infer<typeof PickStop>;
 
 export const PickTrip = TripDetail.extend({
@@ -57,6 +71,8 @@ export const PickTrip = TripDetail.extend({
   currentStopId: z.number().int().nullable(),
   /** Raised by every change to the trip (see TripPulse). */
   revision: z.number().int(),
+  /** When a closure change last re-routed the remaining stops; null when it never did. */
+  routeChangedAt: z.string().nullable(),
 });
 export type PickTrip = z.infer<typeof PickTrip>;
 
@@ -74,8 +90,8 @@ export const TripResult = z.object({
   cancelled: z.number().int(),
   stops: z.number().int(),
   plannedMetres: z.number(),
-  /** Depot → stops in the order actually finished → depot, on the plan's distances. */
-  walkedMetres: z.number(),
+  /** Depot → stops in the order actually finished → depot, on the plan's distances; null when no walk can be measured (a closure). */
+  walkedMetres: z.number().nullable(),
   estMinutes: z.number(),
   /** Start to finish (or to now while the trip runs); null before the start. */
   minutes: z.number().nullable(),
@@ -107,8 +123,10 @@ export const BoardTrip = z.object({
   startedAt: z.string().nullable(),
   finishedAt: z.string().nullable(),
   elapsedMinutes: z.number().nullable(),
-  /** Walk from the last finished stop through the open ones and back, plus handling, at site speeds. */
+  /** Walk from the last finished stop through the open ones and back, plus handling, at site speeds (cut-off stops left out). */
   remainingMinutes: z.number(),
+  /** Open lines no walk reaches now (a closed stretch). */
+  cutOffLines: z.number().int(),
   estMinutes: z.number(),
 });
 export type BoardTrip = z.infer<typeof BoardTrip>;
@@ -147,11 +165,28 @@ export const BoardShort = z.object({
 });
 export type BoardShort = z.infer<typeof BoardShort>;
 
+/** An open line of a trip in progress that no walk reaches now: for the supervisor to handle. */
+export const BoardCutOffLine = z.object({
+  lineId: z.number().int(),
+  waveId: z.number().int(),
+  waveName: z.string(),
+  tripId: z.number().int(),
+  tripN: z.number().int(),
+  stopN: z.number().int(),
+  pickerName: z.string().nullable(),
+  orderRef: z.string(),
+  sku: z.string(),
+  bin: z.string(),
+  qty: z.number().int(),
+});
+export type BoardCutOffLine = z.infer<typeof BoardCutOffLine>;
+
 export const Board = z.object({
   siteId: z.number().int(),
   at: z.string(),
   waves: z.array(BoardWave),
   shorts: z.array(BoardShort),
+  cutOff: z.array(BoardCutOffLine),
   pickers: z.array(z.object({ id: z.number().int(), name: z.string(), tripId: z.number().int().nullable() })),
 });
 export type Board = z.infer<typeof Board>;

@@ -14,8 +14,9 @@ export const getTripResult = (tripId: number) => http('GET', `/api/picking/trips
 
 /** One queued picker write: what the offline queue stores and replays with the same key. */
 export type PickAction =
-  | { kind: 'confirm'; tripId: number; lineId: number; body: { via: 'scan' | 'tap'; scan: string | null; pickedAt: string } }
+  | { kind: 'confirm'; tripId: number; lineId: number; body: { via: 'scan' | 'tap'; scan: string | null; pickedAt: string; stopN?: number } }
   | { kind: 'short'; tripId: number; lineId: number; body: { qtyFound: number; reason: ShortReason; pickedAt: string } }
+  | { kind: 'undo'; tripId: number; lineId: number; body: Record<string, never> }
   | { kind: 'skip'; tripId: number; stopId: number; body: { pickedAt: string } }
   | { kind: 'finish'; tripId: number; body: Record<string, never> };
 
@@ -26,6 +27,8 @@ export function actionPath(a: PickAction): string {
       return `${base}/lines/${a.lineId}/confirm`;
     case 'short':
       return `${base}/lines/${a.lineId}/short`;
+    case 'undo':
+      return `${base}/lines/${a.lineId}/undo`;
     case 'skip':
       return `${base}/stops/${a.stopId}/skip`;
     case 'finish':
@@ -74,5 +77,6 @@ export const boardEventsUrl = (siteId: number) => `/api/sites/${siteId}/board/ev
 export const assignTrip = (siteId: number, tripId: number, pickerId: number) => http('POST', `/api/sites/${siteId}/board/trips/${tripId}/assign`, Ok, { body: { pickerId } });
 export const cancelTrip = (siteId: number, tripId: number, reason?: string) => http('POST', `/api/sites/${siteId}/board/trips/${tripId}/cancel`, CancelResult, { body: reason ? { reason } : {} });
 export const closeWave = (siteId: number, waveId: number, reason?: string) => http('POST', `/api/sites/${siteId}/board/waves/${waveId}/close`, CloseWaveResult, { body: reason ? { reason } : {} });
+export const reopenLine = (siteId: number, lineId: number, reason: string) => http('POST', `/api/sites/${siteId}/board/lines/${lineId}/reopen`, LineAnswer, { body: { reason } });
 export const markShortHandled = (siteId: number, shortId: number) => http('POST', `/api/sites/${siteId}/board/shorts/${shortId}/handled`, Ok, { body: {} });
 export const waveReportUrl = (siteId: number, waveId: number) => `/api/sites/${siteId}/board/waves/${waveId}/report.xlsx`;

@@ -23,6 +23,7 @@ import type { CloseSegmentBody as CloseSegmentSchema } from '../../shared/floor-
 import { pairDistance } from '../core/plan/distances';
 import type { RectangularPlanParams } from '../core/plan/generate';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import { rerouteOpenTrips } from '../picking/reroute';
 import { nowIso } from '../db/knex';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
@@ -379,6 +380,8 @@ export async function closeSegment(db: Knex, siteId: number, planId: number, bod
       const id = await repo.insertClosure(trx, { planId, kind: body.kind, code: body.code, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null, userId }, nowIso());
       await audit(trx, { siteId, userId, action: 'floor_plan.segment_closed', subject: `${body.kind} ${body.code}`, detail: { planId, closureId: id, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null } });
     });
+    // Trips being picked on this plan walk the changed graph from where their pickers are.
+    await rerouteOpenTrips(db, planId, loaded, userId);
     return closureResult(db, siteId, planId, r);
   });
 }
@@ -395,6 +398,7 @@ export async function reopenSegment(db: Knex, siteId: number, planId: number, cl
       if (!(await repo.reopenClosure(trx, planId, closureId, userId, nowIso()))) throw notFound('Closure');
       await audit(trx, { siteId, userId, action: 'floor_plan.segment_reopened', subject: String(closureId), detail: { planId, closureId } });
     });
+    await rerouteOpenTrips(db, planId, loaded, userId);
     return closureResult(db, siteId, planId, r);
   });
 }

@@ -4,7 +4,7 @@
  * trip (its open lines go back to open orders), close a wave, mark a short handled.
  */
 import type { Knex } from 'knex';
-import type { Board, BoardShort, BoardTrip, BoardWave } from '../../shared/picking';
+import type { Board, BoardCutOffLine, BoardShort, BoardTrip, BoardWave } from '../../shared/picking';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
@@ -12,8 +12,9 @@ import { getSiteRow, settingsOf } from '../sites/sites.repository';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { estimateMinutes } from '../waves/wave-planner';
 import { siteChanged } from './events';
-import { bumpRevision, depotNodeOf, distanceOf, splitStops, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow, type Q } from './picking.repository';
+import { bumpRevision, depotNodeOf, distanceOf, finiteOrNull, pickerNode, splitStops, walkedStopIds, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow, type Q } from './picking.repository';
 import { remainingMetres } from './route-math';
+import { canReach } from './reroute';
 import { walkedMetres } from './walked';
 import type { Actor } from './picking.service';
 import { afterTripClosed, mailWaveReport } from './waves-progress';
@@ -38,7 +39,10 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
     : [];
   const tripIds = trips.map((t) => t.id);
   const stops: DbStopRow[] = tripIds.length ? await db<DbStopRow>('stops').whereIn('trip_id', tripIds) : [];
-  const lines: Pick<DbLineRow, 'trip_id' | 'stop_id' | 'status'>[] = tripIds.length ? await db('pick_lines').whereIn('trip_id', tripIds).select('trip_id', 'stop_id', 'status') : [];
+  const lines: Pick<DbLineRow, 'id' | 'trip_id' | 'stop_id' | 'status' | 'short_reason' | 'order_ref' | 'sku' | 'bin' | 'qty'>[] = tripIds.length
+    ? await db('pick_lines').whereIn('trip_id', tripIds).select('id', 'trip_id', 'stop_id', 'status', 'short_reason', 'order_ref', 'sku', 'bin', 'qty')
+    : [];
+  const cutOff: BoardCutOffLine[] = [];
   const stopsByTrip = groupBy(stops, (s) => s.trip_id);
   const linesByTrip = groupBy(lines, (l) => l.trip_id);
 
@@ -53,8 +57,15 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
       const { done, open } = splitStops(ss);
       const openLines = ls.filter((l) => l.status === 'open').length;
       const closed = t.status === 'done' || t.status === 'cancelled';
-      const from = done.length ? done[done.length - 1]!.node : depot;
-      const metres = closed ? 0 : remainingMetres(from, open.map((s) => s.node), depot, dist);
+      const from = pickerNode(done, depot, walkedStopIds(ls));
+      // Stops a closure cut off are left out of the walk and listed for the supervisor.
+      const reach = closed ? open : open.filter((s) => canReach(dist, from, s.node, depot));
+      const cutStops = new Map(closed ? [] : open.filter((s) => !reach.includes(s)).map((s) => [s.id, s.n]));
+      const cutLines = ls.filter((l) => l.status === 'open' && cutStops.has(l.stop_id));
+      for (const l of cutLines) {
+        cutOff.push({ lineId: l.id, waveId: w.id, waveName: w.name, tripId: t.id, tripN: t.n, stopN: cutStops.get(l.stop_id)!, pickerName: t.picker_name, orderRef: l.order_ref, sku: l.sku, bin: l.bin, qty: l.qty });
+      }
+      const metres = closed ? 0 : finiteOrNull(remainingMetres(from, reach.map((s) => s.node), depot, dist)) ?? 0;
       const end = t.finished_at ? Date.parse(t.finished_at) : now;
       return {
         id: t.id,
@@ -69,9 +80,10 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
         shorts: ls.filter((l) => l.status === 'short').length,
         startedAt: t.started_at,
         finishedAt: t.finished_at,
-        elapsedMinutes: t.started_at ? (end - Date.parse(t.started_at)) / 60_000 : null,
-        remainingMinutes: closed ? 0 : estimateMinutes(metres, openLines, open.length, speeds),
-        estMinutes: t.est_seconds / 60,
+        elapsedMinutes: t.started_at ? finiteOrNull((end - Date.parse(t.started_at)) / 60_000) : null,
+        remainingMinutes: closed ? 0 : (finiteOrNull(estimateMinutes(metres, openLines - cutLines.length, reach.length, speeds)) ?? 0),
+        cutOffLines: cutLines.length,
+        estMinutes: finiteOrNull(t.est_seconds / 60) ?? 0,
       };
     });
     const remaining = boardTrips.reduce((a, t) => a + t.remainingMinutes, 0);
@@ -87,7 +99,7 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
       shorts: boardTrips.reduce((a, t) => a + t.shorts, 0),
       remainingMinutes: remaining,
       pickersCounted,
-      forecastAt: remaining > 0 ? new Date(now + (remaining / pickersCounted) * 60_000).toISOString() : null,
+      forecastAt: remaining > 0 && Number.isFinite(remaining) ? new Date(now + (remaining / pickersCounted) * 60_000).toISOString() : null,
     });
   }
 
@@ -125,7 +137,7 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
     .select('users.id', 'users.name');
   const busy = await db('trips').where({ site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNotNull('picker_id').select<{ id: number; picker_id: number }[]>('id', 'picker_id');
   const busyBy = new Map(busy.map((b) => [b.picker_id, b.id]));
-  return { siteId, at: new Date(now).toISOString(), waves: outWaves, shorts, pickers: pickerRows.map((p) => ({ id: p.id, name: p.name, tripId: busyBy.get(p.id) ?? null })) };
+  return { siteId, at: new Date(now).toISOString(), waves: outWaves, shorts, cutOff, pickers: pickerRows.map((p) => ({ id: p.id, name: p.name, tripId: busyBy.get(p.id) ?? null })) };
 }
 
 function groupBy<T>(items: T[], key: (t: T) => number): Map<number, T[]> {

@@ -28,6 +28,8 @@ export interface DbTripRow {
   cancelled_at: string | null;
   walked_metres: number | null;
   revision: number;
+  /** Set when a closure change re-routed the trip's remaining stops (the tablet tells the picker). */
+  route_changed_at: string | null;
 }
 
 export interface DbWaveRow {
@@ -54,6 +56,8 @@ export interface DbStopRow {
   done_at: string | null;
   done_seq: number | null;
   skipped_at: string | null;
+  /** Walking order of the stop; null on rows written before it existed (then `n`). `n` is the printed number, fixed at release. */
+  walk_seq: number | null;
 }
 
 export interface DbLineRow {
@@ -72,14 +76,23 @@ export interface DbLineRow {
   picked_qty: number | null;
   short_reason: string | null;
   confirmed_by: number | null;
+  /** When the picker confirmed, by the tablet's clock (bounded by the trip's start and the server's clock). */
   confirmed_at: string | null;
+  /** When the server received the confirmation or short. */
+  received_at: string | null;
+  /** The tablet's time as sent, unbounded (the double-tap guard). */
+  tablet_at: string | null;
 }
 
 export const ACTIVE_TRIP = ['assigned', 'picking'] as const;
 
 export const getTripRow = (db: Q, id: number): Promise<DbTripRow | undefined> => db<DbTripRow>('trips').where({ id }).first();
 export const getWaveRow = (db: Q, id: number): Promise<DbWaveRow | undefined> => db<DbWaveRow>('waves').where({ id }).first();
-export const stopsOf = (db: Q, tripId: number): Promise<DbStopRow[]> => db<DbStopRow>('stops').where({ trip_id: tripId }).orderBy([{ column: 'n' }, { column: 'id' }]);
+/** A trip's stops in walking order (the printed number `n` never changes; the walking order may). */
+export const stopsOf = (db: Q, tripId: number): Promise<DbStopRow[]> => db<DbStopRow>('stops').where({ trip_id: tripId }).orderByRaw('COALESCE(walk_seq, n), n, id');
+
+/** Where a stop sits in the walk. */
+export const walkOrder = (s: Pick<DbStopRow, 'walk_seq' | 'n'>): number => s.walk_seq ?? s.n;
 export const linesOf = (db: Q, tripId: number): Promise<DbLineRow[]> => db<DbLineRow>('pick_lines').where({ trip_id: tripId }).orderBy('id');
 
 /** Stop bins are stored as a JSON array, or a comma list in older rows. */
@@ -96,7 +109,7 @@ export function binsOf(raw: string): string[] {
 /** Open stops in walking order, done stops in the order they were finished. */
 export function splitStops(stops: DbStopRow[]): { done: DbStopRow[]; open: DbStopRow[] } {
   const done = stops.filter((s) => s.status === 'done').sort((a, b) => (a.done_seq ?? a.n) - (b.done_seq ?? b.n) || a.id - b.id);
-  const open = stops.filter((s) => s.status !== 'done').sort((a, b) => a.n - b.n || a.id - b.id);
+  const open = stops.filter((s) => s.status !== 'done').sort((a, b) => walkOrder(a) - walkOrder(b) || a.n - b.n || a.id - b.id);
   return { done, open };
 }
 
@@ -104,6 +117,25 @@ export function splitStops(stops: DbStopRow[]): { done: DbStopRow[]; open: DbSto
 export const depotNodeOf = (plan: LoadedPlan, wave: Pick<DbWaveRow, 'depot_idx'>): number => plan.depotNodes[wave.depot_idx] ?? plan.depotNodes[0]!;
 
 export const distanceOf = (plan: LoadedPlan) => (a: number, b: number) => pairDistance(plan.index, a, b);
+
+/** A finite number, else null: metres, minutes and ratios are never stored or shown as Infinity or NaN. */
+export const finiteOrNull = (v: number | null | undefined): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+
+/**
+ * Where the picker is, as far as the server knows: the last finished stop they actually walked to
+ * (a stop settled only as "cannot reach" was not walked to), else the depot.
+ */
+export function pickerNode(done: readonly DbStopRow[], depot: number, walked: ReadonlySet<number> | null = null): number {
+  for (let i = done.length - 1; i >= 0; i--) if (!walked || walked.has(done[i]!.id)) return done[i]!.node;
+  return depot;
+}
+
+/** Ids of a trip's stops with at least one line picked or short for another reason than "cannot reach". */
+export function walkedStopIds(lines: readonly Pick<DbLineRow, 'stop_id' | 'status' | 'short_reason'>[]): Set<number> {
+  const out = new Set<number>();
+  for (const l of lines) if (l.status === 'picked' || (l.status === 'short' && l.short_reason !== 'cannot_reach')) out.add(l.stop_id);
+  return out;
+}
 
 /** The trip as the picker's tablet shows it (one row read per table, the plan index from cache). */
 export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | null> {
@@ -123,6 +155,10 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     list.push(l);
     byStop.set(l.stop_id, list);
   }
+  const dist = distanceOf(plan);
+  const { done } = splitStops(stops);
+  const from = pickerNode(done, depotNode, walkedStopIds(lines));
+  const reachable = (node: number) => Number.isFinite(dist(from, node)) && Number.isFinite(dist(node, depotNode));
   const stopList: PickStop[] = stops.map((s) => ({
     id: s.id,
     n: s.n,
@@ -131,10 +167,14 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     bins: binsOf(s.bins),
     status: s.status === 'done' ? 'done' : 'open',
     skipped: s.skipped_at !== null && s.status !== 'done',
+    cutOff: s.status !== 'done' && !reachable(s.node),
     lines: (byStop.get(s.id) ?? []).map(lineView),
   }));
-  const current = stopList.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
-  const poly = circuitPolyline(plan.graph, [depotNode, ...stops.map((s) => s.node)], true, plan.index);
+  const openStop = (s: PickStop) => s.status === 'open' && s.lines.some((l) => l.status === 'open');
+  const current = stopList.find((s) => openStop(s) && !s.cutOff) ?? stopList.find(openStop) ?? null;
+  // The drawn route leaves out stops no walk reaches now (a closure); they are listed as cut off.
+  const walkable = stops.filter((s, i) => !stopList[i]!.cutOff && Number.isFinite(dist(depotNode, s.node)));
+  const poly = circuitPolyline(plan.graph, [depotNode, ...walkable.map((s) => s.node)], true, plan.index);
   const path: [number, number][] = [];
   if (poly) for (let i = 0; i + 1 < poly.length; i += 2) path.push([poly[i]!, poly[i + 1]!]);
   const depot = plan.geometry.depots[wave.depot_idx];
@@ -150,6 +190,7 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     plannedMetres: trip.planned_metres,
     lowerBoundMetres: trip.lower_bound_metres,
     estMinutes: trip.est_seconds / 60,
+    routeChangedAt: trip.route_changed_at,
     totes: trip.totes,
     kg: trip.kg,
     litres: trip.litres,

@@ -21,11 +21,13 @@ import {
   LineAnswer,
   PickAnswer,
   PickTrip,
+  ReopenLineBody,
   ShortBody,
   SkipBody,
   TripPlan,
   TripPulse,
   TripResult,
+  UndoBody,
 } from '../../shared/picking';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { AppError, notFound } from '../http/errors';
@@ -111,6 +113,12 @@ export const pickingRoutes = [
     handler: (ctx) => picking.shortLine(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'lineId', 'Pick line'), ctx.body, keyed(ctx)),
   }),
   defineRoute({
+    method: 'post', path: `${trip}/lines/:lineId/undo`, access: PICKER, body: UndoBody,
+    summary: 'Undo a line you confirmed or reported short in the last few seconds: it is open again (audited). Idempotency-Key required; 409 undo_expired after the window',
+    response: LineAnswer,
+    handler: (ctx) => picking.undoLine(ctx.deps.db, actorOf(ctx.user, ctx.req), idOf(ctx.params, 'tripId', 'Trip'), idOf(ctx.params, 'lineId', 'Pick line'), keyed(ctx)),
+  }),
+  defineRoute({
     method: 'post', path: `${trip}/stops/:stopId/skip`, access: PICKER, body: SkipBody,
     summary: 'Skip a stop for now: it moves to the end and the other open stops are re-sequenced. Idempotency-Key required',
     response: PickAnswer,
@@ -157,6 +165,8 @@ export const pickingRoutes = [
           if (!closed) res.write(`event: board\ndata: ${JSON.stringify(snap)}\n\n`);
         } catch (err) {
           deps.logger.warn({ err }, 'board snapshot failed');
+          // The board must not keep saying "Live" over a snapshot it could not build.
+          if (!closed) res.write(`event: board-error\ndata: ${JSON.stringify({ message: 'The server could not build the board' })}\n\n`);
         } finally {
           sending = false;
           if (again) {
@@ -195,6 +205,12 @@ export const pickingRoutes = [
     method: 'post', path: `${siteBoard}/waves/:waveId/close`, access: SUPERVISE, body: CloseWaveBody, summary: 'Close a wave: trips not done are cancelled (open lines back to open orders); the report is mailed',
     response: CloseWaveResult,
     handler: ({ deps, user, req, siteId, params, body }) => board.closeWave(deps.db, deps.mailer, actorOf(user, req), siteId!, idOf(params, 'waveId', 'Wave'), body.reason ?? null),
+  }),
+  defineRoute({
+    method: 'post', path: `${siteBoard}/lines/:lineId/reopen`, access: SUPERVISE, body: ReopenLineBody,
+    summary: 'Correct a recorded line of a trip still open (picked by mistake): it goes back to open for the picker, with the reason audited',
+    response: LineAnswer,
+    handler: ({ deps, user, req, siteId, params, body }) => picking.correctLine(deps.db, actorOf(user, req), siteId!, idOf(params, 'lineId', 'Pick line'), body.reason),
   }),
   defineRoute({
     method: 'post', path: `${siteBoard}/shorts/:shortId/handled`, access: SUPERVISE, summary: 'Mark a short as handled (it leaves the attention list)',

@@ -6,7 +6,7 @@
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
-import type { ConfirmBody, LineAnswer, PickTrip, ShortBody, SkipBody, TripPulse, TripResult } from '../../shared/picking';
+import { UNDO_WINDOW_MS, type ConfirmBody, type LineAnswer, type PickTrip, type ShortBody, type SkipBody, type TripPulse, type TripResult } from '../../shared/picking';
 import { audit } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
@@ -17,19 +17,22 @@ import {
   bumpRevision,
   depotNodeOf,
   distanceOf,
+  finiteOrNull,
   getTripRow,
   getWaveRow,
   lineView,
   linesOf,
   loadPickTrip,
+  pickerNode,
   splitStops,
   stopsOf,
   type DbLineRow,
   type DbTripRow,
   type Q,
+  walkedStopIds,
 } from './picking.repository';
 import { groupCommit } from './group-commit';
-import { resequenceFree } from './route-math';
+import { orderRemaining, writeWalkOrder } from './reroute';
 import { walkedMetres } from './walked';
 import { afterTripClosed } from './waves-progress';
 
@@ -44,6 +47,12 @@ export interface Actor {
 
 /** A tablet clock may run this far ahead of the server's; work stamped within it still counts. */
 export const CLOCK_SKEW_MS = 120_000;
+/**
+ * Two tap confirmations of different lines on one trip closer than this (by the tablet's clock) are a
+ * double tap, not two picks: nobody walks to, picks and confirms a line in half a second (common practice
+ * for touch debouncing is 300–500 ms). The tablet holds taps for the same time after every advance.
+ */
+export const TAP_GUARD_MS = 500;
 
 const nowIso = () => new Date().toISOString();
 
@@ -142,9 +151,9 @@ export async function startTrip(db: Knex, actor: Actor, tripId: number): Promise
   return trip;
 }
 
-async function markStarted(trx: Q, trip: DbTripRow): Promise<void> {
+async function markStarted(trx: Q, trip: DbTripRow, firstWork?: string): Promise<void> {
   if (trip.status === 'picking' && trip.started_at) return;
-  const at = trip.started_at ?? nowIso();
+  const at = trip.started_at ?? firstWork ?? nowIso();
   await trx('trips').where({ id: trip.id }).update({ status: 'picking', started_at: at });
   await trx('waves').where({ id: trip.wave_id, status: 'released' }).update({ status: 'picking' });
   const orderIds = trx('trip_orders').where({ trip_id: trip.id }).select('order_id');
@@ -218,7 +227,7 @@ async function idempotent<T>(
     if (formerUntil !== null) {
       // A former picker's queued work counts only if it was done before the trip was taken from them.
       const done = pickedAt ? Date.parse(pickedAt) : NaN;
-      if (!(done <= Date.parse(formerUntil) + CLOCK_SKEW_MS)) {
+      if (!(done <= Date.parse(formerUntil))) {
         throw new AppError('forbidden', 'trip_reassigned', 'This trip was given to another picker', { until: formerUntil });
       }
     }
@@ -237,6 +246,23 @@ function assertOpenTrip(trip: DbTripRow): void {
   if (trip.status === 'done' || trip.status === 'cancelled') {
     throw new AppError('conflict', 'trip_closed', trip.status === 'done' ? 'This trip is already finished' : 'This trip was cancelled by the supervisor', { status: trip.status });
   }
+}
+
+/**
+ * When a pick happened: the tablet's time (queued offline work keeps the moment the picker acted),
+ * bounded — not after the server's clock (a tablet running ahead, up to CLOCK_SKEW_MS, is pulled back;
+ * further ahead is refused) and not before the trip started (or was assigned).
+ */
+export function pickTime(pickedAt: string | undefined, trip: Pick<DbTripRow, 'started_at' | 'assigned_at'>, now = Date.now()): string {
+  if (!pickedAt) return new Date(now).toISOString();
+  const t = Date.parse(pickedAt);
+  if (!Number.isFinite(t)) return new Date(now).toISOString();
+  if (t > now + CLOCK_SKEW_MS) {
+    throw new AppError('validation', 'validation_failed', 'The tablet clock is ahead of the server; set its time and send again', [{ field: 'pickedAt', message: `more than ${CLOCK_SKEW_MS / 1000} s in the future` }]);
+  }
+  const floorAt = trip.started_at ?? trip.assigned_at;
+  const lo = floorAt ? Date.parse(floorAt) : -Infinity;
+  return new Date(Math.max(Math.min(t, now), Number.isFinite(lo) ? lo : -Infinity)).toISOString();
 }
 
 async function lineOfTrip(trx: Q, trip: DbTripRow, lineId: number): Promise<DbLineRow> {
@@ -259,13 +285,32 @@ async function assertLineOpen(trx: Q, line: DbLineRow): Promise<void> {
   });
 }
 
+/**
+ * A confirmation must be for the line the tablet showed: the printed stop number it sends must be the
+ * line's, and a tap confirming another line within TAP_GUARD_MS of the last confirmation on this trip
+ * (tablet clock) is a double tap. Both answer 409 line_not_shown and record nothing.
+ */
+async function assertShown(trx: Q, trip: DbTripRow, line: DbLineRow, body: ConfirmBody): Promise<void> {
+  const stop = (await trx('stops').where({ id: line.stop_id }).first<{ n: number }>('n'))!;
+  if (body.stopN !== undefined && body.stopN !== stop.n) {
+    throw new AppError('conflict', 'line_not_shown', `This line is at stop ${stop.n}, not stop ${body.stopN} shown on the tablet; nothing was confirmed`, { lineId: line.id, stopN: stop.n, shownStopN: body.stopN });
+  }
+  if (body.via !== 'tap' || !body.pickedAt) return;
+  const t = Date.parse(body.pickedAt);
+  const last = await trx('pick_lines').where({ trip_id: trip.id, status: 'picked' }).whereNot({ id: line.id }).max<{ m: string | null }[]>({ m: 'tablet_at' });
+  const prev = last[0]?.m ? Date.parse(last[0].m) : NaN;
+  if (Number.isFinite(prev) && Number.isFinite(t) && t >= prev && t - prev < TAP_GUARD_MS) {
+    throw new AppError('conflict', 'line_not_shown', 'A second tap came too soon after the last confirmation; nothing was confirmed', { lineId: line.id, stopN: stop.n, shownStopN: body.stopN ?? null });
+  }
+}
+
 /** After a line leaves 'open': its stop is done when none of its lines is open. Returns the stop's status. */
-async function closeStopIfDone(trx: Q, tripId: number, stopId: number): Promise<'open' | 'done'> {
+async function closeStopIfDone(trx: Q, tripId: number, stopId: number, at = nowIso()): Promise<'open' | 'done'> {
   // trip_id first: the (trip_id, stop_id) index serves this; stop_id alone would scan every line.
   const open = await trx('pick_lines').where({ trip_id: tripId, stop_id: stopId, status: 'open' }).count<{ n: number }[]>({ n: '*' });
   if (Number(open[0]!.n) > 0) return 'open';
   const seq = await trx('stops').where({ trip_id: tripId }).max<{ m: number | null }[]>({ m: 'done_seq' });
-  await trx('stops').where({ id: stopId, status: 'open' }).update({ status: 'done', done_at: nowIso(), done_seq: (seq[0]!.m ?? 0) + 1 });
+  await trx('stops').where({ id: stopId, status: 'open' }).update({ status: 'done', done_at: at, done_seq: (seq[0]!.m ?? 0) + 1 });
   return 'done';
 }
 
@@ -288,6 +333,7 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
     assertOpenTrip(trip);
     const line = await lineOfTrip(trx, trip, lineId);
     await assertLineOpen(trx, line);
+    await assertShown(trx, trip, line, body);
     if (body.via === 'scan') {
       const site = (await trx('sites').where({ id: trip.site_id }).first<{ confirm_scan: 'bin' | 'sku' }>('confirm_scan'))!;
       const expected = expectedScan(line, site.confirm_scan);
@@ -299,9 +345,9 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
         });
       }
     }
-    await markStarted(trx, trip);
-    const at = nowIso();
-    return settleLine(trx, actor, trip, line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at }, 'pick.confirm', {
+    const at = pickTime(body.pickedAt, trip);
+    await markStarted(trx, trip, at);
+    return settleLine(trx, actor, trip, line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.confirm', {
       qty: line.qty, via: body.via, scan: body.scan, pickedAt: body.pickedAt ?? null, key: req.key,
     });
   });
@@ -322,7 +368,7 @@ async function settleLine(
 ) {
   await trx('pick_lines').where({ id: line.id, status: 'open' }).update(outcome);
   Object.assign(line, outcome);
-  const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id);
+  const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id, line.confirmed_at ?? nowIso());
   await audit(trx, {
     siteId: trip.site_id,
     userId: actor.id,
@@ -342,19 +388,19 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
     if (body.qtyFound >= line.qty) {
       throw invalid(`Found ${body.qtyFound} of ${line.qty}: that is not short; confirm the line instead`, [{ field: 'qtyFound', message: `must be less than the ordered ${line.qty}` }]);
     }
-    await markStarted(trx, trip);
-    const at = nowIso();
+    const at = pickTime(body.pickedAt, trip);
+    await markStarted(trx, trip, at);
     await trx('pick_shorts').insert({ site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
-    return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at }, 'pick.short', {
+    return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.short', {
       ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key,
     });
   });
 }
 
 /**
- * "Skip for now": the stop goes to the end (after stops skipped earlier, in skip order) and the
- * other open stops are re-sequenced by the tour engine as an open walk from the last finished stop
- * (or the depot) to the skipped tail. Stop numbers after the finished ones are renumbered.
+ * "Skip for now": the stop goes to the end of the walk (after stops skipped earlier, in skip order)
+ * and the other open stops are re-sequenced by the tour engine as an open walk from where the picker
+ * is to the skipped tail. Printed stop numbers never change: the skipped stop keeps its number.
  */
 export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: number, body: SkipBody, req: KeyedRequest): Promise<{ trip: PickTrip }> {
   return idempotent(db, actor, tripId, req, body.pickedAt, async (trx, trip) => {
@@ -367,20 +413,15 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
     const at = nowIso();
     stop.skipped_at = at;
     const { done, open } = splitStops(stops);
-    const tail = open.filter((s) => s.skipped_at !== null).sort((a, b) => a.skipped_at!.localeCompare(b.skipped_at!) || (a.id === stop.id ? 1 : b.id === stop.id ? -1 : a.n - b.n));
-    const free = open.filter((s) => s.skipped_at === null);
     const wave = (await getWaveRow(trx, trip.wave_id))!;
     const plan = await loadPlanIndex(trx, wave.plan_id);
-    const from = done.length ? done[done.length - 1]!.node : depotNodeOf(plan, wave);
+    const depot = depotNodeOf(plan, wave);
+    const from = pickerNode(done, depot, walkedStopIds(await linesOf(trx, trip.id)));
     const before = open.map((s) => s.id);
-    const order = resequenceFree(free.map((s) => s.node), from, tail[0]!.node, distanceOf(plan));
-    const sequence = [...order.map((i) => free[i]!), ...tail];
-    let n = done.length;
-    for (const s of sequence) {
-      n += 1;
-      await trx('stops').where({ id: s.id }).update({ n, ...(s.id === stop.id ? { skipped_at: at } : {}) });
-    }
-    for (const [i, s] of done.entries()) await trx('stops').where({ id: s.id }).update({ n: i + 1 });
+    const { walk, cut } = orderRemaining(open, from, depot, distanceOf(plan), stop.id);
+    const sequence = [...walk, ...cut];
+    await trx('stops').where({ id: stop.id }).update({ skipped_at: at });
+    await writeWalkOrder(trx, done, sequence);
     await markStarted(trx, trip);
     await bumpRevision(trx, trip.id);
     await audit(trx, {
@@ -388,11 +429,67 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
       userId: actor.id,
       action: 'pick.skip',
       subject: `stop:${stop.id}`,
-      detail: { tripId: trip.id, bins: stop.bins, openBefore: before, openAfter: sequence.map((s) => s.id), key: req.key },
+      detail: { tripId: trip.id, stopN: stop.n, bins: stop.bins, openBefore: before, openAfter: sequence.map((s) => s.id), key: req.key },
       device: actor.device,
     });
     return { answer: { trip: (await loadPickTrip(trx, trip.id))! }, siteId: trip.site_id };
   });
+}
+
+/**
+ * Puts a recorded line back to open (its stop reopens, a short record goes): the picker's undo and
+ * the supervisor's correction. The caller checks who may and audits.
+ */
+async function reopenLine(trx: Q, line: DbLineRow): Promise<void> {
+  await trx('pick_lines').where({ id: line.id }).update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
+  await trx('pick_shorts').where({ line_id: line.id }).del();
+  await trx('stops').where({ id: line.stop_id }).update({ status: 'open', done_at: null, done_seq: null });
+  Object.assign(line, { status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
+}
+
+/**
+ * The picker's undo of a line they just confirmed or reported short: within UNDO_WINDOW_MS of the
+ * server receiving it, on an open trip. The line is open again, with an audit entry.
+ */
+export async function undoLine(db: Knex, actor: Actor, tripId: number, lineId: number, req: KeyedRequest, now = Date.now()): Promise<LineAnswer> {
+  return idempotent(db, actor, tripId, req, undefined, async (trx, trip) => {
+    if (trip.picker_id !== actor.id) throw notYourTrip();
+    assertOpenTrip(trip);
+    const line = await lineOfTrip(trx, trip, lineId);
+    if ((line.status !== 'picked' && line.status !== 'short') || line.confirmed_by !== actor.id) {
+      throw new AppError('conflict', 'undo_not_possible', 'Only a line you just confirmed or reported short can be undone', { lineId, status: line.status });
+    }
+    const received = line.received_at ? Date.parse(line.received_at) : NaN;
+    if (!(now - received <= UNDO_WINDOW_MS)) {
+      throw new AppError('conflict', 'undo_expired', `Undo is possible for ${UNDO_WINDOW_MS / 1000} s after a confirmation; ask your supervisor to correct the line`, { lineId });
+    }
+    const was = { status: line.status, pickedQty: line.picked_qty, reason: line.short_reason, at: line.confirmed_at };
+    await reopenLine(trx, line);
+    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'pick.undo', subject: `line:${line.id}`, detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, was, key: req.key }, device: actor.device });
+    return { answer: await lineAnswer(trx, trip, line, 'open'), siteId: trip.site_id };
+  });
+}
+
+/**
+ * The supervisor's correction of a recorded line on a trip still open (picked by mistake, a double
+ * tap found later): the line goes back to open for the picker, with the reason in the audit trail.
+ */
+export async function correctLine(db: Knex, actor: Actor, siteId: number, lineId: number, reason: string): Promise<LineAnswer> {
+  const answer = await db.transaction(async (trx) => {
+    const line = await trx<DbLineRow>('pick_lines').where({ id: lineId }).first();
+    const trip = line ? await getTripRow(trx, line.trip_id) : undefined;
+    if (!line || !trip || trip.site_id !== siteId) throw notFound('Pick line');
+    if (trip.status === 'done' || trip.status === 'cancelled') {
+      throw new AppError('conflict', 'trip_closed', `Trip ${trip.n} is ${trip.status}: its lines can no longer be reopened`, { status: trip.status });
+    }
+    if (line.status !== 'picked' && line.status !== 'short') throw new AppError('conflict', 'line_not_recorded', `This line is ${line.status}: there is nothing to correct`, { status: line.status });
+    const was = { status: line.status, pickedQty: line.picked_qty, reason: line.short_reason, by: line.confirmed_by, at: line.confirmed_at };
+    await reopenLine(trx, line);
+    await audit(trx, { siteId, userId: actor.id, action: 'pick.correct', subject: `line:${line.id}`, detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, was, reason }, device: actor.device });
+    return lineAnswer(trx, trip, line, 'open');
+  });
+  siteChanged(siteId);
+  return answer;
 }
 
 export async function tripResult(db: Q, tripId: number): Promise<TripResult> {
@@ -411,10 +508,10 @@ export async function tripResult(db: Q, tripId: number): Promise<TripResult> {
     shorts: lines.filter((l) => l.status === 'short').length,
     cancelled: lines.filter((l) => l.status === 'cancelled').length,
     stops: stops.length,
-    plannedMetres: trip.planned_metres,
-    walkedMetres: trip.walked_metres ?? (await walkedMetres(db, trip)),
-    estMinutes: trip.est_seconds / 60,
-    minutes: trip.started_at ? (end - Date.parse(trip.started_at)) / 60_000 : null,
+    plannedMetres: finiteOrNull(trip.planned_metres) ?? 0,
+    walkedMetres: finiteOrNull(trip.walked_metres) ?? (trip.status === 'done' || trip.status === 'cancelled' ? null : await walkedMetres(db, trip)),
+    estMinutes: finiteOrNull(trip.est_seconds / 60) ?? 0,
+    minutes: trip.started_at ? finiteOrNull((end - Date.parse(trip.started_at)) / 60_000) : null,
     startedAt: trip.started_at,
     finishedAt: trip.finished_at,
   };
@@ -438,6 +535,7 @@ export async function finishTrip(db: Knex, mailer: Mailer, actor: Actor, tripId:
     const n = Number(open[0]!.n);
     if (n > 0) throw new AppError('conflict', 'lines_open', `${n} line${n === 1 ? '' : 's'} still to pick or report short`, { open: n });
     await markStarted(trx, trip);
+    // Null when not measurable (a closure cut off a stop already picked): the trip still finishes.
     const walked = await walkedMetres(trx, trip);
     const at = nowIso();
     await trx('trips').where({ id: trip.id }).update({ status: 'done', finished_at: at, walked_metres: walked });

@@ -6,7 +6,7 @@
 import * as XLSX from 'xlsx';
 import type { Knex } from 'knex';
 import { SHORT_REASON_LABELS, type ShortReason } from '../../shared/picking';
-import { getWaveRow, linesOf, stopsOf, type DbTripRow } from './picking.repository';
+import { finiteOrNull, getWaveRow, linesOf, stopsOf, type DbTripRow } from './picking.repository';
 import { walkedMetres } from './walked';
 
 export interface WaveReportRow {
@@ -19,9 +19,10 @@ export interface WaveReportRow {
   picked: number;
   shorts: number;
   cancelled: number;
-  plannedMetres: number;
-  walkedMetres: number;
-  estMinutes: number;
+  plannedMetres: number | null;
+  /** Null when not measurable (a closure cut off a stop after it was picked). */
+  walkedMetres: number | null;
+  estMinutes: number | null;
   minutes: number | null;
   startedAt: string | null;
   finishedAt: string | null;
@@ -36,6 +37,9 @@ export interface WaveReport {
 }
 
 const round1 = (v: number) => Math.round(v * 10) / 10;
+/** A figure for a cell: rounded when finite, else an empty cell (never Infinity, NaN or an error value). */
+const cell = (v: number | null | undefined): number | '' => (typeof v === 'number' && Number.isFinite(v) ? round1(v) : '');
+const words = (v: number | null, unit: string, none: string) => (v === null ? none : `${round1(v)} ${unit}`);
 
 export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveReport> {
   const wave = (await getWaveRow(db, waveId))!;
@@ -44,7 +48,7 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
   for (const t of trips) {
     const lines = await linesOf(db, t.id);
     const stops = await stopsOf(db, t.id);
-    const minutes = t.started_at && t.finished_at ? (Date.parse(t.finished_at) - Date.parse(t.started_at)) / 60_000 : null;
+    const minutes = t.started_at && t.finished_at ? finiteOrNull((Date.parse(t.finished_at) - Date.parse(t.started_at)) / 60_000) : null;
     rows.push({
       trip: t.n,
       picker: t.picker_name,
@@ -55,15 +59,15 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
       picked: lines.filter((l) => l.status === 'picked').length,
       shorts: lines.filter((l) => l.status === 'short').length,
       cancelled: lines.filter((l) => l.status === 'cancelled').length,
-      plannedMetres: t.planned_metres,
-      walkedMetres: t.walked_metres ?? (await walkedMetres(db, t)),
-      estMinutes: t.est_seconds / 60,
+      plannedMetres: finiteOrNull(t.planned_metres),
+      walkedMetres: finiteOrNull(t.walked_metres) ?? (t.status === 'done' || t.status === 'cancelled' ? null : await walkedMetres(db, t)),
+      estMinutes: finiteOrNull(t.est_seconds / 60),
       minutes,
       startedAt: t.started_at,
       finishedAt: t.finished_at,
     });
   }
-  const sum = (f: (r: WaveReportRow) => number) => rows.reduce((a, r) => a + f(r), 0);
+  const sum = (f: (r: WaveReportRow) => number | null) => rows.reduce((a, r) => a + (finiteOrNull(f(r)) ?? 0), 0);
   const summary = {
     trips: rows.length,
     lines: sum((r) => r.lines),
@@ -85,8 +89,8 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
   const wb = XLSX.utils.book_new();
   const tripSheet = XLSX.utils.aoa_to_sheet([
     ['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', 'started (UTC)', 'finished (UTC)'],
-    ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, round1(r.plannedMetres), round1(r.walkedMetres), round1(r.estMinutes), r.minutes === null ? '' : round1(r.minutes), r.startedAt ?? '', r.finishedAt ?? '']),
-    ['total', '', '', sum((r) => r.stops), sum((r) => r.stopsDone), summary.lines, summary.picked, summary.shorts, summary.cancelled, round1(summary.plannedMetres), round1(summary.walkedMetres), round1(sum((r) => r.estMinutes)), '', '', ''],
+    ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, cell(r.plannedMetres), cell(r.walkedMetres), cell(r.estMinutes), cell(r.minutes), r.startedAt ?? '', r.finishedAt ?? '']),
+    ['total', '', '', sum((r) => r.stops), sum((r) => r.stopsDone), summary.lines, summary.picked, summary.shorts, summary.cancelled, cell(summary.plannedMetres), cell(summary.walkedMetres), cell(sum((r) => r.estMinutes)), '', '', ''],
   ]);
   XLSX.utils.book_append_sheet(wb, tripSheet, 'trips');
   const shortSheet = XLSX.utils.aoa_to_sheet([
@@ -101,10 +105,10 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
     `Wave ${wave.name} is ${wave.status === 'completed' ? 'complete' : wave.status}.`,
     '',
     `Trips: ${summary.trips}. Lines: ${summary.lines} (${summary.picked} picked, ${summary.shorts} short, ${summary.cancelled} cancelled).`,
-    `Walking: ${round1(summary.walkedMetres)} m walked against ${round1(summary.plannedMetres)} m planned.`,
+    `Walking: ${round1(summary.walkedMetres)} m walked against ${round1(summary.plannedMetres)} m planned.${rows.some((r) => r.walkedMetres === null) ? ' Trips whose walk could not be measured (a closed stretch) are left out of the walked total.' : ''}`,
     '',
     'Per trip:',
-    ...rows.map((r) => `  Trip ${r.trip}${r.picker ? ` (${r.picker})` : ''}: ${r.status}, ${r.lines} lines, ${r.shorts} short, planned ${round1(r.plannedMetres)} m, walked ${round1(r.walkedMetres)} m, ${r.minutes === null ? 'not timed' : `${round1(r.minutes)} min`}`),
+    ...rows.map((r) => `  Trip ${r.trip}${r.picker ? ` (${r.picker})` : ''}: ${r.status}, ${r.lines} lines, ${r.shorts} short, planned ${words(r.plannedMetres, 'm', 'not known')}, walked ${words(r.walkedMetres, 'm', 'not measurable')}, ${words(r.minutes, 'min', 'not timed')}`),
     '',
     'The attached workbook has one row per trip and one per short.',
   ].join('\n');

@@ -19,18 +19,29 @@ export function applyPending(trip: PickTrip, pending: readonly QueuedAction[]): 
         else Object.assign(line, { status: 'short', pickedQty: action.body.qtyFound, shortReason: action.body.reason } satisfies Partial<PickLineView>);
         if (s.lines.every((l) => l.status !== 'open')) s.status = 'done';
       }
+    } else if (action.kind === 'undo') {
+      for (const s of stops) {
+        const line = s.lines.find((l) => l.id === action.lineId);
+        if (!line || line.status === 'open' || line.status === 'cancelled') continue;
+        Object.assign(line, { status: 'open', pickedQty: null, shortReason: null } satisfies Partial<PickLineView>);
+        s.status = 'open';
+      }
     } else if (action.kind === 'skip') {
       const i = stops.findIndex((s) => s.id === action.stopId);
       if (i >= 0 && stops[i]!.status === 'open') {
+        // To the end of the walk until the server re-sequences; the printed number stays.
         const moved = { ...stops[i]!, skipped: true };
         stops = [...stops.slice(0, i), ...stops.slice(i + 1), moved];
-        // Until the server re-sequences, keep the numbers in the order shown.
-        stops = stops.map((s, k) => ({ ...s, n: k + 1 }));
       }
     }
   }
-  const current = stops.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
-  return { ...trip, stopList: stops, currentStopId: current?.id ?? null };
+  return { ...trip, stopList: stops, currentStopId: currentStopOf(stops) };
+}
+
+/** First stop in walking order with an open line, preferring stops a walk still reaches. */
+export function currentStopOf(stops: readonly PickStop[]): number | null {
+  const open = (s: PickStop) => s.status === 'open' && s.lines.some((l) => l.status === 'open');
+  return (stops.find((s) => open(s) && !s.cutOff) ?? stops.find(open))?.id ?? null;
 }
 
 /** The trip after a confirmation or short answered by the server (the line, its stop, the revision). */
@@ -39,8 +50,7 @@ export function mergeLineAnswer(trip: PickTrip, a: LineAnswer): PickTrip {
   const stopList = trip.stopList.map((s) =>
     s.id !== a.stop.id ? s : { ...s, status: a.stop.status, lines: s.lines.map((l) => (l.id === a.line.id ? a.line : l)) },
   );
-  const current = stopList.find((s) => s.status === 'open' && s.lines.some((l) => l.status === 'open')) ?? null;
-  return { ...trip, stopList, status: a.tripStatus, revision: Math.max(trip.revision, a.revision), currentStopId: current?.id ?? null };
+  return { ...trip, stopList, status: a.tripStatus, revision: Math.max(trip.revision, a.revision), currentStopId: currentStopOf(stopList) };
 }
 
 /**

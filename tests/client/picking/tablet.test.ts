@@ -18,11 +18,11 @@ function trip(): PickTrip {
   return {
     id: 9, n: 1, status: 'picking', pickerId: 4, pickerName: 'Pat', orders: ['WEB-1'], stops: 3, lines: 4, plannedMetres: 100, lowerBoundMetres: 95, estMinutes: 5,
     totes: 1, kg: 1, litres: 1, waveId: 1, waveName: 'W', planId: 1, siteName: 'S', siteId: 1, path: [], depot: [0, 0], depotCode: 'D1', confirmScan: 'bin',
-    startedAt: null, finishedAt: null, currentStopId: 1, revision: 3,
+    startedAt: null, finishedAt: null, currentStopId: 1, revision: 3, routeChangedAt: null,
     stopList: [
-      { id: 1, n: 1, x: 0, y: 0, bins: ['A-01'], status: 'open', skipped: false, lines: [line(11, 'A-01'), line(12, 'A-01')] },
-      { id: 2, n: 2, x: 0, y: 5, bins: ['A-02'], status: 'open', skipped: false, lines: [line(21, 'A-02')] },
-      { id: 3, n: 3, x: 0, y: 9, bins: ['A-03'], status: 'open', skipped: false, lines: [line(31, 'A-03')] },
+      { id: 1, n: 1, x: 0, y: 0, bins: ['A-01'], status: 'open', skipped: false, cutOff: false, lines: [line(11, 'A-01'), line(12, 'A-01')] },
+      { id: 2, n: 2, x: 0, y: 5, bins: ['A-02'], status: 'open', skipped: false, cutOff: false, lines: [line(21, 'A-02')] },
+      { id: 3, n: 3, x: 0, y: 9, bins: ['A-03'], status: 'open', skipped: false, cutOff: false, lines: [line(31, 'A-03')] },
     ],
   };
 }
@@ -41,9 +41,9 @@ describe('applyPending', () => {
     expect(progressOf(view)).toEqual({ stopsDone: 1, linesDone: 2, lines: 4, shorts: 1 });
   });
 
-  it('puts a stop skipped offline at the end until the server re-sequences', () => {
+  it('puts a stop skipped offline at the end until the server re-sequences, keeping its printed number', () => {
     const view = applyPending(trip(), [queued({ kind: 'skip', tripId: 9, stopId: 1, body: { pickedAt: at } })]);
-    expect(view.stopList.map((s) => [s.id, s.n, s.skipped])).toEqual([[2, 1, false], [3, 2, false], [1, 3, true]]);
+    expect(view.stopList.map((s) => [s.id, s.n, s.skipped])).toEqual([[2, 2, false], [3, 3, false], [1, 1, true]]);
     expect(view.currentStopId).toBe(2);
   });
 
@@ -59,6 +59,21 @@ describe('applyPending', () => {
 });
 
 describe('mergeLineAnswer', () => {
+  it('reopens a line undone while the undo is still queued', () => {
+    const view = applyPending(trip(), [
+      queued({ kind: 'confirm', tripId: 9, lineId: 21, body: { via: 'tap', scan: null, pickedAt: at } }),
+      queued({ kind: 'undo', tripId: 9, lineId: 21, body: {} }),
+    ]);
+    expect(view.stopList[1]!.lines[0]!.status).toBe('open');
+    expect(view.stopList[1]!.status).toBe('open');
+  });
+
+  it('prefers a reachable stop over a cut-off one as the current stop', () => {
+    const t = trip();
+    t.stopList[0]!.cutOff = true;
+    expect(applyPending(t, [queued({ kind: 'confirm', tripId: 9, lineId: 21, body: { via: 'tap', scan: null, pickedAt: at } })]).currentStopId).toBe(3);
+  });
+
   it('takes the line, the stop status and the higher revision from the answer', () => {
     const merged = mergeLineAnswer(trip(), { tripId: 9, tripStatus: 'picking', revision: 7, line: { ...line(21, 'A-02'), status: 'picked', pickedQty: 2 }, stop: { id: 2, status: 'done' } });
     expect(merged.stopList[1]!.status).toBe('done');
