@@ -9,6 +9,7 @@ import type { Deps } from './deps';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mountRoutes } from './http/mount';
 import type { AnyRoute } from './http/route';
+import { withSiteEvents } from './picking/events';
 import { routeTable } from './routes';
 
 export interface AppOptions {
@@ -51,6 +52,8 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
       autoLogging: { ignore: (req) => req.url === '/api/health' },
     }),
   );
+  // Board changes signalled while serving a request reach this app's live-board streams (events.ts).
+  app.use((_req, _res, next) => withSiteEvents(deps.boardStreams, next));
   app.use(cookieParser());
   app.use('/api', express.json({ limit: '2mb' }));
   app.use(

@@ -10,6 +10,7 @@ import { createHasher } from './auth/hasher';
 import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
 import { createMailer } from './mail/mailer';
+import { createBoardStreams } from './picking/board-streams';
 import { demoSeeders } from './seed/seeders';
 import { seedDemoIfEmpty } from './seed/demo';
 import { VERSION } from './version';
@@ -49,6 +50,7 @@ async function main(): Promise<void> {
     jwtSecret: jwtSecret(config.JWT_SECRET, dbFile === ':memory:' ? join(root, 'data') : dirname(dbFile)),
     logger,
     version: VERSION,
+    boardStreams: createBoardStreams(db, logger),
   };
   const seeded = config.DEMO_SEED ? await seedDemoIfEmpty(db, hasher, demoSeeders) : null;
   const app = createApp(deps, { clientDir: join(root, 'dist', 'client') });

@@ -13,6 +13,7 @@ import { loadConfig } from '../../server/config';
 import type { Deps } from '../../server/deps';
 import { migrateLatest, openDb } from '../../server/db/knex';
 import { createMailer } from '../../server/mail/mailer';
+import { createBoardStreams } from '../../server/picking/board-streams';
 import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS, seedDemoIfEmpty, type DemoSeeder } from '../../server/seed/demo';
 import { CSRF_HEADER, CSRF_VALUE, type Role } from '../../shared/common';
 
@@ -32,6 +33,7 @@ const testHasher = () => createHasher({ memoryCost: 1024, timeCost: 1 });
 export async function makeDeps(): Promise<Deps> {
   const db = openDb(':memory:');
   await migrateLatest(db);
+  const logger = pino({ level: 'silent' });
   return {
     config: loadConfig({ DATABASE_FILE: ':memory:', PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
@@ -39,8 +41,9 @@ export async function makeDeps(): Promise<Deps> {
     backoff: new SignInBackoff(),
     mailer: createMailer(db, { from: 'Aislewright <no-reply@aislewright.invalid>' }),
     jwtSecret: 'test-secret-that-is-long-enough-for-256-bits-0123456789',
-    logger: pino({ level: 'silent' }),
+    logger,
     version: 'test',
+    boardStreams: createBoardStreams(db, logger),
   };
 }
 
@@ -66,5 +69,8 @@ export async function makeTestApp(options: { seeders?: DemoSeeder[] } = {}): Pro
     picker: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[0].badge, pin: DEMO_PIN }),
     picker2: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[1].badge, pin: DEMO_PIN }),
   };
-  return { app, deps, as, anon: request.agent(app), siteId, close: () => deps.db.destroy() };
+  return { app, deps, as, anon: request.agent(app), siteId, close: () => {
+    deps.boardStreams.close();
+    return deps.db.destroy();
+  } };
 }
