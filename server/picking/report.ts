@@ -5,6 +5,7 @@
  */
 import * as XLSX from 'xlsx';
 import type { Knex } from 'knex';
+import { neutraliseCells } from '../../shared/input-rules';
 import { SHORT_REASON_LABELS, type ShortReason } from '../../shared/picking';
 import { getWaveRow, linesOf, stopsOf, type DbTripRow } from './picking.repository';
 import { walkedMetres } from './walked';
@@ -83,16 +84,16 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
     .select('pick_lines.order_ref', 'pick_lines.sku', 'pick_lines.bin', 'pick_shorts.qty_ordered', 'pick_shorts.qty_found', 'pick_shorts.reason', 'pick_shorts.reported_at', 'users.name', 'trips.n');
 
   const wb = XLSX.utils.book_new();
-  const tripSheet = XLSX.utils.aoa_to_sheet([
+  const tripSheet = XLSX.utils.aoa_to_sheet(neutraliseCells([
     ['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', 'started (UTC)', 'finished (UTC)'],
     ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, round1(r.plannedMetres), round1(r.walkedMetres), round1(r.estMinutes), r.minutes === null ? '' : round1(r.minutes), r.startedAt ?? '', r.finishedAt ?? '']),
     ['total', '', '', sum((r) => r.stops), sum((r) => r.stopsDone), summary.lines, summary.picked, summary.shorts, summary.cancelled, round1(summary.plannedMetres), round1(summary.walkedMetres), round1(sum((r) => r.estMinutes)), '', '', ''],
-  ]);
+  ]));
   XLSX.utils.book_append_sheet(wb, tripSheet, 'trips');
-  const shortSheet = XLSX.utils.aoa_to_sheet([
+  const shortSheet = XLSX.utils.aoa_to_sheet(neutraliseCells([
     ['trip', 'order', 'sku', 'bin', 'ordered', 'found', 'reason', 'reported by', 'reported (UTC)'],
     ...shorts.map((s) => [s.n, s.order_ref, s.sku, s.bin, s.qty_ordered, s.qty_found, SHORT_REASON_LABELS[s.reason] ?? s.reason, s.name ?? '', s.reported_at]),
-  ]);
+  ]));
   XLSX.utils.book_append_sheet(wb, shortSheet, 'shorts');
   const xlsx = XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
 
