@@ -4,6 +4,7 @@
  */
 import * as XLSX from 'xlsx';
 import { neutraliseCells } from '../../shared/input-rules';
+import { formatInZone } from '../../shared/time-zone';
 import { BATCHING_LABELS } from '../../shared/waves';
 import type { StudyDetail, StudyResults } from '../../shared/studies';
 import { ROUTING_LABELS } from '../../shared/studies';
@@ -21,14 +22,15 @@ const sheetName = (base: string, variant: number): string => (variant === 0 ? ba
 export const ROUTING_HEADER = ['method', 'label', 'total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms', 'note'];
 export const BATCHING_HEADER = ['batching', 'label', 'trips', 'orders', 'lines', 'total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms'];
 
-export function studyWorkbook(study: StudyDetail & { results: StudyResults }): Buffer {
+/** `timeZone`: the site's IANA zone; the created time is written in it, and the zone named. */
+export function studyWorkbook(study: StudyDetail & { results: StudyResults }, timeZone = 'UTC'): Buffer {
   const wb = XLSX.utils.book_new();
   const res = study.results;
   const inputs: (string | number)[][] = [
     ['study', study.name],
     ['id', study.id],
     ['seed', study.seed],
-    ['created', study.createdAt],
+    [`created (${timeZone})`, formatInZone(study.createdAt, timeZone)],
     ['created by', study.createdBy ?? ''],
     ['work', study.inputs.work.kind],
     ['routing methods', study.inputs.routing.join(', ')],
