@@ -28,6 +28,14 @@ const CONTROL = /[\u0000-\u001f\u007f-\u009f]/;
 /** Bidirectional marks, embeddings, overrides and isolates, and line/paragraph separators. */
 const BIDI = /[\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/;
 
+/**
+ * The text with control and text-direction characters written as ⟨U+XXXX⟩, for showing a refused
+ * value in an error table without it reordering or hiding what is around it.
+ */
+export function visibleText(text: string): string {
+  return text.replace(/[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/g, (c) => `⟨U+${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}⟩`);
+}
+
 export interface TextRule {
   /** Longest accepted text, in characters. */
   maxChars: number;
@@ -48,7 +56,7 @@ export function textProblem(text: string, rule: TextRule): string | null {
     return `holds an invisible text-direction character (U+${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}) that makes it read differently from what is stored; remove it`;
   }
   if (FORMULA_START.test(text)) {
-    return `starts with ${JSON.stringify(text[0])}, which spreadsheet programs run as a formula; it must start with a letter, a digit or another character`;
+    return `starts with ${JSON.stringify(text[0])}, which spreadsheet programs run as a formula; start it with a letter or a digit`;
   }
   return null;
 }

@@ -3,7 +3,7 @@
  * every import (floor plans now, SKUs and orders later) so users read the same messages everywhere.
  */
 import type { RowIssue } from '../../shared/imports';
-import { textProblem, trimSpaces } from '../../shared/input-rules';
+import { textProblem, trimSpaces, visibleText } from '../../shared/input-rules';
 import type { CellValue } from './spreadsheet';
 import { clip } from './spreadsheet';
 
@@ -15,7 +15,7 @@ const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 export function displayValue(v: CellValue): string | null {
   if (v === null) return null;
   if (v instanceof Date) return Number.isNaN(v.getTime()) ? 'invalid date' : v.toISOString();
-  return clip(String(v));
+  return clip(visibleText(String(v)));
 }
 
 /** A finite number; text holding a plain decimal number is accepted (CSV cells are text). */

@@ -1,5 +1,5 @@
 import type { RowIssue } from '../../shared/imports';
-import { codeRule, MAX_LINE_QTY, MAX_UNIT_VOLUME_L, MAX_UNIT_WEIGHT_KG, textProblem, textRule, trimSpaces, type TextRule } from '../../shared/input-rules';
+import { codeRule, MAX_LINE_QTY, MAX_UNIT_VOLUME_L, MAX_UNIT_WEIGHT_KG, textProblem, textRule, trimSpaces, visibleText, type TextRule } from '../../shared/input-rules';
 
 /** A data row as read from a sheet: its spreadsheet row number and its cells by expected column. */
 export interface InputRow {
@@ -31,7 +31,7 @@ export const ORDER_REQUIRED = ['order', 'sku', 'qty'] as const;
 
 // Spaces are trimmed; a tab or line break at either end stays and is refused by the rule set.
 const text = (v: unknown): string => (v === null || v === undefined ? '' : trimSpaces(String(v)));
-const shown = (v: unknown): string | null => (v === null || v === undefined || v === '' ? null : String(v).slice(0, 100));
+const shown = (v: unknown): string | null => (v === null || v === undefined || v === '' ? null : visibleText(String(v).slice(0, 100)));
 /** A plain decimal number (a comma as the decimal mark is read as a point); no hex, no "Infinity". */
 const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 

@@ -175,6 +175,8 @@ describe('item 6: one rule set for imported text and numbers', () => {
     const at = (row: number, column: string) => res.body.errors.find((e: { row: number; column: string }) => e.row === row && e.column === column);
     expect(at(2, 'sku').message).toMatch(/^SKU starts with "@"/);
     expect(at(3, 'description').message).toMatch(/text-direction character/);
+    // The refused value is shown with the invisible character written out, so it cannot reorder the table.
+    expect(at(3, 'description').value).toBe('⟨U+202E⟩hidden');
     expect(at(3, 'bin').message).toMatch(/^bin starts with "="/);
   });
 
