@@ -11,6 +11,7 @@ import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
 import { createMailer } from './mail/mailer';
 import { createBackground } from './system/background';
+import { createBoardStreams } from './picking/board-streams';
 import { demoSeeders } from './seed/seeders';
 import { seedDemoIfEmpty } from './seed/demo';
 import { VERSION } from './version';
@@ -51,6 +52,7 @@ async function main(): Promise<void> {
     jwtSecret: jwtSecret(config.JWT_SECRET, dbFile === ':memory:' ? join(root, 'data') : dirname(dbFile)),
     logger,
     version: VERSION,
+    boardStreams: createBoardStreams(db, logger),
   };
   const seeded = config.DEMO_SEED ? await seedDemoIfEmpty(db, hasher, demoSeeders) : null;
   const app = createApp(deps, { clientDir: join(root, 'dist', 'client') });

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { TimeZoneName } from './time-zone';
 
 export const CartProfile = z.object({
   id: z.number().int(),
@@ -52,11 +53,11 @@ export type Site = z.infer<typeof Site>;
 export const CreateSiteBody = z.strictObject({
   code: z.string().trim().regex(/^[A-Z0-9-]{2,16}$/, '2–16 capital letters, digits or dashes'),
   name: z.string().trim().min(1).max(120),
-  timezone: z.string().trim().min(1).max(64).default('UTC'),
+  timezone: TimeZoneName.default('UTC'),
 });
 export const UpdateSiteBody = z.strictObject({
   name: z.string().trim().min(1).max(120).optional(),
-  timezone: z.string().trim().min(1).max(64).optional(),
+  timezone: TimeZoneName.optional(),
   settings: SiteSettings.partial().strict().optional(),
 });
 

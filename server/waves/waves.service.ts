@@ -6,7 +6,8 @@ import { loadPlanIndex, activePlanId } from '../floor-plans/plan-index';
 import { getPlanRowById, loadGraphSets } from '../floor-plans/floor-plans.repository';
 import { AppError, notFound } from '../http/errors';
 import { linesOf, skuMap, type DbOrderRow } from '../orders/orders.repository';
-import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
+import { formatInZone } from '../../shared/time-zone';
+import { getCartProfile, getSiteRow, settingsOf, siteTimeZone } from '../sites/sites.repository';
 import { siteMembersWithRole } from '../users/users.repository';
 import { runInWorker } from '../workers/spawn';
 import { circuitPolyline } from '../core/plan/distances';
@@ -228,8 +229,9 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
 
 async function mailReleaseSummary(deps: Deps, siteId: number, w: WaveDetail, speed: number): Promise<void> {
   const supervisors = (await siteMembersWithRole(deps.db, siteId, 'supervisor')).filter((s) => s.email);
+  const zone = await siteTimeZone(deps.db, siteId);
   const lines = [
-    `${w.name} was released by ${w.createdBy ?? 'a supervisor'}.`,
+    `${w.name} was released by ${w.createdBy ?? 'a supervisor'} at ${formatInZone(w.createdAt, zone)} (${zone}).`,
     '',
     `Trips: ${w.trips}   Orders: ${w.orders}   Lines: ${w.lines}`,
     `Planned walking: ${w.plannedMetres.toFixed(0)} m (≈ ${(w.plannedMetres / speed / 60).toFixed(0)} min at ${speed} m/s); estimated work ${w.estMinutes.toFixed(0)} min`,
