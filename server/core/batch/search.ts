@@ -140,21 +140,26 @@ export function batchSearch(ctx: BatchContext, rng: Rng, stats?: SearchStats): L
     t.length = r.length;
     return t;
   };
+  // Loads are summed afresh after each change, so rounding never drifts a trip past a limit.
+  const resum = (t: Trip): void => {
+    t.kg = 0;
+    t.litres = 0;
+    t.totes = 0;
+    for (const q of t.members) {
+      t.kg += needs[q]!.kg;
+      t.litres += needs[q]!.litres;
+      t.totes += needs[q]!.totes;
+    }
+  };
   const addMember = (t: Trip, p: number): void => {
-    const nd = needs[p]!;
     t.members.push(p);
-    t.kg += nd.kg;
-    t.litres += nd.litres;
-    t.totes += nd.totes;
+    resum(t);
     for (const s of stops[p]!) t.count.set(s, (t.count.get(s) ?? 0) + 1);
   };
   const removeMember = (t: Trip, p: number): void => {
-    const nd = needs[p]!;
     const i = t.members.indexOf(p);
     t.members.splice(i, 1);
-    t.kg -= nd.kg;
-    t.litres -= nd.litres;
-    t.totes -= nd.totes;
+    resum(t);
     for (const s of stops[p]!) {
       const c = t.count.get(s)! - 1;
       if (c === 0) t.count.delete(s);
@@ -225,8 +230,8 @@ export function batchSearch(ctx: BatchContext, rng: Rng, stats?: SearchStats): L
     const r = removeP >= 0 ? needs[removeP]! : null;
     return (
       t.totes + a.totes - (r ? r.totes : 0) <= cart.totes &&
-      t.kg + a.kg - (r ? r.kg : 0) <= cart.maxKg + 1e-9 &&
-      t.litres + a.litres - (r ? r.litres : 0) <= cart.maxLitres + 1e-9
+      t.kg + a.kg - (r ? r.kg : 0) <= cart.maxKg &&
+      t.litres + a.litres - (r ? r.litres : 0) <= cart.maxLitres
     );
   };
 
