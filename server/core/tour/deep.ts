@@ -2,8 +2,10 @@
  * Iterated local search (O. Martin, S. W. Otto & E. W. Felten, Complex Systems 5(3), 1991; H. R.
  * Lourenço, O. C. Martin & T. Stützle, Iterated Local Search, Handbook of Metaheuristics 2003): take the
  * circuit to a local optimum of 2-opt, Or-opt and Lin–Kernighan-style chains (./local.ts), then until
- * the budget ends kick it with a local double bridge — two short neighbouring segments of the circuit
- * swap places, a move the sequential moves cannot undo — repair only around the kick, and keep the
+ * the budget ends kick it with a local double bridge — two neighbouring segments of the circuit swap
+ * places (half the kicks: two short segments of ≤ 30 points; the other half: cut after a random point,
+ * after one of its nearest neighbours, and once between), a move the sequential moves cannot undo —
+ * repair only around the kick, and keep the
  * result when it is no longer. Kicks are applied in place and recorded in an undo log, so a rejected
  * kick costs what it changed, not a copy of the circuit.
  */
@@ -50,10 +52,27 @@ export function improveDeep(
   if (n < 8) return Array.from(ls.tour);
   // Two segments of 1…maxSeg points each, leaving at least two points outside them.
   const maxSeg = Math.max(1, Math.min(KICK_SEGMENT_MAX, Math.floor((n - 2) / 2)));
+  const K = ls.neighbors.k;
+  const list = ls.neighbors.list;
   while (!budget.expired()) {
-    const at = ls.positionOf(rng.int(n)) + 1;
-    const l1 = 1 + rng.int(maxSeg);
-    const l2 = 1 + rng.int(maxSeg);
+    const v = rng.int(n);
+    let at = ls.positionOf(v) + 1;
+    let l1 = 1 + rng.int(maxSeg);
+    let l2 = 1 + rng.int(maxSeg);
+    if (K > 0 && rng.next() < 0.5) {
+      // Double bridge between a point and one of its neighbours: the cut after v, a cut between, and
+      // the cut after w, so two of the three new edges join points already close.
+      const w = list[v * K + rng.int(K)]!;
+      let gap = (ls.positionOf(w) - ls.positionOf(v) + n) % n;
+      at = ls.positionOf(v) + 1;
+      if (gap > n / 2) {
+        gap = n - gap;
+        at = ls.positionOf(w) + 1;
+      }
+      if (gap < 3) continue;
+      l1 = 1 + rng.int(gap - 1);
+      l2 = gap - l1;
+    }
     ls.mark();
     ls.swapSegments(at, l1, l2);
     const finished = ls.run(budget, false);

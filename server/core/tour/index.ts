@@ -34,7 +34,7 @@ export const IMPROVE_MODES = ['none', 'local', 'deep'] as const;
 export type ImproveMode = (typeof IMPROVE_MODES)[number];
 
 /** `best` runs repeated nearest neighbor up to this many points, nearest neighbor from the depot above. */
-export const BEST_REPEATED_MAX_POINTS = 200;
+export const BEST_REPEATED_MAX_POINTS = 1000;
 
 /** Budget when the caller names none: enough for `deep` to matter, short enough for a request. */
 export const DEFAULT_TIME_LIMIT_MS = 1000;
@@ -68,7 +68,7 @@ export interface SolveTourResult {
  *
  * Constructions: nearest neighbor O(n²); repeated nearest neighbor O(n³) worst, ~O(n²·K) typical;
  * sorted edges O(n² log n) up to 128 points, from neighbour lists above; `best` runs repeated nearest
- * neighbor (nearest neighbor from the depot above 200 points) and sorted edges and keeps the shorter
+ * neighbor (nearest neighbor from the depot above 1,000 points) and sorted edges and keeps the shorter
  * (the first on a tie); `exact` is Held–Karp, O(2ⁿ·n²), at most 16 stops. Improvement: `local` =
  * 2-opt + Or-opt + Lin–Kernighan-style chains to a local optimum, `deep` = iterated local search for the
  * whole budget. With an improvement the construction stops at a quarter of the budget. Ties go to the lowest point index and the

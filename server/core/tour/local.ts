@@ -14,16 +14,22 @@ import type { Budget } from './budget';
 
 /** Neighbour-list length: 10 nearest is the usual choice for 2-opt-style searches (common practice). */
 export const DEFAULT_NEIGHBORS = 10;
-/** Above FULL_SCAN_MAX_POINTS the lists are this wide instead, so no O(n²) closing scan is needed. */
+/** Above WIDE_NEIGHBORS_FROM points the lists are this wide instead. */
 export const WIDE_NEIGHBORS = 16;
-/** Up to this many points the O(n²) closing scan runs; above it, the neighbour lists alone. */
-export const FULL_SCAN_MAX_POINTS = 150;
+/**
+ * Up to this many points the closing scan over every move runs (one O(n²) pass applies every improving
+ * move it meets, budget-checked); above it, the neighbour lists alone. Clustered instances (TSPLIB
+ * pr439) need it: their 16 nearest all lie in one cluster.
+ */
+export const FULL_SCAN_MAX_POINTS = 2000;
 /** Flips per Lin–Kernighan chain, and candidates tried at each level (breadth narrowing with depth: common practice). */
 export const LK_DEPTH = 5;
 const LK_BREADTH = [4, 2, 1, 1, 1];
 
 /** Neighbour-list width for n points: DEFAULT_NEIGHBORS, or WIDE_NEIGHBORS above the full-scan size. */
-export const neighborsFor = (n: number): number => (n > FULL_SCAN_MAX_POINTS ? WIDE_NEIGHBORS : DEFAULT_NEIGHBORS);
+export const neighborsFor = (n: number): number => (n > WIDE_NEIGHBORS_FROM ? WIDE_NEIGHBORS : DEFAULT_NEIGHBORS);
+/** Above this many points the lists are WIDE_NEIGHBORS long. */
+export const WIDE_NEIGHBORS_FROM = 150;
 
 export interface LocalMoves {
   twoOpt: boolean;
@@ -103,6 +109,8 @@ export interface LocalSearch {
   change(): number;
   /** Array position of point c in `tour`. */
   positionOf(c: number): number;
+  /** The neighbour lists the search uses. */
+  readonly neighbors: Neighbors;
 }
 
 export function createLocalSearch(
@@ -507,6 +515,7 @@ export function createLocalSearch(
     positionOf(c) {
       return pos[c]!;
     },
+    neighbors,
   };
 }
 
