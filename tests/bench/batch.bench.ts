@@ -100,7 +100,7 @@ async function runSearch(): Promise<void> {
       const ms = performance.now() - t0;
       if (i === 0) {
         savingsM = stats.savingsWaveLength;
-        trips = batchOrders({ orders, cart: sc.cart, method: 'savings', depotNode: floor.depotNode, distance: floor.distance }).batches.length;
+        trips = batchOrders({ orders, cart: sc.cart, method: 'savings', depotNode: floor.depotNode, distance: floor.distance, timeLimitMs: b, ...(clock ? { clock } : {}) }).batches.length;
       }
       const pct = (1 - stats.waveLength / stats.savingsWaveLength) * 100;
       gains[i]!.push(pct);
