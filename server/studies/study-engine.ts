@@ -50,6 +50,8 @@ export const DEEP_STEPS = 1500;
 const BOUND_STEPS = 400;
 /** Effectively unlimited, but finite where a method insists on a finite budget. */
 const UNLIMITED_STEPS = 1e12;
+/** Budget of the `search` batching in steps (it searches until its budget ends). */
+export const SEARCH_STEPS = 6000;
 
 export interface StudyPlanInput {
   geometry: PlanGeometry;
@@ -266,7 +268,7 @@ interface WorkTrip {
 /** Trips of one wave by a batching method: distinct stop nodes (ascending) per batch. */
 function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: BatchingName, wave: number): { trips: WorkTrip[]; unplaced: { order: string; reason: string }[] } {
   const r = batchOrders({
-    orders, cart, method, depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), clock: stepClock(), timeLimitMs: UNLIMITED_STEPS,
+    orders, cart, method, depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), clock: stepClock(), timeLimitMs: method === 'search' ? SEARCH_STEPS : UNLIMITED_STEPS,
   });
   const trips = r.batches.map((b) => {
     const nodes = new Set<number>();
