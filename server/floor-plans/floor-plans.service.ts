@@ -25,7 +25,7 @@ import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import { nowIso } from '../db/knex';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
-import { WorkerTimeoutError } from '../workers/spawn';
+import { jobStopMessage } from '../workers/spawn';
 import { BUILD_BUDGET_MS, runBuild, type BuildOutput } from './build';
 import * as repo from './floor-plans.repository';
 import { checkFloorPlanFile } from './import';
@@ -194,7 +194,8 @@ export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry
 function failureDescriber(logger: Logger): (err: unknown) => string {
   return (err) => {
     if (err instanceof AppError) return err.message;
-    if (err instanceof WorkerTimeoutError) return 'Building the plan took too long and was stopped';
+    const stopped = jobStopMessage('The floor-plan job', err);
+    if (stopped) return stopped;
     logger.error({ err }, 'floor-plan job failed');
     return 'Building the plan failed on the server; it has been logged';
   };
