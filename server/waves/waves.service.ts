@@ -9,7 +9,7 @@ import { linesOf, skuMap, type DbOrderRow } from '../orders/orders.repository';
 import { formatInZone } from '../../shared/time-zone';
 import { getCartProfile, getSiteRow, settingsOf, siteTimeZone } from '../sites/sites.repository';
 import { siteMembersWithRole } from '../users/users.repository';
-import { runInWorker } from '../workers/spawn';
+import { jobStopMessage, runInWorker } from '../workers/spawn';
 import { circuitPolyline } from '../core/plan/distances';
 import type { PlannerOrder, PlannerOutput } from './wave-planner';
 import type { PlanJobData } from './plan.worker';
@@ -24,6 +24,8 @@ const pairs = (flat: number[]): [number, number][] => {
 
 /** Waves plan one at a time: the machine has two cores shared with every request. */
 let planQueue: Promise<unknown> = Promise.resolve();
+/** Heap cap of a planning process (MiB): the plan's distance index plus the wave's matrices. */
+const PLAN_HEAP_MB = 1024;
 
 /** Loads the chosen open orders with their lines slotted from the SKU master. */
 async function plannerOrders(db: Knex, siteId: number, orderIds: number[]): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
@@ -125,6 +127,7 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
     updatePreviewJob(job.id, { phase: 'planning' });
     const out = await runInWorker<PlannerOutput, number>(new URL('./plan.worker.ts', import.meta.url), data, {
       timeoutMs: 60_000,
+      heapMb: PLAN_HEAP_MB,
       onProgress: (f) => updatePreviewJob(job.id, { progress: Math.min(0.99, f) }),
     });
     const preview = toPreview(job.id, out, { planId, planVersion: planRow.version ?? 0, cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, body, unslotted });
@@ -132,7 +135,7 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
   });
   planQueue = run.catch((err: unknown) => {
     deps.logger.warn({ err }, 'wave preview failed');
-    updatePreviewJob(job.id, { state: 'failed', phase: 'failed', error: { code: 'planning_failed', message: (err as Error).message } });
+    updatePreviewJob(job.id, { state: 'failed', phase: 'failed', error: { code: 'planning_failed', message: jobStopMessage('Planning', err) ?? (err as Error).message } });
   });
   return job;
 }
