@@ -4,6 +4,7 @@ import type { Db } from './db/knex';
 import type { Mailer } from './mail/mailer';
 import type { Hasher } from './auth/hasher';
 import type { SignInBackoff } from './auth/backoff';
+import type { BackupRunner } from './backups/backup-runner';
 
 /** Everything the app needs, built in main.ts (or a test helper) and passed to createApp. */
 export interface Deps {
@@ -15,4 +16,6 @@ export interface Deps {
   jwtSecret: string;
   logger: Logger;
   version: string;
+  /** Backups of the SQLite file; absent for an in-memory database (and on PostgreSQL). */
+  backups?: BackupRunner;
 }

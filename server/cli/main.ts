@@ -10,6 +10,7 @@ const commands: Record<string, () => Promise<{ run: (args: string[], io: CliIo) 
   bound: () => import('./commands/bound'),
   plan: () => import('./commands/plan'),
   waves: () => import('./commands/waves'),
+  backup: () => import('./commands/backup'),
 };
 
 const usage = `usage: aislewright <command> [options]
@@ -17,7 +18,8 @@ commands:
   route   sequence a closed circuit from JSON on stdin
   bound   Held–Karp lower bound for JSON on stdin
   plan    check a floor-plan workbook, or measure a walking distance on it
-  waves   batch and route orders on a floor plan`;
+  waves   batch and route orders on a floor plan
+  backup  create, verify or restore a backup of the database (DATABASE_FILE)`;
 
 async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
