@@ -9,6 +9,7 @@ import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Deps } from '../../../server/deps';
 import { backupDatabase, restoreDatabase, verifyBackup } from '../../../server/backups/sqlite-backup';
+import { pruneNow } from '../../../server/retention/retention.service';
 import { insertReleasedWave, seedPlan } from '../../helpers/picking';
 import { appOf, fileDeps, signIn, tempDir, type Agent } from '../../helpers/file-app';
 import { confirm, readTrip } from '../picking/setup';
@@ -120,5 +121,17 @@ describe('an online backup while tablets confirm', () => {
     expect(existsSync(r.replaced!)).toBe(true);
     expect(verifyBackup(r.replaced!).tables).toEqual(before);
     expect(readdirSync(place).filter((f) => f.includes('.restoring'))).toEqual([]);
+  });
+});
+
+describe('retention on a database with confirmations', () => {
+  it('prunes stored idempotency answers older than the setting, and only those', async () => {
+    const n = Number(((await deps.db('pick_requests').count({ n: '*' }).first()) as { n: number }).n);
+    expect(n).toBeGreaterThan(30);
+    const soon = await pruneNow(deps.db, { now: new Date(Date.now() + 29 * 86_400_000) });
+    expect(soon.idempotencyAnswers).toBe(0);
+    const later = await pruneNow(deps.db, { now: new Date(Date.now() + 31 * 86_400_000) });
+    expect(later.idempotencyAnswers).toBe(n);
+    expect(await deps.db('audit_log').where({ action: 'retention.pruned' })).toHaveLength(2);
   });
 });
