@@ -27,10 +27,10 @@ afterAll(async () => {
   await deps.db.destroy();
 });
 
-const binary = (r: NodeJS.ReadableStream, cb: (e: Error | null, b: Buffer) => void) => {
+const binary = (r: import('superagent').Response, cb: (e: Error | null, b: Buffer) => void) => {
   const chunks: Buffer[] = [];
-  r.on('data', (c: Buffer) => chunks.push(c));
-  r.on('end', () => cb(null, Buffer.concat(chunks)));
+  (r as unknown as NodeJS.ReadableStream).on('data', (c: Buffer) => chunks.push(c));
+  (r as unknown as NodeJS.ReadableStream).on('end', () => cb(null, Buffer.concat(chunks)));
 };
 
 describe('/api/admin/backups', () => {

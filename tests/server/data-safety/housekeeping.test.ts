@@ -135,10 +135,10 @@ describe('integration tokens', () => {
 });
 
 describe('site exports', () => {
-  const binary = (r: NodeJS.ReadableStream, cb: (e: Error | null, b: Buffer) => void) => {
+  const binary = (r: import('superagent').Response, cb: (e: Error | null, b: Buffer) => void) => {
     const chunks: Buffer[] = [];
-    r.on('data', (c: Buffer) => chunks.push(c));
-    r.on('end', () => cb(null, Buffer.concat(chunks)));
+    (r as unknown as NodeJS.ReadableStream).on('data', (c: Buffer) => chunks.push(c));
+    (r as unknown as NodeJS.ReadableStream).on('end', () => cb(null, Buffer.concat(chunks)));
   };
 
   it('exports users and roles as CSV, with formula-like names made inert and no secrets', async () => {
