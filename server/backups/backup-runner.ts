@@ -4,7 +4,7 @@
  * screen (and in `last-failure.json` in the folder, so it survives a restart) and mailed to every
  * active admin. The timer is unref'd and `stop()` clears it, so tests and shutdown never hang.
  */
-import { readFileSync, rmSync, writeFileSync, mkdirSync } from 'node:fs';
+import { readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
@@ -12,6 +12,7 @@ import type { Mailer } from '../mail/mailer';
 import { audit } from '../audit/audit';
 import { runInWorker } from '../workers/spawn';
 import { listBackups, pruneBackups, takeBackup, type BackupEntry, type BackupTrigger } from './backups.service';
+import { ensureDir } from './sqlite-backup';
 
 export interface BackupFailure {
   at: string;
@@ -77,7 +78,7 @@ export class BackupRunner {
     const { dbFile, dir, keep, db, logger } = this.options;
     const at = new Date();
     try {
-      mkdirSync(dir, { recursive: true, mode: 0o700 });
+      ensureDir(dir, 0o700);
       const entry = this.options.inWorker === false
         ? await takeBackup(dbFile, dir, trigger, at)
         : await runInWorker<BackupEntry>(new URL('./backup.worker.ts', import.meta.url), { dbFile, dir, trigger, at: at.toISOString() }, { timeoutMs: 30 * 60_000 });
@@ -91,7 +92,7 @@ export class BackupRunner {
       const failure: BackupFailure = { at: at.toISOString(), message, trigger };
       logger.error({ err: message }, 'backup failed');
       try {
-        mkdirSync(dir, { recursive: true, mode: 0o700 });
+        ensureDir(dir, 0o700);
         writeFileSync(join(dir, 'last-failure.json'), JSON.stringify(failure), { mode: 0o600 });
       } catch {
         // The folder itself may be the problem; the mail and the log still say so.

@@ -23,6 +23,22 @@ export interface VerifyResult {
   tables: Record<string, number>;
 }
 
+/**
+ * Creates a folder and its missing parents. Not `mkdirSync(dir, { recursive: true })`: on Node 20 that
+ * call spins forever when the kernel refuses the folder with ENOENT although its parent exists (seen
+ * here with BACKUP_DIR under /proc), which would hang the server's event loop.
+ */
+export function ensureDir(dir: string, mode = 0o755): void {
+  if (existsSync(dir)) return;
+  const parent = dirname(dir);
+  if (parent !== dir) ensureDir(parent, mode);
+  try {
+    mkdirSync(dir, { mode });
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
+  }
+}
+
 /** Backup file name for a moment: `aislewright-20261205-013000.sqlite` (UTC, sortable). */
 export function backupName(at: Date = new Date(), prefix = 'aislewright'): string {
   const s = at.toISOString().replace(/[-:]/g, '').replace('T', '-').slice(0, 15);
@@ -37,7 +53,7 @@ export function backupName(at: Date = new Date(), prefix = 'aislewright'): strin
  */
 export async function backupDatabase(source: string, out: string): Promise<BackupResult> {
   if (!existsSync(source)) throw new Error(`no database at ${source}`);
-  mkdirSync(dirname(out), { recursive: true });
+  ensureDir(dirname(out));
   const tmp = join(dirname(out), `.${basename(out)}.partial`);
   rmSync(tmp, { force: true });
   const src = new Database(source, { fileMustExist: true });
@@ -104,7 +120,7 @@ export function replacedName(dbFile: string, at: Date = new Date()): string {
  * copied to a temporary name beside it, synced, and renamed into place.
  */
 export function restoreDatabase(backup: string, dbFile: string, at: Date = new Date()): { restored: string; replaced: string | null } {
-  mkdirSync(dirname(dbFile), { recursive: true });
+  ensureDir(dirname(dbFile));
   let replaced: string | null = null;
   if (existsSync(dbFile)) {
     const cur = new Database(dbFile, { fileMustExist: true });

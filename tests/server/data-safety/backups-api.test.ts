@@ -97,3 +97,13 @@ describe('/api/admin/backups', () => {
     expect(runner.nextAt).toBeNull();
   });
 });
+
+describe('a backup folder the system refuses', () => {
+  // Regression: Node 20's recursive mkdirSync spins forever on ENOENT under /proc, hanging the server.
+  it.runIf(process.platform === 'linux')('fails at once with a message instead of hanging', async () => {
+    const runner = new BackupRunner({ ...deps.backups!.options, dir: '/proc/aislewright-backups-test', inWorker: false });
+    await expect(runner.backupNow('schedule')).rejects.toThrow(/ENOENT/);
+    const mails = await deps.db('mail_outbox').where({ subject: 'Aislewright: a backup failed' });
+    expect(mails.at(-1).text).toContain('/proc/aislewright-backups-test');
+  });
+});
