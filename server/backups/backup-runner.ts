@@ -41,6 +41,8 @@ export class BackupRunner {
   private timer: NodeJS.Timeout | null = null;
   private running: Promise<BackupEntry> | null = null;
   private stopped = false;
+  /** The last failure when the folder itself could not take the note. */
+  private failure: BackupFailure | null = null;
   nextAt: Date | null = null;
 
   constructor(readonly options: BackupRunnerOptions) {}
@@ -57,7 +59,7 @@ export class BackupRunner {
     try {
       return JSON.parse(readFileSync(join(this.options.dir, 'last-failure.json'), 'utf8')) as BackupFailure;
     } catch {
-      return null;
+      return this.failure;
     }
   }
 
@@ -84,6 +86,7 @@ export class BackupRunner {
         : await runInWorker<BackupEntry>(new URL('./backup.worker.ts', import.meta.url), { dbFile, dir, trigger, at: at.toISOString() }, { timeoutMs: 30 * 60_000 });
       const removed = pruneBackups(dir, keep);
       rmSync(join(dir, 'last-failure.json'), { force: true });
+      this.failure = null;
       await audit(db, { userId, action: 'backup.created', subject: entry.name, detail: { bytes: entry.bytes, ms: entry.ms, trigger, removed } });
       logger.info({ backup: entry.name, bytes: entry.bytes, ms: entry.ms }, 'backup created');
       return entry;
@@ -91,6 +94,7 @@ export class BackupRunner {
       const message = (err as Error).message;
       const failure: BackupFailure = { at: at.toISOString(), message, trigger };
       logger.error({ err: message }, 'backup failed');
+      this.failure = failure;
       try {
         ensureDir(dir, 0o700);
         writeFileSync(join(dir, 'last-failure.json'), JSON.stringify(failure), { mode: 0o600 });
@@ -135,9 +139,13 @@ export class BackupRunner {
     this.timer = setTimeout(() => {
       this.timer = null;
       if (Date.now() < at) return this.arm(at);
+      let failed = false;
       void this.backupNow('schedule')
-        .catch(() => undefined)
-        .finally(() => this.arm(Date.now() + this.options.everyHours * HOUR_MS));
+        .catch(() => {
+          failed = true;
+        })
+        // After a failure, try again within the hour rather than a whole interval later.
+        .finally(() => this.arm(Date.now() + Math.min(this.options.everyHours, failed ? 1 : Infinity) * HOUR_MS));
     }, wait);
     this.timer.unref();
   }

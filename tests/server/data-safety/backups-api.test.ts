@@ -105,5 +105,7 @@ describe('a backup folder the system refuses', () => {
     await expect(runner.backupNow('schedule')).rejects.toThrow(/ENOENT/);
     const mails = await deps.db('mail_outbox').where({ subject: 'Aislewright: a backup failed' });
     expect(mails.at(-1).text).toContain('/proc/aislewright-backups-test');
+    // The folder cannot hold the failure note, so the runner keeps it for the screen.
+    expect(runner.lastFailure()?.message).toMatch(/ENOENT/);
   });
 });
