@@ -31,12 +31,13 @@ export interface TestApp {
 /** Test-only argon2 cost: the same algorithm, less memory, so suites stay fast. */
 const testHasher = () => createHasher({ memoryCost: 1024, timeCost: 1 });
 
-export async function makeDeps(): Promise<Deps> {
-  const db = openDb(':memory:');
+/** Deps over a fresh in-memory database, or over `file` (a real SQLite file, WAL as in production). */
+export async function makeDeps(file = ':memory:'): Promise<Deps> {
+  const db = openDb(file);
   await migrateLatest(db);
   const logger = pino({ level: 'silent' });
   return {
-    config: loadConfig({ DATABASE_FILE: ':memory:', PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
+    config: loadConfig({ DATABASE_FILE: file, PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
     hasher: testHasher(),
     backoff: new SignInBackoff(db),
