@@ -9,6 +9,7 @@ import { SignInBackoff } from './auth/backoff';
 import { createHasher } from './auth/hasher';
 import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
+import { createPgHub, useEventHub } from './events/hub';
 import { createMailer } from './mail/mailer';
 import { demoSeeders } from './seed/seeders';
 import { seedDemoIfEmpty } from './seed/demo';
@@ -37,8 +38,13 @@ async function main(): Promise<void> {
   }
   const logger = pino({ level: config.LOG_LEVEL, redact: ['req.headers.cookie', 'req.headers.authorization', '*.password', '*.pin', '*.token'] });
   const dbFile = config.DATABASE_FILE === ':memory:' ? ':memory:' : resolve(config.DATABASE_FILE);
-  const db = openDb(dbFile);
+  // DATABASE_URL (postgres://…) selects PostgreSQL; otherwise the SQLite file.
+  const db = openDb(config.DATABASE_URL ?? dbFile);
   await migrateLatest(db);
+  if (config.DATABASE_URL) {
+    // Several instances: live-board and job events travel between them through LISTEN/NOTIFY.
+    useEventHub(await createPgHub(config.DATABASE_URL, (err) => logger.warn({ err }, 'event hub connection')));
+  }
   const hasher = createHasher();
   const deps = {
     config,

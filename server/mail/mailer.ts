@@ -44,7 +44,7 @@ export function createMailer(db: Knex, options: { smtpUrl?: string | undefined; 
   return {
     async send(m) {
       const attachments = (m.attachments ?? []).map((a) => ({ filename: a.filename, contentType: a.contentType, base64: a.content.toString('base64') }));
-      const [id] = await db('mail_outbox').insert({
+      const [{ id }] = await db('mail_outbox').insert({
         site_id: m.siteId ?? null,
         to: m.to,
         subject: m.subject,
@@ -53,7 +53,7 @@ export function createMailer(db: Knex, options: { smtpUrl?: string | undefined; 
         attachments: JSON.stringify(attachments),
         status: 'stored',
         created_at: new Date().toISOString(),
-      });
+      }, 'id');
       try {
         await transport.sendMail({
           from: options.from,

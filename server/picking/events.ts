@@ -1,35 +1,46 @@
 /**
- * In-process change signal per site: the picking service calls `siteChanged` after each commit and
- * the live board's event streams recompute one snapshot per site, at most every DEBOUNCE_MS.
+ * Change signal per site: the picking service calls `siteChanged` after each commit and the live
+ * board's event streams recompute one snapshot per site. A burst of changes on one instance becomes one
+ * publish after DEBOUNCE_MS; the publish goes through the event hub (server/events/hub.ts), so on
+ * PostgreSQL streams on every instance hear it.
  */
+import { eventHub } from '../events/hub';
+
 type Listener = () => void;
 
-const listeners = new Map<number, Set<Listener>>();
 const pending = new Map<number, ReturnType<typeof setTimeout>>();
+const localCounts = new Map<number, number>();
 /** A burst of confirmations (a queue flushing after a Wi-Fi drop) becomes one board update. */
 export const DEBOUNCE_MS = 250;
 
+const topic = (siteId: number) => `site:${siteId}`;
+
 export function onSiteChange(siteId: number, listener: Listener): () => void {
-  const set = listeners.get(siteId) ?? new Set<Listener>();
-  set.add(listener);
-  listeners.set(siteId, set);
+  localCounts.set(siteId, (localCounts.get(siteId) ?? 0) + 1);
+  const off = eventHub().subscribe(topic(siteId), () => listener());
+  let done = false;
   return () => {
-    set.delete(listener);
-    if (set.size === 0) listeners.delete(siteId);
+    if (done) return;
+    done = true;
+    off();
+    const n = (localCounts.get(siteId) ?? 1) - 1;
+    if (n <= 0) localCounts.delete(siteId);
+    else localCounts.set(siteId, n);
   };
 }
 
 export function siteChanged(siteId: number): void {
-  if (!listeners.has(siteId) || pending.has(siteId)) return;
+  // In one process nobody else can be watching; with a shared hub another instance may be.
+  if ((!eventHub().shared && !localCounts.has(siteId)) || pending.has(siteId)) return;
   pending.set(
     siteId,
     setTimeout(() => {
       pending.delete(siteId);
-      for (const l of listeners.get(siteId) ?? []) l();
+      eventHub().publish(topic(siteId), siteId);
     }, DEBOUNCE_MS),
   );
 }
 
 export function listenerCount(siteId: number): number {
-  return listeners.get(siteId)?.size ?? 0;
+  return localCounts.get(siteId) ?? 0;
 }

@@ -71,11 +71,11 @@ async function prepare(file: string) {
     for (let i = 0; i < PLAN_ORDERS - open; i++) {
       const n = 1 + rng.int(4);
       const lines = Array.from({ length: n }, () => ({ s: skus[rng.int(skus.length)]!, qty: 1 + rng.int(3) }));
-      const [id] = await trx('orders').insert({
+      const [{ id }] = await trx('orders').insert({
         site_id: siteId, ref: `LOAD-${i + 1}`, status: 'open', due: null, priority: null, source: 'load test', lines: n,
         units: lines.reduce((a, l) => a + l.qty, 0), weight_kg: lines.reduce((a, l) => a + l.qty * l.s.unit_weight_kg, 0),
         volume_l: lines.reduce((a, l) => a + l.qty * l.s.unit_volume_l, 0), created_at: now,
-      });
+      }, 'id');
       await trx('order_lines').insert(lines.map((l, k) => ({ order_id: id, line_no: k + 1, sku: l.s.sku, qty: l.qty })));
     }
   });
