@@ -8,6 +8,8 @@ import { pinoHttp } from 'pino-http';
 import type { Deps } from './deps';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mountRoutes } from './http/mount';
+import { DbRateLimitStore } from './http/rate-limit-store';
+import { isPg } from './db/dialect';
 import type { AnyRoute } from './http/route';
 import { routeTable } from './routes';
 
@@ -58,6 +60,9 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
     rateLimit({
       windowMs: 15 * 60_000,
       limit: SIGN_IN_LIMIT_PER_IP,
+      // Several instances on PostgreSQL count one window per address in the database; one SQLite
+      // process keeps the count in memory.
+      ...(isPg(deps.db) ? { store: new DbRateLimitStore(deps.db) } : {}),
       standardHeaders: 'draft-8',
       legacyHeaders: false,
       handler: (_req, res) => {
