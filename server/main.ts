@@ -9,6 +9,7 @@ import { SignInBackoff } from './auth/backoff';
 import { createHasher } from './auth/hasher';
 import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
+import { createPgHub, useEventHub } from './events/hub';
 import { createMailer } from './mail/mailer';
 import { createBackground } from './system/background';
 import { createBoardStreams } from './picking/board-streams';
@@ -43,14 +44,20 @@ async function main(): Promise<void> {
   }
   const logger = pino({ level: config.LOG_LEVEL, redact: ['req.headers.cookie', 'req.headers.authorization', '*.password', '*.pin', '*.token'] });
   const dbFile = config.DATABASE_FILE === ':memory:' ? ':memory:' : resolve(config.DATABASE_FILE);
-  const db = openDb(dbFile);
+  // DATABASE_URL (postgres://…) selects PostgreSQL; otherwise the SQLite file.
+  const db = openDb(config.DATABASE_URL ?? dbFile);
   await migrateLatest(db);
   // `aislewright backup restore` refuses while this claim is held by a live process.
-  const releaseDatabase = dbFile === ':memory:' ? () => undefined : claimDatabase(dbFile);
+  const releaseDatabase = config.DATABASE_URL || dbFile === ':memory:' ? () => undefined : claimDatabase(dbFile);
+  if (config.DATABASE_URL) {
+    // Several instances: live-board and job events travel between them through LISTEN/NOTIFY.
+    useEventHub(await createPgHub(config.DATABASE_URL, (err) => logger.warn({ err }, 'event hub connection')));
+  }
   const hasher = createHasher();
   const mailer = createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM });
+  // Backups copy the SQLite file; on PostgreSQL the site backs up with pg_dump (README).
   const backups =
-    dbFile === ':memory:'
+    config.DATABASE_URL || dbFile === ':memory:'
       ? undefined
       : new BackupRunner({
           dbFile,

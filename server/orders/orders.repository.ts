@@ -71,9 +71,9 @@ export function orderTotals(o: OrderRecord, skus: Map<string, DbSkuRow>) {
 }
 
 export async function insertOrder(trx: Knex.Transaction, siteId: number, o: OrderRecord, source: string, skus: Map<string, DbSkuRow>): Promise<number> {
-  const [id] = await trx('orders').insert({
+  const [{ id }] = await trx('orders').insert({
     site_id: siteId, ref: o.ref, status: 'open', due: o.due, priority: o.priority, source, ...orderTotals(o, skus), created_at: new Date().toISOString(),
-  });
+  }, 'id');
   await trx('order_lines').insert(o.lines.map((l, i) => ({ order_id: id, line_no: i + 1, sku: l.sku, qty: l.qty })));
   return id!;
 }

@@ -213,8 +213,8 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
 
 /** Raises a trip's revision: every write calls it, so the tablet's poll sees the change. */
 export async function bumpRevision(db: Q, tripId: number): Promise<number> {
-  // One statement (SQLite ≥ 3.35 RETURNING): this runs inside every confirmation.
-  const rows = (await db.raw('UPDATE trips SET revision = revision + 1 WHERE id = ? RETURNING revision', [tripId])) as { revision: number }[];
+  // One statement (RETURNING: SQLite ≥ 3.35 and PostgreSQL): this runs inside every confirmation.
+  const rows = (await db('trips').where({ id: tripId }).update({ revision: db.raw('revision + 1') }, ['revision'])) as { revision: number }[];
   return rows[0]!.revision;
 }
 

@@ -33,6 +33,7 @@ import {
 } from './picking.repository';
 import { groupCommit } from './group-commit';
 import { orderRemaining, writeWalkOrder } from './reroute';
+import { lockForTransaction } from '../db/dialect';
 import { walkedMetres } from './walked';
 import { afterTripClosed } from './waves-progress';
 
@@ -215,6 +216,9 @@ async function idempotent<T>(
   const hash = requestHash(req);
   const key = req.key;
   const out = await groupCommit(db).run(async (trx) => {
+    // Writes to one trip one at a time (SQLite's one connection does this by itself; on PostgreSQL each
+    // write has its own transaction): a repeated key or two pickers on one line see the first one's result.
+    await lockForTransaction(trx, `trip:${tripId}`);
     // Keys are per user: a stored answer goes back only to the picker who made it.
     const stored = await trx('pick_requests').where({ user_id: actor.id, idem_key: key }).first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
     if (stored) {

@@ -2,6 +2,7 @@
  * Picking server rules: who may read and write a trip, taking trips, idempotency keys, conflicts,
  * scans, shorts, skips, finishing, and the audit trail behind each.
  */
+import { isPg } from '../../../server/db/dialect';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { routeTable } from '../../../server/routes';
 import { csrf } from '../../helpers/app';
@@ -342,7 +343,14 @@ describe('shorts, skips and the end of a trip', () => {
     expect(JSON.parse(rows[1].detail)).toMatchObject({ found: 0, reason: 'cannot_reach' });
   });
 
-  it('commits on a connection with synchronous=FULL before answering', async () => {
+  it('commits on a connection with synchronous=FULL (PostgreSQL: synchronous_commit on) before answering', async () => {
+    if (isPg(t.deps.db)) {
+      // PostgreSQL documentation (WAL configuration): synchronous_commit=on waits for the WAL flush before
+      // a commit returns; a 200 is sent after the commit.
+      const r = await t.deps.db.raw('show synchronous_commit');
+      expect(r.rows[0].synchronous_commit).toBe('on');
+      return;
+    }
     // SQLite documentation: synchronous=FULL (2) syncs at each commit; a 200 is sent after the commit.
     const r = await t.deps.db.raw('PRAGMA synchronous');
     expect(r[0].synchronous).toBe(2);
