@@ -152,7 +152,7 @@ describe('planWave', () => {
       const lines = t.stops.reduce((n, s) => n + s.lines.length, 0);
       expect(t.minutes).toBeCloseTo((t.metres / 0.8 + 12 * lines + 5 * t.stops.length) / 60, 9);
     }
-    // PRODUCT.md defaults: 1.0 m/s, 10 s per line.
+    // Defaults: 1.0 m/s (order-picking studies), 10 s per line (common practice).
     const plain = planWave(base());
     expect(plain.trips[0]!.minutes).toBeCloseTo((plain.trips[0]!.metres + 10 * plain.trips[0]!.stops.reduce((n, s) => n + s.lines.length, 0)) / 60, 9);
   });
