@@ -11,6 +11,7 @@ import type { Deps } from './deps';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mountRoutes } from './http/mount';
 import type { AnyRoute } from './http/route';
+import { withSiteEvents } from './picking/events';
 import { routeTable } from './routes';
 
 export interface AppOptions {
@@ -66,6 +67,8 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
       autoLogging: { ignore: (req) => req.url === '/api/health' },
     }),
   );
+  // Board changes signalled while serving a request reach this app's live-board streams (events.ts).
+  app.use((_req, _res, next) => withSiteEvents(deps.boardStreams, next));
   app.use(cookieParser());
   // Answers from the API hold private data: never stored by a browser or a proxy.
   app.use('/api', (_req, res, next) => {

@@ -18,6 +18,12 @@ const Env = z.object({
   /** Served over HTTPS (directly or behind a proxy): cookies get `Secure`. */
   COOKIE_SECURE: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
   TRUST_PROXY: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
+  /** Folder for scheduled and on-demand backups; default `backups/` beside the database file. */
+  BACKUP_DIR: z.string().min(1).optional(),
+  /** Hours between scheduled backups; 0 turns the schedule off. */
+  BACKUP_EVERY_HOURS: z.coerce.number().min(0).max(24 * 366).default(24),
+  /** Scheduled and on-demand backups kept in BACKUP_DIR (oldest removed first). */
+  BACKUP_KEEP: z.coerce.number().int().min(1).max(10_000).default(14),
 });
 export type Config = z.infer<typeof Env> & { publicUrl: string };
 

@@ -5,6 +5,8 @@ import type { Mailer } from './mail/mailer';
 import type { Hasher } from './auth/hasher';
 import type { SignInBackoff } from './auth/backoff';
 import type { Background } from './system/background';
+import type { BoardStreams } from './picking/board-streams';
+import type { BackupRunner } from './backups/backup-runner';
 
 /** Everything the app needs, built in main.ts (or a test helper) and passed to createApp. */
 export interface Deps {
@@ -18,4 +20,8 @@ export interface Deps {
   jwtSecret: string;
   logger: Logger;
   version: string;
+  /** The live board's event streams of this app (one snapshot per change per site, shared). */
+  boardStreams: BoardStreams;
+  /** Backups of the SQLite file; absent for an in-memory database (and on PostgreSQL). */
+  backups?: BackupRunner;
 }

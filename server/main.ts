@@ -11,6 +11,11 @@ import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
 import { createMailer } from './mail/mailer';
 import { createBackground } from './system/background';
+import { createBoardStreams } from './picking/board-streams';
+import { BackupRunner } from './backups/backup-runner';
+import { backupDirOf } from './backups/backups.service';
+import { claimDatabase } from './backups/sqlite-backup';
+import { startTasks } from './tasks/schedule';
 import { demoSeeders } from './seed/seeders';
 import { seedDemoIfEmpty } from './seed/demo';
 import { VERSION } from './version';
@@ -40,17 +45,35 @@ async function main(): Promise<void> {
   const dbFile = config.DATABASE_FILE === ':memory:' ? ':memory:' : resolve(config.DATABASE_FILE);
   const db = openDb(dbFile);
   await migrateLatest(db);
+  // `aislewright backup restore` refuses while this claim is held by a live process.
+  const releaseDatabase = dbFile === ':memory:' ? () => undefined : claimDatabase(dbFile);
   const hasher = createHasher();
+  const mailer = createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM });
+  const backups =
+    dbFile === ':memory:'
+      ? undefined
+      : new BackupRunner({
+          dbFile,
+          dir: backupDirOf(dbFile, config.BACKUP_DIR),
+          everyHours: config.BACKUP_EVERY_HOURS,
+          keep: config.BACKUP_KEEP,
+          db,
+          mailer,
+          logger,
+          publicUrl: config.publicUrl,
+        });
   const deps = {
     config,
     db,
     hasher,
     backoff: new SignInBackoff(db),
     background: createBackground(logger),
-    mailer: createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM }),
+    mailer,
     jwtSecret: jwtSecret(config.JWT_SECRET, dbFile === ':memory:' ? join(root, 'data') : dirname(dbFile)),
     logger,
     version: VERSION,
+    boardStreams: createBoardStreams(db, logger),
+    ...(backups ? { backups } : {}),
   };
   const seeded = config.DEMO_SEED ? await seedDemoIfEmpty(db, hasher, demoSeeders) : null;
   const app = createApp(deps, { clientDir: join(root, 'dist', 'client') });
@@ -64,9 +87,16 @@ async function main(): Promise<void> {
     }
     console.log('');
   });
+  const tasks = startTasks(deps);
   const stop = () => {
-    server.close(() => void deps.background.settled().then(() => db.destroy()).then(() => process.exit(0)));
-    setTimeout(() => process.exit(0), 3000).unref();
+    server.close(() => void tasks.stop().then(() => deps.background.settled()).then(() => db.destroy()).then(() => {
+      releaseDatabase();
+      process.exit(0);
+    }));
+    setTimeout(() => {
+      releaseDatabase();
+      process.exit(0);
+    }, 3000).unref();
   };
   process.on('SIGINT', stop);
   process.on('SIGTERM', stop);

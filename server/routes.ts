@@ -3,13 +3,17 @@
  * tests/server/access-table.test.ts fails if anything else is mounted or a route lacks a rule.
  * A domain adds its routes by exporting an array from <domain>/<domain>.routes.ts and listing it here.
  */
+import { auditRoutes } from './audit/audit.routes';
 import { authRoutes } from './auth/auth.routes';
+import { backupRoutes } from './backups/backups.routes';
+import { exportRoutes } from './exports/exports.routes';
 import { floorPlanRoutes } from './floor-plans/floor-plans.routes';
 import type { AnyRoute } from './http/route';
 import { tokenRoutes } from './integrations/tokens.routes';
 import { mailRoutes } from './mail/mail.routes';
 import { orderRoutes } from './orders/orders.routes';
 import { pickingRoutes } from './picking/picking.routes';
+import { retentionRoutes } from './retention/retention.routes';
 import { siteRoutes } from './sites/sites.routes';
 import { slottingRoutes } from './slotting/slotting.routes';
 import { studyRoutes } from './studies/studies.routes';
@@ -30,4 +34,8 @@ export const routeTable: readonly AnyRoute[] = [
   ...pickingRoutes,
   ...studyRoutes,
   ...slottingRoutes,
+  ...backupRoutes,
+  ...retentionRoutes,
+  ...auditRoutes,
+  ...exportRoutes,
 ];

@@ -18,7 +18,8 @@ export const BadgeCode = z.string().trim().toUpperCase().min(1).max(64);
 export const BadgeSignInBody = z.strictObject({ badge: BadgeCode, pin: z.string().min(1).max(12) });
 export type BadgeSignInBody = z.infer<typeof BadgeSignInBody>;
 
-export const SiteRef = z.object({ id: z.number().int(), code: z.string(), name: z.string() });
+/** `timezone`: the site's IANA zone; the client shows every time of the site in it. */
+export const SiteRef = z.object({ id: z.number().int(), code: z.string(), name: z.string(), timezone: z.string().optional() });
 export type SiteRef = z.infer<typeof SiteRef>;
 
 /** Who is signed in, as `GET /api/auth/me` and every sign-in answer return it. */

@@ -168,8 +168,20 @@ export const CloseSegmentBody = z
   .refine((b) => b.toM > b.fromM, { message: 'must be greater than fromM', path: ['toM'] });
 export type CloseSegmentBody = z.input<typeof CloseSegmentBody>;
 
+export const ClosureOutcome = z.enum(['closed', 'already_closed', 'extended', 'reopened']);
+export type ClosureOutcome = z.infer<typeof ClosureOutcome>;
+
 export const ClosureResult = z.object({
   plan: FloorPlanDetail,
+  /**
+   * What the request did: a new closure; nothing, as an open closure already covers the stretch (that
+   * closure is returned); an open closure that overlapped it extended to cover both; or a reopening.
+   */
+  outcome: ClosureOutcome,
+  /** The closure created, found or extended; null after a reopening. */
+  closure: FloorPlanClosure.nullable(),
+  /** One sentence for people, in agreement with the lists below it. */
+  message: z.string(),
   /** Bins unreachable now, and those that became unreachable with this change. */
   unreachableBins: z.array(z.string()),
   newlyUnreachable: z.array(z.string()),

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { RowIssue } from './imports';
+import { codeRule, MAX_LINE_QTY, ruledString } from './input-rules';
 
 export const OrderStatus = z.enum(['open', 'planned', 'picking', 'done', 'cancelled']);
 export type OrderStatus = z.infer<typeof OrderStatus>;
@@ -16,13 +17,13 @@ export const Sku = z.object({
 export type Sku = z.infer<typeof Sku>;
 
 export const OrderLineInput = z.strictObject({
-  sku: z.string().trim().min(1).max(64),
-  qty: z.number().int().positive().max(100_000),
+  sku: ruledString(codeRule),
+  qty: z.number().int().positive().max(MAX_LINE_QTY),
 });
 
 /** One order as the host system pushes it (JSON API) — the same fields as the order file. */
 export const OrderInput = z.strictObject({
-  order: z.string().trim().min(1).max(64),
+  order: ruledString(codeRule),
   due: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
   /** 1 is the most urgent (common practice: "P1"), up to 9; omitted = no priority. */
   priority: z.number().int().min(1).max(9).optional(),

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { TimeZoneName } from './time-zone';
 
 export const CartProfile = z.object({
   id: z.number().int(),
@@ -52,11 +53,11 @@ export type Site = z.infer<typeof Site>;
 export const CreateSiteBody = z.strictObject({
   code: z.string().trim().regex(/^[A-Z0-9-]{2,16}$/, '2–16 capital letters, digits or dashes'),
   name: z.string().trim().min(1).max(120),
-  timezone: z.string().trim().min(1).max(64).default('UTC'),
+  timezone: TimeZoneName.default('UTC'),
 });
 export const UpdateSiteBody = z.strictObject({
   name: z.string().trim().min(1).max(120).optional(),
-  timezone: z.string().trim().min(1).max(64).optional(),
+  timezone: TimeZoneName.optional(),
   settings: SiteSettings.partial().strict().optional(),
 });
 
@@ -67,11 +68,16 @@ export const OutboxMessage = z.object({
   text: z.string(),
   html: z.string().nullable(),
   attachments: z.array(z.object({ filename: z.string(), contentType: z.string(), bytes: z.number().int() })),
-  status: z.enum(['stored', 'sent', 'failed']),
+  /** `retrying`: a send failed and the next try is due at `nextAttemptAt`; `failed`: the last try failed. */
+  status: z.enum(['stored', 'sent', 'retrying', 'failed']),
   error: z.string().nullable(),
   createdAt: z.string(),
   /** A mail with a single-use link: live, or used / expired (the link is then removed from the text). */
   linkState: z.enum(['live', 'used', 'expired']).nullable(),
+  attempts: z.number().int(),
+  nextAttemptAt: z.string().nullable(),
+  /** Set when retention removed the body and attachments. */
+  prunedAt: z.string().nullable(),
 });
 export type OutboxMessage = z.infer<typeof OutboxMessage>;
 
@@ -82,8 +88,16 @@ export const IntegrationToken = z.object({
   createdAt: z.string(),
   revokedAt: z.string().nullable(),
   lastUsedAt: z.string().nullable(),
+  /** Null: never expires. */
+  expiresAt: z.string().nullable(),
+  /** Name of the admin who created it (null when that user is gone). */
+  createdBy: z.string().nullable(),
 });
 export type IntegrationToken = z.infer<typeof IntegrationToken>;
 /** Returned once, at creation: the secret itself is never stored. */
 export const NewIntegrationToken = IntegrationToken.extend({ token: z.string() });
-export const CreateIntegrationTokenBody = z.strictObject({ name: z.string().trim().min(1).max(80) });
+export const CreateIntegrationTokenBody = z.strictObject({
+  name: z.string().trim().min(1).max(80),
+  /** Optional expiry (ISO time, in the future); refused from then on. */
+  expiresAt: z.iso.datetime({ offset: true }).refine((v) => new Date(v).getTime() > Date.now(), 'must be in the future').optional(),
+});

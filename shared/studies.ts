@@ -115,7 +115,7 @@ export const StudyInputs = z.strictObject({
   name: z.string().trim().min(1).max(120),
   work: StudyWork,
   routing: z.array(RoutingMethodKey).min(1).default([...ROUTING_METHOD_KEYS]),
-  batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings']),
+  batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings', 'search']),
   whatIfs: z.array(WhatIf).max(4).default([]),
   seed: z.number().int().min(0).max(2 ** 31 - 1).default(1),
 });

@@ -3,7 +3,7 @@ import { z } from 'zod';
 export const TOUR_METHOD_NAMES = ['best', 'repeated-nearest-neighbor', 'nearest-neighbor', 'sorted-edges', 'exact'] as const;
 export const TourMethodName = z.enum(TOUR_METHOD_NAMES);
 export const ImproveName = z.enum(['none', 'local', 'deep']);
-export const BatchingName = z.enum(['single', 'fcfs', 'seed', 'savings']);
+export const BatchingName = z.enum(['single', 'fcfs', 'seed', 'savings', 'search']);
 export type BatchingName = z.infer<typeof BatchingName>;
 
 /** Labels shown in the UI, our own words beside the published method names. */
@@ -12,6 +12,15 @@ export const BATCHING_LABELS: Record<BatchingName, string> = {
   fcfs: 'First come, first served (FCFS)',
   seed: 'Seed batching',
   savings: 'Clarke–Wright savings',
+  search: 'Searched batches (improves on savings)',
+};
+/** One line under the batching picker: what the chosen method does. */
+export const BATCHING_HINTS: Record<BatchingName, string> = {
+  single: 'Each order walks its own trip: the baseline the others are measured against.',
+  fcfs: 'Orders in due-time order fill each cart until the next one does not fit.',
+  seed: 'A far-flung order starts each cart; the orders adding least walking join it.',
+  savings: 'Carts are merged pairwise where sharing a trip saves the most walking.',
+  search: 'Starts from savings and keeps moving and swapping orders between carts while the time budget lasts; never more walking than savings.',
 };
 export const TOUR_METHOD_LABELS: Record<(typeof TOUR_METHOD_NAMES)[number], string> = {
   best: 'Best construction (repeated nearest neighbor or sorted edges)',
@@ -29,7 +38,7 @@ export const IMPROVE_LABELS: Record<z.infer<typeof ImproveName>, string> = {
 export const WavePreviewBody = z.strictObject({
   orderIds: z.array(z.number().int().positive()).min(1).max(3000),
   cartProfileId: z.number().int().positive(),
-  batching: BatchingName.default('savings'),
+  batching: BatchingName.default('search'),
   method: TourMethodName.default('best'),
   improve: ImproveName.default('local'),
   /** Index of the plan's depot; default the first. */

@@ -2,7 +2,7 @@ import type { RouteRecordRaw } from 'vue-router';
 import type { Role } from '@shared/common';
 import type { AccessMeta } from './access';
 
-export type MenuGroup = 'Floor' | 'Analysis' | 'Admin' | 'Picking';
+export type MenuGroup = 'Floor' | 'Analysis' | 'Admin' | 'Records' | 'Picking';
 
 declare module 'vue-router' {
   interface RouteMeta extends AccessMeta {
@@ -49,6 +49,9 @@ export const routes: RouteRecordRaw[] = [
 
   { path: '/admin/users', name: 'admin-users', component: () => import('@client/views/AdminUsersView.vue'), meta: { roles: ['admin'], title: 'Users', menu: { label: 'Users', group: 'Admin' } } },
   { path: '/admin/sites', name: 'admin-sites', component: () => import('@client/views/AdminSitesView.vue'), meta: { roles: ['admin'], title: 'Sites & settings', menu: { label: 'Sites & settings', group: 'Admin' } } },
+  { path: '/admin/backups', name: 'admin-backups', component: () => import('@client/views/AdminBackupsView.vue'), meta: { roles: ['admin'], title: 'Backups', menu: { label: 'Backups', group: 'Admin' } } },
+  { path: '/audit-log', name: 'audit-log', component: () => import('@client/views/AuditLogView.vue'), meta: { roles: ['admin', 'supervisor'], title: 'Audit log', menu: { label: 'Audit log', group: 'Records' } } },
+  { path: '/exports', name: 'exports', component: () => import('@client/views/DataExportsView.vue'), meta: { roles: ['admin', 'supervisor'], title: 'Exports', menu: { label: 'Exports', group: 'Records' } } },
   { path: '/admin/outbox', name: 'admin-outbox', component: () => import('@client/views/AdminOutboxView.vue'), meta: { roles: ['admin'], title: 'Mail outbox', menu: { label: 'Mail outbox', group: 'Admin' } } },
 
   { path: '/:pathMatch(.*)*', name: 'not-found', component: () => import('@client/views/NotFoundView.vue'), meta: { title: 'Page not found' } },

@@ -1,8 +1,9 @@
-import { computed, ref } from 'vue';
+import { computed, ref, watch } from 'vue';
 import { defineStore } from 'pinia';
 import type { BadgeSignInBody, Me, SignInBody } from '@shared/auth';
 import * as authApi from '@client/api/auth';
 import type { SignInMode } from '@client/router/access';
+import { setDisplayTimeZone } from '@client/utils/format';
 
 const SITE_KEY = 'aislewright.siteId';
 const MODE_KEY = 'aislewright.signInMode';
@@ -26,6 +27,8 @@ export const useSessionStore = defineStore('session', () => {
   /** The stored choice when the user still belongs to that site, else their first site. */
   const currentSite = computed(() => sites.value.find((s) => s.id === storedSiteId.value) ?? sites.value[0] ?? null);
   const siteId = computed(() => currentSite.value?.id ?? null);
+  // Every time on screen and on printed pick lists is shown in the current site's zone.
+  watch(() => currentSite.value?.timezone, (zone) => setDisplayTimeZone(zone), { immediate: true });
 
   function setSignedIn(next: Me, mode: SignInMode): void {
     me.value = next;

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex';
+import { isIanaTimeZone } from '../../shared/time-zone';
 import { normaliseBadge, type Me, type InviteInfo } from '../../shared/auth';
 import type { Role } from '../../shared/common';
 import type { Deps } from '../deps';
@@ -27,7 +28,7 @@ export async function meOf(db: Knex, user: DbUserRow, authTime: number): Promise
     email: user.email,
     role: user.role,
     badge: user.badge,
-    sites: sites.map((s) => ({ id: s.id, code: s.code, name: s.name })),
+    sites: sites.map((s) => ({ id: s.id, code: s.code, name: s.name, timezone: isIanaTimeZone(s.timezone) ? s.timezone : 'UTC' })),
     sessionEndsAt: new Date((authTime + SESSION_MAX_S) * 1000).toISOString(),
   };
 }

@@ -11,6 +11,7 @@ const commands: Record<string, () => Promise<{ run: (args: string[], io: CliIo) 
   plan: () => import('./commands/plan'),
   waves: () => import('./commands/waves'),
   slotting: () => import('./commands/slotting'),
+  backup: () => import('./commands/backup'),
 };
 
 const usage = `usage: aislewright <command> [options]
@@ -19,7 +20,8 @@ commands:
   bound   Held–Karp lower bound for JSON on stdin
   plan    check a floor-plan workbook, or measure a walking distance on it
   waves   batch and route orders on a floor plan
-  slotting  choose bins for SKUs from an order history and write the new SKU master`;
+  slotting  choose bins for SKUs from an order history and write the new SKU master
+  backup  create, verify or restore a backup of the database (DATABASE_FILE)`;
 
 async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;

@@ -7,7 +7,7 @@
 import type { Knex } from 'knex';
 import * as XLSX from 'xlsx';
 import { ACTIVATION_CHECK_SAMPLE, type ActivationCheck, type PlanRef, type RunningWave, type SkuWithoutBin, type UnplaceableOrder } from '../../shared/floor-plans';
-import { csvCell } from '../imports/issues-export';
+import { csvDocument, neutraliseCells } from '../../shared/input-rules';
 import { skuMap } from '../orders/orders.repository';
 import { activePlanRow, type DbFloorPlanRow } from './floor-plans.repository';
 import { loadPlanIndex } from './plan-index';
@@ -132,7 +132,7 @@ const cells = (s: SkuWithoutBin): string[] => [s.sku, s.description, s.bin, s.on
 
 /** The SKUs without a bin as a workbook (one sheet `skus_without_bin`, every cell text). */
 export function skusWithoutBinXlsx(rows: readonly SkuWithoutBin[]): Buffer {
-  const ws = XLSX.utils.aoa_to_sheet([[...HEADER], ...rows.map(cells)], { dense: true });
+  const ws = XLSX.utils.aoa_to_sheet(neutraliseCells([[...HEADER], ...rows.map(cells)]), { dense: true });
   ws['!cols'] = [{ wch: 16 }, { wch: 40 }, { wch: 16 }, { wch: 20 }];
   const wb = XLSX.utils.book_new();
   XLSX.utils.book_append_sheet(wb, ws, 'skus_without_bin');
@@ -141,7 +141,5 @@ export function skusWithoutBinXlsx(rows: readonly SkuWithoutBin[]): Buffer {
 
 /** The same list as RFC 4180 CSV with a byte-order mark, formula-like cells neutralised. */
 export function skusWithoutBinCsv(rows: readonly SkuWithoutBin[]): string {
-  const lines = [HEADER.join(',')];
-  for (const r of rows) lines.push(cells(r).map(csvCell).join(','));
-  return `\ufeff${lines.join('\r\n')}\r\n`;
+  return csvDocument([[...HEADER], ...rows.map(cells)]);
 }

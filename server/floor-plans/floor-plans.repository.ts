@@ -311,6 +311,11 @@ export async function insertClosure(
   return id!;
 }
 
+/** Widens an open closure to a new range (an overlapping stretch closed again is merged into it). */
+export async function setClosureRange(db: Q, planId: number, closureId: number, fromM: number, toM: number): Promise<void> {
+  await db('floor_plan_closures').where({ id: closureId, plan_id: planId }).whereNull('reopened_at').update({ from_m: fromM, to_m: toM });
+}
+
 export async function reopenClosure(db: Q, planId: number, closureId: number, userId: number, now: string): Promise<boolean> {
   const n = await db('floor_plan_closures').where({ id: closureId, plan_id: planId }).whereNull('reopened_at').update({ reopened_at: now, reopened_by: userId });
   return n > 0;

@@ -10,6 +10,7 @@ import type { Logger } from 'pino';
 import type {
   ActivationCheck,
   ActiveFloorPlan,
+  ClosureOutcome,
   ClosureResult,
   DistanceAnswer,
   FloorPlanDetail,
@@ -22,12 +23,12 @@ import type { z } from 'zod';
 import type { CloseSegmentBody as CloseSegmentSchema } from '../../shared/floor-plans';
 import { pairDistance } from '../core/plan/distances';
 import type { RectangularPlanParams } from '../core/plan/generate';
-import type { PlanClosure, PlanGeometry } from '../core/plan/types';
+import { POSITION_TOLERANCE_M, type PlanClosure, type PlanGeometry } from '../core/plan/types';
 import { rerouteOpenTrips } from '../picking/reroute';
 import { nowIso } from '../db/knex';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
-import { WorkerTimeoutError } from '../workers/spawn';
+import { jobStopMessage } from '../workers/spawn';
 import { BUILD_BUDGET_MS, runBuild, type BuildOutput } from './build';
 import * as repo from './floor-plans.repository';
 import { checkFloorPlanFile } from './import';
@@ -231,7 +232,8 @@ export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry
 function failureDescriber(logger: Logger): (err: unknown) => string {
   return (err) => {
     if (err instanceof AppError) return err.message;
-    if (err instanceof WorkerTimeoutError) return 'Building the plan took too long and was stopped';
+    const stopped = jobStopMessage('The floor-plan job', err);
+    if (stopped) return stopped;
     logger.error({ err }, 'floor-plan job failed');
     return 'Building the plan failed on the server; it has been logged';
   };
@@ -363,26 +365,95 @@ async function rebuildWithClosures(
   return { before, after: built.unreachableBins };
 }
 
-async function closureResult(db: Knex, siteId: number, planId: number, r: { before: string[]; after: string[] }): Promise<ClosureResult> {
-  const was = new Set(r.before);
-  return { plan: await getPlanDetail(db, siteId, planId), unreachableBins: r.after, newlyUnreachable: r.after.filter((c) => !was.has(c)) };
+const metresText = (m: number) => `${Math.round(m * 100) / 100} m`;
+const stretchText = (c: { kind: 'aisle' | 'cross_aisle'; code: string; fromM: number; toM: number }) =>
+  `${c.kind === 'aisle' ? 'Aisle' : 'Cross aisle'} ${c.code} from ${metresText(c.fromM)} to ${metresText(c.toM)}`;
+const binsText = (n: number) => `${n} bin${n === 1 ? '' : 's'}`;
+
+/** The reachability sentence, worded from the same lists the answer carries so the two never disagree. */
+function reachText(after: readonly string[], newly: readonly string[]): string {
+  if (after.length === 0) return 'Every bin can still be reached.';
+  if (newly.length === 0) return `No more bins are cut off; ${binsText(after.length)} ${after.length === 1 ? 'remains' : 'remain'} unreachable.`;
+  const all = after.length > newly.length ? `; ${binsText(after.length)} are unreachable in all` : '';
+  return `${binsText(newly.length)} can no longer be reached${all}.`;
 }
 
-/** Closes a stretch of an aisle or cross aisle; distances are recomputed and unreachable bins listed. */
+async function closureResult(
+  db: Knex,
+  siteId: number,
+  planId: number,
+  r: { before: string[]; after: string[] },
+  done: { outcome: ClosureOutcome; closureId: number | null; what: string },
+): Promise<ClosureResult> {
+  const was = new Set(r.before);
+  const newly = r.after.filter((c) => !was.has(c));
+  const plan = await getPlanDetail(db, siteId, planId);
+  return {
+    plan,
+    outcome: done.outcome,
+    closure: plan.closures.find((c) => c.id === done.closureId) ?? null,
+    message: `${done.what} ${reachText(r.after, newly)}`,
+    unreachableBins: r.after,
+    newlyUnreachable: newly,
+  };
+}
+
+/**
+ * Closes a stretch of an aisle or cross aisle; distances are recomputed and unreachable bins listed.
+ * A stretch an open closure already covers is not stored again: that closure is returned. A stretch
+ * overlapping open closures of the same aisle extends the first of them to cover all (the others are
+ * merged into it), so one stretch is never stored twice.
+ */
 export async function closeSegment(db: Knex, siteId: number, planId: number, body: CloseSegment, userId: number): Promise<ClosureResult> {
   const row = await mustPlan(db, siteId, planId);
   if (row.state === 'retired') throw new AppError('conflict', 'plan_read_only', 'Retired plans are read-only');
   return withPlanLock(planId, async () => {
     const loaded = await loadPlanIndex(db, planId);
     checkClosureTarget(loaded.geometry, body);
+    const tol = POSITION_TOLERANCE_M;
+    const same = loaded.closureRows.filter((c) => c.kind === body.kind && c.code === body.code);
+    const covering = same.find((c) => c.fromM <= body.fromM + tol && c.toM >= body.toM - tol);
+    if (covering) {
+      const now = unreachableBinCodes(loaded.geometry, loaded.graph);
+      const by = covering.createdBy ? ` by ${covering.createdBy.name}` : '';
+      return closureResult(db, siteId, planId, { before: now, after: now }, {
+        outcome: 'already_closed', closureId: covering.id, what: `${stretchText(covering)} is already closed (closed${by}); nothing was changed.`,
+      });
+    }
+    const overlapping = same.filter((c) => c.fromM < body.toM - tol && c.toM > body.fromM + tol);
+    const keep = overlapping[0];
+    if (keep) {
+      const merged = overlapping.slice(1);
+      const fromM = Math.min(body.fromM, ...overlapping.map((c) => c.fromM));
+      const toM = Math.max(body.toM, ...overlapping.map((c) => c.toM));
+      const closures = loaded.closureRows
+        .filter((c) => !merged.includes(c))
+        .map((c) => repo.toEngineClosure(c.id === keep.id ? { ...c, fromM, toM } : c));
+      const r = await rebuildWithClosures(db, siteId, planId, closures, async (trx) => {
+        await repo.setClosureRange(trx, planId, keep.id, fromM, toM);
+        for (const c of merged) await repo.reopenClosure(trx, planId, c.id, userId, nowIso());
+        await audit(trx, {
+          siteId, userId, action: 'floor_plan.segment_extended', subject: `${body.kind} ${body.code}`,
+          detail: { planId, closureId: keep.id, wasFromM: keep.fromM, wasToM: keep.toM, fromM, toM, mergedClosureIds: merged.map((c) => c.id), reason: body.reason ?? null },
+        });
+      });
+      await rerouteOpenTrips(db, planId, loaded, userId);
+      const was = overlapping.map((c) => `${metresText(c.fromM)}–${metresText(c.toM)}`).join(', ');
+      return closureResult(db, siteId, planId, r, {
+        outcome: 'extended', closureId: keep.id,
+        what: `${stretchText({ ...body, fromM, toM })}: closed; it overlapped the open closure${overlapping.length === 1 ? '' : 's'} at ${was}, now one closure.`,
+      });
+    }
     const closures = [...loaded.closures, { kind: body.kind, code: body.code, from: body.fromM, to: body.toM }];
+    let closureId = 0;
     const r = await rebuildWithClosures(db, siteId, planId, closures, async (trx) => {
       const id = await repo.insertClosure(trx, { planId, kind: body.kind, code: body.code, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null, userId }, nowIso());
+      closureId = id;
       await audit(trx, { siteId, userId, action: 'floor_plan.segment_closed', subject: `${body.kind} ${body.code}`, detail: { planId, closureId: id, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null } });
     });
     // Trips being picked on this plan walk the changed graph from where their pickers are.
     await rerouteOpenTrips(db, planId, loaded, userId);
-    return closureResult(db, siteId, planId, r);
+    return closureResult(db, siteId, planId, r, { outcome: 'closed', closureId, what: `${stretchText(body)}: closed.` });
   });
 }
 
@@ -399,6 +470,7 @@ export async function reopenSegment(db: Knex, siteId: number, planId: number, cl
       await audit(trx, { siteId, userId, action: 'floor_plan.segment_reopened', subject: String(closureId), detail: { planId, closureId } });
     });
     await rerouteOpenTrips(db, planId, loaded, userId);
-    return closureResult(db, siteId, planId, r);
+    const reopened = loaded.closureRows.find((c) => c.id === closureId)!;
+    return closureResult(db, siteId, planId, r, { outcome: 'reopened', closureId: null, what: `${stretchText(reopened)}: open again.` });
   });
 }

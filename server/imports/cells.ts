@@ -3,23 +3,19 @@
  * every import (floor plans now, SKUs and orders later) so users read the same messages everywhere.
  */
 import type { RowIssue } from '../../shared/imports';
+import { textProblem, trimSpaces, visibleText } from '../../shared/input-rules';
 import type { CellValue } from './spreadsheet';
 import { clip } from './spreadsheet';
 
 export type Read<T> = { ok: true; value: T } | { ok: false; message: string };
 
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
-// Spreadsheet programs run a cell that starts with these as a formula (OWASP, "CSV Injection").
-const FORMULA_START = /^[=+\-@\t\r]/;
-// C0 control characters and DEL never belong in a code.
-// eslint-disable-next-line no-control-regex -- matching control characters is the point
-const CONTROL = /[\u0000-\u001f\u007f]/;
 
 /** The cell as a user would see it, for the `value` column of an issue. */
 export function displayValue(v: CellValue): string | null {
   if (v === null) return null;
   if (v instanceof Date) return Number.isNaN(v.getTime()) ? 'invalid date' : v.toISOString();
-  return clip(String(v));
+  return clip(visibleText(String(v)));
 }
 
 /** A finite number; text holding a plain decimal number is accepted (CSV cells are text). */
@@ -51,20 +47,18 @@ export function readInteger(v: CellValue, column: string, min: number): Read<num
 }
 
 /**
- * A code such as a bin or aisle code: text or a number written as text, at most `maxChars` long,
- * no control characters, and not starting like a formula, so it is safe to write into any export.
+ * A code such as a bin or aisle code: text or a number written as text, under the rule set every
+ * import shares (shared/input-rules.ts): at most `maxChars` long, no control or text-direction
+ * characters, and not starting like a formula, so it is safe to write into any export.
  */
 export function readCode(v: CellValue, column: string, maxChars = 64): Read<string> {
   if (v === null) return { ok: false, message: `${column} is empty` };
   if (typeof v !== 'string' && typeof v !== 'number') return { ok: false, message: `${column} must be text` };
-  const t = String(v).trim();
+  // A number cell (-5) is a value, not a formula; its text is checked for length only.
+  const t = typeof v === 'string' ? trimSpaces(v) : String(v);
   if (t === '') return { ok: false, message: `${column} is empty` };
-  if (t.length > maxChars) return { ok: false, message: `${column} is longer than ${maxChars} characters` };
-  if (CONTROL.test(t)) return { ok: false, message: `${column} holds control characters` };
-  if (typeof v === 'string' && FORMULA_START.test(t)) {
-    return { ok: false, message: `${column} starts with ${JSON.stringify(t[0])}, which spreadsheet programs run as a formula; codes must start with a letter or digit` };
-  }
-  return { ok: true, value: t };
+  const problem = typeof v === 'string' ? textProblem(t, { maxChars }) : t.length > maxChars ? `is longer than ${maxChars} characters` : null;
+  return problem ? { ok: false, message: `${column} ${problem}` } : { ok: true, value: t };
 }
 
 /** Optional text: null when blank. */

@@ -5,6 +5,7 @@
  */
 import * as XLSX from 'xlsx';
 import type { RowIssue } from '../../shared/imports';
+import { csvDocument, neutraliseCells } from '../../shared/input-rules';
 
 const HEADER = ['sheet', 'row', 'column', 'value', 'message'] as const;
 
@@ -12,9 +13,13 @@ function cellsOf(issue: RowIssue): (string | number)[] {
   return [issue.sheet, issue.row ?? '', issue.column ?? '', issue.value ?? '', issue.message];
 }
 
-/** One sheet named `errors`; text cells stay text (type "s"), so nothing in them is evaluated. */
+/**
+ * One sheet named `errors`; text cells stay text (type "s"), so nothing in them is evaluated, and a
+ * text starting like a formula also gets the leading quote, so it stays inert when the sheet is
+ * saved again as CSV by a spreadsheet program.
+ */
 export function rowIssuesToXlsx(issues: readonly RowIssue[]): Buffer {
-  const ws = XLSX.utils.aoa_to_sheet([[...HEADER], ...issues.map(cellsOf)], { dense: true });
+  const ws = XLSX.utils.aoa_to_sheet(neutraliseCells([[...HEADER], ...issues.map(cellsOf)]), { dense: true });
   ws['!cols'] = [{ wch: 14 }, { wch: 7 }, { wch: 14 }, { wch: 24 }, { wch: 80 }];
   const wb = XLSX.utils.book_new();
   XLSX.utils.book_append_sheet(wb, ws, 'errors');
@@ -26,13 +31,5 @@ export function rowIssuesToXlsx(issues: readonly RowIssue[]): Buffer {
  * A text cell starting with = + - @ tab or CR gets a leading single quote.
  */
 export function rowIssuesToCsv(issues: readonly RowIssue[]): string {
-  const lines = [HEADER.join(',')];
-  for (const issue of issues) lines.push(cellsOf(issue).map(csvCell).join(','));
-  return `\ufeff${lines.join('\r\n')}\r\n`;
-}
-
-export function csvCell(v: string | number): string {
-  if (typeof v === 'number') return String(v);
-  const safe = /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
-  return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
+  return csvDocument([[...HEADER], ...issues.map(cellsOf)]);
 }

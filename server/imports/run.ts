@@ -1,10 +1,10 @@
 /**
  * The server side of an import: cheap refusals on the event loop (size, file type, ZIP directory),
- * then the real work in a fresh worker with a time limit and a heap cap. A hostile file can at worst
- * cost one worker its time slice; the server process keeps answering.
+ * then the real work in its own process with a time limit and a heap cap. A hostile file can at worst
+ * cost that process its life; the server process keeps answering.
  */
 import type { RowIssue } from '../../shared/imports';
-import { runInWorker, WorkerTimeoutError } from '../workers/spawn';
+import { runInWorker, WorkerCrashError, WorkerOutOfMemoryError, WorkerTimeoutError } from '../workers/spawn';
 import type { ImportLimits } from './limits';
 import type { SpreadsheetRead, WorkbookSpec } from './spreadsheet';
 import { detectKind, emptySheet, FILE_SHEET } from './spreadsheet';
@@ -40,9 +40,9 @@ function formatBytes(n: number): string {
 export type JobOutcome<R> = { ok: true; result: R } | { ok: false; issue: RowIssue };
 
 /**
- * Runs an import job module (one that calls `serveJob`) in a fresh worker capped at
- * `limits.workerHeapMb` and `limits.timeoutMs`. A timeout or an out-of-memory stop becomes a file
- * issue; any other failure is a bug and rejects.
+ * Runs an import job module (one that calls `serveJob`) in its own process capped at
+ * `limits.workerHeapMb` and `limits.timeoutMs`. A timeout, an out-of-memory stop or a fatal error in
+ * that process becomes a file issue (nothing is saved); an error the job itself throws is a bug and rejects.
  */
 export async function runImportJob<R, P>(
   moduleUrl: URL,
@@ -53,7 +53,7 @@ export async function runImportJob<R, P>(
   try {
     const result = await runInWorker<R, P>(moduleUrl, data, {
       timeoutMs: limits.timeoutMs,
-      resourceLimits: { maxOldGenerationSizeMb: limits.workerHeapMb, maxYoungGenerationSizeMb: 64 },
+      heapMb: limits.workerHeapMb,
       ...(onProgress ? { onProgress } : {}),
     });
     return { ok: true, result };
@@ -61,8 +61,11 @@ export async function runImportJob<R, P>(
     if (e instanceof WorkerTimeoutError) {
       return { ok: false, issue: fileIssue(`reading the file took longer than ${Math.round(limits.timeoutMs / 1000)} s and was stopped; split it into smaller files`) };
     }
-    if ((e as { code?: string }).code === 'ERR_WORKER_OUT_OF_MEMORY') {
+    if (e instanceof WorkerOutOfMemoryError) {
       return { ok: false, issue: fileIssue(`reading the file needed more than ${limits.workerHeapMb} MiB of memory and was stopped; split it into smaller files`) };
+    }
+    if (e instanceof WorkerCrashError) {
+      return { ok: false, issue: fileIssue(`reading the file ${e.message}; nothing was saved — check the file, or split it into smaller files`) };
     }
     throw e;
   }

@@ -22,7 +22,15 @@ export interface MailMessage {
 export interface Mailer {
   /** Stores the message in the outbox, and sends it when SMTP is configured. Returns the outbox id. */
   send(message: MailMessage): Promise<number>;
+  /** Tries again every message whose next try is due; returns how each ended. */
+  retryDue(now?: Date): Promise<{ sent: number; retrying: number; failed: number }>;
 }
+
+/**
+ * Waits before each further try after a failed send: 1 min, 5 min, 30 min, 2 h, 8 h (common practice
+ * for mail queues: growing back-off over hours, from memory). After the last try the message is failed.
+ */
+export const MAIL_RETRY_DELAYS_MS: readonly number[] = [60_000, 5 * 60_000, 30 * 60_000, 2 * 3_600_000, 8 * 3_600_000];
 
 interface DbOutboxRow {
   id: number;
@@ -32,20 +40,70 @@ interface DbOutboxRow {
   text: string;
   html: string | null;
   attachments: string;
-  status: 'stored' | 'sent' | 'failed';
+  status: 'stored' | 'sent' | 'retrying' | 'failed';
   error: string | null;
   created_at: string;
   link_token_hash: string | null;
   link_expires_at: string | null;
   link_closed_at: string | null;
+  attempts: number;
+  next_attempt_at: string | null;
+  last_attempt_at: string | null;
+  pruned_at: string | null;
+}
+
+interface Transport {
+  sendMail(mail: object): Promise<unknown>;
+}
+
+export interface MailerOptions {
+  smtpUrl?: string | undefined;
+  from: string;
+  /** Another transport (tests); counts as really sending, like SMTP. */
+  transport?: Transport;
+  retryDelaysMs?: readonly number[];
 }
 
 /**
  * All mail goes through nodemailer. Without SMTP_URL the transport is nodemailer's JSON transport (the
  * message is composed, not sent) and the outbox table is the local stand-in for a mail service.
+ * A send that fails is tried again with back-off (MAIL_RETRY_DELAYS_MS) by `retryDue`, which the
+ * server runs every minute; after the last try the message shows as failed in the outbox.
  */
-export function createMailer(db: Knex, options: { smtpUrl?: string | undefined; from: string }): Mailer {
-  const transport = options.smtpUrl ? nodemailer.createTransport(options.smtpUrl) : nodemailer.createTransport({ jsonTransport: true });
+export function createMailer(db: Knex, options: MailerOptions): Mailer {
+  const transport: Transport = options.transport ?? (options.smtpUrl ? nodemailer.createTransport(options.smtpUrl) : nodemailer.createTransport({ jsonTransport: true }));
+  const delivers = Boolean(options.transport ?? options.smtpUrl);
+  const delays = options.retryDelaysMs ?? MAIL_RETRY_DELAYS_MS;
+
+  async function attempt(row: DbOutboxRow, now: Date): Promise<DbOutboxRow['status']> {
+    const atts = JSON.parse(row.attachments) as { filename: string; contentType: string; base64: string }[];
+    const attempts = row.attempts + 1;
+    try {
+      await transport.sendMail({
+        from: options.from,
+        to: row.to,
+        subject: row.subject,
+        text: row.text,
+        ...(row.html ? { html: row.html } : {}),
+        attachments: atts.map((a) => ({ filename: a.filename, contentType: a.contentType, content: Buffer.from(a.base64, 'base64') })),
+      });
+      const status = delivers ? 'sent' : 'stored';
+      await db('mail_outbox').where({ id: row.id }).update({ status, attempts, error: null, next_attempt_at: null, last_attempt_at: now.toISOString() });
+      return status;
+    } catch (err) {
+      const delay = delays[attempts - 1];
+      const status = delay === undefined ? 'failed' : 'retrying';
+      await db('mail_outbox').where({ id: row.id }).update({
+        status,
+        attempts,
+        error: (err as Error).message.slice(0, 500),
+        last_attempt_at: now.toISOString(),
+        next_attempt_at: delay === undefined ? null : new Date(now.getTime() + delay).toISOString(),
+      });
+      return status;
+    }
+  }
+
   return {
     async send(m) {
       const attachments = (m.attachments ?? []).map((a) => ({ filename: a.filename, contentType: a.contentType, base64: a.content.toString('base64') }));
@@ -61,20 +119,19 @@ export function createMailer(db: Knex, options: { smtpUrl?: string | undefined; 
         link_token_hash: m.link?.tokenHash ?? null,
         link_expires_at: m.link?.expiresAt ?? null,
       });
-      try {
-        await transport.sendMail({
-          from: options.from,
-          to: m.to,
-          subject: m.subject,
-          text: m.text,
-          ...(m.html ? { html: m.html } : {}),
-          attachments: (m.attachments ?? []).map((a) => ({ filename: a.filename, contentType: a.contentType, content: a.content })),
-        });
-        if (options.smtpUrl) await db('mail_outbox').where({ id }).update({ status: 'sent' });
-      } catch (err) {
-        await db('mail_outbox').where({ id }).update({ status: 'failed', error: (err as Error).message.slice(0, 500) });
-      }
+      await attempt((await db<DbOutboxRow>('mail_outbox').where({ id: id! }).first())!, new Date());
       return id!;
+    },
+    async retryDue(now = new Date()) {
+      const due = await db<DbOutboxRow>('mail_outbox').where({ status: 'retrying' }).where('next_attempt_at', '<=', now.toISOString()).orderBy('id').limit(100);
+      const tally = { sent: 0, retrying: 0, failed: 0 };
+      for (const row of due) {
+        const status = await attempt(row, now);
+        if (status === 'failed') tally.failed++;
+        else if (status === 'retrying') tally.retrying++;
+        else tally.sent++;
+      }
+      return tally;
     },
   };
 }
@@ -127,6 +184,9 @@ function toMessage(r: DbOutboxRow): OutboxMessage {
     error: r.error,
     createdAt: r.created_at,
     linkState: linkStateOf(r),
+    attempts: r.attempts,
+    nextAttemptAt: r.next_attempt_at,
+    prunedAt: r.pruned_at,
   };
 }
 

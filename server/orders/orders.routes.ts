@@ -62,7 +62,7 @@ export const orderRoutes = [
     handler: async ({ deps, siteId, params }) => (await orderDetail(deps.db, siteId!, Number(params.id))) ?? Promise.reject(notFound('Order')),
   }),
   defineRoute({
-    method: 'post', path: '/api/sites/:siteId/orders/push', access: 'integration', summary: "The host system pushes orders (integration token for this site); re-sent references are not duplicated",
+    method: 'post', path: '/api/sites/:siteId/orders/push', access: 'integration', summary: 'The host system pushes orders (integration token for this site); re-sent references are not duplicated. All or nothing: 400 duplicate_order, 422 unknown_sku / orders_invalid, 409 order_released (the order is in a released wave; details name the order, field and wave)',
     body: PushOrdersBody, response: ImportResult,
     handler: ({ deps, siteId, body }) => pushOrders(deps.db, siteId!, body.orders),
   }),

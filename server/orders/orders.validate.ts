@@ -1,4 +1,5 @@
 import type { RowIssue } from '../../shared/imports';
+import { codeRule, MAX_LINE_QTY, MAX_UNIT_VOLUME_L, MAX_UNIT_WEIGHT_KG, textProblem, textRule, trimSpaces, visibleText, type TextRule } from '../../shared/input-rules';
 
 /** A data row as read from a sheet: its spreadsheet row number and its cells by expected column. */
 export interface InputRow {
@@ -28,15 +29,24 @@ export const SKU_REQUIRED = ['sku', 'bin', 'unit_weight_kg', 'unit_volume_l'] as
 export const ORDER_COLUMNS = ['order', 'sku', 'qty', 'due', 'priority'] as const;
 export const ORDER_REQUIRED = ['order', 'sku', 'qty'] as const;
 
-const text = (v: unknown): string => (v === null || v === undefined ? '' : String(v).trim());
-const shown = (v: unknown): string | null => (v === null || v === undefined || v === '' ? null : String(v).slice(0, 100));
+// Spaces are trimmed; a tab or line break at either end stays and is refused by the rule set.
+const text = (v: unknown): string => (v === null || v === undefined ? '' : trimSpaces(String(v)));
+const shown = (v: unknown): string | null => (v === null || v === undefined || v === '' ? null : visibleText(String(v).slice(0, 100)));
+/** A plain decimal number (a comma as the decimal mark is read as a point); no hex, no "Infinity". */
+const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 function num(v: unknown): number | null {
   if (typeof v === 'number') return Number.isFinite(v) ? v : null;
-  const s = text(v);
-  if (s === '') return null;
-  const n = Number(s.replace(',', '.'));
+  const s = text(v).replace(/^([+-]?\d+),(\d+)$/, '$1.$2');
+  if (!DECIMAL.test(s)) return null;
+  const n = Number(s);
   return Number.isFinite(n) ? n : null;
+}
+
+/** The rule set's verdict on a text field, worded for the error table; null when it is fine. */
+function ruled(label: string, value: string, rule: TextRule): string | null {
+  const p = textProblem(value, rule);
+  return p ? `${label} ${p}` : null;
 }
 
 /** ISO 8601 date or date-time; spreadsheet dates arrive as JS Dates when cellDates is on. */
@@ -61,16 +71,24 @@ export function validateSkuRows(sheet: string, rows: InputRow[]): { skus: SkuRec
     const kg = num(values.unit_weight_kg);
     const litres = num(values.unit_volume_l);
     let bad = false;
+    const description = text(values.description);
+    const skuProblem = sku ? ruled('SKU', sku, codeRule) : null;
+    const binProblem = bin ? ruled('bin', bin, codeRule) : null;
+    const descriptionProblem = description ? ruled('description', description, textRule) : null;
     if (!sku) (issue('sku', 'SKU is empty'), (bad = true));
-    else if (sku.length > 64) (issue('sku', 'SKU is longer than 64 characters'), (bad = true));
+    else if (skuProblem) (issue('sku', skuProblem), (bad = true));
     else if (seen.has(sku)) (issue('sku', `SKU ${sku} appears twice (first on row ${seen.get(sku)})`), (bad = true));
     if (!bin) (issue('bin', 'bin is empty'), (bad = true));
+    else if (binProblem) (issue('bin', binProblem), (bad = true));
+    if (descriptionProblem) (issue('description', descriptionProblem), (bad = true));
     if (kg === null) (issue('unit_weight_kg', 'unit weight must be a number (kg)'), (bad = true));
     else if (kg < 0) (issue('unit_weight_kg', 'unit weight cannot be negative'), (bad = true));
+    else if (kg > MAX_UNIT_WEIGHT_KG) (issue('unit_weight_kg', `unit weight must be at most ${MAX_UNIT_WEIGHT_KG.toLocaleString('en')} kg`), (bad = true));
     if (litres === null) (issue('unit_volume_l', 'unit volume must be a number (litres)'), (bad = true));
     else if (litres < 0) (issue('unit_volume_l', 'unit volume cannot be negative'), (bad = true));
-    if (sku && !seen.has(sku)) seen.set(sku, row);
-    if (!bad) skus.push({ sku, description: text(values.description).slice(0, 200), bin, unitWeightKg: kg!, unitVolumeL: litres! });
+    else if (litres > MAX_UNIT_VOLUME_L) (issue('unit_volume_l', `unit volume must be at most ${MAX_UNIT_VOLUME_L.toLocaleString('en')} litres`), (bad = true));
+    if (sku && !skuProblem && !seen.has(sku)) seen.set(sku, row);
+    if (!bad) skus.push({ sku, description, bin, unitWeightKg: kg!, unitVolumeL: litres! });
   }
   return { skus, errors };
 }
@@ -91,11 +109,14 @@ export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sk
     const prioText = text(values.priority);
     const priority = prioText === '' ? null : num(prioText);
     let bad = false;
+    const refProblem = ref ? ruled('order reference', ref, codeRule) : null;
+    const skuProblem = sku ? ruled('SKU', sku, codeRule) : null;
     if (!ref) (issue('order', 'order reference is empty'), (bad = true));
-    else if (ref.length > 64) (issue('order', 'order reference is longer than 64 characters'), (bad = true));
+    else if (refProblem) (issue('order', refProblem), (bad = true));
     if (!sku) (issue('sku', 'SKU is empty'), (bad = true));
+    else if (skuProblem) (issue('sku', skuProblem), (bad = true));
     else if (!knownSku(sku)) (issue('sku', `SKU ${sku} is not in the SKU master; import it first`), (bad = true));
-    if (qty === null || !Number.isInteger(qty) || qty <= 0) (issue('qty', 'quantity must be a whole number above 0'), (bad = true));
+    if (qty === null || !Number.isInteger(qty) || qty <= 0 || qty > MAX_LINE_QTY) (issue('qty', `quantity must be a whole number from 1 to ${MAX_LINE_QTY.toLocaleString('en')}`), (bad = true));
     if (due === 'invalid') (issue('due', 'due must be an ISO 8601 date or date-time, e.g. 2026-12-03T14:00:00Z'), (bad = true));
     if (prioText !== '' && (priority === null || !Number.isInteger(priority) || priority < 1 || priority > 9)) (issue('priority', 'priority must be a whole number from 1 (most urgent) to 9'), (bad = true));
     if (bad) continue;

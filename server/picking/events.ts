@@ -1,35 +1,24 @@
 /**
- * In-process change signal per site: the picking service calls `siteChanged` after each commit and
- * the live board's event streams recompute one snapshot per site, at most every DEBOUNCE_MS.
+ * The change signal from the picking and board services to the app's live-board streams.
+ *
+ * Services call `siteChanged(siteId)` after each commit. The signal reaches the streams of the app
+ * that is serving the request: createApp runs every request inside `withSiteEvents(hub, …)`, so two
+ * apps in one process (tests, benchmarks) never see each other's changes, and a service called
+ * outside any app (the command line, a seed) signals nobody. No runtime state lives in this module.
  */
-type Listener = () => void;
+import { AsyncLocalStorage } from 'node:async_hooks';
 
-const listeners = new Map<number, Set<Listener>>();
-const pending = new Map<number, ReturnType<typeof setTimeout>>();
-/** A burst of confirmations (a queue flushing after a Wi-Fi drop) becomes one board update. */
-export const DEBOUNCE_MS = 250;
+export interface SiteChangeSink {
+  siteChanged(siteId: number): void;
+}
 
-export function onSiteChange(siteId: number, listener: Listener): () => void {
-  const set = listeners.get(siteId) ?? new Set<Listener>();
-  set.add(listener);
-  listeners.set(siteId, set);
-  return () => {
-    set.delete(listener);
-    if (set.size === 0) listeners.delete(siteId);
-  };
+const current = new AsyncLocalStorage<SiteChangeSink>();
+
+/** Runs `fn` (and everything it starts) with `sink` receiving the site changes it signals. */
+export function withSiteEvents<T>(sink: SiteChangeSink, fn: () => T): T {
+  return current.run(sink, fn);
 }
 
 export function siteChanged(siteId: number): void {
-  if (!listeners.has(siteId) || pending.has(siteId)) return;
-  pending.set(
-    siteId,
-    setTimeout(() => {
-      pending.delete(siteId);
-      for (const l of listeners.get(siteId) ?? []) l();
-    }, DEBOUNCE_MS),
-  );
-}
-
-export function listenerCount(siteId: number): number {
-  return listeners.get(siteId)?.size ?? 0;
+  current.getStore()?.siteChanged(siteId);
 }

@@ -34,7 +34,6 @@ import { AppError, notFound } from '../http/errors';
 import { defineRoute, type RouteContext } from '../http/route';
 import type { SessionUser } from '../http/session';
 import * as board from './board.service';
-import { onSiteChange } from './events';
 import { getWaveRow } from './picking.repository';
 import * as picking from './picking.service';
 import { buildWaveReport } from './report';
@@ -42,8 +41,6 @@ import { buildWaveReport } from './report';
 const PICKER: readonly Role[] = ['picker'];
 const SUPERVISE: readonly Role[] = ['supervisor', 'admin'];
 const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
-/** SSE comment line this often, so proxies and the browser keep an idle stream open. */
-const HEARTBEAT_MS = 20_000;
 
 function idOf(params: Record<string, string>, name: string, what: string): number {
   const v = Number(params[name]);
@@ -142,49 +139,21 @@ export const pickingRoutes = [
     handler: ({ deps, siteId }) => board.boardSnapshot(deps.db, siteId!),
   }),
   defineRoute({
-    method: 'get', path: `${siteBoard}/events`, access: SUPERVISE, summary: 'Live board as server-sent events: `board` with the whole snapshot on every change',
-    handler: async ({ req, res, deps, siteId }) => {
+    method: 'get', path: `${siteBoard}/events`, access: SUPERVISE, summary: 'Live board as server-sent events: `board` with the whole snapshot after each change (one snapshot per site shared by all its streams); 429 too_many_board_streams beyond 5 open streams per person',
+    handler: ({ req, res, deps, siteId, user }) => {
       const site = siteId!;
       // Only an event stream client may open the endless stream (EventSource always sends this).
       if (!(req.get('accept') ?? '').includes('text/event-stream')) {
         throw new AppError('validation', 'event_stream_only', 'Open this with an EventSource (Accept: text/event-stream)', [{ field: 'Accept', message: 'must accept text/event-stream' }]);
       }
+      // Refused (429) before the response starts when this person holds too many streams.
+      deps.boardStreams.checkCap(user!.id);
       res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
-      let closed = false;
-      let sending = false;
-      let again = false;
-      const send = async () => {
-        if (closed) return;
-        if (sending) {
-          again = true;
-          return;
-        }
-        sending = true;
-        try {
-          const snap = await board.boardSnapshot(deps.db, site);
-          if (!closed) res.write(`event: board\ndata: ${JSON.stringify(snap)}\n\n`);
-        } catch (err) {
-          deps.logger.warn({ err }, 'board snapshot failed');
-          // The board must not keep saying "Live" over a snapshot it could not build.
-          if (!closed) res.write(`event: board-error\ndata: ${JSON.stringify({ message: 'The server could not build the board' })}\n\n`);
-        } finally {
-          sending = false;
-          if (again) {
-            again = false;
-            void send();
-          }
-        }
-      };
       // The browser's EventSource reconnects by itself; this says after how long.
       res.write('retry: 3000\n\n');
-      const stop = onSiteChange(site, () => void send());
-      const beat = setInterval(() => res.write(': ping\n\n'), HEARTBEAT_MS);
-      req.on('close', () => {
-        closed = true;
-        clearInterval(beat);
-        stop();
-      });
-      await send();
+      // One snapshot per change per site is built by the app's hub and written to every stream.
+      const stop = deps.boardStreams.open(site, user!.id, res);
+      req.on('close', stop);
       return undefined;
     },
   }),

@@ -5,7 +5,10 @@
  */
 import * as XLSX from 'xlsx';
 import type { Knex } from 'knex';
+import { neutraliseCells } from '../../shared/input-rules';
 import { SHORT_REASON_LABELS, type ShortReason } from '../../shared/picking';
+import { formatInZone } from '../../shared/time-zone';
+import { siteTimeZone } from '../sites/sites.repository';
 import { finiteOrNull, getWaveRow, linesOf, stopsOf, type DbTripRow } from './picking.repository';
 import { walkedMetres } from './walked';
 
@@ -34,6 +37,8 @@ export interface WaveReport {
   text: string;
   rows: WaveReportRow[];
   summary: { trips: number; lines: number; picked: number; shorts: number; cancelled: number; plannedMetres: number; walkedMetres: number };
+  /** The site's IANA time zone: every time in the workbook and the text is in it, and named. */
+  timeZone: string;
 }
 
 const round1 = (v: number) => Math.round(v * 10) / 10;
@@ -43,6 +48,8 @@ const words = (v: number | null, unit: string, none: string) => (v === null ? no
 
 export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveReport> {
   const wave = (await getWaveRow(db, waveId))!;
+  const zone = await siteTimeZone(db, wave.site_id);
+  const at = (iso: string | null) => formatInZone(iso, zone);
   const trips: (DbTripRow & { picker_name: string | null })[] = await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').where('trips.wave_id', waveId).orderBy('trips.n').select('trips.*', 'users.name as picker_name');
   const rows: WaveReportRow[] = [];
   for (const t of trips) {
@@ -87,30 +94,34 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
     .select('pick_lines.order_ref', 'pick_lines.sku', 'pick_lines.bin', 'pick_shorts.qty_ordered', 'pick_shorts.qty_found', 'pick_shorts.reason', 'pick_shorts.reported_at', 'users.name', 'trips.n');
 
   const wb = XLSX.utils.book_new();
-  const tripSheet = XLSX.utils.aoa_to_sheet([
-    ['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', 'started (UTC)', 'finished (UTC)'],
-    ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, cell(r.plannedMetres), cell(r.walkedMetres), cell(r.estMinutes), cell(r.minutes), r.startedAt ?? '', r.finishedAt ?? '']),
+  const tripSheet = XLSX.utils.aoa_to_sheet(neutraliseCells([
+    ['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', `started (${zone})`, `finished (${zone})`],
+    ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, cell(r.plannedMetres), cell(r.walkedMetres), cell(r.estMinutes), cell(r.minutes), at(r.startedAt), at(r.finishedAt)]),
     ['total', '', '', sum((r) => r.stops), sum((r) => r.stopsDone), summary.lines, summary.picked, summary.shorts, summary.cancelled, cell(summary.plannedMetres), cell(summary.walkedMetres), cell(sum((r) => r.estMinutes)), '', '', ''],
-  ]);
+  ]));
   XLSX.utils.book_append_sheet(wb, tripSheet, 'trips');
-  const shortSheet = XLSX.utils.aoa_to_sheet([
-    ['trip', 'order', 'sku', 'bin', 'ordered', 'found', 'reason', 'reported by', 'reported (UTC)'],
-    ...shorts.map((s) => [s.n, s.order_ref, s.sku, s.bin, s.qty_ordered, s.qty_found, SHORT_REASON_LABELS[s.reason] ?? s.reason, s.name ?? '', s.reported_at]),
-  ]);
+  const shortSheet = XLSX.utils.aoa_to_sheet(neutraliseCells([
+    ['trip', 'order', 'sku', 'bin', 'ordered', 'found', 'reason', 'reported by', `reported (${zone})`],
+    ...shorts.map((s) => [s.n, s.order_ref, s.sku, s.bin, s.qty_ordered, s.qty_found, SHORT_REASON_LABELS[s.reason] ?? s.reason, s.name ?? '', at(s.reported_at)]),
+  ]));
   XLSX.utils.book_append_sheet(wb, shortSheet, 'shorts');
   const xlsx = XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
 
+  const firstStart = rows.map((r) => r.startedAt).filter((x): x is string => !!x).sort()[0] ?? null;
+  const lastFinish = rows.map((r) => r.finishedAt).filter((x): x is string => !!x).sort().at(-1) ?? null;
   const safeName = wave.name.replace(/[^A-Za-z0-9-]+/g, '-').replace(/^-|-$/g, '') || `wave-${wave.id}`;
   const text = [
     `Wave ${wave.name} is ${wave.status === 'completed' ? 'complete' : wave.status}.`,
     '',
     `Trips: ${summary.trips}. Lines: ${summary.lines} (${summary.picked} picked, ${summary.shorts} short, ${summary.cancelled} cancelled).`,
     `Walking: ${round1(summary.walkedMetres)} m walked against ${round1(summary.plannedMetres)} m planned.${rows.some((r) => r.walkedMetres === null) ? ' Trips whose walk could not be measured (a closed stretch) are left out of the walked total.' : ''}`,
+    ...(firstStart ? [`Picking: first trip started ${at(firstStart)}, last trip finished ${lastFinish ? at(lastFinish) : '(not yet)'} (${zone}).`] : []),
     '',
     'Per trip:',
     ...rows.map((r) => `  Trip ${r.trip}${r.picker ? ` (${r.picker})` : ''}: ${r.status}, ${r.lines} lines, ${r.shorts} short, planned ${words(r.plannedMetres, 'm', 'not known')}, walked ${words(r.walkedMetres, 'm', 'not measurable')}, ${words(r.minutes, 'min', 'not timed')}`),
     '',
     'The attached workbook has one row per trip and one per short.',
+    `Times are in the site's time zone, ${zone}.`,
   ].join('\n');
-  return { filename: `wave-report-${safeName}.xlsx`, xlsx, text, rows, summary };
+  return { filename: `wave-report-${safeName}.xlsx`, xlsx, text, rows, summary, timeZone: zone };
 }

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
 import type { CartProfile, Site, SiteSettings } from '../../shared/sites';
+import { isIanaTimeZone } from '../../shared/time-zone';
 
 type Q = Knex | Knex.Transaction;
 
@@ -66,4 +67,13 @@ export async function getSite(db: Q, id: number): Promise<Site | null> {
 export async function listSitesOf(db: Q, userId: number, role: Role): Promise<DbSiteRow[]> {
   if (role === 'admin') return db<DbSiteRow>('sites').orderBy('name');
   return db<DbSiteRow>('sites').join('user_sites', 'user_sites.site_id', 'sites.id').where('user_sites.user_id', userId).orderBy('sites.name').select('sites.*');
+}
+
+/**
+ * The site's IANA time zone for times shown, printed, mailed and exported; 'UTC' for a missing site
+ * or a zone this runtime does not know (values stored before zones were checked).
+ */
+export async function siteTimeZone(db: Q, siteId: number): Promise<string> {
+  const row = await db('sites').where({ id: siteId }).first<{ timezone: string } | undefined>('timezone');
+  return row && isIanaTimeZone(row.timezone) ? row.timezone : 'UTC';
 }

@@ -13,7 +13,7 @@ import { AppError, notFound } from '../http/errors';
 import { readTableFile } from '../orders/orders.files';
 import { validateOrderRows } from '../orders/orders.validate';
 import { getCartProfile, getSiteRow } from '../sites/sites.repository';
-import { runInWorker } from '../workers/spawn';
+import { jobStopMessage, runInWorker } from '../workers/spawn';
 import {
   SlottingApplyBody,
   SlottingInputs,
@@ -189,7 +189,8 @@ function enqueue(deps: Deps, id: number, job: SlottingJobInput): void {
     try {
       const results = await runInWorker<SlottingResults, number>(new URL('./slotting.worker.ts', import.meta.url), job, {
         timeoutMs: RUN_TIMEOUT_MS,
-        resourceLimits: { maxOldGenerationSizeMb: 1024 },
+        heapMb: 1024,
+        signal: live.cancel.signal,
         onProgress: (f) => {
           live.progress = f;
         },
@@ -199,7 +200,7 @@ function enqueue(deps: Deps, id: number, job: SlottingJobInput): void {
     } catch (err) {
       if (live.cancel.signal.aborted) return;
       deps.logger.warn({ err, slottingRun: id }, 'slotting run failed');
-      await setRun(deps.db, id, { status: 'failed', error: `The run stopped: ${(err as Error).message}`, finished_at: nowIso() });
+      await setRun(deps.db, id, { status: 'failed', error: jobStopMessage('The run', err) ?? `The run stopped: ${(err as Error).message}`, finished_at: nowIso() });
     } finally {
       state.live.delete(id);
     }

@@ -3,6 +3,8 @@
  * figures rounded as the page shows them (metres and hours to 0.1 / 0.01, percentages to 0.01).
  */
 import * as XLSX from 'xlsx';
+import { neutraliseCells } from '../../shared/input-rules';
+import { formatInZone } from '../../shared/time-zone';
 import { BATCHING_LABELS } from '../../shared/waves';
 import type { StudyDetail, StudyResults } from '../../shared/studies';
 import { ROUTING_LABELS } from '../../shared/studies';
@@ -11,20 +13,24 @@ const r1 = (v: number | null): number | string => (v === null ? '' : Math.round(
 const r2 = (v: number | null): number | string => (v === null ? '' : Math.round(v * 100) / 100);
 const r0 = (v: number): number => Math.round(v);
 
+/** Text cells (study names, labels, notes typed by people) never start a formula (OWASP, "CSV Injection"). */
+const sheetOf = (rows: (string | number)[][]) => XLSX.utils.aoa_to_sheet(neutraliseCells(rows));
+
 /** Sheet names are at most 31 characters and unique. */
 const sheetName = (base: string, variant: number): string => (variant === 0 ? base : `${base} what-if ${variant}`).slice(0, 31);
 
 export const ROUTING_HEADER = ['method', 'label', 'total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms', 'note'];
 export const BATCHING_HEADER = ['batching', 'label', 'trips', 'orders', 'lines', 'total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms'];
 
-export function studyWorkbook(study: StudyDetail & { results: StudyResults }): Buffer {
+/** `timeZone`: the site's IANA zone; the created time is written in it, and the zone named. */
+export function studyWorkbook(study: StudyDetail & { results: StudyResults }, timeZone = 'UTC'): Buffer {
   const wb = XLSX.utils.book_new();
   const res = study.results;
   const inputs: (string | number)[][] = [
     ['study', study.name],
     ['id', study.id],
     ['seed', study.seed],
-    ['created', study.createdAt],
+    [`created (${timeZone})`, formatInZone(study.createdAt, timeZone)],
     ['created by', study.createdBy ?? ''],
     ['work', study.inputs.work.kind],
     ['routing methods', study.inputs.routing.join(', ')],
@@ -41,7 +47,7 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }): B
     ...study.inputs.whatIfs.map((w, i) => [`what-if ${i + 1}`, `${w.label}: ${JSON.stringify(w.changes)}`]),
     ...res.notes.map((n) => ['note', n]),
   ];
-  XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(inputs), 'inputs');
+  XLSX.utils.book_append_sheet(wb, sheetOf(inputs), 'inputs');
 
   res.variants.forEach((v, vi) => {
     const routing = [
@@ -49,20 +55,20 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }): B
       ROUTING_HEADER,
       ...v.routing.map((r) => [r.key, r.label, r1(r.metres), r1(r.metresPerTrip), r2(r.metresPerLine), r2(r.aboveBestPct), r2(r.aboveBoundPct), r2(r.hours), r2(r.hoursPerDay), r0(r.ms), r.reason ?? '']),
     ];
-    XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(routing), sheetName('routing', vi));
+    XLSX.utils.book_append_sheet(wb, sheetOf(routing), sheetName('routing', vi));
     const batching = [
       [`${v.label}`],
       BATCHING_HEADER,
       ...v.batching.map((b) => [b.method, BATCHING_LABELS[b.method], b.trips, b.orders, b.lines, r1(b.metres), r1(b.metresPerTrip), r2(b.metresPerLine), r2(b.aboveBestPct), r2(b.aboveBoundPct), r2(b.hours), r2(b.hoursPerDay), r0(b.ms)]),
     ];
-    XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(batching), sheetName('batching', vi));
+    XLSX.utils.book_append_sheet(wb, sheetOf(batching), sheetName('batching', vi));
     const keys = v.routing.map((r) => r.key);
     const trips = [
       [`${v.label}`],
       ['trip', 'wave', 'orders', 'stops', 'lines', 'lower bound m', ...keys.map((k) => `${ROUTING_LABELS[k]} m`)],
       ...v.trips.map((t) => [t.n, t.wave, t.orders, t.nodes.length, t.lines, r1(t.lowerBound), ...keys.map((k) => r1(t.metres[k] ?? null))]),
     ];
-    XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(trips), sheetName('trips', vi));
+    XLSX.utils.book_append_sheet(wb, sheetOf(trips), sheetName('trips', vi));
   });
 
   if (res.whatIf.length) {
@@ -70,14 +76,14 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }): B
       ['what-if', 'method', 'plan as it is m', 'what-if m', 'difference m', 'difference %', 'difference picker hours per day', 'note'],
       ...res.whatIf.map((w) => [w.label, w.methodLabel, r1(w.baseMetres), r1(w.metres), r1(w.deltaMetres), r2(w.deltaPct), r2(w.deltaHoursPerDay), w.note ?? '']),
     ];
-    XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(rows), 'what-if');
+    XLSX.utils.book_append_sheet(wb, sheetOf(rows), 'what-if');
   }
   if (res.recorded) {
     const rows = [
       ['wave id', 'wave', 'trips', 'confirmed trips', 'planned m', 'planned m (confirmed trips)', 'walked m as confirmed', 'walked % above planned', 'default method today m'],
       ...res.recorded.map((w) => [w.waveId, w.name, w.trips, w.confirmedTrips, r1(w.plannedMetres), r1(w.plannedConfirmedMetres), r1(w.walkedMetres), r2(w.walkedAbovePlannedPct), r1(w.defaultMetres)]),
     ];
-    XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(rows), 'recorded waves');
+    XLSX.utils.book_append_sheet(wb, sheetOf(rows), 'recorded waves');
   }
   return XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
 }

@@ -5,6 +5,7 @@ import { StudyDetail, StudyInputs, StudyRoute, StudyRouteQuery, StudySummary } f
 import { defineRoute } from '../http/route';
 import { parseOr400 } from '../http/validate';
 import { studyWorkbook } from './export';
+import { siteTimeZone } from '../sites/sites.repository';
 import { cancelStudy, createStudy, doneStudy, getStudy, listStudies, rerunStudy, studyPlan, studyRoute } from './studies.service';
 
 /** Engineers run studies; supervisors read and run them too. Pickers and admins are not given them. */
@@ -59,7 +60,7 @@ export const studyRoutes = [
       const study = await doneStudy(deps.db, siteId!, idOf(params));
       res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
       res.setHeader('Content-Disposition', `attachment; filename="study-${study.id}.xlsx"`);
-      res.send(studyWorkbook(study));
+      res.send(studyWorkbook(study, await siteTimeZone(deps.db, siteId!)));
       return undefined;
     },
   }),

@@ -2,7 +2,6 @@
  * Studies: gather the work (recorded waves, or a plan and generated orders), run it in a worker with
  * progress and cancel, save inputs and results, and answer the screens (plans, routes, workbook).
  */
-import type { Worker } from 'node:worker_threads';
 import type { Knex } from 'knex';
 import type { Deps } from '../deps';
 import { nowIso } from '../db/knex';
@@ -12,7 +11,7 @@ import { getPlanRowById } from '../floor-plans/floor-plans.repository';
 import { engineParams } from '../floor-plans/floor-plans.service';
 import { AppError, notFound } from '../http/errors';
 import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
-import { spawnTsWorker } from '../workers/spawn';
+import { jobStopMessage, runInWorker, WorkerCancelledError } from '../workers/spawn';
 import type { PlannerOrder } from '../waves/wave-planner';
 import {
   ROUTING_LABELS,
@@ -34,8 +33,10 @@ import {
 
 /** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
 const FALLBACK_CART = { totes: 8, maxKg: 150, maxLitres: 400 };
-/** A study worker is stopped after this long; the engine's own budgets are step counts, not time. */
+/** A study's process is stopped after this long; the engine's own budgets are step counts, not time. */
 const STUDY_TIMEOUT_MS = 15 * 60_000;
+/** Heap cap of a study's process (MiB): the largest plans' distance index plus every variant's routes. */
+const STUDY_HEAP_MB = 1536;
 
 type Work = Omit<StudyEngineInput, 'progress'>;
 
@@ -157,7 +158,8 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
 interface Job {
   progress: number;
   phase: string | null;
-  worker: Worker | null;
+  /** Cancels the study: its process is killed. */
+  abort: AbortController;
   cancelled: boolean;
 }
 
@@ -166,47 +168,35 @@ const jobs = new Map<number, Job>();
 /** Studies run one at a time: the machine has two cores shared with every request. */
 let queue: Promise<unknown> = Promise.resolve();
 
-function runWorker(id: number, job: Job, work: Work): Promise<StudyResults> {
-  return new Promise<StudyResults>((resolve, reject) => {
-    const worker = spawnTsWorker(new URL('./study.worker.ts', import.meta.url), work, { maxOldGenerationSizeMb: 1536 });
-    job.worker = worker;
-    let settled = false;
-    const finish = (fn: () => void) => {
-      if (settled) return;
-      settled = true;
-      clearTimeout(timer);
-      job.worker = null;
-      fn();
-      void worker.terminate();
-    };
-    const timer = setTimeout(() => finish(() => reject(new Error(`the study did not finish within ${STUDY_TIMEOUT_MS / 60_000} minutes`))), STUDY_TIMEOUT_MS);
-    worker.on('message', (msg: { type: string; progress?: StudyProgress; result?: StudyResults; message?: string }) => {
-      if (msg.type === 'progress' && msg.progress) {
-        job.progress = msg.progress.fraction;
-        job.phase = msg.progress.phase;
-      } else if (msg.type === 'result') finish(() => resolve(msg.result!));
-      else if (msg.type === 'error') finish(() => reject(new Error(msg.message)));
-    });
-    worker.on('error', (err) => finish(() => reject(err)));
-    worker.on('exit', (code) => finish(() => reject(new Error(job.cancelled ? 'cancelled' : `the study worker stopped (code ${code})`))));
+/** Runs the study in its own process: whatever goes wrong in it fails this study only. */
+function runWorker(job: Job, work: Work): Promise<StudyResults> {
+  return runInWorker<StudyResults, StudyProgress>(new URL('./study.worker.ts', import.meta.url), work, {
+    timeoutMs: STUDY_TIMEOUT_MS,
+    heapMb: STUDY_HEAP_MB,
+    signal: job.abort.signal,
+    onProgress: (p) => {
+      job.progress = p.fraction;
+      job.phase = p.phase;
+    },
   });
 }
 
 function enqueue(deps: Deps, id: number, work: Work): void {
-  const job: Job = { progress: 0, phase: 'queued', worker: null, cancelled: false };
+  const job: Job = { progress: 0, phase: 'queued', abort: new AbortController(), cancelled: false };
   jobs.set(id, job);
   const run = queue.then(async () => {
     if (job.cancelled) return;
     await setStudyStatus(deps.db, id, { status: 'running' });
     job.phase = 'starting';
     try {
-      const results = await runWorker(id, job, work);
+      const results = await runWorker(job, work);
       if (job.cancelled) return;
       await setStudyStatus(deps.db, id, { status: 'done', results: JSON.stringify(results), finished_at: nowIso() });
     } catch (err) {
-      if (job.cancelled) return;
+      if (job.cancelled || err instanceof WorkerCancelledError) return;
       deps.logger.warn({ err, study: id }, 'study failed');
-      await setStudyStatus(deps.db, id, { status: 'failed', error: (err as Error).message, finished_at: nowIso() });
+      const error = jobStopMessage('The study', err) ?? (err as Error).message;
+      await setStudyStatus(deps.db, id, { status: 'failed', error, finished_at: nowIso() });
     } finally {
       jobs.delete(id);
     }
@@ -260,14 +250,14 @@ export async function getStudy(db: Knex, siteId: number, id: number): Promise<St
   return toDetail(await settleOrphan(db, row), jobs.get(id));
 }
 
-/** Stops a queued or running study (its worker is terminated); a finished one is left as it is. */
+/** Stops a queued or running study (its process is killed); a finished one is left as it is. */
 export async function cancelStudy(deps: Deps, siteId: number, id: number): Promise<StudySummary> {
   const row = await getStudyRow(deps.db, siteId, id);
   if (!row) throw notFound('Study');
   const job = jobs.get(id);
   if (!job) throw new AppError('conflict', 'not_running', `This study is ${row.status}; only a queued or running study can be cancelled`);
   job.cancelled = true;
-  await job.worker?.terminate();
+  job.abort.abort();
   jobs.delete(id);
   await setStudyStatus(deps.db, id, { status: 'cancelled', finished_at: nowIso() });
   return (await getStudySummary(deps.db, siteId, id))!;

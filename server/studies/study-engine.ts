@@ -16,7 +16,7 @@ import { circuitLength } from '../core/matrix';
 import type { DistanceMatrix } from '../core/matrix';
 import { buildDistanceIndex, circuitPolyline, pairDistance, tripMatrix, type DistanceIndex } from '../core/plan/distances';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
-import { buildWalkGraph, type WalkGraph } from '../core/plan/walk-graph';
+import { buildWalkGraph, reachableFrom, type WalkGraph } from '../core/plan/walk-graph';
 import { toBlockLayout, type BlockLayout } from '../core/policy/layout';
 import { combined, largestGap, midpoint, returnPolicy, sShape } from '../core/policy/policies';
 import { ratliffRosenthal } from '../core/policy/ratliff-rosenthal';
@@ -50,6 +50,8 @@ export const DEEP_STEPS = 1500;
 const BOUND_STEPS = 400;
 /** Effectively unlimited, but finite where a method insists on a finite budget. */
 const UNLIMITED_STEPS = 1e12;
+/** Budget of the `search` batching in steps (it searches until its budget ends). */
+export const SEARCH_STEPS = 6000;
 
 export interface StudyPlanInput {
   geometry: PlanGeometry;
@@ -140,6 +142,8 @@ export interface BuiltPlan {
   /** Block layout for the routing policies, or why they do not apply. */
   layout: BlockLayout | { reason: string };
   stopOf: (node: number) => PolicyStop | null;
+  /** False for a node no walk from the depot reaches (a closed stretch cuts it off). */
+  reachesDepot: (node: number) => boolean;
 }
 
 /** Walk graph and distance index of a plan (O(bins log bins + hubs² log hubs), ~70 ms at 2,880 bins). */
@@ -162,7 +166,9 @@ export function buildPlan(input: StudyPlanInput): BuiltPlan {
     const i = layout.aisleIndex.get(input.geometry.aisles[a]!.code);
     return i === undefined ? null : { aisle: i, y: graph.y[node]! };
   };
-  return { input, graph, index, depotNode, nodeOfBin, layout, stopOf };
+  const reached = reachableFrom(graph, depotNode);
+  const reachesDepot = (node: number): boolean => reached[node] === 1;
+  return { input, graph, index, depotNode, nodeOfBin, layout, stopOf, reachesDepot };
 }
 
 const POLICY_FNS = {
@@ -266,7 +272,7 @@ interface WorkTrip {
 /** Trips of one wave by a batching method: distinct stop nodes (ascending) per batch. */
 function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: BatchingName, wave: number): { trips: WorkTrip[]; unplaced: { order: string; reason: string }[] } {
   const r = batchOrders({
-    orders, cart, method, depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), clock: stepClock(), timeLimitMs: UNLIMITED_STEPS,
+    orders, cart, method, depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), clock: stepClock(), timeLimitMs: method === 'search' ? SEARCH_STEPS : UNLIMITED_STEPS,
   });
   const trips = r.batches.map((b) => {
     const nodes = new Set<number>();
@@ -280,7 +286,23 @@ function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: Batchin
   return { trips, unplaced: r.unplaced.map((u) => ({ order: u.order, reason: u.reason })) };
 }
 
-const matrixOfTrip = (plan: BuiltPlan, nodes: readonly number[]): DistanceMatrix => tripMatrix(plan.index, [plan.depotNode, ...nodes]);
+/**
+ * Depot + stops matrix of a trip. A pair no walk joins would send the tour and bound searches into
+ * endless work (it once took the whole server down), so it stops the study with a plain message instead.
+ */
+function matrixOfTrip(plan: BuiltPlan, nodes: readonly number[]): DistanceMatrix {
+  const m = tripMatrix(plan.index, [plan.depotNode, ...nodes]);
+  for (let i = 0; i < m.d.length; i++) {
+    if (!Number.isFinite(m.d[i]!)) throw new StudyInputError('a trip holds a stop no walk from the depot reaches; the study cannot route it');
+  }
+  return m;
+}
+
+/** One entry per order: the first reason met (batching and the recorded trips may both report it). */
+function oncePerOrder(list: readonly { order: string; reason: string }[]): { order: string; reason: string }[] {
+  const seen = new Set<string>();
+  return list.filter((u) => !seen.has(u.order) && seen.add(u.order));
+}
 const pct = (a: number, b: number): number => (b > 0 ? (a / b - 1) * 100 : 0);
 const hoursOf = (trips: readonly { lines: number; stops: number; metres: number }[], s: SiteSpeeds): number =>
   trips.reduce((h, t) => h + estimateMinutes(t.metres, t.lines, t.stops, s) / 60, 0);
@@ -354,17 +376,39 @@ export function runStudy(input: StudyEngineInput): StudyResults {
     if (input.tripsFrom === 'recorded') {
       work = [];
       input.waves.forEach((w, wi) => {
-        for (const t of w.recorded ?? []) {
+        const orderOf = new Map(w.orders.map((o) => [o.ref, o]));
+        (w.recorded ?? []).forEach((t, ti) => {
           const nodes = new Set<number>();
+          const cutBins = new Set<string>();
           let missing = 0;
-          for (const bins of t.stopBins) for (const b of bins) {
-            const node = plan.nodeOfBin.get(b);
-            if (node === undefined) missing++;
-            else if (node !== plan.depotNode) nodes.add(node);
+          let cutStops = 0;
+          for (const bins of t.stopBins) {
+            let cut = false;
+            for (const b of bins) {
+              const node = plan.nodeOfBin.get(b);
+              if (node === undefined) missing++;
+              else if (!plan.reachesDepot(node)) {
+                cutBins.add(b);
+                cut = true;
+              } else if (node !== plan.depotNode) nodes.add(node);
+            }
+            if (cut) cutStops++;
           }
           if (missing) notes.push(`${v.label}: ${missing} bin(s) of a trip of ${w.name} are not on this plan and were left out`);
-          work.push({ wave: wi + 1, orders: t.orders.length, lines: t.lines, nodes: [...nodes].sort((a, b) => a - b) });
-        }
+          // A stop a closure cuts off is an unreachable stop: its lines leave the trip and its orders are
+          // reported with the same reason batching gives, so the what-if is not compared like for like.
+          let lines = t.lines;
+          if (cutStops) {
+            for (const ref of t.orders) {
+              const lost = orderOf.get(ref)?.lines.filter((l) => cutBins.has(l.bin)) ?? [];
+              if (!lost.length) continue;
+              lines -= lost.length;
+              unplaced.push({ order: ref, reason: `bin ${lost[0]!.bin} of SKU ${lost[0]!.sku} cannot be reached from the depot` });
+            }
+            notes.push(`${v.label}: ${cutStops} stop(s) of trip ${ti + 1} of ${w.name} cannot be reached from the depot (cut off by a closed stretch) and were left out of its route`);
+          }
+          work.push({ wave: wi + 1, orders: t.orders.length, lines: Math.max(0, lines), nodes: [...nodes].sort((a, b) => a - b) });
+        });
       });
     } else {
       work = batchedTrips.get(input.tripsFrom) ?? [];
@@ -422,7 +466,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
         aisles: planInput.geometry.aisles.length, crossAisles: planInput.geometry.crossAisles.length, bins: planInput.geometry.bins.length,
         blocks: isNotApplicable(plan.layout) ? null : plan.layout.blocks, policyNote: isNotApplicable(plan.layout) ? plan.layout.reason : null,
       },
-      depotNode: plan.depotNode, routing, batching, trips, unplaced, lowerBound, lines,
+      depotNode: plan.depotNode, routing, batching, trips, unplaced: oncePerOrder(unplaced), lowerBound, lines,
     });
   }
 
@@ -500,7 +544,8 @@ function recordedRows(plan: BuiltPlan, waves: readonly StudyWave[], trips: reado
 export function confirmedWalk(plan: BuiltPlan, confirmedBins: readonly string[][]): number {
   const nodes: number[] = [plan.depotNode];
   for (const bins of confirmedBins) {
-    const node = bins.map((b) => plan.nodeOfBin.get(b)).find((n) => n !== undefined);
+    // A stop cut off since it was picked has no walk to measure on today's plan: left out.
+    const node = bins.map((b) => plan.nodeOfBin.get(b)).find((n) => n !== undefined && plan.reachesDepot(n));
     if (node !== undefined) nodes.push(node);
   }
   if (nodes.length === 1) return 0;

@@ -6,9 +6,10 @@ import { loadPlanIndex, activePlanId } from '../floor-plans/plan-index';
 import { getPlanRowById, loadGraphSets } from '../floor-plans/floor-plans.repository';
 import { AppError, notFound } from '../http/errors';
 import { linesOf, skuMap, type DbOrderRow } from '../orders/orders.repository';
-import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
+import { formatInZone } from '../../shared/time-zone';
+import { getCartProfile, getSiteRow, settingsOf, siteTimeZone } from '../sites/sites.repository';
 import { siteMembersWithRole } from '../users/users.repository';
-import { runInWorker } from '../workers/spawn';
+import { jobStopMessage, runInWorker } from '../workers/spawn';
 import { circuitPolyline } from '../core/plan/distances';
 import type { PlannerOrder, PlannerOutput } from './wave-planner';
 import type { PlanJobData } from './plan.worker';
@@ -23,6 +24,8 @@ const pairs = (flat: number[]): [number, number][] => {
 
 /** Waves plan one at a time: the machine has two cores shared with every request. */
 let planQueue: Promise<unknown> = Promise.resolve();
+/** Heap cap of a planning process (MiB): the plan's distance index plus the wave's matrices. */
+const PLAN_HEAP_MB = 1024;
 
 /** Loads the chosen open orders with their lines slotted from the SKU master. */
 async function plannerOrders(db: Knex, siteId: number, orderIds: number[]): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
@@ -124,6 +127,7 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
     updatePreviewJob(job.id, { phase: 'planning' });
     const out = await runInWorker<PlannerOutput, number>(new URL('./plan.worker.ts', import.meta.url), data, {
       timeoutMs: 60_000,
+      heapMb: PLAN_HEAP_MB,
       onProgress: (f) => updatePreviewJob(job.id, { progress: Math.min(0.99, f) }),
     });
     const preview = toPreview(job.id, out, { planId, planVersion: planRow.version ?? 0, cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, body, unslotted });
@@ -131,7 +135,7 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
   });
   planQueue = run.catch((err: unknown) => {
     deps.logger.warn({ err }, 'wave preview failed');
-    updatePreviewJob(job.id, { state: 'failed', phase: 'failed', error: { code: 'planning_failed', message: (err as Error).message } });
+    updatePreviewJob(job.id, { state: 'failed', phase: 'failed', error: { code: 'planning_failed', message: jobStopMessage('Planning', err) ?? (err as Error).message } });
   });
   return job;
 }
@@ -228,8 +232,9 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
 
 async function mailReleaseSummary(deps: Deps, siteId: number, w: WaveDetail, speed: number): Promise<void> {
   const supervisors = (await siteMembersWithRole(deps.db, siteId, 'supervisor')).filter((s) => s.email);
+  const zone = await siteTimeZone(deps.db, siteId);
   const lines = [
-    `${w.name} was released by ${w.createdBy ?? 'a supervisor'}.`,
+    `${w.name} was released by ${w.createdBy ?? 'a supervisor'} at ${formatInZone(w.createdAt, zone)} (${zone}).`,
     '',
     `Trips: ${w.trips}   Orders: ${w.orders}   Lines: ${w.lines}`,
     `Planned walking: ${w.plannedMetres.toFixed(0)} m (≈ ${(w.plannedMetres / speed / 60).toFixed(0)} min at ${speed} m/s); estimated work ${w.estMinutes.toFixed(0)} min`,

@@ -4,8 +4,18 @@
  * planning time of a 300-order (~1,500-line) wave with the default routing against the issue's
  * target of 3 s on this machine. Wall time is judged against the target; CPU time (this process,
  * user + system) is printed beside it because the machine's 2 cores are shared with other work.
+ *
+ * Then batching by search against savings (issue 14): per generated site, the walking of `search`
+ * after 2 s, the default budget (40 % of the 8 s wave budget = 3.2 s) and 8 s beside savings', and the
+ * planning time of a 300-order wave with `search`, the wave builder's default. Walking is the sum of
+ * each trip's circuit with the wave's default routing (best + local). Options (environment):
+ * BENCH_LONG=1 adds the 30 s column; BENCH_CLOCK=cpu counts the search budgets in this process's CPU
+ * time instead of wall time (on a shared machine wall time gives the search whatever CPU is left).
  */
 import { loadavg } from 'node:os';
+import { batchOrders } from '../../server/core/batch/index';
+import type { SearchStats } from '../../server/core/batch/index';
+import type { Clock } from '../../server/core/clock';
 import { planWave, policyComparisonOf } from '../../server/core/batch/plan-wave';
 import type { PlanWaveResult } from '../../server/core/batch/plan-wave';
 import type { BatchingMethod, Cart } from '../../server/core/batch/types';
@@ -43,7 +53,88 @@ const studies: Study[] = [
 const fmt = (v: number, d = 1): string => v.toFixed(d);
 const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
+interface SearchScenario {
+  name: string;
+  floor: RectangularPlanParams;
+  orders: OrderGenOptions;
+  cart: Cart;
+  seed: number;
+}
+
+/** Single-block and multi-block sites, 60–400 orders of 1–8 lines, carts of 4–16 totes (issue 14). */
+const SEARCH_SCENARIOS: SearchScenario[] = [
+  { name: 'single block, 10 aisles × 30 m, 60 orders × 1–4 lines, 8 totes', floor: { aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 15, levels: 3 }, orders: { orders: 60, minLines: 1, maxLines: 4 }, cart: { totes: 8, maxKg: 150, maxLitres: 400 }, seed: 11 },
+  { name: 'single block, 14 aisles × 36 m, 150 orders × 2–5 lines, 4 totes', floor: { aisles: 14, aisleLengthM: 36, aisleSpacingM: 3, baysPerAisle: 18, levels: 3 }, orders: { orders: 150, minLines: 2, maxLines: 5 }, cart: { totes: 4, maxKg: 80, maxLitres: 200 }, seed: 12 },
+  { name: 'single block, 16 aisles × 40 m, 200 orders × 1–8 lines, 12 totes', floor: { aisles: 16, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4 }, orders: { orders: 200, minLines: 1, maxLines: 8 }, cart: { totes: 12, maxKg: 220, maxLitres: 600 }, seed: 13 },
+  { name: 'multi-block, 20 aisles × 40 m, middle cross aisle, 300 orders × 3–7 lines, 8 totes', floor: { aisles: 20, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4, crossAisles: { middle: 1 } }, orders: { orders: 300, minLines: 3, maxLines: 7 }, cart: { totes: 8, maxKg: 150, maxLitres: 400 }, seed: 1 },
+  { name: 'multi-block, 24 aisles × 50 m, 2 middle cross aisles, 400 orders × 1–6 lines, 16 totes', floor: { aisles: 24, aisleLengthM: 50, aisleSpacingM: 3, baysPerAisle: 25, levels: 4, crossAisles: { middle: 2 } }, orders: { orders: 400, minLines: 1, maxLines: 6 }, cart: { totes: 16, maxKg: 300, maxLitres: 800 }, seed: 14 },
+];
+/** The wave builder's batching budget: 40 % of the default 8 s wave budget (server/core/batch/plan-wave.ts). */
+const DEFAULT_SEARCH_MS = 3200;
+const SEARCH_GOAL_PCT = 6;
+const PLAN_SEARCH_TARGET_MS = 8000;
+
+async function runSearch(): Promise<void> {
+  const long = process.env.BENCH_LONG === '1';
+  const cpuClock: Clock = () => {
+    const c = process.cpuUsage();
+    return (c.user + c.system) / 1000;
+  };
+  const useCpu = process.env.BENCH_CLOCK === 'cpu';
+  const clock: Clock | undefined = useCpu ? cpuClock : undefined;
+  const budgets = [2000, DEFAULT_SEARCH_MS, 8000, ...(long ? [30000] : [])];
+  console.log(`### Batching: search against savings (walking with best + local per trip; budgets on ${useCpu ? 'process CPU time (BENCH_CLOCK=cpu)' : 'wall time'}; load average ${loadavg().map((v) => fmt(v, 2)).join(' ')} on 2 cores${long ? '' : '; BENCH_LONG=1 adds 30 s'})\n`);
+  console.log(`| site and wave | trips (savings) | savings m | ${budgets.map((b) => `search ${fmt(b / 1000, 1)} s${b === DEFAULT_SEARCH_MS ? ' (default)' : ''}`).join(' | ')} |`);
+  console.log(`|---|---:|---:|${budgets.map(() => '---:').join('|')}|`);
+  const gains = budgets.map(() => [] as number[]);
+  for (const sc of SEARCH_SCENARIOS) {
+    const floor = floorOf(sc.floor);
+    const orders = generateOrders(floor, sc.seed, sc.orders);
+    const cells: string[] = [];
+    let savingsM = 0;
+    let trips = 0;
+    budgets.forEach((b, i) => {
+      const stats = {} as SearchStats;
+      const t0 = performance.now();
+      const r = batchOrders({ orders, cart: sc.cart, method: 'search', depotNode: floor.depotNode, distance: floor.distance, timeLimitMs: b, searchStats: stats, ...(clock ? { clock } : {}) });
+      const ms = performance.now() - t0;
+      if (i === 0) {
+        savingsM = stats.savingsWaveLength;
+        trips = batchOrders({ orders, cart: sc.cart, method: 'savings', depotNode: floor.depotNode, distance: floor.distance, timeLimitMs: b, ...(clock ? { clock } : {}) }).batches.length;
+      }
+      const pct = (1 - stats.waveLength / stats.savingsWaveLength) * 100;
+      gains[i]!.push(pct);
+      cells.push(`${fmt(stats.waveLength, 0)} (−${fmt(pct, 2)} %, ${r.batches.length} trips, ${fmt(ms / 1000, 1)} s wall)`);
+    });
+    console.log(`| ${sc.name} | ${trips} | ${fmt(savingsM, 0)} | ${cells.join(' | ')} |`);
+  }
+  const mean = (xs: number[]): number => xs.reduce((a, b) => a + b, 0) / xs.length;
+  console.log(`| **mean less walking than savings** | | | ${gains.map((g) => `**${fmt(mean(g), 2)} %**`).join(' | ')} |`);
+  const atDefault = mean(gains[budgets.indexOf(DEFAULT_SEARCH_MS)]!);
+  console.log(`\nGoal: at least ${SEARCH_GOAL_PCT} % less walking than savings on average at the default budget: ${fmt(atDefault, 2)} % → ${atDefault >= SEARCH_GOAL_PCT ? 'pass' : 'FAIL'}\n`);
+
+  // Planning time of a 300-order wave with search (default wave budget 8 s), wall time.
+  const big = SEARCH_SCENARIOS[3]!;
+  const floor = floorOf(big.floor);
+  const policy = policyComparisonOf(floor.plan, floor.graph);
+  const orders = generateOrders(floor, big.seed, big.orders);
+  console.log(`### Planning time with search: ${orders.length} orders, ${orders.reduce((n, o) => n + o.lines.length, 0)} lines, default wave budget (8 s), default routing, bounds and S-shape included; wall time\n`);
+  console.log('| batching | trips | total m | batching ms | wave ms | CPU ms | target ≤ 8 s |');
+  console.log('|---|---:|---:|---:|---:|---:|---|');
+  for (const m of ['savings', 'search'] as BatchingMethod[]) {
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    const w = planWave({ orders, cart: big.cart, batching: m, depotNode: floor.depotNode, distance: floor.distance, ...(isNotApplicable(policy) ? {} : { policyLayout: policy }) });
+    const ms = performance.now() - t0;
+    const c = process.cpuUsage(c0);
+    console.log(`| ${m} | ${w.totals.trips} | ${fmt(w.totals.metres, 0)} | ${fmt(w.batching.ms, 0)} | ${fmt(ms, 0)} | ${fmt((c.user + c.system) / 1000, 0)} | ${ms <= PLAN_SEARCH_TARGET_MS ? 'pass' : 'FAIL'} |`);
+  }
+  console.log('');
+}
+
 export async function run(): Promise<void> {
+  await runSearch();
+  if (process.env.BENCH_SEARCH_ONLY === '1') return;
   for (const s of studies) {
     const floor = floorOf(s.floor);
     const rows = new Map<BatchingMethod, { metres: number[]; trips: number[]; pct: number[] }>(METHODS.map((m) => [m, { metres: [], trips: [], pct: [] }]));

@@ -1,6 +1,6 @@
 /**
  * A 300-order (~1,500-line) wave planned through the server as a supervisor would: POST the preview,
- * poll the job to the end (the engine runs in a worker thread). Meanwhile another client calls
+ * poll the job to the end (the engine runs in a job process of its own). Meanwhile another client calls
  * /api/health every 20 ms; its latencies, measured in the same run, show whether planning blocks
  * other requests. Target: the wave in under 3 s on this machine.
  */

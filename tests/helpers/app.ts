@@ -14,6 +14,7 @@ import type { Deps } from '../../server/deps';
 import { migrateLatest, openDb } from '../../server/db/knex';
 import { createMailer } from '../../server/mail/mailer';
 import { createBackground } from '../../server/system/background';
+import { createBoardStreams } from '../../server/picking/board-streams';
 import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS, seedDemoIfEmpty, type DemoSeeder } from '../../server/seed/demo';
 import { CSRF_HEADER, CSRF_VALUE, type Role } from '../../shared/common';
 
@@ -30,12 +31,13 @@ export interface TestApp {
 /** Test-only argon2 cost: the same algorithm, less memory, so suites stay fast. */
 const testHasher = () => createHasher({ memoryCost: 1024, timeCost: 1 });
 
-export async function makeDeps(): Promise<Deps> {
-  const db = openDb(':memory:');
+/** Deps over a fresh in-memory database, or over `file` (a real SQLite file, WAL as in production). */
+export async function makeDeps(file = ':memory:'): Promise<Deps> {
+  const db = openDb(file);
   await migrateLatest(db);
   const logger = pino({ level: 'silent' });
   return {
-    config: loadConfig({ DATABASE_FILE: ':memory:', PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
+    config: loadConfig({ DATABASE_FILE: file, PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
     hasher: testHasher(),
     backoff: new SignInBackoff(db),
@@ -44,6 +46,7 @@ export async function makeDeps(): Promise<Deps> {
     jwtSecret: 'test-secret-that-is-long-enough-for-256-bits-0123456789',
     logger,
     version: 'test',
+    boardStreams: createBoardStreams(db, logger),
   };
 }
 
@@ -69,5 +72,8 @@ export async function makeTestApp(options: { seeders?: DemoSeeder[] } = {}): Pro
     picker: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[0].badge, pin: DEMO_PIN }),
     picker2: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[1].badge, pin: DEMO_PIN }),
   };
-  return { app, deps, as, anon: request.agent(app), siteId, close: () => deps.db.destroy() };
+  return { app, deps, as, anon: request.agent(app), siteId, close: () => {
+    deps.boardStreams.close();
+    return deps.db.destroy();
+  } };
 }

@@ -39,6 +39,22 @@ export const TSPLIB_OPTIMA: Record<string, number> = {
   kroA100: 21282,
 };
 
+/**
+ * Proven optima of the larger instances, for benchmarks (TSPLIB README table in the reference folder;
+ * TSPLIB 95 `bestSolutions`, Reinelt 1991). Kept apart from TSPLIB_OPTIMA so unit tests stay small.
+ */
+export const TSPLIB_LARGE_OPTIMA: Record<string, number> = {
+  kroA200: 29368,
+  lin318: 42029,
+  pr439: 107217,
+  rat575: 6773,
+  u724: 41910,
+  rat783: 8806,
+  pr1002: 259045,
+  d1291: 50801,
+  pr2392: 378032,
+};
+
 /** Instances that ship an .opt.tour file (TSPLIB README table). */
 export const TSPLIB_WITH_TOUR = ['ulysses16', 'ulysses22', 'att48', 'eil51', 'berlin52', 'st70', 'kroA100'];
 

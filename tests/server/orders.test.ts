@@ -50,11 +50,12 @@ describe('orders pushed by the host system', () => {
     expect(res.body).toMatchObject({ created: 0, updated: 1 });
   });
 
-  it('refuses unknown SKUs with a row-level error and saves nothing', async () => {
+  it('refuses unknown SKUs with 422 naming the order and field, and saves nothing', async () => {
     const before = await t.deps.db('orders').count({ n: '*' });
     const res = await push({ orders: [{ order: 'SO-3', lines: [{ sku: 'SKU-RED', qty: 1 }] }, { order: 'SO-4', lines: [{ sku: 'NOPE', qty: 1 }] }] });
-    expect(res.body.ok).toBe(false);
-    expect(res.body.errors).toEqual([{ sheet: 'request', row: 2, column: 'sku', value: 'NOPE', message: 'SKU NOPE is not in the SKU master; import it first' }]);
+    expect(res.status).toBe(422);
+    expect(res.body.error.code).toBe('unknown_sku');
+    expect(res.body.error.details).toEqual([{ order: 'SO-4', field: 'orders.1.lines.0.sku', value: 'NOPE', message: 'SKU NOPE is not in the SKU master; import it first' }]);
     expect(await t.deps.db('orders').count({ n: '*' })).toEqual(before);
   });
 

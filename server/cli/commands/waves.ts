@@ -1,6 +1,6 @@
 /**
  * `aislewright waves plan --plan PLAN.xlsx --skus SKUS.xlsx --orders ORDERS.xlsx
- *   --cart totes=8,kg=150,litres=400 --batching single|fcfs|seed|savings
+ *   --cart totes=8,kg=150,litres=400 --batching single|fcfs|seed|savings|search
  *   [--routing METHOD] [--improve none|local|deep] [--depot CODE] [--time-limit-ms N]`
  * Prints `{ trips: [{ orders, stops: [{ n, bins, lines }], metres, … }], totalMetres, unplaced, comparison }`.
  * Exit 2 on bad flags or files (the file's problems are listed one per line on stderr).

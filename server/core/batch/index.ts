@@ -15,6 +15,9 @@ import { toBatches } from './context';
 import { prepareOrders } from './prepare';
 import { NodeTable } from './route-length';
 import { batchSavings } from './savings';
+import { batchSearch } from './search';
+import type { SearchStats } from './search';
+import { createRng } from '../rng';
 import { batchSeed } from './seed';
 import { batchFcfs, batchSingle } from './simple';
 import type { Batch, BatchingMethod, Cart, Order, OrderNeed, SeedRule, Unplaced } from './types';
@@ -23,6 +26,7 @@ import { BATCHING_METHODS, SEED_RULES } from './types';
 export * from './types';
 export { NodeTable } from './route-length';
 export { totesNeeded, toteLitres } from './prepare';
+export type { SearchStats } from './search';
 
 export interface BatchOrdersOptions {
   orders: readonly Order[];
@@ -34,8 +38,15 @@ export interface BatchOrdersOptions {
   distance: (a: number, b: number) => number;
   /** Seed rule for `seed`; default `farthest`. */
   seedRule?: SeedRule;
-  /** Milliseconds for seed and savings to search; when spent they finish with cheaper choices. Default 2000. */
+  /**
+   * Milliseconds for seed and savings to search (when spent they finish with cheaper choices), and the
+   * time `search` improves on savings for (it always uses all of it). Default 2000.
+   */
   timeLimitMs?: number;
+  /** Seed of `search`'s random choices; default 1. Same seed, same budget outcome → same batches. */
+  seed?: number;
+  /** Filled with `search`'s figures (lengths under its router, kicks, router calls) when given. */
+  searchStats?: SearchStats;
   clock?: Clock;
   /** Fraction of batching done, 0…1, called a few hundred times at most. */
   progress?: (fraction: number) => void;
@@ -107,7 +118,9 @@ export function batchOrders(opts: BatchOrdersOptions): BatchOrdersResult {
         ? batchFcfs(ctx)
         : opts.method === 'seed'
           ? batchSeed(ctx, seedRule)
-          : batchSavings(ctx);
+          : opts.method === 'savings'
+            ? batchSavings(ctx)
+            : batchSearch(ctx, createRng(opts.seed ?? 1), opts.searchStats);
   ctx.progress(1);
   return { batches: toBatches(ctx, loads), unplaced, table, needs, budgetExpired: (opts.method === 'seed' || opts.method === 'savings') && budget.expired(), ms: clock() - t0 };
 }

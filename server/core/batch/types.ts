@@ -35,7 +35,7 @@ export interface Cart {
   maxLitres: number;
 }
 
-export const BATCHING_METHODS = ['single', 'fcfs', 'seed', 'savings'] as const;
+export const BATCHING_METHODS = ['single', 'fcfs', 'seed', 'savings', 'search'] as const;
 export type BatchingMethod = (typeof BATCHING_METHODS)[number];
 
 /**

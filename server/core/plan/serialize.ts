@@ -111,8 +111,9 @@ function unpack(
     if (!meta || meta.type !== type || !blob) throw new RangeError(`${format}: array ${name} is missing or of the wrong type`);
     const size = type === 'f64' ? 8 : type === 'i32' ? 4 : 1;
     if (blob.byteLength !== meta.length * size) throw new RangeError(`${format}: array ${name} has ${blob.byteLength} bytes, expected ${meta.length * size}`);
-    // A BLOB read back from SQLite may start at any byte; typed views need aligned offsets.
-    const aligned = blob.byteOffset % size === 0 ? blob : blob.slice();
+    // A BLOB read back from SQLite (or a Buffer passed to a job process) may start at any byte; typed
+    // views need aligned offsets. `new Uint8Array(view)` copies: a Buffer's own slice() would not.
+    const aligned = blob.byteOffset % size === 0 ? blob : new Uint8Array(blob);
     arrays[name] =
       type === 'f64'
         ? new Float64Array(aligned.buffer, aligned.byteOffset, meta.length)

@@ -1,7 +1,13 @@
 /**
- * Iterated local search: perturb the best circuit with a random double-bridge kick (a 4-opt move
- * 2-opt cannot undo; O. Martin, S. W. Otto & E. W. Felten, Complex Systems 5(3), 1991), re-optimise
- * around the kick with 2-opt / Or-opt, keep the result when it is no longer, until the budget ends.
+ * Iterated local search (O. Martin, S. W. Otto & E. W. Felten, Complex Systems 5(3), 1991; H. R.
+ * Lourenço, O. C. Martin & T. Stützle, Iterated Local Search, Handbook of Metaheuristics 2003): take the
+ * circuit to a local optimum of 2-opt, Or-opt and Lin–Kernighan-style chains (./local.ts), then until
+ * the budget ends kick it with a local double bridge — two neighbouring segments of the circuit swap
+ * places (half the kicks: two short segments of ≤ 30 points; the other half: cut after a random point,
+ * after one of its nearest neighbours, and once between), a move the sequential moves cannot undo —
+ * repair only around the kick, and keep the
+ * result when it is no longer. Kicks are applied in place and recorded in an undo log, so a rejected
+ * kick costs what it changed, not a copy of the circuit.
  */
 import type { DistanceMatrix } from '../matrix';
 import type { Rng } from '../rng';
@@ -13,11 +19,14 @@ import { createLocalSearch } from './local';
 
 /** Up to this many points the exact method takes less time than one search pass is worth. */
 export const DEEP_EXACT_MAX_POINTS = 12;
+/** Longest kicked segment, points: short segments keep each kick and its repair local. */
+const KICK_SEGMENT_MAX = 30;
 
 /**
- * Improves a circuit until `budget` expires. It first takes `order` to its 2-opt / Or-opt local
- * optimum, so when the budget covers that step the result is never longer than `local`'s. Trips of ≤ 12 points are solved exactly by Held–Karp (a few milliseconds)
- * when the budget allows. Needs a finite budget; each iteration costs about O(n) plus a local repair.
+ * Improves a circuit until `budget` expires. It first takes `order` to its local optimum (as `local`
+ * does), so when the budget covers that step the result is never longer than `local`'s. Trips of ≤ 12
+ * points are solved exactly by Held–Karp (a few milliseconds) when the budget allows. Needs a finite
+ * budget; each kick costs O(segment) plus a local repair and, when rejected, its undo.
  * Returns the circuit from an arbitrary point (the caller rotates it to the depot).
  */
 export function improveDeep(
@@ -40,43 +49,36 @@ export function improveDeep(
   const ls = createLocalSearch(m, undefined, neighbors);
   ls.load(order);
   ls.run(budget, true);
-  const best = Int32Array.from(ls.tour);
-  let bestLen = ls.length();
-  if (n < 8) return Array.from(best);
-
-  const kicked = new Int32Array(n);
-  const ends = new Int32Array(8);
-  const cut = new Int32Array(3);
+  if (n < 8) return Array.from(ls.tour);
+  // Two segments of 1…maxSeg points each, leaving at least two points outside them.
+  const maxSeg = Math.max(1, Math.min(KICK_SEGMENT_MAX, Math.floor((n - 2) / 2)));
+  const K = ls.neighbors.k;
+  const list = ls.neighbors.list;
   while (!budget.expired()) {
-    // Three distinct cuts in 1..n−1 split the circuit into A B C D; the kick reconnects A C B D.
-    cut[0] = 1 + rng.int(n - 1);
-    do cut[1] = 1 + rng.int(n - 1);
-    while (cut[1] === cut[0]);
-    do cut[2] = 1 + rng.int(n - 1);
-    while (cut[2] === cut[0] || cut[2] === cut[1]);
-    cut.sort();
-    const [p1, p2, p3] = [cut[0]!, cut[1]!, cut[2]!];
-    let w = 0;
-    for (let i = 0; i < p1; i++) kicked[w++] = best[i]!;
-    for (let i = p2; i < p3; i++) kicked[w++] = best[i]!;
-    for (let i = p1; i < p2; i++) kicked[w++] = best[i]!;
-    for (let i = p3; i < n; i++) kicked[w++] = best[i]!;
-    ends[0] = best[p1 - 1]!;
-    ends[1] = best[p1]!;
-    ends[2] = best[p2 - 1]!;
-    ends[3] = best[p2]!;
-    ends[4] = best[p3 - 1]!;
-    ends[5] = best[p3]!;
-    ends[6] = best[n - 1]!;
-    ends[7] = best[0]!;
-    ls.load(kicked, ends);
-    ls.run(budget, false);
-    const len = ls.length();
-    // Accepting equal lengths lets the search drift across plateaus instead of re-kicking one circuit.
-    if (len <= bestLen) {
-      best.set(ls.tour);
-      bestLen = len;
+    const v = rng.int(n);
+    let at = ls.positionOf(v) + 1;
+    let l1 = 1 + rng.int(maxSeg);
+    let l2 = 1 + rng.int(maxSeg);
+    if (K > 0 && rng.next() < 0.5) {
+      // Double bridge between a point and one of its neighbours: the cut after v, a cut between, and
+      // the cut after w, so two of the three new edges join points already close.
+      const w = list[v * K + rng.int(K)]!;
+      let gap = (ls.positionOf(w) - ls.positionOf(v) + n) % n;
+      at = ls.positionOf(v) + 1;
+      if (gap > n / 2) {
+        gap = n - gap;
+        at = ls.positionOf(w) + 1;
+      }
+      if (gap < 3) continue;
+      l1 = 1 + rng.int(gap - 1);
+      l2 = gap - l1;
     }
+    ls.mark();
+    ls.swapSegments(at, l1, l2);
+    const finished = ls.run(budget, false);
+    // Equal lengths are kept: drifting across plateaus beats re-kicking one circuit.
+    if (finished && ls.change() <= 0) ls.commit();
+    else ls.rollback();
   }
-  return Array.from(best);
+  return Array.from(ls.tour);
 }

@@ -11,11 +11,11 @@ import { createRng } from '../rng';
 import { budgetOf, TimeLimitError } from './budget';
 import { oneTreeBound } from './bound';
 import { canonicalize } from './circuit';
-import { nearestNeighbor, repeatedNearestNeighbor, sortedEdges } from './construct';
+import { nearestNeighbor, repeatedNearestNeighbor, SORTED_EDGES_ALL_PAIRS_MAX, sortedEdges } from './construct';
 import { improveDeep } from './deep';
 import { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 import type { Neighbors } from './local';
-import { DEFAULT_NEIGHBORS, improveLocal, neighborLists } from './local';
+import { improveLocal, neighborLists, neighborsFor } from './local';
 
 export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 export type { TourResult } from './exact';
@@ -32,6 +32,9 @@ export type TourMethod = (typeof TOUR_METHODS)[number];
 
 export const IMPROVE_MODES = ['none', 'local', 'deep'] as const;
 export type ImproveMode = (typeof IMPROVE_MODES)[number];
+
+/** `best` runs repeated nearest neighbor up to this many points, nearest neighbor from the depot above. */
+export const BEST_REPEATED_MAX_POINTS = 1000;
 
 /** Budget when the caller names none: enough for `deep` to matter, short enough for a request. */
 export const DEFAULT_TIME_LIMIT_MS = 1000;
@@ -63,10 +66,12 @@ export interface SolveTourResult {
 /**
  * A closed circuit through every point of `m`, starting and ending at the depot.
  *
- * Constructions: nearest neighbor O(n²); repeated nearest neighbor O(n³) worst, ~O(n²·K) typical; sorted edges O(n² log n);
- * `best` runs the last two and keeps the shorter (repeated nearest neighbor on a tie); `exact` is
- * Held–Karp, O(2ⁿ·n²), at most 16 stops. Improvement: `local` = 2-opt + Or-opt to a local optimum,
- * `deep` = iterated local search for the whole budget. Ties go to the lowest point index and the
+ * Constructions: nearest neighbor O(n²); repeated nearest neighbor O(n³) worst, ~O(n²·K) typical;
+ * sorted edges O(n² log n) up to 128 points, from neighbour lists above; `best` runs repeated nearest
+ * neighbor (nearest neighbor from the depot above 1,000 points) and sorted edges and keeps the shorter
+ * (the first on a tie); `exact` is Held–Karp, O(2ⁿ·n²), at most 16 stops. Improvement: `local` =
+ * 2-opt + Or-opt + Lin–Kernighan-style chains to a local optimum, `deep` = iterated local search for the
+ * whole budget. With an improvement the construction stops at a quarter of the budget. Ties go to the lowest point index and the
  * circuit is reported in the direction whose first stop is lower than its last.
  *
  * The budget is checked inside every loop except one nearest-neighbor or sorted-edges pass, which
@@ -90,9 +95,12 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
   if (!IMPROVE_MODES.includes(improve)) throw new RangeError(`unknown improve mode '${String(improve)}'`);
   const budget = budgetOf({ timeLimitMs: opts.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS, clock });
 
-  // One set of neighbour lists serves repeated nearest neighbor and the improvement.
+  // One set of neighbour lists serves the constructions and the improvement.
   let cached: Neighbors | undefined;
-  const lists = (): Neighbors => (cached ??= neighborLists(m, DEFAULT_NEIGHBORS));
+  const lists = (): Neighbors => (cached ??= neighborLists(m, neighborsFor(n)));
+  // Most of the budget goes to improvement: a construction followed by one stops at a quarter of it.
+  const limit = opts.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS;
+  const build = improve === 'none' || limit === Infinity ? budget : budgetOf({ timeLimitMs: limit / 4, clock });
 
   let order: number[];
   switch (method) {
@@ -100,10 +108,10 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
       order = nearestNeighbor(m, depot);
       break;
     case 'repeated-nearest-neighbor':
-      order = repeatedNearestNeighbor(m, depot, budget, lists());
+      order = repeatedNearestNeighbor(m, depot, build, lists());
       break;
     case 'sorted-edges':
-      order = sortedEdges(m, depot);
+      order = sortedEdges(m, depot, build, n > SORTED_EDGES_ALL_PAIRS_MAX ? lists() : undefined);
       break;
     case 'exact': {
       if (n > HELD_KARP_MAX_POINTS) {
@@ -114,8 +122,9 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
       break;
     }
     case 'best': {
-      const a = repeatedNearestNeighbor(m, depot, budget, lists());
-      const b = sortedEdges(m, depot);
+      // Repeated nearest neighbor only where it pays (small trips); above that, one run from the depot.
+      const a = n <= BEST_REPEATED_MAX_POINTS ? repeatedNearestNeighbor(m, depot, build, lists()) : nearestNeighbor(m, depot, lists());
+      const b = sortedEdges(m, depot, build, n > SORTED_EDGES_ALL_PAIRS_MAX ? lists() : undefined);
       order = circuitLength(m, b) < circuitLength(m, a) ? b : a;
       break;
     }

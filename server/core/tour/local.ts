@@ -1,21 +1,44 @@
 /**
  * Local improvement of a circuit by 2-opt (G. A. Croes, Operations Research 6(6), 1958) and Or-opt
  * (I. Or, PhD thesis, Northwestern University, 1976: move a segment of 1–3 points elsewhere, either
- * way round). Candidate moves come from K-nearest neighbour lists with don't-look bits (J. L. Bentley,
- * ORSA J. Computing 4(4), 1992); a final scan over every move makes the result a true local optimum.
+ * way round) and a Lin–Kernighan-style sequential move (S. Lin & B. W. Kernighan, Operations Research
+ * 21(2), 1973): a chain of up to LK_DEPTH 2-opt flips sharing the first city, each step's new edge from
+ * the neighbour list while the partial gain stays positive, kept only when closing the chain gains
+ * (the "2-opt move" form of LK, D. S. Johnson & L. A. McGeoch, in Local Search in Combinatorial
+ * Optimization, Wiley 1997). Candidate moves come from K-nearest neighbour lists with don't-look bits
+ * (J. L. Bentley, ORSA J. Computing 4(4), 1992); up to FULL_SCAN_MAX_POINTS a final scan over every
+ * 2-opt and Or-opt move makes the result a true local optimum of those moves.
  */
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
 
 /** Neighbour-list length: 10 nearest is the usual choice for 2-opt-style searches (common practice). */
 export const DEFAULT_NEIGHBORS = 10;
+/** Above WIDE_NEIGHBORS_FROM points the lists are this wide instead. */
+export const WIDE_NEIGHBORS = 16;
+/**
+ * Up to this many points the closing scan over every move runs (one O(n²) pass applies every improving
+ * move it meets, budget-checked); above it, the neighbour lists alone. Clustered instances (TSPLIB
+ * pr439) need it: their 16 nearest all lie in one cluster.
+ */
+export const FULL_SCAN_MAX_POINTS = 2000;
+/** Flips per Lin–Kernighan chain, and candidates tried at each level (breadth narrowing with depth: common practice). */
+export const LK_DEPTH = 5;
+const LK_BREADTH = [4, 2, 1, 1, 1];
+
+/** Neighbour-list width for n points: DEFAULT_NEIGHBORS, or WIDE_NEIGHBORS above the full-scan size. */
+export const neighborsFor = (n: number): number => (n > WIDE_NEIGHBORS_FROM ? WIDE_NEIGHBORS : DEFAULT_NEIGHBORS);
+/** Above this many points the lists are WIDE_NEIGHBORS long. */
+export const WIDE_NEIGHBORS_FROM = 150;
 
 export interface LocalMoves {
   twoOpt: boolean;
   orOpt: boolean;
+  /** Lin–Kernighan-style chains of 2-opt flips; off when omitted. */
+  lk?: boolean;
 }
 
-const BOTH: LocalMoves = { twoOpt: true, orOpt: true };
+const BOTH: LocalMoves = { twoOpt: true, orOpt: true, lk: true };
 
 /** Each point's K nearest others, row-major in n·K entries: nearest first, lower index on ties. */
 export interface Neighbors {
@@ -68,14 +91,32 @@ export interface LocalSearch {
   run(budget: Budget | undefined, full: boolean): boolean;
   /** Current circuit in tour order, starting anywhere. */
   readonly tour: Int32Array;
-  /** Current length in metres. */
+  /** Current length in metres (O(n)). */
   length(): number;
+  /** Starts recording every change to the circuit, so `rollback` can restore it (an undo log). */
+  mark(): void;
+  /** Restores the circuit to where `mark` was called and stops recording. O(changes). */
+  rollback(): void;
+  /** Stops recording and keeps the changes. */
+  commit(): void;
+  /**
+   * Double-bridge kick in place (O. Martin, S. W. Otto & E. W. Felten, Complex Systems 5(3), 1991),
+   * local form: the segments of `l1` and `l2` points starting at array position `at` swap places
+   * (… a B C e … → … a C B e …); the four ends are queued for `run`. Returns the length change. O(l1 + l2).
+   */
+  swapSegments(at: number, l1: number, l2: number): number;
+  /** Length change (metres, negative when shorter) since the last `load` or `mark`. */
+  change(): number;
+  /** Array position of point c in `tour`. */
+  positionOf(c: number): number;
+  /** The neighbour lists the search uses. */
+  readonly neighbors: Neighbors;
 }
 
 export function createLocalSearch(
   m: DistanceMatrix,
   moves: LocalMoves = BOTH,
-  neighbors = neighborLists(m, DEFAULT_NEIGHBORS),
+  neighbors = neighborLists(m, neighborsFor(m.n)),
 ): LocalSearch {
   const n = m.n;
   const d = m.d;
@@ -88,9 +129,40 @@ export function createLocalSearch(
   let qHead = 0;
   let qSize = 0;
   let maxD = 0;
-  for (let i = 0; i < n * n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
+  // The depot's row and each point's farthest listed neighbour give the scale in O(n) (not O(n²)).
+  for (let i = 0; i < n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
+  for (let i = 0; K > 0 && i < n; i++) {
+    const v = d[i * n + nb[i * K + K - 1]!]!;
+    if (v > maxD && Number.isFinite(v)) maxD = v;
+  }
   // Moves must gain more than rounding noise, or equal-length circuits could swap forever.
   const eps = 1e-9 * Math.max(1, maxD);
+  const moves3 = { twoOpt: moves.twoOpt, orOpt: moves.orOpt, lk: moves.lk === true };
+
+  // Undo log: while recording, every write to the circuit logs its position and old occupant.
+  /** Length change since the last `load` or `mark`. */
+  let acc = 0;
+  let recording = false;
+  let logPos = new Int32Array(0);
+  let logVal = new Int32Array(0);
+  let logN = 0;
+  const put = (p: number, c: number): void => {
+    if (recording) {
+      if (logN === logPos.length) {
+        const a = new Int32Array(Math.max(1024, logN * 2));
+        a.set(logPos);
+        logPos = a;
+        const b = new Int32Array(a.length);
+        b.set(logVal);
+        logVal = b;
+      }
+      logPos[logN] = p;
+      logVal[logN] = tour[p]!;
+      logN++;
+    }
+    tour[p] = c;
+    pos[c] = p;
+  };
 
   const push = (c: number): void => {
     if (queued[c]) return;
@@ -116,16 +188,15 @@ export function createLocalSearch(
     for (let s = len >> 1; s > 0; s--) {
       const a = tour[i]!;
       const b = tour[j]!;
-      tour[i] = b;
-      pos[b] = i;
-      tour[j] = a;
-      pos[a] = j;
+      put(i, b);
+      put(j, a);
       i = i + 1 === n ? 0 : i + 1;
       j = j === 0 ? n - 1 : j - 1;
     }
   };
 
   const segBuf = new Int32Array(3);
+  let segBufK = new Int32Array(64);
   /**
    * Moves the segment of `L` points starting at s1 (forward) between x and y = succ(x), as x s1…s2 y
    * or (reversed) x s2…s1 y, shifting whichever side of the circuit is shorter.
@@ -139,26 +210,17 @@ export function createLocalSearch(
     let start: number;
     if (lenX <= lenY) {
       for (let k = 0; k < lenX; k++) {
-        const c = tour[(i0 + L + k) % n]!;
-        const p = (i0 + k) % n;
-        tour[p] = c;
-        pos[c] = p;
+        put((i0 + k) % n, tour[(i0 + L + k) % n]!);
       }
       start = (i0 + lenX) % n;
     } else {
       start = (i0 - lenY + n) % n;
       for (let k = lenY - 1; k >= 0; k--) {
-        const c = tour[(start + k) % n]!;
-        const p = (start + k + L) % n;
-        tour[p] = c;
-        pos[c] = p;
+        put((start + k + L) % n, tour[(start + k) % n]!);
       }
     }
     for (let k = 0; k < L; k++) {
-      const c = segBuf[reversed ? L - 1 - k : k]!;
-      const p = (start + k) % n;
-      tour[p] = c;
-      pos[c] = p;
+      put((start + k) % n, segBuf[reversed ? L - 1 - k : k]!);
     }
   };
 
@@ -178,6 +240,7 @@ export function createLocalSearch(
         if (c === b || e === a) continue;
         const delta = dac + dist(b, e) - dab - dist(c, e);
         if (delta < -eps) {
+          acc += delta;
           if (dir === 0) reversePath(b, c);
           else reversePath(a, e);
           push(a);
@@ -200,6 +263,7 @@ export function createLocalSearch(
     const rev = dist(x, s2) + dist(s1, y) - dxy;
     const reversed = rev < fwd;
     if ((reversed ? rev : fwd) - gain < -eps) {
+      acc += (reversed ? rev : fwd) - gain;
       const p = pred(s1);
       const nx = succ(s2);
       moveSegment(s1, L, x, reversed);
@@ -241,8 +305,76 @@ export function createLocalSearch(
     return false;
   };
 
-  /** Scans every 2-opt move; applies the first improving one. O(n²). */
+  const lkFlipA = new Int32Array(LK_DEPTH);
+  const lkFlipB = new Int32Array(LK_DEPTH);
+  let lkFlips = 0;
+  /** Reverses the path from the point after t1 (in the circuit's current sense at t1) to x. */
+  const flipFrom = (t1: number, t2: number, x: number): void => {
+    if (succ(t1) === t2) reversePath(t2, x);
+    else reversePath(x, t2);
+  };
+  /**
+   * One level of the chain: the edge (t1, t2) is out, `gain` is what the chain has saved so far. Tries
+   * new edges (t2, t3) with t3 among t2's nearest while the gain stays positive; t4 is t3's neighbour on
+   * t2's side, and flipping t2…t4 gives the circuit with (t2, t3) in and (t3, t4) out, closed by (t4, t1).
+   */
+  const lkStep = (t1: number, t2: number, gain: number, depth: number): boolean => {
+    const fwd = succ(t1) === t2;
+    const breadth = LK_BREADTH[depth]!;
+    let tried = 0;
+    for (let t = 0; t < K && tried < breadth; t++) {
+      const t3 = nb[t2 * K + t]!;
+      const g1 = gain - dist(t2, t3);
+      if (!(g1 > eps)) break;
+      if (t3 === t1) continue;
+      const t4 = fwd ? pred(t3) : succ(t3);
+      if (t4 === t2 || t3 === t2) continue;
+      tried++;
+      const g2 = g1 + dist(t3, t4);
+      const close = g2 - dist(t4, t1);
+      // The last level only tests closing; deeper levels need the flip made to find their t4.
+      if (!(close > eps) && depth + 1 >= LK_DEPTH) continue;
+      flipFrom(t1, t2, t4);
+      lkFlipA[lkFlips] = t2;
+      lkFlipB[lkFlips] = t4;
+      lkFlips++;
+      if (close > eps) {
+        acc -= close;
+        return true;
+      }
+      if (lkStep(t1, t4, g2, depth + 1)) return true;
+      // Undo this flip: t4 now follows t1 and the flipped path runs t4 … t2.
+      lkFlips--;
+      flipFrom(t1, t4, t2);
+    }
+    return false;
+  };
+  /** Tries a Lin–Kernighan chain starting at either circuit edge of `a`; applies the first that gains. */
+  const lkAt = (a: number): boolean => {
+    for (let side = 0; side < 2; side++) {
+      const t2 = side === 0 ? succ(a) : pred(a);
+      lkFlips = 0;
+      if (lkStep(a, t2, dist(a, t2), 0)) {
+        push(a);
+        for (let f = 0; f < lkFlips; f++) {
+          const x = lkFlipA[f]!;
+          const y = lkFlipB[f]!;
+          push(x);
+          push(y);
+          push(succ(x));
+          push(pred(x));
+          push(succ(y));
+          push(pred(y));
+        }
+        return true;
+      }
+    }
+    return false;
+  };
+
+  /** Scans every 2-opt move, applying each improving one met on the way. O(n²). True when one applied. */
   const fullTwoOpt = (budget: Budget | undefined): boolean => {
+    let found = false;
     for (let i = 0; i < n - 2; i++) {
       if ((i & 15) === 0 && budget?.expired()) return false;
       const a = tour[i]!;
@@ -252,21 +384,25 @@ export function createLocalSearch(
         if (i === 0 && j === n - 1) continue;
         const c = tour[j]!;
         const e = tour[j + 1 === n ? 0 : j + 1]!;
-        if (dist(a, c) + dist(b, e) - dab - dist(c, e) < -eps) {
+        const delta = dist(a, c) + dist(b, e) - dab - dist(c, e);
+        if (delta < -eps) {
+          acc += delta;
           reversePath(b, c);
           push(a);
           push(b);
           push(c);
           push(e);
-          return true;
+          found = true;
+          break;
         }
       }
     }
-    return false;
+    return found;
   };
 
-  /** Scans every Or-opt move (segments of 1–3, both orientations, every edge). O(n²). */
+  /** Scans every Or-opt move (segments of 1–3, both orientations, every edge), applying each improving one met. O(n²). */
   const fullOrOpt = (budget: Budget | undefined): boolean => {
+    let found = false;
     for (let L = 1; L <= 3 && n - L >= 3; L++) {
       for (let i = 0; i < n; i++) {
         if ((i & 15) === 0 && budget?.expired()) return false;
@@ -276,11 +412,14 @@ export function createLocalSearch(
         const nx = succ(s2);
         const gain = dist(p, s1) + dist(s2, nx) - dist(p, nx);
         for (let k = 0; k < n; k++) {
-          if (tryInsert(s1, s2, L, gain, tour[k]!)) return true;
+          if (tryInsert(s1, s2, L, gain, tour[k]!)) {
+            found = true;
+            break;
+          }
         }
       }
     }
-    return false;
+    return found;
   };
 
   return {
@@ -293,6 +432,7 @@ export function createLocalSearch(
       queued.fill(0);
       qHead = 0;
       qSize = 0;
+      acc = 0;
       if (active) for (let i = 0; i < active.length; i++) push(active[i]!);
       else for (let i = 0; i < n; i++) push(tour[i]!);
     },
@@ -306,11 +446,11 @@ export function createLocalSearch(
           qHead = qHead + 1 === n ? 0 : qHead + 1;
           qSize--;
           queued[a] = 0;
-          while ((moves.twoOpt && twoOptAt(a)) || (moves.orOpt && orOptAt(a))) {
+          while ((moves3.twoOpt && twoOptAt(a)) || (moves3.orOpt && orOptAt(a)) || (moves3.lk && lkAt(a))) {
             if ((++steps & 63) === 0 && budget?.expired()) return false;
           }
         }
-        if (!full) return true;
+        if (!full || n > FULL_SCAN_MAX_POINTS) return true;
         if (budget?.expired()) return false;
         const found = (moves.twoOpt && fullTwoOpt(budget)) || (moves.orOpt && fullOrOpt(budget));
         if (!found) return !budget?.expired();
@@ -321,6 +461,61 @@ export function createLocalSearch(
       for (let i = 0; i < n; i++) s += dist(tour[i]!, tour[i + 1 === n ? 0 : i + 1]!);
       return s;
     },
+    mark() {
+      recording = true;
+      logN = 0;
+      acc = 0;
+    },
+    change() {
+      return acc;
+    },
+    rollback() {
+      recording = false;
+      for (let k = logN - 1; k >= 0; k--) {
+        const p = logPos[k]!;
+        const c = logVal[k]!;
+        tour[p] = c;
+        pos[c] = p;
+      }
+      logN = 0;
+      qHead = 0;
+      while (qSize > 0) {
+        queued[queue[qHead]!] = 0;
+        qHead = qHead + 1 === n ? 0 : qHead + 1;
+        qSize--;
+      }
+      qHead = 0;
+    },
+    commit() {
+      recording = false;
+      logN = 0;
+    },
+    swapSegments(at, l1, l2) {
+      const a = tour[(at - 1 + n) % n]!;
+      const b1 = tour[at % n]!;
+      const b2 = tour[(at + l1 - 1) % n]!;
+      const c1 = tour[(at + l1) % n]!;
+      const c2 = tour[(at + l1 + l2 - 1) % n]!;
+      const e = tour[(at + l1 + l2) % n]!;
+      const delta = dist(a, c1) + dist(c2, b1) + dist(b2, e) - dist(a, b1) - dist(b2, c1) - dist(c2, e);
+      const L = l1 + l2;
+      if (segBufK.length < L) segBufK = new Int32Array(2 * L);
+      for (let k = 0; k < l2; k++) segBufK[k] = tour[(at + l1 + k) % n]!;
+      for (let k = 0; k < l1; k++) segBufK[l2 + k] = tour[(at + k) % n]!;
+      for (let k = 0; k < L; k++) put((at + k) % n, segBufK[k]!);
+      acc += delta;
+      push(a);
+      push(b1);
+      push(b2);
+      push(c1);
+      push(c2);
+      push(e);
+      return delta;
+    },
+    positionOf(c) {
+      return pos[c]!;
+    },
+    neighbors,
   };
 }
 

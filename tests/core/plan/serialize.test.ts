@@ -32,6 +32,14 @@ describe('serialise and deserialise', () => {
     expect(back).toEqual(graph);
   });
 
+  it('round-trips through misaligned Node Buffers, whose slice() is a view, not a copy', () => {
+    // Buffers are what SQLite hands back and what a job process receives (advanced IPC serialisation).
+    const s = throughStorage(serializeDistanceIndex(index));
+    const buffers = Object.fromEntries(Object.entries(s.blobs).map(([k, v]) => [k, Buffer.from(v.buffer, v.byteOffset, v.byteLength)]));
+    expect(Object.values(buffers).some((b) => b.byteOffset % 8 !== 0)).toBe(true);
+    expect(deserializeDistanceIndex({ json: s.json, blobs: buffers })).toEqual(index);
+  });
+
   it('round-trips the distance index, answering every pair the same', () => {
     const back = deserializeDistanceIndex(throughStorage(serializeDistanceIndex(index)));
     expect(back).toEqual(index);

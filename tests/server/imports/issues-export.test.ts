@@ -28,12 +28,13 @@ describe('rowIssuesToCsv', () => {
 });
 
 describe('rowIssuesToXlsx', () => {
-  it('writes one errors sheet of plain text cells, so no value becomes a formula', () => {
+  it('writes one errors sheet of plain text cells, formula starts quoted, so no value becomes a formula', () => {
     const wb = XLSX.read(rowIssuesToXlsx(issues), { type: 'buffer', dense: true, cellFormula: true });
     expect(wb.SheetNames).toEqual(['errors']);
     const data = wb.Sheets.errors!['!data']!;
     expect(data[0]!.map((c) => c.v)).toEqual(['sheet', 'row', 'column', 'value', 'message']);
-    expect(data[1]![3]).toMatchObject({ t: 's', v: issues[0]!.value });
+    // Text cell and a leading quote (OWASP, "CSV Injection"): inert even after a re-save as CSV.
+    expect(data[1]![3]).toMatchObject({ t: 's', v: `'${issues[0]!.value}` });
     expect(data[1]![3]!.f).toBeUndefined();
     expect(data[1]![1]).toMatchObject({ t: 'n', v: 7 });
     expect(data.length).toBe(4);

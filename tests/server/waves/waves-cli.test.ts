@@ -74,7 +74,7 @@ async function runOnce(batching: string, extra: string[]): Promise<{ code: numbe
 }
 
 describe('aislewright waves plan', () => {
-  it.each(['single', 'fcfs', 'seed', 'savings'])('%s: every order line in one trip within the cart, the rest named', async (batching) => {
+  it.each(['single', 'fcfs', 'seed', 'savings', 'search'])('%s: every order line in one trip within the cart, the rest named', async (batching) => {
     const { code, out } = await plan_(batching);
     expect(code).toBe(0);
     const o = out!;

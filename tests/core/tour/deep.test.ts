@@ -1,0 +1,78 @@
+/**
+ * `deep` (iterated local search with Lin–Kernighan-style chains and local double-bridge kicks) against
+ * the published optima of TSPLIB (Reinelt 1991; ../shared/reference/tsplib/README.md), the undo log
+ * behind its kicks, and the budgets of every method under a stepping clock (work counted in clock
+ * readings, never wall time).
+ */
+import { describe, expect, it } from 'vitest';
+import { circuitLength } from '../../../server/core/matrix';
+import { createRng } from '../../../server/core/rng';
+import { sortedEdges } from '../../../server/core/tour/construct';
+import type { ImproveMode, TourMethod } from '../../../server/core/tour/index';
+import { solveTour } from '../../../server/core/tour/index';
+import { createLocalSearch, neighborLists } from '../../../server/core/tour/local';
+import { steppingClock } from '../../helpers/clock';
+import { isCircuit, randomEuclidean } from '../../helpers/instances';
+import { loadTsp, TSPLIB_OPTIMA } from '../../helpers/tsplib';
+
+describe('deep on TSPLIB', () => {
+  // Published optima (TSPLIB 95, Reinelt 1991): a correct circuit is never shorter, and these small
+  // instances are where an LKH-class search must land exactly.
+  it.each(['burma14', 'ulysses16', 'ulysses22', 'att48', 'eil51', 'berlin52', 'st70', 'kroA100'])('%s: reaches the published optimum within a fixed amount of work', (name) => {
+    const { matrix } = loadTsp(name);
+    const r = solveTour(matrix, { method: 'best', improve: 'deep', timeLimitMs: 4, clock: steppingClock(0.001), seed: 1 });
+    expect(isCircuit(r.order, matrix.n)).toBe(true);
+    expect(r.length).toBe(TSPLIB_OPTIMA[name]);
+  });
+});
+
+describe('local search undo log', () => {
+  it('a kick and its repair rolled back give the circuit back exactly; change() is the true length change', () => {
+    const { matrix: m } = loadTsp('kroA100');
+    const ls = createLocalSearch(m, undefined, neighborLists(m, 10));
+    ls.load(sortedEdges(m, 0));
+    ls.run(undefined, true);
+    const rng = createRng(3);
+    let kept = 0;
+    for (let k = 0; k < 300; k++) {
+      const before = Array.from(ls.tour);
+      const lenBefore = circuitLength(m, before);
+      ls.mark();
+      ls.swapSegments(ls.positionOf(rng.int(m.n)) + 1, 1 + rng.int(20), 1 + rng.int(20));
+      ls.run(undefined, false);
+      expect(circuitLength(m, ls.tour)).toBeCloseTo(lenBefore + ls.change(), 6);
+      if (ls.change() < 0) {
+        ls.commit();
+        kept++;
+      } else {
+        ls.rollback();
+        expect(Array.from(ls.tour)).toEqual(before);
+      }
+      expect(isCircuit([...ls.tour].sort((a, b) => a - b), m.n, 0)).toBe(true);
+    }
+    // The check is not vacuous: some kicks were kept and the rest rolled back.
+    expect(kept).toBeGreaterThan(0);
+    expect(kept).toBeLessThan(300);
+  });
+});
+
+describe('budgets at scale (stepping clock: 0.1 ms per reading)', () => {
+  const combos: [TourMethod, ImproveMode][] = [
+    ['nearest-neighbor', 'none'],
+    ['repeated-nearest-neighbor', 'none'],
+    ['sorted-edges', 'none'],
+    ['best', 'none'],
+    ['best', 'local'],
+    ['repeated-nearest-neighbor', 'local'],
+    ['best', 'deep'],
+  ];
+  for (const n of [400, 1500]) {
+    const m = randomEuclidean(n, n);
+    it.each(combos)(`${n} points, %s + %s: answers within its budget +10 % (+5 ms) with a valid circuit`, (method, improve) => {
+      const limit = 20;
+      const r = solveTour(m, { method, improve, timeLimitMs: limit, clock: steppingClock(0.1), seed: 1 });
+      expect(r.ms).toBeLessThanOrEqual(limit * 1.1 + 5);
+      expect(isCircuit(r.order, n)).toBe(true);
+    });
+  }
+});
