@@ -10,7 +10,7 @@ describe('heldKarpBound', () => {
   // Held–Karp bound is known to sit within about 1–2 % of optimal on such instances (issue target: 3 %).
   // The upper bound comes from best + local, never longer than nearest neighbor, itself at most
   // (⌈log2 n⌉ + 1)/2 times the optimum on metric instances (Rosenkrantz, Stearns & Lewis 1977).
-  it.each(Object.keys(TSPLIB_OPTIMA))('%s: bound ≤ optimum and within 3 %% of it', (name) => {
+  it.each(Object.keys(TSPLIB_OPTIMA))('%s: bound ≤ optimum and within 3 percent of it', (name) => {
     const { matrix } = loadTsp(name);
     const opt = TSPLIB_OPTIMA[name]!;
     const r = heldKarpBound(matrix, { timeLimitMs: 2000, clock: steppingClock(0.01) });
