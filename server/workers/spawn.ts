@@ -131,7 +131,11 @@ function forkJobProcess(moduleUrl: URL, heapMb: number): JobProcess {
 /** An unreferenced process (and its pipes) does not keep the server, a CLI run or a test alive. */
 function setReferenced(child: ChildProcess, on: boolean): void {
   const handles = [child, child.channel, child.stderr] as ({ ref(): void; unref(): void } | null | undefined)[];
-  for (const h of handles) if (h) (on ? h.ref() : h.unref());
+  for (const h of handles) {
+    if (!h) continue;
+    if (on) h.ref();
+    else h.unref();
+  }
 }
 
 /**
