@@ -1,4 +1,4 @@
-/** The caution every picker screen carries (PRODUCT.md, Safety). */
+/** The caution every picker screen carries (README.md, Safety). */
 export const CAUTION_SHORT =
   "Routes are walking suggestions. Follow the site's pedestrian walkways, forklift traffic rules and lifting limits.";
 
