@@ -27,6 +27,8 @@ export default defineConfig({
           environment: 'node',
           include: ['tests/core/**/*.test.ts', 'tests/server/**/*.test.ts'],
           testTimeout: 30_000,
+          // Building a demo app (migrations, seed, a released wave) takes seconds on a loaded 2-core machine.
+          hookTimeout: 60_000,
         },
       },
       {
