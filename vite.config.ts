@@ -26,7 +26,8 @@ export default defineConfig({
           name: 'node',
           environment: 'node',
           include: ['tests/core/**/*.test.ts', 'tests/server/**/*.test.ts'],
-          testTimeout: 30_000,
+          // Heavy jobs run in forked processes (2–3 s to start on a loaded 2-core machine); give them room.
+          testTimeout: 60_000,
           // Building a demo app (migrations, seed, a released wave) takes seconds on a loaded 2-core machine.
           hookTimeout: 60_000,
         },
