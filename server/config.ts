@@ -18,6 +18,12 @@ const Env = z.object({
   /** Served over HTTPS (directly or behind a proxy): cookies get `Secure`. */
   COOKIE_SECURE: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
   TRUST_PROXY: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
+  /**
+   * PEM certificate (chain) and private key: with both set the server speaks HTTPS on PORT, which
+   * tablets need for the offline app shell (service workers run only in secure contexts). Unset: plain HTTP.
+   */
+  TLS_CERT_FILE: z.string().min(1).optional(),
+  TLS_KEY_FILE: z.string().min(1).optional(),
 });
 export type Config = z.infer<typeof Env> & { publicUrl: string };
 
@@ -28,5 +34,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     throw new Error(`Configuration error:\n${lines.join('\n')}`);
   }
   const c = parsed.data;
-  return { ...c, publicUrl: c.PUBLIC_URL ?? `http://localhost:${c.PORT}` };
+  if (Boolean(c.TLS_CERT_FILE) !== Boolean(c.TLS_KEY_FILE)) {
+    const missing = c.TLS_CERT_FILE ? 'TLS_KEY_FILE' : 'TLS_CERT_FILE';
+    throw new Error(`Configuration error:\n  ${missing}: set TLS_CERT_FILE and TLS_KEY_FILE together (HTTPS), or neither (plain HTTP)`);
+  }
+  const scheme = c.TLS_CERT_FILE ? 'https' : 'http';
+  return { ...c, publicUrl: c.PUBLIC_URL ?? `${scheme}://localhost:${c.PORT}` };
 }
