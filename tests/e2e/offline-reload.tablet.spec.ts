@@ -73,7 +73,7 @@ async function supervisorApi(baseURL: string): Promise<APIRequestContext> {
 }
 
 /** Releases a wave of four open orders and gives its longest trip to the named picker. */
-async function releaseTrip(api: APIRequestContext, pickerName: string): Promise<{ tripId: number; lines: number }> {
+async function releaseTrip(api: APIRequestContext, pickerName: string): Promise<{ siteId: number; tripId: number; lines: number }> {
   const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
   const site = sites[0]!;
   const orders = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
@@ -91,7 +91,7 @@ async function releaseTrip(api: APIRequestContext, pickerName: string): Promise<
   const picker = board.pickers.find((p) => p.name === pickerName)!;
   const assigned = await api.post(`/api/sites/${site.id}/board/trips/${trip.id}/assign`, { data: { pickerId: picker.id } });
   expect(assigned.status(), await assigned.text()).toBe(200);
-  return { tripId: trip.id, lines: trip.lines };
+  return { siteId: site.id, tripId: trip.id, lines: trip.lines };
 }
 
 async function badgeSignIn(page: Page, base: string, badge: string): Promise<void> {
@@ -103,9 +103,11 @@ async function badgeSignIn(page: Page, base: string, badge: string): Promise<voi
   await page.waitForURL('**/pick');
 }
 
-/** Through the trip start (safety caution) to the first stop. */
+/** Through the trip start (safety caution) and the cart set-up (tapped) to the first stop. */
 async function openTrip(page: Page): Promise<void> {
   await page.getByRole('button', { name: 'I understand' }).click();
+  await expect(page.getByTestId('cart-setup')).toBeVisible();
+  while ((await page.getByTestId('tote-ready').count()) > 0) await page.getByTestId('tote-ready').first().click();
   await expect(page.getByTestId('current-bin')).toBeVisible();
 }
 
@@ -211,7 +213,7 @@ test('under HTTPS a reload with no network opens the app shell; a pick confirmed
 
 test('on plain HTTP from a LAN name the picker is told offline reload is unavailable; on localhost they are not', async ({ baseURL }) => {
   const api = await supervisorApi(baseURL!);
-  await releaseTrip(api, 'Kai Picker');
+  const { siteId, tripId } = await releaseTrip(api, 'Kai Picker');
   const context = await browser!.newContext({ viewport: { width: 800, height: 1280 }, hasTouch: true });
   const page = await context.newPage();
   await badgeSignIn(page, `http://${HOST}:${HTTP_PORT}`, 'P-1003');
@@ -234,5 +236,8 @@ test('on plain HTTP from a LAN name the picker is told offline reload is unavail
   expect(await lp.evaluate(() => isSecureContext)).toBe(true);
   await expect(lp.getByTestId('no-offline-reload')).toHaveCount(0);
   await local.close();
+  // The suite's server is shared with the other tablet tests: Kai is left free for them.
+  const cancelled = await api.post(`/api/sites/${siteId}/board/trips/${tripId}/cancel`, { data: { reason: 'end of the offline-reload test' } });
+  expect(cancelled.status(), await cancelled.text()).toBe(200);
   await api.dispose();
 });

@@ -59,6 +59,9 @@ async function signIn(page: Page): Promise<void> {
   await page.keyboard.press('Enter');
   await page.waitForURL('**/pick');
   await page.getByRole('button', { name: 'I understand' }).click();
+  // Cart set-up (issue 16): each tote confirmed with its "Tote N ready" button.
+  await expect(page.getByTestId('cart-setup')).toBeVisible();
+  while ((await page.getByTestId('tote-ready').count()) > 0) await page.getByTestId('tote-ready').first().click();
   await expect(page.getByTestId('current-bin')).toBeVisible();
 }
 
