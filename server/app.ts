@@ -106,7 +106,17 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
 
   if (options.clientDir && existsSync(options.clientDir)) {
     const dir = options.clientDir;
-    app.use(express.static(dir, { index: false, maxAge: '1h' }));
+    app.use(
+      express.static(dir, {
+        index: false,
+        maxAge: '1h',
+        // The service worker and the files it checks for updates are always revalidated, so a new
+        // release reaches tablets on their next online load (hashed assets keep their hour).
+        setHeaders: (res, path) => {
+          if (/(^|[\\/])(sw\.js|index\.html|manifest\.webmanifest|workbox-[\w-]+\.js)$/.test(path)) res.setHeader('Cache-Control', 'no-cache');
+        },
+      }),
+    );
     // Client-side routes: every other GET gets the app shell.
     app.get('/{*splat}', (_req, res) => {
       res.setHeader('Cache-Control', 'no-cache');

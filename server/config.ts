@@ -29,6 +29,12 @@ const Env = z.object({
   BACKUP_EVERY_HOURS: z.coerce.number().min(0).max(24 * 366).default(24),
   /** Scheduled and on-demand backups kept in BACKUP_DIR (oldest removed first). */
   BACKUP_KEEP: z.coerce.number().int().min(1).max(10_000).default(14),
+  /**
+   * PEM certificate (chain) and private key: with both set the server speaks HTTPS on PORT, which
+   * tablets need for the offline app shell (service workers run only in secure contexts). Unset: plain HTTP.
+   */
+  TLS_CERT_FILE: z.string().min(1).optional(),
+  TLS_KEY_FILE: z.string().min(1).optional(),
 });
 export type Config = z.infer<typeof Env> & { publicUrl: string };
 
@@ -44,5 +50,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   if (c.DATABASE_URL && !c.JWT_SECRET) {
     throw new Error('Configuration error:\n  JWT_SECRET: required when DATABASE_URL is set (every instance must share it; at least 43 base64 characters)');
   }
-  return { ...c, publicUrl: c.PUBLIC_URL ?? `http://localhost:${c.PORT}` };
+  if (Boolean(c.TLS_CERT_FILE) !== Boolean(c.TLS_KEY_FILE)) {
+    const missing = c.TLS_CERT_FILE ? 'TLS_KEY_FILE' : 'TLS_CERT_FILE';
+    throw new Error(`Configuration error:\n  ${missing}: set TLS_CERT_FILE and TLS_KEY_FILE together (HTTPS), or neither (plain HTTP)`);
+  }
+  const scheme = c.TLS_CERT_FILE ? 'https' : 'http';
+  return { ...c, publicUrl: c.PUBLIC_URL ?? `${scheme}://localhost:${c.PORT}` };
 }

@@ -30,6 +30,8 @@ export interface DbTripRow {
   revision: number;
   /** Set when a closure change re-routed the trip's remaining stops (the tablet tells the picker). */
   route_changed_at: string | null;
+  /** When the picker confirmed which order goes in which tote (cart set-up). */
+  cart_ready_at: string | null;
 }
 
 export interface DbWaveRow {
@@ -206,6 +208,7 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     confirmScan: site.confirm_scan,
     startedAt: trip.started_at,
     finishedAt: trip.finished_at,
+    cartReadyAt: trip.cart_ready_at ?? null,
     currentStopId: current?.id ?? null,
     revision: trip.revision,
   };

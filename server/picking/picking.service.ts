@@ -6,7 +6,7 @@
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
-import { UNDO_WINDOW_MS, type ConfirmBody, type LineAnswer, type PickTrip, type ShortBody, type SkipBody, type TripPulse, type TripResult } from '../../shared/picking';
+import { UNDO_WINDOW_MS, type CartReadyBody, type ConfirmBody, type LineAnswer, type PickTrip, type ShortBody, type SkipBody, type TripPulse, type TripResult } from '../../shared/picking';
 import { audit } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
@@ -149,6 +149,32 @@ export async function startTrip(db: Knex, actor: Actor, tripId: number): Promise
   });
   const trip = (await loadPickTrip(db, tripId))!;
   if (started) siteChanged(trip.siteId);
+  return trip;
+}
+
+/**
+ * Cart set-up: the picker confirmed every tote of the trip (scan of its label or a tap) before the
+ * first stop. Stored once with an audit entry; a second call (a reload, a resend) changes nothing.
+ */
+export async function cartReady(db: Knex, actor: Actor, tripId: number, body: CartReadyBody): Promise<PickTrip> {
+  const changed = await db.transaction(async (trx) => {
+    const trip = await readableTrip(trx, actor, tripId);
+    if (trip.cart_ready_at) return false;
+    if (trip.status !== 'picking') throw new AppError('conflict', 'trip_not_started', trip.status === 'assigned' ? 'Start the trip (safety caution) before setting up the cart' : 'This trip is closed');
+    const totes = (await trx('pick_lines').where({ trip_id: trip.id }).distinct('tote').orderBy('tote')).map((r: { tote: number }) => r.tote);
+    const sent = [...new Set(body.totes.map((t) => t.tote))].sort((a, b) => a - b);
+    const missing = totes.filter((t) => !sent.includes(t));
+    const unknown = sent.filter((t) => !totes.includes(t));
+    if (missing.length > 0 || unknown.length > 0 || sent.length !== body.totes.length) {
+      throw new AppError('validation', 'totes_mismatch', `Confirm each tote of this trip once (totes ${totes.join(', ')})`, { expected: totes, missing, unknown });
+    }
+    await trx('trips').where({ id: trip.id }).update({ cart_ready_at: nowIso() });
+    await bumpRevision(trx, trip.id);
+    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cart_ready', subject: `trip:${trip.id}`, device: actor.device, detail: { totes: body.totes } });
+    return true;
+  });
+  const trip = (await loadPickTrip(db, tripId))!;
+  if (changed) siteChanged(trip.siteId);
   return trip;
 }
 

@@ -65,12 +65,13 @@ describe("another picker's trip", () => {
   const pickingPaths = routeTable.filter((r) => r.path.startsWith('/api/picking/trips/:tripId'));
 
   it('covers every picking route of the table', () => {
-    // confirm, short, undo, skip, finish, start, read, plan, result
+    // confirm, short, undo, skip, finish, start, cart set-up, read, plan, result
     expect(pickingPaths.map((r) => `${r.method} ${r.path}`).sort()).toEqual([
       'get /api/picking/trips/:tripId',
       'get /api/picking/trips/:tripId/plan',
       'get /api/picking/trips/:tripId/result',
       'get /api/picking/trips/:tripId/status',
+      'post /api/picking/trips/:tripId/cart-ready',
       'post /api/picking/trips/:tripId/finish',
       'post /api/picking/trips/:tripId/lines/:lineId/confirm',
       'post /api/picking/trips/:tripId/lines/:lineId/short',
@@ -87,7 +88,13 @@ describe("another picker's trip", () => {
       const trip = await readTrip(t.as.picker, w.tripIds[0]!);
       const stop = trip.stopList[0]!;
       const path = route.path.replace(':tripId', String(trip.id)).replace(':lineId', String(stop.lines[0]!.id)).replace(':stopId', String(stop.id));
-      const body = route.path.endsWith('/short') ? { qtyFound: 0, reason: 'empty_bin' } : route.path.endsWith('/confirm') ? { via: 'tap' } : {};
+      const body = route.path.endsWith('/short')
+        ? { qtyFound: 0, reason: 'empty_bin' }
+        : route.path.endsWith('/confirm')
+          ? { via: 'tap' }
+          : route.path.endsWith('/cart-ready')
+            ? { totes: [...new Set(trip.stopList.flatMap((s) => s.lines.map((l) => l.tote)))].map((tote) => ({ tote, via: 'tap' })) }
+            : {};
       const res = route.method === 'get' ? await t.as.picker2.get(path) : await t.as.picker2.post(path).set(csrf).set(IDEMPOTENCY_HEADER, newKey()).send(body);
       expect(res.status, JSON.stringify(res.body)).toBe(403);
       expect(res.body.error.code).toBe('not_your_trip');
