@@ -30,3 +30,25 @@ export function formatBytes(bytes: number): string {
   if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} KiB`;
   return `${(bytes / (1024 * 1024)).toFixed(1)} MiB`;
 }
+
+const IRREGULAR: Record<string, string> = { box: 'boxes', person: 'people' };
+/** A count with its noun in the right number, e.g. `count(1, 'trip')` → "1 trip", `count(3, 'trip')` → "3 trips". */
+export function count(n: number, noun: string, plural = IRREGULAR[noun] ?? `${noun}s`): string {
+  return `${n.toLocaleString('en-GB')} ${n === 1 ? noun : plural}`;
+}
+
+/** Non-breaking space: a figure and its unit never wrap apart ("5 min", never "5 / min"). */
+export const NBSP = '\u00a0';
+
+/**
+ * One unit for a group of distances read together (a sentence, a row of figures): kilometres when the
+ * largest is 10 km or more, else metres — so "447 m … 12.30 km" never appears side by side.
+ */
+export function distanceUnit(values: readonly number[]): 'm' | 'km' {
+  return values.some((m) => m >= 10_000) ? 'km' : 'm';
+}
+export function distance(m: number, unit: 'm' | 'km' = distanceUnit([m])): string {
+  return unit === 'km' ? `${(m / 1000).toFixed(2)}${NBSP}km` : `${Math.round(m).toLocaleString('en-GB')}${NBSP}m`;
+}
+/** Every figure of a group in the same unit, in the order given. */
+export const distances = (values: readonly number[]): string[] => values.map((m) => distance(m, distanceUnit(values)));
