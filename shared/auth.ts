@@ -18,7 +18,7 @@ export const BadgeCode = z.string().trim().toUpperCase().min(1).max(64);
 export const BadgeSignInBody = z.strictObject({ badge: BadgeCode, pin: z.string().min(1).max(12) });
 export type BadgeSignInBody = z.infer<typeof BadgeSignInBody>;
 
-export const SiteRef = z.object({ id: z.number().int(), code: z.string(), name: z.string() });
+export const SiteRef = z.object({ id: z.number().int(), code: z.string(), name: z.string(), /** IANA time zone of the site, for due times and clocks (e.g. "Europe/Berlin"). */ timezone: z.string().optional() });
 export type SiteRef = z.infer<typeof SiteRef>;
 
 /** Who is signed in, as `GET /api/auth/me` and every sign-in answer return it. */

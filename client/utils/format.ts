@@ -52,3 +52,25 @@ export function distance(m: number, unit: 'm' | 'km' = distanceUnit([m])): strin
 }
 /** Every figure of a group in the same unit, in the order given. */
 export const distances = (values: readonly number[]): string[] => values.map((m) => distance(m, distanceUnit(values)));
+
+/** Date and time in a given IANA time zone (the site's), e.g. "Dec 5, 2026, 14:00"; the viewer's zone when none. */
+export function formatInZone(iso: string, timeZone?: string): string {
+  const date = new Date(iso);
+  if (Number.isNaN(date.getTime())) return iso;
+  try {
+    return new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short', timeZone }).format(date);
+  } catch {
+    return new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(date);
+  }
+}
+
+/** How long ago a due time passed, in words ("45 min", "3 h 10 min", "2 days"); null when not yet due. */
+export function overdueBy(dueIso: string | null, now: number): string | null {
+  if (!dueIso) return null;
+  const due = new Date(dueIso).getTime();
+  if (Number.isNaN(due) || due >= now) return null;
+  const min = Math.floor((now - due) / 60_000);
+  if (min < 60) return `${Math.max(min, 1)}${NBSP}min`;
+  if (min < 48 * 60) return `${Math.floor(min / 60)}${NBSP}h${min % 60 ? ` ${min % 60}${NBSP}min` : ''}`;
+  return count(Math.floor(min / (24 * 60)), 'day').replace(' ', NBSP);
+}

@@ -27,7 +27,7 @@ export async function meOf(db: Knex, user: DbUserRow, authTime: number): Promise
     email: user.email,
     role: user.role,
     badge: user.badge,
-    sites: sites.map((s) => ({ id: s.id, code: s.code, name: s.name })),
+    sites: sites.map((s) => ({ id: s.id, code: s.code, name: s.name, timezone: s.timezone })),
     sessionEndsAt: new Date((authTime + SESSION_MAX_S) * 1000).toISOString(),
   };
 }
