@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { count, distance, distances, distanceUnit } from '../../client/utils/format';
+import { count, distance, distances, distanceUnit, overdueBy } from '../../client/utils/format';
 import { metres, minutes } from '../../client/views/waves/format';
 
 describe('count', () => {
@@ -30,5 +30,19 @@ describe('distances in one unit', () => {
     expect(minutes(5)).toBe('5\u00a0min');
     expect(metres(244)).toBe('244\u00a0m');
     expect(minutes(125)).toBe('2\u00a0h 5\u00a0min');
+  });
+});
+
+describe('overdueBy', () => {
+  const now = Date.parse('2026-12-05T12:00:00Z');
+  it('is null before the due time and for orders without one', () => {
+    expect(overdueBy('2026-12-05T12:30:00Z', now)).toBeNull();
+    expect(overdueBy(null, now)).toBeNull();
+  });
+  it('says how long ago the due time passed, compared as instants whatever the offset', () => {
+    expect(overdueBy('2026-12-05T11:15:00Z', now)).toBe('45\u00a0min');
+    // 13:00 at UTC+2 is 11:00 UTC: one hour late.
+    expect(overdueBy('2026-12-05T13:00:00+02:00', now)).toBe('1\u00a0h');
+    expect(overdueBy('2026-12-02T12:00:00Z', now)).toBe('3\u00a0days');
   });
 });
