@@ -1,4 +1,4 @@
-import { TripDetail, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
+import { TripDetail, WaveActuals, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
 import { ApiError, http } from './http';
 
 const base = (siteId: number) => `/api/sites/${siteId}`;
@@ -9,6 +9,7 @@ export const releaseWave = (siteId: number, body: { previewId: string; releaseKe
 export const listWaves = (siteId: number) => http('GET', `${base(siteId)}/waves`, WaveSummary.array());
 export const getWave = (siteId: number, id: number) => http('GET', `${base(siteId)}/waves/${id}`, WaveDetail);
 export const cancelWave = (siteId: number, id: number) => http('POST', `${base(siteId)}/waves/${id}/cancel`, WaveDetail);
+export const getWaveActuals = (siteId: number, id: number) => http('GET', `${base(siteId)}/waves/${id}/actuals`, WaveActuals);
 export const getTrip = (siteId: number, id: number) => http('GET', `${base(siteId)}/trips/${id}`, TripDetail);
 
 /** Polling failures in a row (network blips) tolerated before giving up with the last error. */
