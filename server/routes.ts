@@ -10,6 +10,7 @@ import { tokenRoutes } from './integrations/tokens.routes';
 import { mailRoutes } from './mail/mail.routes';
 import { orderRoutes } from './orders/orders.routes';
 import { pickingRoutes } from './picking/picking.routes';
+import { assignRoutes } from './picking/assign.routes';
 import { siteRoutes } from './sites/sites.routes';
 import { slottingRoutes } from './slotting/slotting.routes';
 import { studyRoutes } from './studies/studies.routes';
@@ -28,6 +29,7 @@ export const routeTable: readonly AnyRoute[] = [
   ...orderRoutes,
   ...waveRoutes,
   ...pickingRoutes,
+  ...assignRoutes,
   ...studyRoutes,
   ...slottingRoutes,
 ];

@@ -1,4 +1,5 @@
 import { TripDetail, WaveActuals, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
+import { AutoAssignResult, SignedInPicker } from '@shared/assign';
 import { ApiError, http } from './http';
 
 const base = (siteId: number) => `/api/sites/${siteId}`;
@@ -38,3 +39,5 @@ export async function waitForPreview(siteId: number, id: string, onProgress: (jo
     await new Promise((r) => setTimeout(r, 250));
   }
 }
+export const listSignedInPickers = (siteId: number) => http('GET', `/api/sites/${siteId}/pickers/signed-in`, SignedInPicker.array());
+export const autoAssignWave = (siteId: number, waveId: number) => http('POST', `/api/sites/${siteId}/waves/${waveId}/auto-assign`, AutoAssignResult, { body: {} });
