@@ -55,3 +55,52 @@ test('supervisor sees an overdue order, opens it, cancels it, and filters SKUs w
   await expect(page.getByRole('cell', { name: 'E2E-ON', exact: true })).toHaveCount(0);
   await expect(page.getByText('⚠ No: bin not on the active plan')).toBeVisible();
 });
+
+/** Two pickers sign in on tablets; the supervisor sees them on the wave page and assigns them the waiting trips. */
+test('supervisor sees who is signed in and assigns waiting trips to the free pickers', async ({ page, browser }) => {
+  const tablets = [];
+  for (const badge of ['P-1001', 'P-1002']) {
+    const tablet = await browser.newContext();
+    const r = await tablet.request.post('/api/auth/badge-sign-in', { headers: { 'x-aislewright': '1' }, data: { badge, pin: '246810' } });
+    expect(r.status()).toBe(200);
+    tablets.push(tablet);
+  }
+
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail').fill('supervisor@demo.aislewright.test');
+  await page.getByLabel('Password').fill('demo-password-1');
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await expect(page).toHaveURL('/waves');
+
+  // A wave of three one-order trips, released through the API (the builder has its own test).
+  const me = await (await page.request.get('/api/auth/me')).json();
+  const siteId = me.sites.find((s: { code: string }) => s.code === 'BWE').id;
+  const open = await (await page.request.get(`/api/sites/${siteId}/orders?status=open&pageSize=3`)).json();
+  const site = await (await page.request.get(`/api/sites/${siteId}`)).json();
+  const job = await (
+    await page.request.post(`/api/sites/${siteId}/wave-previews`, {
+      headers: { 'x-aislewright': '1' },
+      data: { orderIds: open.rows.map((o: { id: number }) => o.id), cartProfileId: site.cartProfiles[0].id, batching: 'single', method: 'best', improve: 'local' },
+    })
+  ).json();
+  let state = job;
+  for (let i = 0; i < 300 && state.state === 'running'; i++) {
+    await page.waitForTimeout(200);
+    state = await (await page.request.get(`/api/sites/${siteId}/wave-previews/${job.id}`)).json();
+  }
+  const released = await page.request.post(`/api/sites/${siteId}/waves`, { headers: { 'x-aislewright': '1' }, data: { previewId: job.id, releaseKey: `e2e-${job.id}` } });
+  expect(released.status()).toBe(201);
+  const wave = await released.json();
+
+  await page.goto(`/waves/${wave.id}`);
+  const panel = page.getByTestId('signed-in-pickers');
+  await expect(panel).toContainText('Pat Picker (free)');
+  await expect(panel).toContainText('Robin Picker (free)');
+  await page.getByRole('button', { name: /Assign waiting trips to free pickers \(3 trips, 2 free pickers\)/ }).click();
+  await expect(page.getByText(/Assigned trip 1 to .+, trip 2 to /)).toBeVisible();
+  await expect(panel).toContainText(/Pat Picker \(trip [12]\)/);
+  await expect(panel).toContainText(/Robin Picker \(trip [12]\)/);
+  await expect(page.getByRole('row', { name: /^3 / })).toContainText('Waiting for a picker');
+  await page.screenshot({ path: 'test-results/supervisor-assign.png' });
+  for (const tablet of tablets) await tablet.close();
+});
