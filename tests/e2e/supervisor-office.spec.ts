@@ -103,4 +103,7 @@ test('supervisor sees who is signed in and assigns waiting trips to the free pic
   await expect(page.getByRole('row', { name: /^3 / })).toContainText('Waiting for a picker');
   await page.screenshot({ path: 'test-results/supervisor-assign.png' });
   for (const tablet of tablets) await tablet.close();
+  // Leave the demo pickers free for the browser tests after this one (they share one server).
+  const closed = await page.request.post(`/api/sites/${siteId}/board/waves/${wave.id}/close`, { headers: { 'x-aislewright': '1' }, data: { reason: 'browser test done' } });
+  expect(closed.status(), await closed.text()).toBe(200);
 });
