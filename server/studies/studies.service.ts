@@ -119,6 +119,14 @@ async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Prom
   return { waves, planId: rows[0]!.plan_id, depotIdx: rows[0]!.depot_idx, days };
 }
 
+/** The sizes of a cart profile (a removed one is unknown), or the fallback cart when none is chosen. */
+async function cartOf(db: Knex, siteId: number, cartProfileId: number | undefined): Promise<{ totes: number; maxKg: number; maxLitres: number }> {
+  if (cartProfileId === undefined) return FALLBACK_CART;
+  const c = await getCartProfile(db, siteId, cartProfileId);
+  if (!c) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'work.cartProfileId', message: 'unknown cart profile' }]);
+  return { totes: c.totes, maxKg: c.maxKg, maxLitres: c.maxLitres };
+}
+
 /** Everything the worker needs, read from the database and generated from the seed. */
 async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promise<Work> {
   const site = (await getSiteRow(db, siteId))!;
@@ -134,21 +142,19 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
   } else {
     const w = inputs.work;
     base = await basePlanOf(db, siteId, inputs, null, 0);
-    let cart = FALLBACK_CART;
-    if (w.cartProfileId !== undefined) {
-      const c = await getCartProfile(db, siteId, w.cartProfileId);
-      if (!c) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'work.cartProfileId', message: 'unknown cart profile' }]);
-      cart = { totes: c.totes, maxKg: c.maxKg, maxLitres: c.maxLitres };
-    }
+    const cart = w.cart ?? (await cartOf(db, siteId, w.cartProfileId));
     waves = generateStudyOrders(base.geometry.bins, w.orders, inputs.seed).map((orders, i) => ({ id: i + 1, name: `Generated wave ${i + 1}`, orders, cart }));
     dayScale = w.wavesPerDay / w.orders.waves;
   }
-  try {
-    for (const wi of inputs.whatIfs) applyChanges(base, wi.changes);
-  } catch (e) {
-    if (e instanceof StudyInputError) throw new AppError('validation', 'validation_failed', e.message, [{ field: 'whatIfs', message: e.message }]);
-    throw e;
-  }
+  inputs.whatIfs.forEach((wi, i) => {
+    try {
+      applyChanges(base, wi.changes);
+    } catch (e) {
+      if (!(e instanceof StudyInputError)) throw e;
+      const field = `whatIfs.${i}${e.field ? `.${e.field}` : ''}`;
+      throw new AppError('validation', 'validation_failed', `What-if "${wi.label}": ${e.message}`, [{ field, message: e.message }]);
+    }
+  });
   return {
     base, whatIfs: inputs.whatIfs, waves, tripsFrom: inputs.work.kind === 'recorded' ? 'recorded' : inputs.work.batching,
     routing: inputs.routing, batching: inputs.batching, speeds, dayScale, seed: inputs.seed,
@@ -215,6 +221,8 @@ export async function createStudy(deps: Deps, siteId: number, userId: number, bo
     if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; choose a draft or generate one');
     inputs.work.plan = { source: 'plan', planId };
   }
+  // The cart's sizes are kept with the study: the profile may change or go before a rerun.
+  if (inputs.work.kind === 'generated' && !inputs.work.cart) inputs.work.cart = await cartOf(deps.db, siteId, inputs.work.cartProfileId);
   const work = await prepareWork(deps.db, siteId, inputs);
   const id = await insertStudy(deps.db, {
     site_id: siteId, name: inputs.name, kind: inputs.work.kind, seed: inputs.seed, inputs: JSON.stringify(inputs), status: 'queued',
