@@ -354,10 +354,13 @@ export function runStudy(input: StudyEngineInput): StudyResults {
     for (const method of input.batching) {
       const tb = performance.now();
       const trips: WorkTrip[] = [];
+      // Half of a method's share of progress is its batching, wave by wave; the other half its routing.
+      const share = Math.max(1, tripCount / 4);
       input.waves.forEach((w, wi) => {
         const r = batchWave(plan, ordersByWave[wi]!, w.cart, method, wi + 1);
         trips.push(...r.trips);
         if (method === input.batching[0]) unplaced.push(...r.unplaced);
+        tick(share / 2 / input.waves.length, `${v.label}: batching by ${BATCHING_LABELS[method]}, wave ${wi + 1} of ${input.waves.length}`);
       });
       batchedTrips.set(method, trips);
       let metres = 0;
@@ -376,7 +379,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
         metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBestPct: 0,
         aboveBoundPct: pct(metres, bound), hours, hoursPerDay: hours * input.dayScale, ms: performance.now() - tb,
       });
-      tick(Math.max(1, tripCount / 4), `${v.label}: batching by ${BATCHING_LABELS[method]}`);
+      tick(share / 2, `${v.label}: batching by ${BATCHING_LABELS[method]}, trips routed`);
     }
     const bestBatch = Math.min(...batching.map((b) => b.metres));
     for (const b of batching) b.aboveBestPct = pct(b.metres, bestBatch);
@@ -446,7 +449,8 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       const known = Object.values(metres).filter((x): x is number => x !== null);
       const lowerBound = tripBound(m, Math.min(...known));
       tripReasons.push(reasons);
-      tick(1, `${v.label}: routing trip ${ti + 1} of ${work.length}`);
+      // The routing share was sized on orders (trips are not known before batching): spread it over the trips.
+      tick(tripCount / Math.max(1, work.length), `${v.label}: wave ${t.wave} of ${input.waves.length}, trip ${ti + 1} of ${work.length} routed by ${routingKeys.length} methods`);
       return { n: ti + 1, wave: t.wave, orders: t.orders, lines: t.lines, nodes: t.nodes, lowerBound, metres, visits };
     });
     const lowerBound = trips.reduce((s, t) => s + t.lowerBound, 0);
