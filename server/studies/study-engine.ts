@@ -522,8 +522,9 @@ function whatIfRows(variants: StudyVariant[]): WhatIfRow[] {
     for (const r of v.routing) {
       const b = base.routing.find((x) => x.key === r.key);
       // A method that does not apply on either plan gives no difference: the row says why.
-      const why = r.metres === null
-        ? `does not apply on the what-if: ${r.reason ?? 'no route'}`
+      const why = r.metres === null && b && b.metres === null
+        ? `does not apply on either plan: ${r.reason ?? 'no route'}`
+        : r.metres === null ? `does not apply on the what-if: ${r.reason ?? 'no route'}`
         : b && b.metres === null ? `does not apply on the plan as it is: ${b.reason ?? 'no route'}`
           : r.solved !== null || (b && b.solved !== null) ? 'Held–Karp solved only part of the trips: a difference of lower bounds' : null;
       rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, why ?? unlike(base.lines, v.lines)));
