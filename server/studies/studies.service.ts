@@ -28,7 +28,7 @@ import { applyChanges, buildPlan, StudyInputError, tripRoute, type BuiltPlan, ty
 import { generateStudyOrders } from './generate-orders';
 import type { StudyProgress } from './study.worker';
 import {
-  getStudyRow, insertStudy, linesOfTrips, listStudyRows, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
+  getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
 } from './studies.repository';
 
 /** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
@@ -91,6 +91,7 @@ async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Prom
   const tripIds = trips.map((t) => t.id);
   const [stops, lines, units] = await Promise.all([stopsOfTrips(db, tripIds), linesOfTrips(db, tripIds), skuUnits(db, siteId)]);
   const unitOf = new Map(units.map((u) => [u.sku, u]));
+  const facts = new Map((await orderFacts(db, siteId, [...new Set(lines.map((l) => l.order_ref))])).map((f) => [f.ref, f]));
   const waves: StudyWave[] = rows.map((w) => {
     const mine = trips.filter((t) => t.wave_id === w.id);
     const byOrder = new Map<string, PlannerOrder>();
@@ -113,7 +114,17 @@ async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Prom
         confirmedBins: confirmed.map((s) => binsOf(s.bins)),
       };
     });
-    return { id: w.id, name: w.name, orders: [...byOrder.values()], cart: { totes: w.cart_totes, maxKg: w.cart_max_kg, maxLitres: w.cart_max_litres }, recorded };
+    // Batching is compared on the orders as they arrived, with their due time and priority, not in the
+    // order the released trips carried them (that order would let FCFS replay the released wave).
+    const arrival = (ref: string): [string, number] => [facts.get(ref)?.created_at ?? '', facts.get(ref)?.id ?? Number.MAX_SAFE_INTEGER];
+    const orders = [...byOrder.values()]
+      .map((o) => ({ ...o, due: facts.get(o.ref)?.due ?? null, priority: facts.get(o.ref)?.priority ?? null }))
+      .sort((a, b) => {
+        const [ca, ia] = arrival(a.ref);
+        const [cb, ib] = arrival(b.ref);
+        return ca < cb ? -1 : ca > cb ? 1 : ia - ib || (a.ref < b.ref ? -1 : 1);
+      });
+    return { id: w.id, name: w.name, orders, cart: { totes: w.cart_totes, maxKg: w.cart_max_kg, maxLitres: w.cart_max_litres }, recorded };
   });
   const days = new Set(rows.map((w) => w.created_at.slice(0, 10))).size;
   return { waves, planId: rows[0]!.plan_id, depotIdx: rows[0]!.depot_idx, days };

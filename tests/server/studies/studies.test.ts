@@ -304,4 +304,28 @@ describe('studies', () => {
     expect(figures(removed.results)).toEqual(figures(one.results));
     expect(removed.results.cart).toEqual({ totes: 4, maxKg: 60, maxLitres: 120 });
   }, 240_000);
+
+  it("batches recorded waves from the orders' arrival, due time and priority, not the released trips' order", async () => {
+    const wave = await releaseDemoWave(t, { orders: 12, batching: 'savings' });
+    const orders: { id: number; ref: string }[] = await t.deps.db('orders').where({ wave_id: wave.id }).orderBy(['created_at', 'id']).select('id', 'ref');
+    expect(orders.length).toBe(12);
+    // Due times that interleave the arrival order: the even-numbered arrivals are due first.
+    const dueOrder = [...orders.filter((_, i) => i % 2 === 0), ...orders.filter((_, i) => i % 2 === 1)];
+    for (const [i, o] of dueOrder.entries()) await t.deps.db('orders').where({ id: o.id }).update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString(), priority: null });
+    const done = await waitDone((await start({ name: 'Recorded FCFS', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs', 'savings'] })).id);
+    const v = done.results.variants[0]!;
+    const released = v.routing.find((r) => r.key === 'best+local')!.metres!;
+    const fcfs = v.batching.find((b) => b.method === 'fcfs')!;
+    expect(fcfs.orders).toBe(12);
+    // FCFS on the interleaved due times does not replay the savings wave as released.
+    expect(Math.abs(fcfs.metres - released)).toBeGreaterThan(1);
+    // The due times decide FCFS: the same wave with due times in arrival order batches differently.
+    for (const [i, o] of orders.entries()) await t.deps.db('orders').where({ id: o.id }).update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString() });
+    const inArrival = await waitDone((await start({ name: 'Recorded FCFS by arrival', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs'] })).id);
+    const fcfs2 = inArrival.results.variants[0]!.batching[0]!;
+    expect(fcfs2.orders).toBe(12);
+    expect(Math.abs(fcfs2.metres - fcfs.metres)).toBeGreaterThan(1);
+    // Savings does not depend on arrival: it still reproduces the released wave's metres (same engine, same cart).
+    expect(v.batching.find((b) => b.method === 'savings')!.metres).toBeCloseTo(released, 0);
+  }, 120_000);
 });
