@@ -125,4 +125,6 @@ export interface DbOrderFacts {
 
 /** Arrival (created_at, then id), due time and priority of orders by reference. */
 export const orderFacts = (db: Q, siteId: number, refs: string[]): Promise<DbOrderFacts[]> =>
-  db<DbOrderFacts>('orders').where({ site_id: siteId }).whereIn('ref', refs).select('ref', 'due', 'priority', 'created_at', 'id');
+  db('orders').where({ site_id: siteId }).whereIn('ref', refs).select<DbOrderFacts[]>('ref', 'due', 'priority', 'created_at', 'id');
+
+export const deleteStudyRow = (db: Q, siteId: number, id: number): Promise<number> => db('studies').where({ site_id: siteId, id }).del();

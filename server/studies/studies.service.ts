@@ -28,7 +28,7 @@ import { applyChanges, buildPlan, StudyInputError, tripRoute, type BuiltPlan, ty
 import { generateStudyOrders } from './generate-orders';
 import type { StudyProgress } from './study.worker';
 import {
-  getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
+  deleteStudyRow, getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
 } from './studies.repository';
 
 /** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
@@ -280,6 +280,16 @@ export async function cancelStudy(deps: Deps, siteId: number, id: number): Promi
   jobs.delete(id);
   await setStudyStatus(deps.db, id, { status: 'cancelled', finished_at: nowIso() });
   return (await getStudySummary(deps.db, siteId, id))!;
+}
+
+/** Deletes a finished, failed or cancelled study (a running one is cancelled first); reruns of it keep their figures. */
+export async function deleteStudy(deps: Deps, siteId: number, id: number): Promise<{ ok: true }> {
+  const row = await getStudyRow(deps.db, siteId, id);
+  if (!row) throw notFound('Study');
+  if (jobs.has(id)) throw new AppError('conflict', 'study_running', 'This study is still running; cancel it before deleting it');
+  await deleteStudyRow(deps.db, siteId, id);
+  for (const key of [...planCache.keys()]) if (key.startsWith(`${id}:`)) planCache.delete(key);
+  return { ok: true };
 }
 
 /** A new study with the same inputs and seed (named "… (rerun)"). */

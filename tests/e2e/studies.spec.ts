@@ -115,4 +115,10 @@ test('the new-study form describes each method and shows a refused what-if on it
   const box = (await note.boundingBox())!;
   expect(box.x + box.width).toBeLessThanOrEqual(1366);
   expect(box.x).toBeGreaterThan(600);
+
+  // The study is deleted after a confirmation; the list no longer has it.
+  await page.getByTestId('delete-study').click();
+  await page.getByRole('button', { name: 'Delete', exact: true }).last().click();
+  await expect(page).toHaveURL('/studies');
+  await expect(page.getByText('Browser what-if study')).toHaveCount(0);
 });

@@ -328,4 +328,18 @@ describe('studies', () => {
     // Savings does not depend on arrival: it still reproduces the released wave's metres (same engine, same cart).
     expect(v.batching.find((b) => b.method === 'savings')!.metres).toBeCloseTo(released, 0);
   }, 120_000);
+
+  it('deletes a study that is not running; a rerun of it stays', async () => {
+    const one = await waitDone((await start(generated('To delete', 9, { routing: ['best+local'], batching: ['savings'], whatIfs: [] }))).id);
+    const rerun = await waitDone((await t.as.engineer.post(`${base()}/${one.id}/rerun`).set(csrf).send({})).body.id);
+    expect((await t.as.picker.delete(`${base()}/${one.id}`).set(csrf)).status).toBe(403);
+    const del = await t.as.engineer.delete(`${base()}/${one.id}`).set(csrf);
+    expect(del.status).toBe(200);
+    expect((await t.as.engineer.get(`${base()}/${one.id}`)).status).toBe(404);
+    expect((await t.as.engineer.delete(`${base()}/${one.id}`).set(csrf)).status).toBe(404);
+    const kept = await t.as.engineer.get(`${base()}/${rerun.id}`);
+    expect(kept.status).toBe(200);
+    expect(kept.body.rerunOf).toBeNull();
+    expect(kept.body.results).not.toBeNull();
+  }, 120_000);
 });
