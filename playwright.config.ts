@@ -1,6 +1,6 @@
 import { defineConfig, devices } from '@playwright/test';
 
-/** Browser tests drive Debian's Chromium (never a downloaded browser; STACK.md, gotcha 9). */
+/** Browser tests drive Debian's Chromium (never a downloaded browser: `apt-get install -y chromium`; README.md). */
 export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const PORT = Number(process.env.E2E_PORT ?? 3310);
 

@@ -12,6 +12,7 @@ import { createAppRouter, handleSessionExpired, installGuards } from './router';
 import { setUnauthenticatedHandler } from './api/http';
 import { useSessionStore } from './stores/session';
 import { useDiscrete } from './adapters/naive';
+import { registerAppShell } from './pwa';
 
 const app = createApp(App);
 const pinia = createPinia();
@@ -30,3 +31,4 @@ setUnauthenticatedHandler(() => {
 app.use(router);
 
 void router.isReady().then(() => app.mount('#app'));
+registerAppShell();

@@ -10,8 +10,11 @@ import { pinoHttp } from 'pino-http';
 import type { Deps } from './deps';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mountRoutes } from './http/mount';
+import { DbRateLimitStore } from './http/rate-limit-store';
+import { isPg } from './db/dialect';
 import type { AnyRoute } from './http/route';
-import { withSiteEvents } from './picking/events';
+import { eventHub } from './events/hub';
+import { SITE_CHANGED, withSiteEvents, type SiteChangeSink } from './picking/events';
 import { routeTable } from './routes';
 
 export interface AppOptions {
@@ -67,8 +70,13 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
       autoLogging: { ignore: (req) => req.url === '/api/health' },
     }),
   );
-  // Board changes signalled while serving a request reach this app's live-board streams (events.ts).
-  app.use((_req, _res, next) => withSiteEvents(deps.boardStreams, next));
+  // Board changes signalled while serving a request reach this app's live-board streams (events.ts);
+  // with several instances on PostgreSQL they travel through the shared hub, so every instance's
+  // streams hear them (this one included, through its own subscription).
+  const hub = eventHub();
+  const sink: SiteChangeSink = hub.shared ? { siteChanged: (siteId) => hub.publish(SITE_CHANGED, siteId) } : deps.boardStreams;
+  if (hub.shared) hub.subscribe(SITE_CHANGED, (siteId) => deps.boardStreams.siteChanged(Number(siteId)));
+  app.use((_req, _res, next) => withSiteEvents(sink, next));
   app.use(cookieParser());
   // Answers from the API hold private data: never stored by a browser or a proxy.
   app.use('/api', (_req, res, next) => {
@@ -82,6 +90,9 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
       windowMs: 60_000,
       limit: MALFORMED_SIGN_IN_LIMIT_PER_MINUTE,
       skip: wellFormedAttempt,
+      // Several instances on PostgreSQL count one window per address in the database; one SQLite
+      // process keeps the count in memory.
+      ...(isPg(deps.db) ? { store: new DbRateLimitStore(deps.db) } : {}),
       standardHeaders: 'draft-8',
       legacyHeaders: false,
       handler: (_req, res) => {
@@ -95,7 +106,17 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
 
   if (options.clientDir && existsSync(options.clientDir)) {
     const dir = options.clientDir;
-    app.use(express.static(dir, { index: false, maxAge: '1h' }));
+    app.use(
+      express.static(dir, {
+        index: false,
+        maxAge: '1h',
+        // The service worker and the files it checks for updates are always revalidated, so a new
+        // release reaches tablets on their next online load (hashed assets keep their hour).
+        setHeaders: (res, path) => {
+          if (/(^|[\\/])(sw\.js|index\.html|manifest\.webmanifest|workbox-[\w-]+\.js)$/.test(path)) res.setHeader('Cache-Control', 'no-cache');
+        },
+      }),
+    );
     // Client-side routes: every other GET gets the app shell.
     app.get('/{*splat}', (_req, res) => {
       res.setHeader('Cache-Control', 'no-cache');

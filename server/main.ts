@@ -1,6 +1,8 @@
 /** Start-up: config → secret → database → migrations → demo seed → app → listen. */
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { randomBytes } from 'node:crypto';
+import { createServer as createHttpsServer } from 'node:https';
+import type { Server } from 'node:net';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { pino } from 'pino';
@@ -9,6 +11,7 @@ import { SignInBackoff } from './auth/backoff';
 import { createHasher } from './auth/hasher';
 import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
+import { createPgHub, useEventHub } from './events/hub';
 import { createMailer } from './mail/mailer';
 import { createBackground } from './system/background';
 import { createBoardStreams } from './picking/board-streams';
@@ -43,14 +46,20 @@ async function main(): Promise<void> {
   }
   const logger = pino({ level: config.LOG_LEVEL, redact: ['req.headers.cookie', 'req.headers.authorization', '*.password', '*.pin', '*.token'] });
   const dbFile = config.DATABASE_FILE === ':memory:' ? ':memory:' : resolve(config.DATABASE_FILE);
-  const db = openDb(dbFile);
+  // DATABASE_URL (postgres://…) selects PostgreSQL; otherwise the SQLite file.
+  const db = openDb(config.DATABASE_URL ?? dbFile);
   await migrateLatest(db);
   // `aislewright backup restore` refuses while this claim is held by a live process.
-  const releaseDatabase = dbFile === ':memory:' ? () => undefined : claimDatabase(dbFile);
+  const releaseDatabase = config.DATABASE_URL || dbFile === ':memory:' ? () => undefined : claimDatabase(dbFile);
+  if (config.DATABASE_URL) {
+    // Several instances: live-board and job events travel between them through LISTEN/NOTIFY.
+    useEventHub(await createPgHub(config.DATABASE_URL, (err) => logger.warn({ err }, 'event hub connection')));
+  }
   const hasher = createHasher();
   const mailer = createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM });
+  // Backups copy the SQLite file; on PostgreSQL the site backs up with pg_dump (README).
   const backups =
-    dbFile === ':memory:'
+    config.DATABASE_URL || dbFile === ':memory:'
       ? undefined
       : new BackupRunner({
           dbFile,
@@ -77,8 +86,18 @@ async function main(): Promise<void> {
   };
   const seeded = config.DEMO_SEED ? await seedDemoIfEmpty(db, hasher, demoSeeders) : null;
   const app = createApp(deps, { clientDir: join(root, 'dist', 'client') });
-  const server = app.listen(config.PORT, config.HOST, () => {
-    const url = `http://localhost:${config.PORT}`;
+  // HTTPS when a certificate and key are given (README, "HTTPS for tablets"); plain HTTP otherwise.
+  let tls: { cert: Buffer; key: Buffer } | null = null;
+  if (config.TLS_CERT_FILE && config.TLS_KEY_FILE) {
+    try {
+      tls = { cert: readFileSync(resolve(config.TLS_CERT_FILE)), key: readFileSync(resolve(config.TLS_KEY_FILE)) };
+    } catch (err) {
+      console.error(`Cannot read the TLS certificate or key: ${(err as Error).message}`);
+      process.exit(1);
+    }
+  }
+  const onListening = () => {
+    const url = `${tls ? 'https' : 'http'}://localhost:${config.PORT}`;
     console.log(`\nAislewright ${VERSION} is serving on ${url}`);
     if (seeded) {
       console.log('\nDemo site seeded (invented data). Demo sign-ins:');
@@ -86,7 +105,15 @@ async function main(): Promise<void> {
       console.log(`  (pickers: open ${url}/sign-in/badge on the tablet)`);
     }
     console.log('');
-  });
+  };
+  let server: Server;
+  try {
+    server = tls ? createHttpsServer(tls, app).listen(config.PORT, config.HOST, onListening) : app.listen(config.PORT, config.HOST, onListening);
+  } catch (err) {
+    // A key that does not match the certificate, or a file that is not PEM.
+    console.error(`Cannot start HTTPS with TLS_CERT_FILE and TLS_KEY_FILE: ${(err as Error).message}`);
+    process.exit(1);
+  }
   const tasks = startTasks(deps);
   const stop = () => {
     server.close(() => void tasks.stop().then(() => deps.background.settled()).then(() => db.destroy()).then(() => {

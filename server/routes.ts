@@ -14,6 +14,7 @@ import { mailRoutes } from './mail/mail.routes';
 import { orderRoutes } from './orders/orders.routes';
 import { pickingRoutes } from './picking/picking.routes';
 import { retentionRoutes } from './retention/retention.routes';
+import { assignRoutes } from './picking/assign.routes';
 import { siteRoutes } from './sites/sites.routes';
 import { slottingRoutes } from './slotting/slotting.routes';
 import { studyRoutes } from './studies/studies.routes';
@@ -32,6 +33,7 @@ export const routeTable: readonly AnyRoute[] = [
   ...orderRoutes,
   ...waveRoutes,
   ...pickingRoutes,
+  ...assignRoutes,
   ...studyRoutes,
   ...slottingRoutes,
   ...backupRoutes,

@@ -24,6 +24,7 @@ export const MAX_UNIT_VOLUME_L = 10_000;
 /** Spreadsheet programs run a cell starting with one of these as a formula (OWASP, "CSV Injection"). */
 export const FORMULA_START = /^[=+\-@\t\r]/;
 /** C0 controls (tab, CR and LF included), DEL and C1 controls. */
+// eslint-disable-next-line no-control-regex -- matching control characters is the point
 const CONTROL = /[\u0000-\u001f\u007f-\u009f]/;
 /** Bidirectional marks, embeddings, overrides and isolates, and line/paragraph separators. */
 const BIDI = /[\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/;
@@ -33,6 +34,7 @@ const BIDI = /[\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/;
  * value in an error table without it reordering or hiding what is around it.
  */
 export function visibleText(text: string): string {
+  // eslint-disable-next-line no-control-regex -- matching control characters is the point
   return text.replace(/[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/g, (c) => `⟨U+${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}⟩`);
 }
 

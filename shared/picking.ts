@@ -53,6 +53,11 @@ export const ReopenLineBody = z.strictObject({ reason: z.string().trim().min(1).
 export const UNDO_WINDOW_MS = 10_000;
 export type SkipBody = z.infer<typeof SkipBody>;
 export const FinishBody = z.strictObject({});
+/** Cart set-up before the first stop: each of the trip's totes confirmed by a scan of its label or a tap. */
+export const CartReadyBody = z.strictObject({
+  totes: z.array(z.strictObject({ tote: z.number().int().min(1), via: z.enum(['scan', 'tap']) })).min(1).max(100),
+});
+export type CartReadyBody = z.infer<typeof CartReadyBody>;
 
 export const PickStop = StopView.extend({
   skipped: z.boolean(),
@@ -67,6 +72,8 @@ export const PickTrip = TripDetail.extend({
   confirmScan: z.enum(['bin', 'sku']),
   startedAt: z.string().nullable(),
   finishedAt: z.string().nullable(),
+  /** When the picker confirmed the cart set-up (which order goes in which tote); null until then. */
+  cartReadyAt: z.string().nullable(),
   /** First open stop in stop order; null when every line is done. */
   currentStopId: z.number().int().nullable(),
   /** Raised by every change to the trip (see TripPulse). */

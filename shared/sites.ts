@@ -33,8 +33,8 @@ export type SiteSettings = z.infer<typeof SiteSettings>;
 /** Where each default comes from, shown beside the field in the UI. */
 export const SETTING_SOURCES: Record<keyof SiteSettings, string> = {
   walkingSpeedMps: 'Default 1.0 m/s, common in order-picking studies; comfortable adult pace is 1.27–1.46 m/s (Bohannon 1997).',
-  secondsPerLine: 'Default 10 s per line: common practice (from memory).',
-  secondsPerStop: 'Default 5 s per stop: common practice (from memory).',
+  secondsPerLine: 'Default 10 s per line: common practice; time a few lines on your floor and adjust.',
+  secondsPerStop: 'Default 5 s per stop (stopping, reading the bin label): common practice; adjust to your floor.',
   confirmScan: 'Default: scan the bin label.',
 };
 

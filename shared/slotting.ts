@@ -48,6 +48,8 @@ export const SlottingInputs = z.strictObject({
   /** Share of the history's days learnt from (the earliest); the rest measure the saving honestly. */
   learnShare: z.number().gt(0).max(1).default(2 / 3),
   cartProfileId: z.number().int().positive(),
+  /** A stored plan of the site (draft, active or retired) to slot on; null: the active plan. Moves apply only on the active plan. */
+  planId: z.number().int().positive().nullable().default(null),
 });
 export type SlottingInputs = z.infer<typeof SlottingInputs>;
 export type SlottingInputsBody = z.input<typeof SlottingInputs>;

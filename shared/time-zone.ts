@@ -6,7 +6,7 @@
 import { z } from 'zod';
 
 /** Area/Location names ("America/Argentina/Buenos_Aires") and single names ("UTC"); offsets such as "+01:00" are not zone names. */
-const ZONE_NAME = /^[A-Za-z][A-Za-z0-9_+\-]*(\/[A-Za-z0-9_+\-]+){0,2}$/;
+const ZONE_NAME = /^[A-Za-z][A-Za-z0-9_+-]*(\/[A-Za-z0-9_+-]+){0,2}$/;
 
 /** True for a time zone name of the IANA tz database that this runtime can convert to. */
 export function isIanaTimeZone(zone: string): boolean {

@@ -203,3 +203,21 @@ export const TripDetail = TripSummary.extend({
   depotCode: z.string(),
 });
 export type TripDetail = z.infer<typeof TripDetail>;
+
+/** Planned against actual per trip (the wave report's figures): walked metres, minutes, shorts. */
+export const WaveActualRow = z.object({
+  trip: z.number().int(),
+  status: z.string(),
+  lines: z.number().int(),
+  picked: z.number().int(),
+  shorts: z.number().int(),
+  plannedMetres: z.number().nullable(),
+  /** Null until measurable (not started, or a closure cut off a stop after it was picked). */
+  walkedMetres: z.number().nullable(),
+  estMinutes: z.number().nullable(),
+  /** Start to finish; null until the trip is finished. */
+  minutes: z.number().nullable(),
+});
+export type WaveActualRow = z.infer<typeof WaveActualRow>;
+export const WaveActuals = z.object({ rows: z.array(WaveActualRow) });
+export type WaveActuals = z.infer<typeof WaveActuals>;

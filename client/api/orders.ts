@@ -17,3 +17,4 @@ export const importOrders = (siteId: number, file: File, onProgress?: (f: number
 
 export const SKU_TEMPLATE_URL = '/api/templates/skus.xlsx';
 export const ORDER_TEMPLATE_URL = '/api/templates/orders.xlsx';
+export const cancelOrder = (siteId: number, id: number, reason?: string) => http('POST', `${base(siteId)}/orders/${id}/cancel`, OrderDetail, { body: reason ? { reason } : {} });

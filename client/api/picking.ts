@@ -1,7 +1,7 @@
 /** Typed calls for the picker's tablet and the supervisor's live board (shared/picking.ts). */
 import { z } from 'zod';
 import { Ok } from '@shared/common';
-import { Board, CancelResult, CloseWaveResult, CurrentTrip, LineAnswer, PickAnswer, PickTrip, TripPlan, TripPulse, TripResult, type ShortReason } from '@shared/picking';
+import { Board, CancelResult, CloseWaveResult, CurrentTrip, LineAnswer, PickAnswer, PickTrip, TripPlan, TripPulse, TripResult, type CartReadyBody, type ShortReason } from '@shared/picking';
 import { ApiError, http } from './http';
 
 export const currentTrip = (siteId: number) => http('GET', `/api/sites/${siteId}/picking/current`, CurrentTrip);
@@ -10,6 +10,7 @@ export const getTrip = (tripId: number) => http('GET', `/api/picking/trips/${tri
 export const getTripPulse = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/status`, TripPulse);
 export const getTripPlan = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/plan`, TripPlan);
 export const startTrip = (tripId: number) => http('POST', `/api/picking/trips/${tripId}/start`, PickTrip);
+export const cartReady = (tripId: number, body: CartReadyBody) => http('POST', `/api/picking/trips/${tripId}/cart-ready`, PickTrip, { body });
 export const getTripResult = (tripId: number) => http('GET', `/api/picking/trips/${tripId}/result`, TripResult);
 
 /** One queued picker write: what the offline queue stores and replays with the same key. */

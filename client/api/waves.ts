@@ -1,4 +1,5 @@
-import { TripDetail, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
+import { TripDetail, WaveActuals, WaveDetail, WaveJob, WaveSummary, type WavePreviewBody } from '@shared/waves';
+import { AutoAssignResult, SignedInPicker } from '@shared/assign';
 import { ApiError, http } from './http';
 
 const base = (siteId: number) => `/api/sites/${siteId}`;
@@ -9,6 +10,7 @@ export const releaseWave = (siteId: number, body: { previewId: string; releaseKe
 export const listWaves = (siteId: number) => http('GET', `${base(siteId)}/waves`, WaveSummary.array());
 export const getWave = (siteId: number, id: number) => http('GET', `${base(siteId)}/waves/${id}`, WaveDetail);
 export const cancelWave = (siteId: number, id: number) => http('POST', `${base(siteId)}/waves/${id}/cancel`, WaveDetail);
+export const getWaveActuals = (siteId: number, id: number) => http('GET', `${base(siteId)}/waves/${id}/actuals`, WaveActuals);
 export const getTrip = (siteId: number, id: number) => http('GET', `${base(siteId)}/trips/${id}`, TripDetail);
 
 /** Polling failures in a row (network blips) tolerated before giving up with the last error. */
@@ -37,3 +39,5 @@ export async function waitForPreview(siteId: number, id: string, onProgress: (jo
     await new Promise((r) => setTimeout(r, 250));
   }
 }
+export const listSignedInPickers = (siteId: number) => http('GET', `/api/sites/${siteId}/pickers/signed-in`, SignedInPicker.array());
+export const autoAssignWave = (siteId: number, waveId: number) => http('POST', `/api/sites/${siteId}/waves/${waveId}/auto-assign`, AutoAssignResult, { body: {} });

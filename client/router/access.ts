@@ -1,6 +1,6 @@
 import type { Role } from '@shared/common';
 
-/** Where each role lands after sign-in (API-FOUNDATION.md, role homes). */
+/** Where each role lands after sign-in: the screen of its main job (this table is the source). */
 export const ROLE_HOME: Record<Role, string> = {
   admin: '/admin/users',
   supervisor: '/waves',

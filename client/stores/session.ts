@@ -1,12 +1,28 @@
 import { computed, ref, watch } from 'vue';
 import { defineStore } from 'pinia';
-import type { BadgeSignInBody, Me, SignInBody } from '@shared/auth';
+import { Me, type BadgeSignInBody, type SignInBody } from '@shared/auth';
+import { ApiError } from '@client/api/http';
 import * as authApi from '@client/api/auth';
 import type { SignInMode } from '@client/router/access';
 import { setDisplayTimeZone } from '@client/utils/format';
 
 const SITE_KEY = 'aislewright.siteId';
 const MODE_KEY = 'aislewright.signInMode';
+/** Who last signed in on this device, so a reload with no network reopens their screen (the app shell is offline too). */
+const ME_KEY = 'aislewright.me';
+
+function readStoredMe(): Me | null {
+  try {
+    const parsed = Me.safeParse(JSON.parse(localStorage.getItem(ME_KEY) ?? 'null'));
+    return parsed.success ? parsed.data : null;
+  } catch {
+    return null;
+  }
+}
+function storeMe(next: Me | null): void {
+  if (next) localStorage.setItem(ME_KEY, JSON.stringify(next));
+  else localStorage.removeItem(ME_KEY);
+}
 
 function readStoredSiteId(): number | null {
   const raw = localStorage.getItem(SITE_KEY);
@@ -17,6 +33,8 @@ function readStoredSiteId(): number | null {
 export const useSessionStore = defineStore('session', () => {
   const me = ref<Me | null>(null);
   const loaded = ref(false);
+  /** True while the signed-in user comes from this device's copy because the server could not be reached. */
+  const offline = ref(false);
   const storedSiteId = ref<number | null>(readStoredSiteId());
   // A shared tablet should come back to the badge page after a session ends, not the office form.
   const signInMode = ref<SignInMode>(localStorage.getItem(MODE_KEY) === 'badge' ? 'badge' : 'email');
@@ -32,6 +50,8 @@ export const useSessionStore = defineStore('session', () => {
 
   function setSignedIn(next: Me, mode: SignInMode): void {
     me.value = next;
+    storeMe(next);
+    offline.value = false;
     loaded.value = true;
     signInMode.value = mode;
     localStorage.setItem(MODE_KEY, mode);
@@ -44,11 +64,17 @@ export const useSessionStore = defineStore('session', () => {
       .getMe()
       .then((answer) => {
         me.value = answer;
+        storeMe(answer);
+        offline.value = false;
       })
-      .catch(() => {
-        // Not signed in is the ordinary start; a server that cannot be reached also lands on sign-in,
-        // where submitting shows what went wrong.
-        me.value = null;
+      .catch((e: unknown) => {
+        // No network (a reload in a Wi-Fi gap): carry on as whoever signed in on this device last;
+        // the server still checks the session on every write when the network is back.
+        const saved = e instanceof ApiError && e.status === 0 ? readStoredMe() : null;
+        offline.value = saved !== null;
+        // Not signed in is the ordinary start; a server that cannot be reached with nobody saved
+        // also lands on sign-in, where submitting shows what went wrong.
+        me.value = saved;
       })
       .finally(() => {
         loaded.value = true;
@@ -76,6 +102,8 @@ export const useSessionStore = defineStore('session', () => {
   /** Drops the local session (after sign-out, or when the server says it has ended). */
   function forget(): void {
     me.value = null;
+    storeMe(null);
+    offline.value = false;
     loaded.value = true;
   }
 
@@ -101,5 +129,5 @@ export const useSessionStore = defineStore('session', () => {
     localStorage.setItem(SITE_KEY, String(id));
   }
 
-  return { me, loaded, role, sites, currentSite, siteId, signInMode, ensureLoaded, signIn, badgeSignIn, adopt, forget, signOut, signOutEverywhere, selectSite };
+  return { me, loaded, offline, role, sites, currentSite, siteId, signInMode, ensureLoaded, signIn, badgeSignIn, adopt, forget, signOut, signOutEverywhere, selectSite };
 });

@@ -58,3 +58,47 @@ export function formatBytes(bytes: number): string {
   if (bytes < 1024 * 1024) return `${(bytes / 1024).toFixed(1)} KiB`;
   return `${(bytes / (1024 * 1024)).toFixed(1)} MiB`;
 }
+
+const IRREGULAR: Record<string, string> = { box: 'boxes', person: 'people' };
+/** A count with its noun in the right number, e.g. `count(1, 'trip')` → "1 trip", `count(3, 'trip')` → "3 trips". */
+export function count(n: number, noun: string, plural = IRREGULAR[noun] ?? `${noun}s`): string {
+  return `${n.toLocaleString('en-GB')} ${n === 1 ? noun : plural}`;
+}
+
+/** Non-breaking space: a figure and its unit never wrap apart ("5 min", never "5 / min"). */
+export const NBSP = '\u00a0';
+
+/**
+ * One unit for a group of distances read together (a sentence, a row of figures): kilometres when the
+ * largest is 10 km or more, else metres — so "447 m … 12.30 km" never appears side by side.
+ */
+export function distanceUnit(values: readonly number[]): 'm' | 'km' {
+  return values.some((m) => m >= 10_000) ? 'km' : 'm';
+}
+export function distance(m: number, unit: 'm' | 'km' = distanceUnit([m])): string {
+  return unit === 'km' ? `${(m / 1000).toFixed(2)}${NBSP}km` : `${Math.round(m).toLocaleString('en-GB')}${NBSP}m`;
+}
+/** Every figure of a group in the same unit, in the order given. */
+export const distances = (values: readonly number[]): string[] => values.map((m) => distance(m, distanceUnit(values)));
+
+/** Date and time in a given IANA time zone (the site's), e.g. "Dec 5, 2026, 14:00"; the viewer's zone when none. */
+export function formatInZone(iso: string, timeZone?: string): string {
+  const date = new Date(iso);
+  if (Number.isNaN(date.getTime())) return iso;
+  try {
+    return new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short', timeZone }).format(date);
+  } catch {
+    return new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(date);
+  }
+}
+
+/** How long ago a due time passed, in words ("45 min", "3 h 10 min", "2 days"); null when not yet due. */
+export function overdueBy(dueIso: string | null, now: number): string | null {
+  if (!dueIso) return null;
+  const due = new Date(dueIso).getTime();
+  if (Number.isNaN(due) || due >= now) return null;
+  const min = Math.floor((now - due) / 60_000);
+  if (min < 60) return `${Math.max(min, 1)}${NBSP}min`;
+  if (min < 48 * 60) return `${Math.floor(min / 60)}${NBSP}h${min % 60 ? ` ${min % 60}${NBSP}min` : ''}`;
+  return count(Math.floor(min / (24 * 60)), 'day').replace(' ', NBSP);
+}

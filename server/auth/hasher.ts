@@ -2,7 +2,7 @@ import argon2 from 'argon2';
 
 /**
  * argon2id at OWASP's parameters (m = 19 MiB, t = 2, p = 1). One hash at a time on this 2-core
- * machine: unbounded parallel sign-ins pushed other requests' p99 from ≈ 50 ms to ≈ 450 ms (STACK.md).
+ * machine: unbounded parallel sign-ins pushed other requests' p99 from ≈ 50 ms to ≈ 450 ms (measured here).
  */
 export interface Hasher {
   hash(secret: string): Promise<string>;

@@ -2,16 +2,45 @@ import { chmodSync, closeSync, existsSync, mkdirSync, openSync } from 'node:fs';
 import { dirname } from 'node:path';
 import knexFactory, { type Knex } from 'knex';
 import type BetterSqlite3 from 'better-sqlite3';
+import { isPgUrl, preparePg } from './dialect';
 import { migrationSource } from './migration-source';
 
 export type Db = Knex;
 
+export interface OpenDbOptions {
+  /** PostgreSQL only: schema to work in (tests give each file its own). */
+  schema?: string;
+  /** PostgreSQL only: connections in this instance's pool (default 10). */
+  poolMax?: number;
+}
+
+/**
+ * Opens the database: a `postgres://` URL selects PostgreSQL (the pg driver), anything else is a
+ * SQLite file (or `:memory:`).
+ */
+export function openDb(target: string, options: OpenDbOptions = {}): Db {
+  if (isPgUrl(target)) return openPg(target, options);
+  return openSqlite(target);
+}
+
+/** PostgreSQL through the pg driver; type parsing and float width are set in dialect.ts. */
+function openPg(url: string, options: OpenDbOptions): Db {
+  preparePg();
+  return knexFactory({
+    client: 'pg',
+    connection: url,
+    ...(options.schema ? { searchPath: [options.schema] } : {}),
+    pool: { min: 0, max: options.poolMax ?? 10 },
+  });
+}
+
 /**
  * Opens the SQLite database. Every connection gets WAL, synchronous=FULL (confirmations must survive
- * power loss; NORMAL may roll back the last commits), foreign keys on and a busy timeout (STACK.md).
+ * power loss; NORMAL may roll back the last commits), foreign keys on and a busy timeout (SQLite's
+ * documentation; FULL costs ≈ 0.7 ms per commit here).
  * Knex's SQLite pool holds one connection.
  */
-export function openDb(file: string): Db {
+function openSqlite(file: string): Db {
   if (file !== ':memory:') prepareDataFile(file);
   return knexFactory({
     client: 'better-sqlite3',
@@ -51,8 +80,22 @@ function prepareDataFile(file: string): void {
   chmodSync(file, 0o600);
 }
 
+/**
+ * Runs pending migrations. Knex takes its migration lock (a row in knex_migrations_lock, under a
+ * transaction) so two instances starting at once run each migration once; the second waits, then finds
+ * nothing to do.
+ */
 export async function migrateLatest(db: Db): Promise<void> {
-  await db.migrate.latest({ migrationSource });
+  for (let attempt = 0; ; attempt++) {
+    try {
+      await db.migrate.latest({ migrationSource });
+      return;
+    } catch (err) {
+      // Another instance holds the lock (knex fails fast rather than waiting): try again shortly.
+      if (!/Migration table is already locked/i.test((err as Error).message) || attempt > 120) throw err;
+      await new Promise((r) => setTimeout(r, 500));
+    }
+  }
 }
 
 /** ISO 8601 timestamp for TEXT columns. */

@@ -6,7 +6,7 @@ import type { Knex } from 'knex';
 const migrationsDir = join(dirname(fileURLToPath(import.meta.url)), '..', '..', 'migrations');
 
 /**
- * Knex's own loader imports `.ts` with Node's loader, which fails under Vitest (STACK.md, gotcha 6);
+ * Knex's own loader imports `.ts` with Node's loader, which fails under Vitest (`Unknown file extension ".ts"`);
  * this source lists the folder and imports each file through whatever loader runs us (tsx or Vitest).
  */
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -1,6 +1,7 @@
 /** Floor-plan tables: one database operation per function, each taking `db` or a transaction. */
 import type { Knex } from 'knex';
 import type BetterSqlite3 from 'better-sqlite3';
+import { isPg } from '../db/dialect';
 import type { FloorPlanClosure, FloorPlanState, FloorPlanStats, FloorPlanSummary, GeneratePlanParams } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
@@ -142,7 +143,7 @@ export interface NewPlanRow {
 
 /** A plan row in state 'building': invisible until `finishPlan` numbers it as a draft. */
 export async function insertBuildingPlan(db: Q, p: NewPlanRow, now: string): Promise<number> {
-  const [id] = await db('floor_plans').insert({
+  const [{ id }] = await db('floor_plans').insert({
     site_id: p.site_id,
     version: null,
     name: p.name,
@@ -163,7 +164,7 @@ export async function insertBuildingPlan(db: Q, p: NewPlanRow, now: string): Pro
     stored_bytes: p.stored_bytes,
     build_ms: p.build_ms,
     warnings: JSON.stringify(p.warnings),
-  });
+  }, 'id');
   return id!;
 }
 
@@ -223,10 +224,15 @@ export function geometryInsertChunks(planId: number, plan: PlanGeometry): { tabl
 /**
  * Inserts rows through one prepared statement inside one SQLite transaction. Knex would send a
  * multi-row INSERT as a compound SELECT, which SQLite caps at 500 terms and which costs far more to
- * build; this holds the single pooled connection only for the one chunk.
+ * build; this holds the single pooled connection only for the one chunk. PostgreSQL takes the chunk as
+ * multi-row INSERTs (its bound is 65,535 parameters, so 1,000 rows of ≤ 10 columns each).
  */
 export async function insertRows(db: Knex, table: string, rows: Record<string, unknown>[]): Promise<void> {
   if (!rows.length) return;
+  if (isPg(db)) {
+    await db.batchInsert(table, rows, 1000);
+    return;
+  }
   const columns = Object.keys(rows[0]!);
   const conn = (await db.client.acquireConnection()) as BetterSqlite3.Database;
   try {
@@ -305,9 +311,9 @@ export async function insertClosure(
   c: { planId: number; kind: 'aisle' | 'cross_aisle'; code: string; fromM: number; toM: number; reason: string | null; userId: number },
   now: string,
 ): Promise<number> {
-  const [id] = await db('floor_plan_closures').insert({
+  const [{ id }] = await db('floor_plan_closures').insert({
     plan_id: c.planId, kind: c.kind, code: c.code, from_m: c.fromM, to_m: c.toM, reason: c.reason, created_by: c.userId, created_at: now,
-  });
+  }, 'id');
   return id!;
 }
 

@@ -4,6 +4,7 @@
  * chunks with a yield between them, so other requests keep being served during a 50,000-bin build.
  * Services throw AppError and never see HTTP.
  */
+import { withAdvisoryLock } from '../db/dialect';
 import { setImmediate as yieldToLoop } from 'node:timers/promises';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
@@ -311,9 +312,13 @@ export function startGenerate({ db, logger }: { db: Knex; logger: Logger }, inpu
 
 // ---- closures ----
 
-/** One closure change per plan at a time, so two supervisors cannot overwrite each other's arrays. */
+/**
+ * One closure change per plan at a time, so two supervisors cannot overwrite each other's arrays: in
+ * this process by a promise chain, and between instances on PostgreSQL by an advisory lock as well.
+ */
 const planLocks = new Map<number, Promise<unknown>>();
-function withPlanLock<T>(planId: number, task: () => Promise<T>): Promise<T> {
+function withPlanLock<T>(db: Knex, planId: number, work: () => Promise<T>): Promise<T> {
+  const task = () => withAdvisoryLock(db, `floor-plan-closures:${planId}`, work);
   const prev = planLocks.get(planId) ?? Promise.resolve();
   const run = prev.then(task, task);
   const tail = run.catch(() => undefined);
@@ -407,7 +412,7 @@ async function closureResult(
 export async function closeSegment(db: Knex, siteId: number, planId: number, body: CloseSegment, userId: number): Promise<ClosureResult> {
   const row = await mustPlan(db, siteId, planId);
   if (row.state === 'retired') throw new AppError('conflict', 'plan_read_only', 'Retired plans are read-only');
-  return withPlanLock(planId, async () => {
+  return withPlanLock(db, planId, async () => {
     const loaded = await loadPlanIndex(db, planId);
     checkClosureTarget(loaded.geometry, body);
     const tol = POSITION_TOLERANCE_M;
@@ -461,7 +466,7 @@ export async function closeSegment(db: Knex, siteId: number, planId: number, bod
 export async function reopenSegment(db: Knex, siteId: number, planId: number, closureId: number, userId: number): Promise<ClosureResult> {
   const row = await mustPlan(db, siteId, planId);
   if (row.state === 'retired') throw new AppError('conflict', 'plan_read_only', 'Retired plans are read-only');
-  return withPlanLock(planId, async () => {
+  return withPlanLock(db, planId, async () => {
     const loaded = await loadPlanIndex(db, planId);
     if (!loaded.closureRows.some((c) => c.id === closureId)) throw notFound('Closure');
     const closures = loaded.closureRows.filter((c) => c.id !== closureId).map(repo.toEngineClosure);

@@ -11,7 +11,7 @@ import { parseOr400 } from './validate';
 
 const UNSAFE = new Set(['post', 'put', 'patch', 'delete']);
 
-/** Uploads: one file, 25 MiB, few fields (multer's limits default to Infinity; STACK.md). */
+/** Uploads: one file, 25 MiB, few fields (multer's limits default to Infinity). */
 export const UPLOAD_MAX_BYTES = 25 * 1024 * 1024;
 const upload = multer({
   storage: multer.memoryStorage(),

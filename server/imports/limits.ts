@@ -1,6 +1,6 @@
 /**
  * Limits applied to every uploaded spreadsheet before and while it is read. The ZIP figures follow
- * STACK.md ("Parsing untrusted spreadsheets"): a 404 KiB workbook that unpacked to 400 MiB got past
+ * what was measured here: a 404 KiB workbook that unpacked to 400 MiB got past
  * a worker heap cap, so the archive directory is judged before any parser sees the bytes.
  */
 export interface ImportLimits {

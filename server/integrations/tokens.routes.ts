@@ -24,10 +24,10 @@ export const tokenRoutes = [
     body: CreateIntegrationTokenBody, response: NewIntegrationToken,
     handler: async ({ deps, siteId, body, user }) => {
       const token = `awi_${randomBytes(32).toString('base64url')}`;
-      const [id] = await deps.db('integration_tokens').insert({
+      const [{ id }] = await deps.db('integration_tokens').insert({
         site_id: siteId!, name: body.name, token_hash: sha256(token), prefix: token.slice(0, 10), created_by: user!.id, created_at: new Date().toISOString(),
         expires_at: body.expiresAt ? new Date(body.expiresAt).toISOString() : null,
-      });
+      }, 'id');
       await audit(deps.db, { siteId, userId: user!.id, action: 'integration-token.created', subject: body.name, detail: { expiresAt: body.expiresAt ?? null } });
       const row = (await tokens(deps.db).where('t.id', id!).first())!;
       return { ...toToken(row), token };

@@ -107,7 +107,7 @@ export function createMailer(db: Knex, options: MailerOptions): Mailer {
   return {
     async send(m) {
       const attachments = (m.attachments ?? []).map((a) => ({ filename: a.filename, contentType: a.contentType, base64: a.content.toString('base64') }));
-      const [id] = await db('mail_outbox').insert({
+      const [{ id }] = await db('mail_outbox').insert({
         site_id: m.siteId ?? null,
         to: m.to,
         subject: m.subject,
@@ -118,7 +118,7 @@ export function createMailer(db: Knex, options: MailerOptions): Mailer {
         created_at: new Date().toISOString(),
         link_token_hash: m.link?.tokenHash ?? null,
         link_expires_at: m.link?.expiresAt ?? null,
-      });
+      }, 'id');
       await attempt((await db<DbOutboxRow>('mail_outbox').where({ id: id! }).first())!, new Date());
       return id!;
     },

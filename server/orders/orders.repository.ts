@@ -71,9 +71,9 @@ export function orderTotals(o: OrderRecord, skus: Map<string, DbSkuRow>) {
 }
 
 export async function insertOrder(trx: Knex.Transaction, siteId: number, o: OrderRecord, source: string, skus: Map<string, DbSkuRow>): Promise<number> {
-  const [id] = await trx('orders').insert({
+  const [{ id }] = await trx('orders').insert({
     site_id: siteId, ref: o.ref, status: 'open', due: o.due, priority: o.priority, source, ...orderTotals(o, skus), created_at: new Date().toISOString(),
-  });
+  }, 'id');
   await trx('order_lines').insert(o.lines.map((l, i) => ({ order_id: id, line_no: i + 1, sku: l.sku, qty: l.qty })));
   return id!;
 }
@@ -119,8 +119,15 @@ export async function orderDetail(db: Q, siteId: number, id: number): Promise<Or
   if (!o) return null;
   const lines = (await linesOf(db, [id])).get(id) ?? [];
   const skus = await skuMap(db, siteId);
+  const trips = await db('trip_orders')
+    .join('trips', 'trips.id', 'trip_orders.trip_id')
+    .join('waves', 'waves.id', 'trips.wave_id')
+    .where({ 'trip_orders.order_id': id, 'trips.site_id': siteId })
+    .orderBy('trips.id', 'desc')
+    .select<{ trip_id: number; n: number; status: string; wave_id: number; wave_name: string; totes: string }[]>('trips.id as trip_id', 'trips.n', 'trips.status', 'trips.wave_id', 'waves.name as wave_name', 'trip_orders.totes');
   return {
     ...toOrderSummary(o),
     lineItems: lines.map((l) => ({ lineNo: l.line_no, sku: l.sku, description: skus.get(l.sku)?.description ?? '', bin: skus.get(l.sku)?.bin ?? null, qty: l.qty })),
+    trips: trips.map((t) => ({ tripId: t.trip_id, n: t.n, status: t.status, waveId: t.wave_id, waveName: t.wave_name, totes: JSON.parse(t.totes) as number[] })),
   };
 }

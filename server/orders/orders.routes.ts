@@ -1,9 +1,9 @@
 import { z } from 'zod';
-import { ImportResult, OrderDetail, OrdersPage, OrdersQuery, PushOrdersBody, Sku } from '../../shared/orders';
+import { CancelOrderBody, ImportResult, OrderDetail, OrdersPage, OrdersQuery, PushOrdersBody, Sku } from '../../shared/orders';
 import { notFound } from '../http/errors';
 import { defineRoute } from '../http/route';
 import { orderDetail, pageOrders, skuMap } from './orders.repository';
-import { importOrderRows, importSkus, pushOrders } from './orders.service';
+import { cancelOrder, importOrderRows, importSkus, pushOrders } from './orders.service';
 import { failed, orderTemplate, readTableFile, skuTemplate } from './orders.files';
 import { AppError } from '../http/errors';
 import type { Request, Response } from 'express';
@@ -60,6 +60,14 @@ export const orderRoutes = [
     method: 'get', path: '/api/sites/:siteId/orders/:id', access: ['supervisor', 'admin', 'engineer'], summary: 'One order with its lines',
     response: OrderDetail,
     handler: async ({ deps, siteId, params }) => (await orderDetail(deps.db, siteId!, Number(params.id))) ?? Promise.reject(notFound('Order')),
+  }),
+  defineRoute({
+    method: 'post', path: '/api/sites/:siteId/orders/:id/cancel', access: ['supervisor', 'admin'], summary: 'Cancel an open order (409 order_not_open for one in a wave, being picked or done); audited',
+    body: CancelOrderBody, response: OrderDetail,
+    handler: async ({ deps, siteId, params, body, user }) => {
+      await cancelOrder(deps.db, siteId!, user!.id, Number(params.id), body.reason);
+      return (await orderDetail(deps.db, siteId!, Number(params.id)))!;
+    },
   }),
   defineRoute({
     method: 'post', path: '/api/sites/:siteId/orders/push', access: 'integration', summary: 'The host system pushes orders (integration token for this site); re-sent references are not duplicated. All or nothing: 400 duplicate_order, 422 unknown_sku / orders_invalid, 409 order_released (the order is in a released wave; details name the order, field and wave)',

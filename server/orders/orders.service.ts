@@ -3,7 +3,7 @@ import type { RowIssue } from '../../shared/imports';
 import type { ImportResult, OrderInput } from '../../shared/orders';
 import { trimSpaces } from '../../shared/input-rules';
 import { audit } from '../audit/audit';
-import { AppError } from '../http/errors';
+import { AppError, notFound } from '../http/errors';
 import { insertOrder, linesOf, replaceOrderLines, skuMap, upsertSkus, type DbOrderRow } from './orders.repository';
 import { validateOrderRows, validateSkuRows, type InputRow, type OrderRecord } from './orders.validate';
 
@@ -158,4 +158,24 @@ export async function pushOrders(db: Knex, siteId: number, input: OrderInput[]):
   const counts = await saveOrders(db, siteId, orders, 'api', { refuseLocked: (o) => `orders.${indexOf.get(o.ref) ?? 0}` });
   await audit(db, { siteId, userId: null, action: 'orders.imported', detail: { source: 'api', ...counts } });
   return { ok: true, errors: [], warnings: [], ...counts };
+}
+
+const NOT_OPEN: Record<string, string> = {
+  planned: 'is in a released wave; cancel the wave (waves page) or its trip (live board) first, and it returns to the open orders',
+  picking: 'is being picked; cancel its trip from the live board instead',
+  done: 'is already picked',
+  cancelled: 'is already cancelled',
+};
+
+/** Cancels an open order (never one in a wave or picked): it leaves the open pool; the audit log keeps who and why. */
+export async function cancelOrder(db: Knex, siteId: number, userId: number, orderId: number, reason: string | undefined): Promise<void> {
+  await db.transaction(async (trx) => {
+    const o = await trx<DbOrderRow>('orders').where({ site_id: siteId, id: orderId }).first();
+    if (!o) throw notFound('Order');
+    if (o.status !== 'open') {
+      throw new AppError('conflict', 'order_not_open', `Order ${o.ref} ${NOT_OPEN[o.status] ?? `is ${o.status}`}; only open orders can be cancelled.`, { status: o.status, waveId: o.wave_id });
+    }
+    await trx('orders').where({ id: orderId }).update({ status: 'cancelled' });
+    await audit(trx, { siteId, userId, action: 'order.cancelled', subject: o.ref, detail: { orderId, ...(reason ? { reason } : {}) } });
+  });
 }

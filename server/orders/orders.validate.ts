@@ -65,7 +65,10 @@ export function validateSkuRows(sheet: string, rows: InputRow[]): { skus: SkuRec
   const seen = new Map<string, number>();
   const skus: SkuRecord[] = [];
   for (const { row, values } of rows) {
-    const issue = (column: string, message: string) => errors.push({ sheet, row, column, value: shown(values[column]), message });
+    const issue = (column: string, message: string): true => {
+      errors.push({ sheet, row, column, value: shown(values[column]), message });
+      return true;
+    };
     const sku = text(values.sku);
     const bin = text(values.bin);
     const kg = num(values.unit_weight_kg);
@@ -75,18 +78,18 @@ export function validateSkuRows(sheet: string, rows: InputRow[]): { skus: SkuRec
     const skuProblem = sku ? ruled('SKU', sku, codeRule) : null;
     const binProblem = bin ? ruled('bin', bin, codeRule) : null;
     const descriptionProblem = description ? ruled('description', description, textRule) : null;
-    if (!sku) (issue('sku', 'SKU is empty'), (bad = true));
-    else if (skuProblem) (issue('sku', skuProblem), (bad = true));
-    else if (seen.has(sku)) (issue('sku', `SKU ${sku} appears twice (first on row ${seen.get(sku)})`), (bad = true));
-    if (!bin) (issue('bin', 'bin is empty'), (bad = true));
-    else if (binProblem) (issue('bin', binProblem), (bad = true));
-    if (descriptionProblem) (issue('description', descriptionProblem), (bad = true));
-    if (kg === null) (issue('unit_weight_kg', 'unit weight must be a number (kg)'), (bad = true));
-    else if (kg < 0) (issue('unit_weight_kg', 'unit weight cannot be negative'), (bad = true));
-    else if (kg > MAX_UNIT_WEIGHT_KG) (issue('unit_weight_kg', `unit weight must be at most ${MAX_UNIT_WEIGHT_KG.toLocaleString('en')} kg`), (bad = true));
-    if (litres === null) (issue('unit_volume_l', 'unit volume must be a number (litres)'), (bad = true));
-    else if (litres < 0) (issue('unit_volume_l', 'unit volume cannot be negative'), (bad = true));
-    else if (litres > MAX_UNIT_VOLUME_L) (issue('unit_volume_l', `unit volume must be at most ${MAX_UNIT_VOLUME_L.toLocaleString('en')} litres`), (bad = true));
+    if (!sku) bad = issue('sku', 'SKU is empty');
+    else if (skuProblem) bad = issue('sku', skuProblem);
+    else if (seen.has(sku)) bad = issue('sku', `SKU ${sku} appears twice (first on row ${seen.get(sku)})`);
+    if (!bin) bad = issue('bin', 'bin is empty');
+    else if (binProblem) bad = issue('bin', binProblem);
+    if (descriptionProblem) bad = issue('description', descriptionProblem);
+    if (kg === null) bad = issue('unit_weight_kg', 'unit weight must be a number (kg)');
+    else if (kg < 0) bad = issue('unit_weight_kg', 'unit weight cannot be negative');
+    else if (kg > MAX_UNIT_WEIGHT_KG) bad = issue('unit_weight_kg', `unit weight must be at most ${MAX_UNIT_WEIGHT_KG.toLocaleString('en')} kg`);
+    if (litres === null) bad = issue('unit_volume_l', 'unit volume must be a number (litres)');
+    else if (litres < 0) bad = issue('unit_volume_l', 'unit volume cannot be negative');
+    else if (litres > MAX_UNIT_VOLUME_L) bad = issue('unit_volume_l', `unit volume must be at most ${MAX_UNIT_VOLUME_L.toLocaleString('en')} litres`);
     if (sku && !skuProblem && !seen.has(sku)) seen.set(sku, row);
     if (!bad) skus.push({ sku, description, bin, unitWeightKg: kg!, unitVolumeL: litres! });
   }
@@ -101,7 +104,10 @@ export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sk
   const errors: RowIssue[] = [];
   const byRef = new Map<string, OrderRecord & { firstRow: number }>();
   for (const { row, values } of rows) {
-    const issue = (column: string, message: string) => errors.push({ sheet, row, column, value: shown(values[column]), message });
+    const issue = (column: string, message: string): true => {
+      errors.push({ sheet, row, column, value: shown(values[column]), message });
+      return true;
+    };
     const ref = text(values.order);
     const sku = text(values.sku);
     const qty = num(values.qty);
@@ -111,14 +117,14 @@ export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sk
     let bad = false;
     const refProblem = ref ? ruled('order reference', ref, codeRule) : null;
     const skuProblem = sku ? ruled('SKU', sku, codeRule) : null;
-    if (!ref) (issue('order', 'order reference is empty'), (bad = true));
-    else if (refProblem) (issue('order', refProblem), (bad = true));
-    if (!sku) (issue('sku', 'SKU is empty'), (bad = true));
-    else if (skuProblem) (issue('sku', skuProblem), (bad = true));
-    else if (!knownSku(sku)) (issue('sku', `SKU ${sku} is not in the SKU master; import it first`), (bad = true));
-    if (qty === null || !Number.isInteger(qty) || qty <= 0 || qty > MAX_LINE_QTY) (issue('qty', `quantity must be a whole number from 1 to ${MAX_LINE_QTY.toLocaleString('en')}`), (bad = true));
-    if (due === 'invalid') (issue('due', 'due must be an ISO 8601 date or date-time, e.g. 2026-12-03T14:00:00Z'), (bad = true));
-    if (prioText !== '' && (priority === null || !Number.isInteger(priority) || priority < 1 || priority > 9)) (issue('priority', 'priority must be a whole number from 1 (most urgent) to 9'), (bad = true));
+    if (!ref) bad = issue('order', 'order reference is empty');
+    else if (refProblem) bad = issue('order', refProblem);
+    if (!sku) bad = issue('sku', 'SKU is empty');
+    else if (skuProblem) bad = issue('sku', skuProblem);
+    else if (!knownSku(sku)) bad = issue('sku', `SKU ${sku} is not in the SKU master; import it first`);
+    if (qty === null || !Number.isInteger(qty) || qty <= 0 || qty > MAX_LINE_QTY) bad = issue('qty', `quantity must be a whole number from 1 to ${MAX_LINE_QTY.toLocaleString('en')}`);
+    if (due === 'invalid') bad = issue('due', 'due must be an ISO 8601 date or date-time, e.g. 2026-12-03T14:00:00Z');
+    if (prioText !== '' && (priority === null || !Number.isInteger(priority) || priority < 1 || priority > 9)) bad = issue('priority', 'priority must be a whole number from 1 (most urgent) to 9');
     if (bad) continue;
     const existing = byRef.get(ref);
     if (!existing) {

@@ -8,6 +8,9 @@
  */
 import { AsyncLocalStorage } from 'node:async_hooks';
 
+/** Hub topic of a site's change between instances (payload: the site id). */
+export const SITE_CHANGED = 'site-changed';
+
 export interface SiteChangeSink {
   siteChanged(siteId: number): void;
 }

@@ -6,6 +6,7 @@
  * untouched), and all are answered after that one commit. Alone, a write commits at once, as before.
  */
 import type { Knex } from 'knex';
+import { isPg } from '../db/dialect';
 
 interface Unit {
   work: (trx: Knex.Transaction) => Promise<unknown>;
@@ -65,10 +66,23 @@ export class GroupCommit {
   }
 }
 
+/** A write's own transaction, the way PostgreSQL takes concurrent writes. */
+export interface Committer {
+  run<T>(work: (trx: Knex.Transaction) => Promise<T>): Promise<T>;
+}
+
 const committers = new WeakMap<Knex, GroupCommit>();
 
-/** The one group committer of a database handle. */
-export function groupCommit(db: Knex): GroupCommit {
+/** One transaction per write on the pool's connections; PostgreSQL groups concurrent WAL flushes itself. */
+const ownTransaction = (db: Knex): Committer => ({ run: (work) => db.transaction(work) });
+
+/**
+ * The committer of a database handle: on SQLite its one group committer; on PostgreSQL each write in a
+ * transaction of its own — funnelling every write through one connection there would queue them behind
+ * one another's round trips, and the server already shares one flush among commits arriving together.
+ */
+export function groupCommit(db: Knex): Committer {
+  if (isPg(db)) return ownTransaction(db);
   let g = committers.get(db);
   if (!g) {
     g = new GroupCommit(db);

@@ -30,6 +30,8 @@ export interface DbTripRow {
   revision: number;
   /** Set when a closure change re-routed the trip's remaining stops (the tablet tells the picker). */
   route_changed_at: string | null;
+  /** When the picker confirmed which order goes in which tote (cart set-up). */
+  cart_ready_at: string | null;
 }
 
 export interface DbWaveRow {
@@ -206,6 +208,7 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
     confirmScan: site.confirm_scan,
     startedAt: trip.started_at,
     finishedAt: trip.finished_at,
+    cartReadyAt: trip.cart_ready_at ?? null,
     currentStopId: current?.id ?? null,
     revision: trip.revision,
   };
@@ -213,8 +216,8 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
 
 /** Raises a trip's revision: every write calls it, so the tablet's poll sees the change. */
 export async function bumpRevision(db: Q, tripId: number): Promise<number> {
-  // One statement (SQLite ≥ 3.35 RETURNING): this runs inside every confirmation.
-  const rows = (await db.raw('UPDATE trips SET revision = revision + 1 WHERE id = ? RETURNING revision', [tripId])) as { revision: number }[];
+  // One statement (RETURNING: SQLite ≥ 3.35 and PostgreSQL): this runs inside every confirmation.
+  const rows = (await db('trips').where({ id: tripId }).update({ revision: db.raw('revision + 1') }, ['revision'])) as { revision: number }[];
   return rows[0]!.revision;
 }
 

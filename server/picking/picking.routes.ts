@@ -16,6 +16,7 @@ import {
   ConfirmBody,
   CurrentTrip,
   DEVICE_HEADER,
+  CartReadyBody,
   FinishBody,
   IDEMPOTENCY_HEADER,
   LineAnswer,
@@ -96,6 +97,12 @@ export const pickingRoutes = [
     method: 'post', path: `${trip}/start`, access: PICKER, summary: 'Start the trip after the safety caution (a second call changes nothing)',
     response: PickTrip,
     handler: ({ deps, user, req, params }) => picking.startTrip(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip')),
+  }),
+  defineRoute({
+    method: 'post', path: `${trip}/cart-ready`, access: PICKER, body: CartReadyBody,
+    summary: 'Cart set-up before the first stop: every tote of the trip confirmed (scan of its label or tap); stored once with an audit entry, a second call changes nothing',
+    response: PickTrip,
+    handler: ({ deps, user, req, params, body }) => picking.cartReady(deps.db, actorOf(user, req), idOf(params, 'tripId', 'Trip'), body),
   }),
   defineRoute({
     method: 'post', path: `${trip}/lines/:lineId/confirm`, access: PICKER, body: ConfirmBody,

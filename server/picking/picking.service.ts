@@ -6,7 +6,7 @@
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
-import { UNDO_WINDOW_MS, type ConfirmBody, type LineAnswer, type PickTrip, type ShortBody, type SkipBody, type TripPulse, type TripResult } from '../../shared/picking';
+import { UNDO_WINDOW_MS, type CartReadyBody, type ConfirmBody, type LineAnswer, type PickTrip, type ShortBody, type SkipBody, type TripPulse, type TripResult } from '../../shared/picking';
 import { audit } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
@@ -33,6 +33,7 @@ import {
 } from './picking.repository';
 import { groupCommit } from './group-commit';
 import { orderRemaining, writeWalkOrder } from './reroute';
+import { lockForTransaction } from '../db/dialect';
 import { walkedMetres } from './walked';
 import { afterTripClosed } from './waves-progress';
 
@@ -151,6 +152,32 @@ export async function startTrip(db: Knex, actor: Actor, tripId: number): Promise
   return trip;
 }
 
+/**
+ * Cart set-up: the picker confirmed every tote of the trip (scan of its label or a tap) before the
+ * first stop. Stored once with an audit entry; a second call (a reload, a resend) changes nothing.
+ */
+export async function cartReady(db: Knex, actor: Actor, tripId: number, body: CartReadyBody): Promise<PickTrip> {
+  const changed = await db.transaction(async (trx) => {
+    const trip = await readableTrip(trx, actor, tripId);
+    if (trip.cart_ready_at) return false;
+    if (trip.status !== 'picking') throw new AppError('conflict', 'trip_not_started', trip.status === 'assigned' ? 'Start the trip (safety caution) before setting up the cart' : 'This trip is closed');
+    const totes = (await trx('pick_lines').where({ trip_id: trip.id }).distinct('tote').orderBy('tote')).map((r: { tote: number }) => r.tote);
+    const sent = [...new Set(body.totes.map((t) => t.tote))].sort((a, b) => a - b);
+    const missing = totes.filter((t) => !sent.includes(t));
+    const unknown = sent.filter((t) => !totes.includes(t));
+    if (missing.length > 0 || unknown.length > 0 || sent.length !== body.totes.length) {
+      throw new AppError('validation', 'totes_mismatch', `Confirm each tote of this trip once (totes ${totes.join(', ')})`, { expected: totes, missing, unknown });
+    }
+    await trx('trips').where({ id: trip.id }).update({ cart_ready_at: nowIso() });
+    await bumpRevision(trx, trip.id);
+    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cart_ready', subject: `trip:${trip.id}`, device: actor.device, detail: { totes: body.totes } });
+    return true;
+  });
+  const trip = (await loadPickTrip(db, tripId))!;
+  if (changed) siteChanged(trip.siteId);
+  return trip;
+}
+
 async function markStarted(trx: Q, trip: DbTripRow, firstWork?: string): Promise<void> {
   if (trip.status === 'picking' && trip.started_at) return;
   const at = trip.started_at ?? firstWork ?? nowIso();
@@ -215,6 +242,9 @@ async function idempotent<T>(
   const hash = requestHash(req);
   const key = req.key;
   const out = await groupCommit(db).run(async (trx) => {
+    // Writes to one trip one at a time (SQLite's one connection does this by itself; on PostgreSQL each
+    // write has its own transaction): a repeated key or two pickers on one line see the first one's result.
+    await lockForTransaction(trx, `trip:${tripId}`);
     // Keys are per user: a stored answer goes back only to the picker who made it.
     const stored = await trx('pick_requests').where({ user_id: actor.id, idem_key: key }).first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
     if (stored) {

@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import type { Hasher } from '../auth/hasher';
+import { withAdvisoryLock } from '../db/dialect';
 import { insertUser } from '../users/users.repository';
 
 /** The invented demo scenario: a fictional company and site, no real data. */
@@ -30,13 +31,18 @@ export type DemoSeeder = (db: Knex, siteId: number, userIds: Record<string, numb
 
 /**
  * Seeds the demo site when the database has no users; returns the sign-ins to print, or null when
- * the database already had users (nothing is touched then).
+ * the database already had users (nothing is touched then). Instances starting together on one
+ * PostgreSQL take turns under an advisory lock, so the demo is seeded once.
  */
-export async function seedDemoIfEmpty(db: Knex, hasher: Hasher, extra: DemoSeeder[] = []): Promise<DemoSignIn[] | null> {
+export function seedDemoIfEmpty(db: Knex, hasher: Hasher, extra: DemoSeeder[] = []): Promise<DemoSignIn[] | null> {
+  return withAdvisoryLock(db, 'aislewright:demo-seed', () => seedUnlocked(db, hasher, extra));
+}
+
+async function seedUnlocked(db: Knex, hasher: Hasher, extra: DemoSeeder[]): Promise<DemoSignIn[] | null> {
   const { n } = (await db('users').count<{ n: number }[]>({ n: '*' }))[0]!;
   if (Number(n) > 0) return null;
   const now = new Date().toISOString();
-  const [siteId] = await db('sites').insert({ code: 'BWE', name: 'Brambleway East DC', timezone: 'UTC', created_at: now });
+  const [{ id: siteId }] = await db('sites').insert({ code: 'BWE', name: 'Brambleway East DC', timezone: 'UTC', created_at: now }, 'id');
   await db('cart_profiles').insert([
     { site_id: siteId, name: 'Standard cart (8 totes)', totes: 8, max_kg: 150, max_litres: 400 },
     { site_id: siteId, name: 'Compact cart (4 totes)', totes: 4, max_kg: 80, max_litres: 200 },

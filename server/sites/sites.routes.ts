@@ -22,7 +22,7 @@ export const siteRoutes = [
     body: CreateSiteBody, response: Site,
     handler: async ({ deps, body, user }) => {
       if (await deps.db('sites').where({ code: body.code }).first()) throw new AppError('conflict', 'site_code_taken', `A site with code ${body.code} exists`);
-      const [id] = await deps.db('sites').insert({ code: body.code, name: body.name, timezone: body.timezone, created_at: new Date().toISOString() });
+      const [{ id }] = await deps.db('sites').insert({ code: body.code, name: body.name, timezone: body.timezone, created_at: new Date().toISOString() }, 'id');
       await audit(deps.db, { siteId: id!, userId: user!.id, action: 'site.created', subject: body.code });
       return mustSite(deps.db, id!);
     },
@@ -56,7 +56,7 @@ export const siteRoutes = [
         await deps.db('cart_profiles').where({ id: clash.id }).update(cols);
         id = clash.id;
       } else {
-        [id] = (await deps.db('cart_profiles').insert({ site_id: siteId!, ...cols })) as [number];
+        [{ id }] = (await deps.db('cart_profiles').insert({ site_id: siteId!, ...cols }, 'id')) as [{ id: number }];
       }
       return (await getCartProfile(deps.db, siteId!, id))!;
     },

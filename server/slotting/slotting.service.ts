@@ -139,8 +139,8 @@ async function recordedHistory(db: Knex, siteId: number, from: string, to: strin
  */
 export async function createRun(deps: Deps, siteId: number, userId: number, body: SlottingInputsBody): Promise<SlottingRunSummary> {
   const inputs = SlottingInputs.parse(body);
-  const planId = await activePlanId(deps.db, siteId);
-  if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; activate one first');
+  const planId = inputs.planId ?? (await activePlanId(deps.db, siteId));
+  if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; activate one or choose a stored plan');
   const cart = await getCartProfile(deps.db, siteId, inputs.cartProfileId);
   if (!cart) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'cartProfileId', message: 'unknown cart profile' }]);
   const history =
@@ -152,6 +152,7 @@ export async function createRun(deps: Deps, siteId: number, userId: number, body
     throw new AppError('unprocessable', 'empty_history', inputs.history.kind === 'recorded' ? 'No picks were recorded on this site between those dates; choose other dates or upload an order history' : 'The order history holds no orders');
   }
   const plan = await loadPlanIndex(deps.db, planId);
+  if (plan.siteId !== siteId) throw new AppError('validation', 'validation_failed', 'Unknown floor plan', [{ field: 'planId', message: 'not a plan of this site' }]);
   const site = (await getSiteRow(deps.db, siteId))!;
   const skus = await skuRowsOf(deps.db, siteId);
   if (skus.length === 0) throw new AppError('unprocessable', 'no_skus', 'This site has no SKU master yet; import it first');

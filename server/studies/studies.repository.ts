@@ -21,7 +21,7 @@ export interface DbStudyRow {
 }
 
 export async function insertStudy(db: Q, row: Omit<DbStudyRow, 'id' | 'results' | 'error' | 'finished_at'>): Promise<number> {
-  const [id] = await db('studies').insert(row);
+  const [{ id }] = await db('studies').insert(row, 'id');
   return id as number;
 }
 

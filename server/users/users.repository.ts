@@ -37,7 +37,7 @@ export async function findUserById(db: Q, id: number): Promise<DbUserRow | undef
 }
 
 export async function insertUser(db: Q, row: Omit<DbUserRow, 'id' | 'active' | 'token_version'>, siteIds: number[]): Promise<number> {
-  const [id] = await db('users').insert({ ...row, badge: row.badge === null ? null : normaliseBadge(row.badge) });
+  const [{ id }] = await db('users').insert({ ...row, badge: row.badge === null ? null : normaliseBadge(row.badge) }, 'id');
   if (siteIds.length) await db('user_sites').insert(siteIds.map((site_id) => ({ user_id: id, site_id })));
   return id!;
 }

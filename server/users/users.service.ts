@@ -28,10 +28,10 @@ export async function inviteUser(deps: Deps, adminId: number, body: InviteBody):
   const { token, hash } = newToken();
   const now = Date.now();
   const expiresAt = new Date(now + INVITE_TTL_MS).toISOString();
-  const [id] = await deps.db('invites').insert({
+  const [{ id }] = await deps.db('invites').insert({
     email: body.email, role: body.role, site_ids: JSON.stringify(body.siteIds), token_hash: hash,
     expires_at: expiresAt, invited_by: adminId, created_at: new Date(now).toISOString(),
-  });
+  }, 'id');
   const link = `${deps.config.publicUrl}/accept-invite?token=${token}`;
   await deps.mailer.send({
     to: body.email,

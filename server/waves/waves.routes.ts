@@ -1,8 +1,9 @@
 import { z } from 'zod';
-import { ReleaseBody, TripDetail, WaveDetail, WaveJob, WavePreviewBody, WaveStatus, WaveSummary } from '../../shared/waves';
+import { ReleaseBody, TripDetail, WaveActuals, WaveDetail, WaveJob, WavePreviewBody, WaveStatus, WaveSummary } from '../../shared/waves';
 import { notFound } from '../http/errors';
 import { defineRoute } from '../http/route';
 import { getPreviewJob } from './preview-jobs';
+import { buildWaveReport } from '../picking/report';
 import { cancelWave, listWaves, releaseWave, startPreview, tripDetail, waveDetail } from './waves.service';
 
 const PLANNERS = ['supervisor', 'admin'] as const;
@@ -32,6 +33,16 @@ export const waveRoutes = [
     method: 'get', path: '/api/sites/:siteId/waves/:id', access: ['supervisor', 'admin', 'engineer'], summary: 'A wave with its trips',
     response: WaveDetail,
     handler: ({ deps, siteId, params }) => waveDetail(deps.db, siteId!, Number(params.id)),
+  }),
+  defineRoute({
+    method: 'get', path: '/api/sites/:siteId/waves/:id/actuals', access: ['supervisor', 'admin', 'engineer'], summary: 'Planned against actual per trip: walked metres, minutes, shorts (the wave report as JSON)',
+    response: WaveActuals,
+    handler: async ({ deps, siteId, params }) => {
+      await waveDetail(deps.db, siteId!, Number(params.id)); // 404 for another site's or an unknown wave
+      const report = await buildWaveReport(deps.db, Number(params.id));
+      // A trip nobody has started has walked nothing yet: no figure, rather than "0 m".
+      return { rows: report.rows.map((r) => ({ trip: r.trip, status: r.status, lines: r.lines, picked: r.picked, shorts: r.shorts, plannedMetres: r.plannedMetres, walkedMetres: r.status === 'released' || r.status === 'assigned' ? null : r.walkedMetres, estMinutes: r.estMinutes, minutes: r.minutes })) };
+    },
   }),
   defineRoute({
     method: 'post', path: '/api/sites/:siteId/waves/:id/cancel', access: PLANNERS, summary: 'Cancel a wave nobody has started; its orders return to the open pool',

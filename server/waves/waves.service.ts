@@ -1,3 +1,4 @@
+import { lockForTransaction } from '../db/dialect';
 import type { Knex } from 'knex';
 import type { TripDetail, WaveDetail, WaveJob, WavePreview, WavePreviewBody, WaveSummary } from '../../shared/waves';
 import { audit } from '../audit/audit';
@@ -172,6 +173,8 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
   const waveName = name ?? `Wave ${now.slice(0, 16).replace('T', ' ')}`;
 
   const waveId = await db.transaction(async (trx) => {
+    // One release per site at a time: the release key and the open orders are checked, then taken.
+    await lockForTransaction(trx, `wave-release:${siteId}`);
     const again = await trx<DbWaveRow>('waves').where({ site_id: siteId, release_key: releaseKey }).first();
     if (again) return again.id;
     const refs = preview.trips.flatMap((t) => t.orders.map((o) => o.ref));
@@ -182,21 +185,21 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
       throw new AppError('conflict', 'orders_not_open', `Orders already taken by another wave: ${gone.slice(0, 10).join(', ')}; plan again`, { orders: gone });
     }
     const t = preview.totals;
-    const [id] = await trx('waves').insert({
+    const [{ id }] = await trx('waves').insert({
       site_id: siteId, plan_id: ctx.planId, name: waveName, status: 'released', cart_name: preview.cart.name, cart_totes: preview.cart.totes,
       cart_max_kg: preview.cart.maxKg, cart_max_litres: preview.cart.maxLitres, batching: preview.batching, routing_method: preview.method,
       routing_improve: preview.improve, depot_idx: ctx.depotIdx, orders_count: t.orders, lines_count: t.lines, planned_metres: t.metres,
       lower_bound_metres: t.lowerBound, single_metres: t.singleMetres, s_shape_metres: t.sShapeMetres, est_seconds: t.estMinutes * 60,
       notes: JSON.stringify(preview.notes), release_key: releaseKey, created_by: userId, created_at: now,
-    });
+    }, 'id');
     const lineRows = await linesOf(trx, orderIds);
     for (const trip of preview.trips) {
       const dues = (await trx<DbOrderRow>('orders').whereIn('id', trip.orders.map((o) => ctx.orderIds.get(o.ref)!)).pluck('due')).filter(Boolean).sort();
-      const [tripId] = await trx('trips').insert({
+      const [{ id: tripId }] = await trx('trips').insert({
         wave_id: id, site_id: siteId, n: trip.n, status: 'released', planned_metres: trip.metres, lower_bound_metres: trip.lowerBound,
         s_shape_metres: trip.sShapeMetres, est_seconds: trip.estMinutes * 60, totes: trip.totes, kg: trip.kg, litres: trip.litres,
         depot_node: depotNode, due: dues[0] ?? null,
-      });
+      }, 'id');
       const toteOf = new Map<string, number>();
       for (const o of trip.orders) {
         await trx('trip_orders').insert({ trip_id: tripId, order_id: ctx.orderIds.get(o.ref), totes: JSON.stringify(o.totes) });
@@ -205,7 +208,7 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
       // Lines per access point, in the order they were planned; an order's lines keep their line numbers.
       const used = new Set<number>();
       for (const s of trip.stops) {
-        const [stopId] = await trx('stops').insert({ trip_id: tripId, n: s.n, node: s.node, x_m: s.x, y_m: s.y, bins: JSON.stringify(s.bins) });
+        const [{ id: stopId }] = await trx('stops').insert({ trip_id: tripId, n: s.n, node: s.node, x_m: s.x, y_m: s.y, bins: JSON.stringify(s.bins) }, 'id');
         for (const o of trip.orders) {
           const orderId = ctx.orderIds.get(o.ref)!;
           for (const l of lineRows.get(orderId) ?? []) {

@@ -1,7 +1,8 @@
 /**
  * Heavy work (studies, wave planning, plan builds, imports) runs in a separate process per job. A V8
  * fatal error or an out-of-memory stop in a worker thread ends the whole server process (measured
- * here, STACK.md); in a child process it ends only that job, and the server answers with a message.
+ * here: a `Worker` with a 256 MB heap cap filling a 169-million-element array aborted the main process
+ * too); in a child process it ends only that job, and the server answers with a message.
  */
 import { fork, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
@@ -130,7 +131,11 @@ function forkJobProcess(moduleUrl: URL, heapMb: number): JobProcess {
 /** An unreferenced process (and its pipes) does not keep the server, a CLI run or a test alive. */
 function setReferenced(child: ChildProcess, on: boolean): void {
   const handles = [child, child.channel, child.stderr] as ({ ref(): void; unref(): void } | null | undefined)[];
-  for (const h of handles) if (h) (on ? h.ref() : h.unref());
+  for (const h of handles) {
+    if (!h) continue;
+    if (on) h.ref();
+    else h.unref();
+  }
 }
 
 /**

@@ -99,7 +99,10 @@ async function sessionCheck(t: TestApp): Promise<void> {
     for (let i = 0; i < ids.length; i++) await f(i);
     return ((performance.now() - t0) * 1000) / ids.length;
   };
-  for (let r = 0; r < 2; r++) await round(() => before()), await round((i) => after(ids[i]!));
+  for (let r = 0; r < 2; r++) {
+    await round(() => before());
+    await round((i) => after(ids[i]!));
+  }
   const b: number[] = [];
   const a: number[] = [];
   for (let r = 0; r < 5; r++) {

@@ -14,7 +14,7 @@ import { createServer, type ViteDevServer } from 'vite';
 
 // Overridable so the skip path can be tried without touching the machine's browser.
 const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
-// STACK.md, gotcha 9: Debian's Chromium, never a downloaded browser.
+// Debian's Chromium (apt-get install -y chromium), never a downloaded browser.
 const CHROMIUM_ARGS = [
   '--headless',
   '--no-sandbox',
@@ -210,7 +210,7 @@ const fmt = (v: number): string => v.toFixed(1);
 
 export async function run(): Promise<void> {
   if (!existsSync(CHROMIUM)) {
-    console.log(`floor-map bench skipped: ${CHROMIUM} not found (apt-get install -y chromium, STACK.md gotcha 9)`);
+    console.log(`floor-map bench skipped: ${CHROMIUM} not found (apt-get install -y chromium)`);
     return;
   }
   const port = await freePort();

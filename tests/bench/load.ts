@@ -8,11 +8,16 @@
  * Prints p50/p95/p99 per request kind and errors. Targets: p99 ≤ 150 ms with 0 errors; p99 ≤ 1 s
  * while planning.
  *
- * LOAD_SECONDS (default 60, at most 120) and LOAD_TABLETS (default 100, at most 200) bound the run;
- * each phase is preceded by 5 s of the same load that is not counted (warm-up).
+ * LOAD_SECONDS (default 60, at most 120) and LOAD_TABLETS (default 100, at most 500) bound the run;
+ * each phase is preceded by 5 s of the same load that is not counted (warm-up). LOAD_PLANNING=false
+ * leaves out the second phase.
  * The server runs in its own process (server/main.ts on a fresh database file, synchronous=FULL).
+ * Several instances: LOAD_DATABASE_URL=postgres://… runs on a fresh database created on that
+ * PostgreSQL server (dropped afterwards) and LOAD_INSTANCES=N starts N servers on ports LOAD_PORT,
+ * LOAD_PORT+1, …; tablet i talks to instance i mod N (the spread a round-robin proxy would give).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
@@ -30,14 +35,20 @@ import { insertReleasedWave } from '../helpers/picking';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const SECONDS = Math.min(120, Math.max(5, Number(process.env.LOAD_SECONDS ?? 60)));
-const TABLETS = Math.min(200, Math.max(1, Number(process.env.LOAD_TABLETS ?? 100)));
+const TABLETS = Math.min(500, Math.max(1, Number(process.env.LOAD_TABLETS ?? 100)));
 const PLAN_ORDERS = 300;
 const WARM_UP_SECONDS = 5;
 const PORT = Number(process.env.LOAD_PORT ?? 3390);
-const BASE = `http://127.0.0.1:${PORT}`;
+const INSTANCES = Math.min(8, Math.max(1, Number(process.env.LOAD_INSTANCES ?? 1)));
+const PG_SERVER = process.env.LOAD_DATABASE_URL || undefined;
+const PLANNING = process.env.LOAD_PLANNING !== 'false';
+const BASES = Array.from({ length: INSTANCES }, (_v, k) => `http://127.0.0.1:${PORT + k}`);
+const BASE = BASES[0]!;
+const LOAD_JWT_SECRET = randomBytes(48).toString('base64url');
 const CSRF = { 'x-aislewright': '1' };
 
 interface Tablet {
+  base: string;
   cookie: string;
   tripId: number;
   lineIds: number[];
@@ -71,11 +82,11 @@ async function prepare(file: string) {
     for (let i = 0; i < PLAN_ORDERS - open; i++) {
       const n = 1 + rng.int(4);
       const lines = Array.from({ length: n }, () => ({ s: skus[rng.int(skus.length)]!, qty: 1 + rng.int(3) }));
-      const [id] = await trx('orders').insert({
+      const [{ id }] = await trx('orders').insert({
         site_id: siteId, ref: `LOAD-${i + 1}`, status: 'open', due: null, priority: null, source: 'load test', lines: n,
         units: lines.reduce((a, l) => a + l.qty, 0), weight_kg: lines.reduce((a, l) => a + l.qty * l.s.unit_weight_kg, 0),
         volume_l: lines.reduce((a, l) => a + l.qty * l.s.unit_volume_l, 0), created_at: now,
-      });
+      }, 'id');
       await trx('order_lines').insert(lines.map((l, k) => ({ order_id: id, line_no: k + 1, sku: l.s.sku, qty: l.qty })));
     }
   });
@@ -88,15 +99,16 @@ async function prepare(file: string) {
   return { siteId, pickerIds, waveA, waveB };
 }
 
-async function startServer(file: string): Promise<ChildProcess> {
+async function startServer(target: string, k: number): Promise<ChildProcess> {
+  const db = target.startsWith('postgres') ? { DATABASE_URL: target, JWT_SECRET: LOAD_JWT_SECRET } : { DATABASE_FILE: target };
   const child = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/main.ts')], {
     cwd: root,
-    env: { ...process.env, PORT: String(PORT), HOST: '127.0.0.1', DATABASE_FILE: file, LOG_LEVEL: 'warn', DEMO_SEED: 'false' },
+    env: { ...process.env, PORT: String(PORT + k), HOST: '127.0.0.1', ...db, LOG_LEVEL: 'warn', DEMO_SEED: 'false' },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
   for (let i = 0; i < 300; i++) {
     try {
-      if ((await fetch(`${BASE}/api/health`)).ok) return child;
+      if ((await fetch(`${BASES[k]}/api/health`)).ok) return child;
     } catch {
       // not listening yet
     }
@@ -106,15 +118,15 @@ async function startServer(file: string): Promise<ChildProcess> {
   throw new Error('server did not start in 30 s');
 }
 
-async function signIn(path: string, body: object): Promise<string> {
-  const res = await fetch(`${BASE}${path}`, { method: 'POST', headers: { ...CSRF, 'content-type': 'application/json' }, body: JSON.stringify(body) });
+async function signIn(path: string, body: object, base = BASE): Promise<string> {
+  const res = await fetch(`${base}${path}`, { method: 'POST', headers: { ...CSRF, 'content-type': 'application/json' }, body: JSON.stringify(body) });
   if (!res.ok) throw new Error(`sign-in ${res.status} ${await res.text()}`);
   return res.headers.get('set-cookie')!.split(';')[0]!;
 }
 
-async function tabletFor(cookie: string, tripId: number): Promise<Tablet> {
-  const trip = (await (await fetch(`${BASE}/api/picking/trips/${tripId}`, { headers: { cookie } })).json()) as { stopList: { lines: { id: number }[] }[] };
-  return { cookie, tripId, lineIds: trip.stopList.flatMap((s) => s.lines.map((l) => l.id)), next: 0 };
+async function tabletFor(cookie: string, tripId: number, base: string): Promise<Tablet> {
+  const trip = (await (await fetch(`${base}/api/picking/trips/${tripId}`, { headers: { cookie } })).json()) as { stopList: { lines: { id: number }[] }[] };
+  return { base, cookie, tripId, lineIds: trip.stopList.flatMap((s) => s.lines.map((l) => l.id)), next: 0 };
 }
 
 interface PhaseStats {
@@ -159,7 +171,7 @@ async function runPhase(tablets: Tablet[], seconds = SECONDS): Promise<PhaseStat
     new Promise<Result>((resolveOne, reject) => {
       setTimeout(() => {
         const instance = autocannon(
-          { url: BASE, connections: 1, connectionRate: 1, duration: seconds, timeout: 10, requests: requestsFor(t) },
+          { url: t.base, connections: 1, connectionRate: 1, duration: seconds, timeout: 10, requests: requestsFor(t) },
           (err, result) => (err ? reject(err) : resolveOne(result)),
         );
         instance.on('response', (client: Client, statusCode: number, _bytes: number, ms: number) => {
@@ -221,24 +233,46 @@ function report(title: string, s: PhaseStats, target: number): boolean {
   return ok;
 }
 
+/** A fresh database on LOAD_DATABASE_URL's server, or a fresh SQLite file. */
+async function freshTarget(dir: string): Promise<{ target: string; drop(): Promise<void> }> {
+  if (!PG_SERVER) return { target: join(dir, 'aislewright.sqlite'), drop: async () => undefined };
+  const name = `aw_load_${randomBytes(4).toString('hex')}`;
+  const admin = openDb(PG_SERVER, { poolMax: 1 });
+  await admin.raw(`create database ${name}`);
+  const u = new URL(PG_SERVER);
+  u.pathname = `/${name}`;
+  return {
+    target: u.toString(),
+    async drop() {
+      await admin.raw(`drop database if exists ${name} with (force)`);
+      await admin.destroy();
+    },
+  };
+}
+
 async function main(): Promise<void> {
   const dir = mkdtempSync(join(tmpdir(), 'aw-load-'));
-  const file = join(dir, 'aislewright.sqlite');
-  let server: ChildProcess | null = null;
+  const { target: file, drop } = await freshTarget(dir);
+  const servers: ChildProcess[] = [];
   try {
-    console.log(`Preparing ${TABLETS} tablets, ${SECONDS} s per phase, database ${file}`);
+    console.log(`Preparing ${TABLETS} tablets, ${SECONDS} s per phase, ${INSTANCES} instance(s), database ${PG_SERVER ? 'PostgreSQL' : file}`);
     const fx = await prepare(file);
-    server = await startServer(file);
+    for (let k = 0; k < INSTANCES; k++) servers.push(await startServer(file, k));
     const supervisor = await signIn('/api/auth/sign-in', { email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD });
     const cookies: string[] = [];
-    for (let i = 0; i < TABLETS; i++) cookies.push(await signIn('/api/auth/badge-sign-in', { badge: `L-${String(i + 1).padStart(4, '0')}`, pin: DEMO_PIN }));
+    const baseOf = (i: number) => BASES[i % INSTANCES]!;
+    for (let i = 0; i < TABLETS; i++) cookies.push(await signIn('/api/auth/badge-sign-in', { badge: `L-${String(i + 1).padStart(4, '0')}`, pin: DEMO_PIN }, baseOf(i)));
 
-    const tabletsA = await Promise.all(cookies.map((c, i) => tabletFor(c, fx.waveA.tripIds[i]!)));
+    const tabletsA = await Promise.all(cookies.map((c, i) => tabletFor(c, fx.waveA.tripIds[i]!, baseOf(i))));
     // Warm-up, not counted: a freshly started process compiles its code paths on the first requests,
     // and every tablet's first confirmation also starts its trip. Measured from steady state on.
     await runPhase(tabletsA, WARM_UP_SECONDS);
     const a = await runPhase(tabletsA);
-    const okA = report(`${TABLETS} tablets, confirm + poll`, a, 150);
+    const okA = report(`${TABLETS} tablets, confirm + poll (${INSTANCES} instance(s), ${PG_SERVER ? 'PostgreSQL' : 'SQLite'})`, a, 150);
+    if (!PLANNING) {
+      process.exitCode = okA ? 0 : 1;
+      return;
+    }
 
     // Phase two: the first wave's trips are put aside and the second wave's trips handed out on the board.
     const db = openDb(file);
@@ -248,7 +282,7 @@ async function main(): Promise<void> {
       const res = await fetch(`${BASE}/api/sites/${fx.siteId}/board/trips/${tripId}/assign`, { method: 'POST', headers: { cookie: supervisor, ...CSRF, 'content-type': 'application/json' }, body: JSON.stringify({ pickerId: fx.pickerIds[i] }) });
       if (!res.ok) throw new Error(`assign ${res.status} ${await res.text()}`);
     }
-    const tabletsB = await Promise.all(cookies.map((c, i) => tabletFor(c, fx.waveB.tripIds[i]!)));
+    const tabletsB = await Promise.all(cookies.map((c, i) => tabletFor(c, fx.waveB.tripIds[i]!, baseOf(i))));
     await runPhase(tabletsB, WARM_UP_SECONDS);
     const stop = { done: false };
     const planning = planLoop(supervisor, fx.siteId, stop);
@@ -266,10 +300,11 @@ async function main(): Promise<void> {
     console.log(`\nlines picked ${picked}, confirmation audit entries ${audits}: ${picked === audits ? 'each once' : 'MISMATCH'}`);
     process.exitCode = okA && okB && picked === audits ? 0 : 1;
   } finally {
-    if (server) {
+    for (const server of servers) {
       server.kill('SIGTERM');
-      await new Promise((r) => server!.once('exit', r));
+      await new Promise((r) => server.once('exit', r));
     }
+    await drop();
     rmSync(dir, { recursive: true, force: true });
   }
 }

@@ -84,7 +84,10 @@ const COMBOS: [TourMethod, ImproveMode][] = [
   ['best', 'local'],
 ];
 
-/** Single-block layout (PRODUCT.md, Methods): same aisle |y1 − y2|, else |x1 − x2| + min(y1 + y2, 2L − y1 − y2). */
+/**
+ * Single-block layout (textbook formula, e.g. Bartholdi & Hackman, Warehouse & Distribution Science):
+ * same aisle |y1 − y2|, else |x1 − x2| + min(y1 + y2, 2L − y1 − y2).
+ */
 function singleBlockTrip(stops: number, seed: number): DistanceMatrix {
   const rng = createRng(seed);
   const aisles = 10;

@@ -1,2 +1,2 @@
-// Konva needs a canvas; happy-dom has none (STACK.md, gotcha 7).
+// Konva needs a canvas; happy-dom has none (it crashes on load without one; vitest-canvas-mock supplies it).
 import 'vitest-canvas-mock';

@@ -1,6 +1,6 @@
 import { expect, request, test, type Page } from '@playwright/test';
 
-/** Demo sign-in seeded on an empty database (API-FOUNDATION.md). */
+/** Demo sign-in seeded on an empty database (README.md, demo sign-ins). */
 async function signInAsSupervisor(page: Page): Promise<void> {
   await page.goto('/sign-in');
   await page.getByLabel('E-mail').fill('supervisor@demo.aislewright.test');

@@ -59,6 +59,9 @@ async function signIn(page: Page): Promise<void> {
   await page.keyboard.press('Enter');
   await page.waitForURL('**/pick');
   await page.getByRole('button', { name: 'I understand' }).click();
+  // Cart set-up (issue 16): each tote confirmed with its "Tote N ready" button.
+  await expect(page.getByTestId('cart-setup')).toBeVisible();
+  while ((await page.getByTestId('tote-ready').count()) > 0) await page.getByTestId('tote-ready').first().click();
   await expect(page.getByTestId('current-bin')).toBeVisible();
 }
 
@@ -85,7 +88,7 @@ test('a double tap confirms one line, Undo reopens it, and a skipped stop keeps 
 
   // Undo, within a few seconds: the line is open again, on the tablet and on the server, with an audit entry.
   await expect(page.getByTestId('undo-bar')).toBeVisible();
-  await page.screenshot({ path: '/work/notes/shots/trip-safety-undo-1024.png' });
+  await page.screenshot({ path: 'test-results/shots/trip-safety-undo-1024.png' });
   await page.getByTestId('undo').click();
   await expect(page.getByTestId('progress')).toContainText(linesDone(0, lines));
   await expect(page.getByTestId('queue-banner')).toBeHidden({ timeout: 15_000 });
@@ -112,7 +115,7 @@ test('a double tap confirms one line, Undo reopens it, and a skipped stop keeps 
   }
   await expect(stopTitle).toHaveText(`Stop ${skippedN} of ${total}`);
   await expect(page.getByTestId('skipped-tag')).toBeVisible();
-  await page.screenshot({ path: '/work/notes/shots/trip-safety-skipped-1024.png' });
+  await page.screenshot({ path: 'test-results/shots/trip-safety-skipped-1024.png' });
   expect(errors).toEqual([]);
   await api.dispose();
 });

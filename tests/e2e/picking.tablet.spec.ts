@@ -72,7 +72,43 @@ test('a picker picks a whole trip through a network drop; nothing is lost or dou
   // The safety caution is shown at trip start, before any work.
   await expect(page.getByRole('heading', { name: 'Safety first' })).toBeVisible();
   await page.getByRole('button', { name: 'I understand' }).click();
+
+  // Cart set-up before the first stop (issue 16): which order goes in which tote, as on the pick list.
+  await expect(page.getByTestId('cart-setup')).toBeVisible();
+  const toteRows = page.locator('[data-testid^="tote-row-"]');
+  const toteCount = await toteRows.count();
+  expect(toteCount).toBeGreaterThanOrEqual(1);
+  await expect(toteRows.first()).toContainText(/Tote \d+ = \S+/);
+  expect((await page.getByTestId('tote-ready').first().boundingBox())!.height).toBeGreaterThanOrEqual(72);
+  // A label that is no tote of this trip is refused and named; the first tote is confirmed by its label.
+  await expect(page.getByTestId('tote-scan')).toBeFocused();
+  await page.keyboard.type('T-99');
+  await page.keyboard.press('Enter');
+  await expect(page.getByTestId('tote-wrong')).toContainText('Scanned T-99: not a tote of this trip');
+  const firstTote = Number((await toteRows.first().getAttribute('data-testid'))!.replace('tote-row-', ''));
+  await page.keyboard.type(`T${firstTote}`);
+  await page.keyboard.press('Enter');
+  await expect(page.getByTestId(`tote-done-${firstTote}`)).toContainText('Ready (scanned)');
+  await expect(page.getByTestId('tote-count')).toHaveText(`1 of ${toteCount} totes ready`);
+  while ((await page.getByTestId('tote-ready').count()) > 0) await page.getByTestId('tote-ready').first().click();
   await expect(page.getByTestId('current-bin')).toBeVisible();
+  // Stored on the server with its audit entry: a reload goes straight back to the stop.
+  await page.reload();
+  await expect(page.getByTestId('current-bin')).toBeVisible();
+  await expect(page.getByTestId('cart-setup')).toHaveCount(0);
+  {
+    const cdb = new Database(`test-results/e2e-db-${new URL(baseURL!).port}/aislewright.sqlite`, { readonly: true, fileMustExist: true });
+    try {
+      expect((cdb.prepare('SELECT cart_ready_at FROM trips WHERE id = ?').get(tripId) as { cart_ready_at: string | null }).cart_ready_at).not.toBeNull();
+      const entries = cdb.prepare("SELECT detail FROM audit_log WHERE action = 'trip.cart_ready' AND subject = ?").all(`trip:${tripId}`) as { detail: string }[];
+      expect(entries).toHaveLength(1);
+      const totes = (JSON.parse(entries[0]!.detail) as { totes: { tote: number; via: string }[] }).totes;
+      expect(totes).toHaveLength(toteCount);
+      expect(totes.find((t) => t.tote === firstTote)?.via).toBe('scan');
+    } finally {
+      cdb.close();
+    }
+  }
 
   // Sizes from the product's picker rules: current pick 40–64 px bold, primary ≥ 72 px, others ≥ 56 px.
   const binFont = await page.getByTestId('current-bin').evaluate((el) => getComputedStyle(el));

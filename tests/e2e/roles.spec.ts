@@ -1,6 +1,6 @@
 import { expect, test, type Page } from '@playwright/test';
 
-/** Demo sign-ins seeded on an empty database (API-FOUNDATION.md). */
+/** Demo sign-ins seeded on an empty database (README.md, demo sign-ins). */
 const PASSWORD = 'demo-password-1';
 const OFFICE = [
   { role: 'admin', email: 'admin@demo.aislewright.test', home: '/admin/users', heading: 'Users', menu: ['Users', 'Sites & settings', 'Mail outbox'] },
@@ -42,7 +42,7 @@ for (const user of OFFICE) {
 test('picker signs in with badge and PIN and lands on the trip screen with the safety caution', async ({ page }) => {
   await signInByBadge(page, 'P-1001', '246810');
   await expect(page).toHaveURL('/pick');
-  // PRODUCT.md, Safety: every picker screen carries the caution, shown from the start.
+  // README.md, Safety: every picker screen carries the caution, shown from the start.
   await expect(page.getByRole('note').filter({ hasText: 'forklift traffic rules' }).first()).toBeVisible();
   await expect(page.getByRole('button', { name: 'Sign out' })).toBeVisible();
 });

@@ -1,8 +1,10 @@
 /**
- * A fresh app per test file: in-memory SQLite with the real migrations (through the same explicit
+ * A fresh app per test file: in-memory SQLite — or, when TEST_DATABASE_URL names a PostgreSQL server,
+ * a fresh schema of its own there — with the real migrations (through the same explicit
  * migration source production uses), a cheap hasher, the demo users seeded, and a signed-in
  * Supertest agent per role.
  */
+import { randomBytes } from 'node:crypto';
 import { pino } from 'pino';
 import request from 'supertest';
 import type { Express } from 'express';
@@ -11,7 +13,7 @@ import { SignInBackoff } from '../../server/auth/backoff';
 import { createHasher } from '../../server/auth/hasher';
 import { loadConfig } from '../../server/config';
 import type { Deps } from '../../server/deps';
-import { migrateLatest, openDb } from '../../server/db/knex';
+import { migrateLatest, openDb, type Db } from '../../server/db/knex';
 import { createMailer } from '../../server/mail/mailer';
 import { createBackground } from '../../server/system/background';
 import { createBoardStreams } from '../../server/picking/board-streams';
@@ -31,11 +33,38 @@ export interface TestApp {
 /** Test-only argon2 cost: the same algorithm, less memory, so suites stay fast. */
 const testHasher = () => createHasher({ memoryCost: 1024, timeCost: 1 });
 
-/** Deps over a fresh in-memory database, or over `file` (a real SQLite file, WAL as in production). */
+/** The PostgreSQL server API tests run against, when set (`.ci/run` sets it for its second run). */
+export const testDatabaseUrl = process.env.TEST_DATABASE_URL || undefined;
+
+const schemas = new WeakMap<Db, string>();
+
+/**
+ * An empty database for one test app: `:memory:` SQLite, or a new schema on TEST_DATABASE_URL
+ * (dropped by `dropTestDb`).
+ */
+export async function openTestDb(): Promise<Db> {
+  if (!testDatabaseUrl) return openDb(':memory:');
+  const schema = `t_${randomBytes(6).toString('hex')}`;
+  const admin = openDb(testDatabaseUrl, { poolMax: 1 });
+  await admin.raw(`create schema ${schema}`);
+  await admin.destroy();
+  const db = openDb(testDatabaseUrl, { schema, poolMax: 5 });
+  schemas.set(db, schema);
+  return db;
+}
+
+/** Closes a test database; on PostgreSQL drops its schema too. */
+export async function dropTestDb(db: Db): Promise<void> {
+  const schema = schemas.get(db);
+  if (schema) await db.raw(`drop schema ${schema} cascade`);
+  await db.destroy();
+}
+
+/** Deps over a fresh test database (see openTestDb), or over `file` (a real SQLite file, WAL as in production). */
 export async function makeDeps(file = ':memory:'): Promise<Deps> {
-  const db = openDb(file);
+  const db = file === ':memory:' ? await openTestDb() : openDb(file);
   await migrateLatest(db);
-  const logger = pino({ level: 'silent' });
+  const logger = pino({ level: process.env.TEST_LOG_LEVEL ?? 'silent' });
   return {
     config: loadConfig({ DATABASE_FILE: file, PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
@@ -74,6 +103,6 @@ export async function makeTestApp(options: { seeders?: DemoSeeder[] } = {}): Pro
   };
   return { app, deps, as, anon: request.agent(app), siteId, close: () => {
     deps.boardStreams.close();
-    return deps.db.destroy();
+    return dropTestDb(deps.db);
   } };
 }

@@ -74,7 +74,7 @@ export async function insertReleasedWave(db: Knex, opts: { siteId: number; planI
   const pickSlot = (k: number) => slots[(k * stride + (opts.binOffset ?? 0)) % slots.length]!;
   const depotNode = plan.depotNodes[0]!;
   const now = new Date().toISOString();
-  const [waveId] = await db('waves').insert({
+  const [{ id: waveId }] = await db('waves').insert({
     site_id: opts.siteId,
     plan_id: opts.planId,
     name: opts.name ?? `Test wave ${serial}`,
@@ -96,7 +96,7 @@ export async function insertReleasedWave(db: Knex, opts: { siteId: number; planI
     release_key: `test-release-${serial}-${Date.now()}`,
     created_by: opts.createdBy,
     created_at: now,
-  });
+  }, 'id');
   const tripIds: number[] = [];
   const orderIds: number[] = [];
   let slotCursor = 0;
@@ -111,13 +111,13 @@ export async function insertReleasedWave(db: Knex, opts: { siteId: number; planI
     const refs = [`T${serial}-${ti + 1}-A`, `T${serial}-${ti + 1}-B`];
     const ids: number[] = [];
     for (const ref of refs) {
-      const [id] = await db('orders').insert({ site_id: opts.siteId, ref, status: 'planned', due: spec.due ?? null, priority: null, source: 'test', lines: 0, units: 0, weight_kg: 0, volume_l: 0, wave_id: waveId, created_at: now });
+      const [{ id }] = await db('orders').insert({ site_id: opts.siteId, ref, status: 'planned', due: spec.due ?? null, priority: null, source: 'test', lines: 0, units: 0, weight_kg: 0, volume_l: 0, wave_id: waveId, created_at: now }, 'id');
       ids.push(id!);
     }
     orderIds.push(...ids);
     const lines = ordered.length + (spec.twoLineEvery ? Math.floor(ordered.length / spec.twoLineEvery) : 0);
     const estSeconds = estimateMinutes(tour.length, lines, ordered.length, speeds) * 60;
-    const [tripId] = await db('trips').insert({
+    const [{ id: tripId }] = await db('trips').insert({
       wave_id: waveId,
       site_id: opts.siteId,
       n: ti + 1,
@@ -132,21 +132,21 @@ export async function insertReleasedWave(db: Knex, opts: { siteId: number; planI
       depot_node: depotNode,
       due: spec.due ?? null,
       assigned_at: spec.pickerId ? now : null,
-    });
+    }, 'id');
     tripIds.push(tripId!);
     if (spec.pickerId) await db('trip_assignments').insert({ trip_id: tripId, picker_id: spec.pickerId, assigned_by: opts.createdBy, assigned_at: now });
     await db('trip_orders').insert(ids.map((id, k) => ({ trip_id: tripId, order_id: id, totes: JSON.stringify([k + 1]) })));
     const lineNo = [0, 0];
     for (const [si, [node, binIdx]] of ordered.entries()) {
       const bin = plan.geometry.bins[binIdx]!;
-      const [stopId] = await db('stops').insert({ trip_id: tripId, n: si + 1, node, x_m: plan.graph.x[node]!, y_m: plan.graph.y[node]!, bins: JSON.stringify([bin.code]), status: 'open' });
+      const [{ id: stopId }] = await db('stops').insert({ trip_id: tripId, n: si + 1, node, x_m: plan.graph.x[node]!, y_m: plan.graph.y[node]!, bins: JSON.stringify([bin.code]), status: 'open' }, 'id');
       const sku = `SKU-${String(binIdx + 1).padStart(5, '0')}`;
       const description = ITEMS[binIdx % ITEMS.length]!;
       const orderSlots = spec.twoLineEvery && (si + 1) % spec.twoLineEvery === 0 ? [0, 1] : [si % 2];
       for (const o of orderSlots) {
         lineNo[o]! += 1;
         const qty = 1 + ((binIdx + o) % 4);
-        const [olId] = await db('order_lines').insert({ order_id: ids[o], line_no: lineNo[o], sku, qty });
+        const [{ id: olId }] = await db('order_lines').insert({ order_id: ids[o], line_no: lineNo[o], sku, qty }, 'id');
         await db('pick_lines').insert({ trip_id: tripId, stop_id: stopId, order_id: ids[o], order_line_id: olId, order_ref: refs[o], sku, description, bin: bin.code, qty, tote: o + 1, status: 'open' });
       }
     }

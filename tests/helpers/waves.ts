@@ -40,3 +40,17 @@ export async function releaseDemoWave(t: TestApp, options: { orders?: number; ba
   expect(res.status, JSON.stringify(res.body)).toBe(201);
   return res.body as WaveDetail;
 }
+
+/**
+ * Releases a wave through the real path (preview → release) and assigns its trip with the most stops
+ * to `pickerId` through the board, as a supervisor does; returns that trip's id.
+ */
+export async function releaseTripFor(t: TestApp, pickerId: number, options: { orders?: number; minStops?: number } = {}): Promise<number> {
+  const wave = await releaseDemoWave(t, { orders: options.orders ?? 6 });
+  expect(wave.tripList.length).toBeGreaterThan(0);
+  const trip = [...wave.tripList].sort((a, b) => b.stops - a.stops)[0]!;
+  expect(trip.stops).toBeGreaterThanOrEqual(options.minStops ?? 1);
+  const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${trip.id}/assign`).set(csrf).send({ pickerId });
+  expect(res.status, JSON.stringify(res.body)).toBe(200);
+  return trip.id;
+}

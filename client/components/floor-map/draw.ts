@@ -231,7 +231,7 @@ function drawDepots(ctx: CanvasRenderingContext2D, plan: PlanGeometry, p: MapPal
 
 /**
  * A depot is a square with "D" in it (shape and letter, not colour, tell it apart); its code goes
- * to the left, where the plan usually has free floor and the aisle codes are not.
+ * below it, off the row of aisle codes at the plan's front.
  */
 export function drawDepotMarker(ctx: CanvasRenderingContext2D, sx: number, sy: number, code: string | null, p: MapPalette, half: number): void {
   ctx.fillStyle = p.depotFill;
@@ -247,8 +247,11 @@ export function drawDepotMarker(ctx: CanvasRenderingContext2D, sx: number, sy: n
   ctx.textBaseline = 'middle';
   ctx.fillText('D', sx, sy + 0.5);
   if (code) {
-    ctx.textAlign = 'right';
-    label(ctx, code, sx - half - 4, sy, p, 12);
+    // Below the marker: beside it, the code sat on the row of aisle letters at the front.
+    ctx.textAlign = 'center';
+    ctx.textBaseline = 'top';
+    label(ctx, code, sx, sy + half + 3, p, 12);
+    ctx.textBaseline = 'middle';
   }
   ctx.textAlign = 'left';
 }

@@ -1,7 +1,8 @@
 /**
  * Drawing index of a floor plan: every bin's rectangle in parallel typed arrays and a uniform grid
  * over them, so a frame draws only what is in view and the pointer finds its bin without one node
- * per bin (STACK.md, gotcha 13). Pure: no DOM, no Konva.
+ * per bin (one vue-konva node per bin took 2.4 s to mount 5,000 bins, measured here).
+ * Pure: no DOM, no Konva.
  *
  * Layout drawn: a bin sits in a rack beside its aisle's centre line, on side L (smaller x, the
  * left hand walking towards larger y) or R. Bins of one aisle, side and position share a footprint

@@ -1,7 +1,9 @@
 /** Plain formatting helpers for the floor-plan views; free of Vue so they unit-test on their own. */
 import type { JobPhase } from '@shared/floor-plans';
+import { count as countNoun } from '@client/utils/format';
 
-export const count = (n: number): string => n.toLocaleString('en-GB');
+/** A number, or with a noun its count in the right number: `count(1, 'bin')` → "1 bin". */
+export const count = (n: number, noun?: string, plural?: string): string => (noun ? countNoun(n, noun, plural) : n.toLocaleString('en-GB'));
 
 /** Metres with one decimal when the value has a fraction, e.g. `3,600 m`, `12.5 m`. */
 export function metres(m: number): string {

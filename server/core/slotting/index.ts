@@ -47,7 +47,7 @@ export interface SlottingOptions {
   learnFraction?: number;
   /** Batching used to measure walking before and after; default `savings`. */
   batching?: BatchingMethod;
-  /** Walking speed for picker hours, metres per second; default 1.0 (PRODUCT.md). */
+  /** Walking speed for picker hours, metres per second; default 1.0 (common in order-picking studies). */
   walkingMps?: number;
   /** Budget of the search, milliseconds; default 5000. */
   timeLimitMs?: number;

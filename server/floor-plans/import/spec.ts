@@ -1,4 +1,4 @@
-/** The floor-plan workbook's sheets and columns (PRODUCT.md, "Import formats"); lower case, metres. */
+/** The floor-plan workbook's sheets and columns (README.md, "Import formats"); lower case, metres. */
 import type { WorkbookSpec } from '../../imports/spreadsheet';
 
 export const FLOOR_PLAN_SPEC = {

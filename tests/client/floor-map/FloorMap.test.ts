@@ -60,9 +60,13 @@ describe('FloorMap', () => {
     const w = mount(FloorMap, { props: { plan, width: 400, height: 300 }, attachTo: document.body });
     wrappers.push(w);
     await flushPromises();
-    // Same fit the map makes on mount: whole plan, 40 px padding, front at the bottom.
+    // Same fit the map makes on mount: whole plan, 40 px padding, front at the bottom, framed below the
+    // 52 px band the search box and buttons take (so they never hide the first aisles).
     const index = buildPlanIndex(plan, { aisleHalfWidth: 1.5, rackDepth: 1, crossAisleHalfWidth: 1.5 });
-    const vp = fitViewport(index.bounds!, 400, 300, true, 40);
+    const fitted = fitViewport(index.bounds!, 400, 300 - 52, true, 40);
+    const vp = { ...fitted, oy: fitted.oy + 52 };
+    // The plan's back edge is drawn below the tools band.
+    expect(worldToScreen(vp, index.bounds!.minX, index.bounds!.maxY).y).toBeGreaterThanOrEqual(52);
     const target = index.byCode.get('D-05-01-2')!;
     const c = binCentre(index, target);
     const s = worldToScreen(vp, c.x, c.y);

@@ -4,6 +4,7 @@ import type { PickTrip } from '@shared/picking';
 import { contrast, DARK, LIGHT } from '@client/adapters/palette';
 import { sendAction, type PickAction } from '@client/api/picking';
 import { applyPending, mergeLineAnswer, progressOf, scanMatches, supersedes } from '@client/views/picking/trip-view';
+import { cartTotes, needsCartSetup, toteFromScan } from '@client/views/picking/cart-setup';
 
 const store = new Map<string, unknown>();
 vi.mock('idb-keyval', () => ({
@@ -18,7 +19,7 @@ function trip(): PickTrip {
   return {
     id: 9, n: 1, status: 'picking', pickerId: 4, pickerName: 'Pat', orders: ['WEB-1'], stops: 3, lines: 4, plannedMetres: 100, lowerBoundMetres: 95, estMinutes: 5,
     totes: 1, kg: 1, litres: 1, waveId: 1, waveName: 'W', planId: 1, siteName: 'S', siteId: 1, path: [], depot: [0, 0], depotCode: 'D1', confirmScan: 'bin',
-    startedAt: null, finishedAt: null, currentStopId: 1, revision: 3, routeChangedAt: null,
+    startedAt: null, finishedAt: null, cartReadyAt: null, currentStopId: 1, revision: 3, routeChangedAt: null,
     stopList: [
       { id: 1, n: 1, x: 0, y: 0, bins: ['A-01'], status: 'open', skipped: false, cutOff: false, lines: [line(11, 'A-01'), line(12, 'A-01')] },
       { id: 2, n: 2, x: 0, y: 5, bins: ['A-02'], status: 'open', skipped: false, cutOff: false, lines: [line(21, 'A-02')] },
@@ -193,5 +194,30 @@ describe('wrong-scan colours', () => {
       expect(contrast(p.cautionText, p.cautionBg)).toBeGreaterThanOrEqual(7);
       expect(contrast(p.text1, p.body)).toBeGreaterThanOrEqual(7);
     }
+  });
+});
+
+describe('cart set-up (issue 16)', () => {
+  it('lists each tote with its orders by tote number, as the printed pick list does', () => {
+    const t = { stopList: [
+      { lines: [{ tote: 2, orderRef: 'WEB-2' }, { tote: 1, orderRef: 'WEB-1' }] },
+      { lines: [{ tote: 2, orderRef: 'WEB-2' }, { tote: 10, orderRef: 'WEB-9' }] },
+    ] } as unknown as PickTrip;
+    expect(cartTotes(t)).toEqual([{ tote: 1, orders: ['WEB-1'] }, { tote: 2, orders: ['WEB-2'] }, { tote: 10, orders: ['WEB-9'] }]);
+  });
+
+  it('reads a tote number from the label forms scanners send, and nothing else', () => {
+    expect(['3', 'T3', 't-03', 'TOTE 3', ' Tote-3 \n'].map(toteFromScan)).toEqual([3, 3, 3, 3, 3]);
+    expect(['', 'A-04-01-1', 'BW-1006', 'T', '0', 'T3X', '3.5'].map(toteFromScan)).toEqual([null, null, null, null, null, null, null]);
+  });
+
+  it('asks for the set-up only on a started trip with no confirmation stored and no line worked', () => {
+    const line = (status: string) => ({ tote: 1, orderRef: 'W', status });
+    const trip = (over: object) => ({ status: 'picking', cartReadyAt: null, stopList: [{ lines: [line('open'), line('open')] }], ...over }) as unknown as PickTrip;
+    expect(needsCartSetup(trip({}))).toBe(true);
+    expect(needsCartSetup(trip({ cartReadyAt: '2026-12-05T02:00:00Z' }))).toBe(false);
+    expect(needsCartSetup(trip({ status: 'assigned' }))).toBe(false);
+    // A trip already under way (opened before this step existed, or on another tablet) is not stopped.
+    expect(needsCartSetup(trip({ stopList: [{ lines: [line('picked'), line('open')] }] }))).toBe(false);
   });
 });

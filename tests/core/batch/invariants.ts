@@ -52,7 +52,7 @@ export function waveProblems(input: WaveInput, wave: PlanWaveResult): string[] {
         nodeOfBin.get(bin)!.add(l.node);
       }
       litres += ol;
-      // One tote per order unless its volume needs more (PRODUCT.md, cart profile).
+      // One tote per order unless its volume needs more (a cart profile: one order per tote).
       const need = Math.max(1, Math.ceil(ol / perTote - 1e-9));
       if (to.totes.length !== need) problems.push(`order ${to.ref} has ${to.totes.length} totes, needs ${need}`);
       for (const t of to.totes) {

@@ -9,12 +9,16 @@ const names = Object.keys(TSPLIB_OPTIMA);
 
 describe('constructions on TSPLIB', () => {
   // Published optima (TSPLIB README table, Reinelt 1991): no valid circuit can be shorter.
-  it.each(names)('%s: every construction gives a valid circuit no shorter than the optimum', (name) => {
+  // From above: nearest neighbor is at most (⌈log2 n⌉ + 1)/2 times the optimum on metric instances
+  // (Rosenkrantz, Stearns & Lewis 1977), greedy / sorted edges likewise (Ong & Moore 1984; bound from memory).
+  it.each(names)('%s: every construction gives a valid circuit between the optimum and the worst-case bound', (name) => {
     const { matrix } = loadTsp(name);
     const opt = TSPLIB_OPTIMA[name]!;
+    const worstCase = ((Math.ceil(Math.log2(matrix.n)) + 1) / 2) * opt;
     for (const order of [nearestNeighbor(matrix, 0), repeatedNearestNeighbor(matrix, 0), sortedEdges(matrix, 0)]) {
       expect(isCircuit(order, matrix.n, 0)).toBe(true);
       expect(circuitLength(matrix, order)).toBeGreaterThanOrEqual(opt);
+      expect(circuitLength(matrix, order)).toBeLessThanOrEqual(worstCase);
     }
   });
 });

@@ -12,18 +12,28 @@ const improvements: ImproveMode[] = ['none', 'local', 'deep'];
 
 describe('solveTour on TSPLIB', () => {
   // Published optima (TSPLIB README table, Reinelt 1991): a valid circuit is never shorter.
-  it.each(names)('%s: every method and improvement gives a valid circuit no shorter than the optimum', (name) => {
+  // From above: nearest neighbor is at most (⌈log2 n⌉ + 1)/2 times the optimum on metric instances
+  // (Rosenkrantz, Stearns & Lewis 1977), greedy / sorted edges likewise (Ong & Moore 1984; bound from
+  // memory); repeated NN and best are never longer than those, and improvement never lengthens a circuit.
+  it.each(names)('%s: every method and improvement gives a valid circuit between the optimum and the worst-case bound', (name) => {
     const { matrix } = loadTsp(name);
     const opt = TSPLIB_OPTIMA[name]!;
+    const worstCase = ((Math.ceil(Math.log2(matrix.n)) + 1) / 2) * opt;
+    const budgetMs = 30;
+    const step = 0.01;
     for (const method of heuristics) {
       for (const improve of improvements) {
-        const r = solveTour(matrix, { method, improve, timeLimitMs: 30, seed: 7 });
+        // A stepping clock makes the budget a fixed amount of work, independent of machine load.
+        const r = solveTour(matrix, { method, improve, timeLimitMs: budgetMs, seed: 7, clock: steppingClock(step) });
         expect(r.method).toBe(method);
         expect(r.improve).toBe(improve);
         expect(isCircuit(r.order, matrix.n, 0)).toBe(true);
         expect(r.length).toBe(circuitLength(matrix, r.order));
         expect(r.length).toBeGreaterThanOrEqual(opt);
-        expect(r.ms).toBeGreaterThanOrEqual(0);
+        expect(r.length).toBeLessThanOrEqual(worstCase);
+        // The clock was read at least twice, and the run ends within its budget (a few readings of overrun).
+        expect(r.ms).toBeGreaterThan(0);
+        expect(r.ms).toBeLessThanOrEqual(budgetMs + 10 * step);
       }
     }
   });
@@ -58,9 +68,9 @@ describe('solveTour edge cases', () => {
     const three = matrixFromRows([[0, 3, 4], [3, 0, 5], [4, 5, 0]]);
     for (const method of [...heuristics, 'exact'] as TourMethod[]) {
       for (const improve of improvements) {
-        expect(solveTour(one, { method, improve, timeLimitMs: 5 })).toMatchObject({ order: [0], length: 0 });
-        expect(solveTour(two, { method, improve, timeLimitMs: 5, depot: 1 })).toMatchObject({ order: [1, 0], length: 10 });
-        expect(solveTour(three, { method, improve, timeLimitMs: 5, depot: 2 })).toMatchObject({ order: [2, 0, 1], length: 12 });
+        expect(solveTour(one, { method, improve, timeLimitMs: 5, clock: steppingClock(0.01) })).toMatchObject({ order: [0], length: 0 });
+        expect(solveTour(two, { method, improve, timeLimitMs: 5, depot: 1, clock: steppingClock(0.01) })).toMatchObject({ order: [1, 0], length: 10 });
+        expect(solveTour(three, { method, improve, timeLimitMs: 5, depot: 2, clock: steppingClock(0.01) })).toMatchObject({ order: [2, 0, 1], length: 12 });
       }
     }
   });
@@ -98,7 +108,7 @@ describe('solveTour edge cases', () => {
     // Held & Karp 1962 via heldKarp as the reference; at ≤ 12 points deep runs it directly, above by search.
     for (const n of [10, 14, 16]) {
       const m = randomEuclidean(n, 40 + n);
-      const deep = solveTour(m, { method: 'nearest-neighbor', improve: 'deep', timeLimitMs: 50 });
+      const deep = solveTour(m, { method: 'nearest-neighbor', improve: 'deep', timeLimitMs: 50, clock: steppingClock(0.01) });
       expect(deep.length).toBeCloseTo(heldKarp(m).length, 9);
     }
   });

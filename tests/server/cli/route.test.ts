@@ -45,6 +45,9 @@ describe('aislewright route (in process)', () => {
     });
     expect(r.code).toBe(0);
     expect(JSON.parse(r.out[0]!).length).toBeGreaterThanOrEqual(TSPLIB_OPTIMA.ulysses22!);
+    // From above: deep never lengthens nearest neighbor, at most (⌈log2 22⌉ + 1)/2 = 3 times the optimum on
+    // metric instances (Rosenkrantz, Stearns & Lewis 1977).
+    expect(JSON.parse(r.out[0]!).length).toBeLessThanOrEqual(3 * TSPLIB_OPTIMA.ulysses22!);
   });
 
   const bad: [string, string[], unknown, RegExp][] = [

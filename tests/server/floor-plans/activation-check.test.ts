@@ -14,9 +14,12 @@ import { generatePlan, waitForJob } from './helpers';
  * The oracle for the counts is plain SQL over the same tables, written apart from the service's
  * TypeScript: SKUs whose bin has no row in the plan's bins, and open orders with such a line.
  */
+/** First row's `n` of a raw query: SQLite answers the rows, PostgreSQL `{ rows }`. */
+const countOf = (r: unknown): number => Number(((r as { rows?: { n: number }[] }).rows ?? (r as { n: number }[]))[0]!.n);
+
 async function sqlSkusWithoutBin(t: TestApp, planId: number): Promise<number> {
   const r = await t.deps.db.raw('select count(*) as n from skus s where s.site_id = ? and s.bin not in (select code from floor_plan_bins where plan_id = ?)', [t.siteId, planId]);
-  return Number((r as { n: number }[])[0]!.n);
+  return countOf(r);
 }
 async function sqlOrdersUnplaceable(t: TestApp, planId: number): Promise<number> {
   const r = await t.deps.db.raw(
@@ -25,7 +28,7 @@ async function sqlOrdersUnplaceable(t: TestApp, planId: number): Promise<number>
      where o.site_id = ? and o.status = 'open' and (s.id is null or s.bin not in (select code from floor_plan_bins where plan_id = ?))`,
     [t.siteId, planId],
   );
-  return Number((r as { n: number }[])[0]!.n);
+  return countOf(r);
 }
 
 /** Downloads a binary answer as a Buffer (supertest buffers text only by default). */

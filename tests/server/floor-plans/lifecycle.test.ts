@@ -163,7 +163,7 @@ describe('a save interrupted by a stopped server', () => {
   afterAll(() => t.close());
 
   it('leaves an unlisted plan that the next save removes with its rows', async () => {
-    const [stale] = await t.deps.db('floor_plans').insert({ site_id: t.siteId, name: 'half saved', state: 'building', source: 'upload', created_at: new Date().toISOString() });
+    const [{ id: stale }] = await t.deps.db('floor_plans').insert({ site_id: t.siteId, name: 'half saved', state: 'building', source: 'upload', created_at: new Date().toISOString() }, 'id');
     await t.deps.db('floor_plan_aisles').insert({ plan_id: stale, idx: 0, code: 'A', x_m: 0, y_start_m: 0, y_end_m: 10 });
     expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans`)).body).toEqual([]);
     expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans/${stale}`)).status).toBe(404);

@@ -27,6 +27,7 @@ const boardNow = async () => Board.parse((await t.as.supervisor.get(`/api/sites/
 describe('the board snapshot', () => {
   it('shows per trip the picker, progress, shorts, elapsed and remaining time, and a wave forecast', async () => {
     await freePickers();
+    const began = Date.now();
     const w = await t.wave([{ stops: 4, pickerId: t.ids.picker }, { stops: 3 }], 'Board wave A');
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const before = (await boardNow()).waves.find((x) => x.id === w.waveId)!;
@@ -39,6 +40,8 @@ describe('the board snapshot', () => {
     expect(after.status).toBe('picking');
     expect(after.trips[0]).toMatchObject({ status: 'picking', stopsDone: 2, linesDone: 2, shorts: 1 });
     expect(after.trips[0]!.elapsedMinutes).toBeGreaterThanOrEqual(0);
+    // From above: the trip started after this test began (a few seconds of rounding allowed).
+    expect(after.trips[0]!.elapsedMinutes).toBeLessThanOrEqual((Date.now() - began) / 60_000 + 0.1);
     expect(after.trips[0]!.remainingMinutes).toBeLessThan(before.trips[0]!.remainingMinutes);
     expect(after.remainingMinutes).toBeCloseTo(after.trips[0]!.remainingMinutes + after.trips[1]!.remainingMinutes, 6);
     // One picker on the wave: the forecast is now + all remaining work.

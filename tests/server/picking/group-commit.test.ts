@@ -1,21 +1,22 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDb, type Db } from '../../../server/db/knex';
+import type { Db } from '../../../server/db/knex';
+import { dropTestDb, openTestDb } from '../../helpers/app';
 import { GroupCommit } from '../../../server/picking/group-commit';
 
 let db: Db;
 beforeAll(async () => {
-  db = openDb(':memory:');
+  db = await openTestDb();
   await db.schema.createTable('t', (t) => {
     t.increments('id');
     t.string('v').notNullable().unique();
   });
 });
-afterAll(() => db.destroy());
+afterAll(() => dropTestDb(db));
 
 describe('GroupCommit', () => {
   it('commits writes that arrive together in one transaction, each answered with its own result', async () => {
     const g = new GroupCommit(db);
-    const results = await Promise.all(['a', 'b', 'c', 'd'].map((v) => g.run(async (trx) => (await trx('t').insert({ v }))[0])));
+    const results = await Promise.all(['a', 'b', 'c', 'd'].map((v) => g.run(async (trx) => (await trx('t').insert({ v }, 'id'))[0].id)));
     expect(results).toHaveLength(4);
     expect(await db('t').orderBy('id').pluck('v')).toEqual(['a', 'b', 'c', 'd']);
     // The first runs alone (nothing else was waiting); the three queued behind it share the next commit.

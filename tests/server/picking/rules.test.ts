@@ -2,6 +2,7 @@
  * Picking server rules: who may read and write a trip, taking trips, idempotency keys, conflicts,
  * scans, shorts, skips, finishing, and the audit trail behind each.
  */
+import { isPg } from '../../../server/db/dialect';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { routeTable } from '../../../server/routes';
 import { csrf } from '../../helpers/app';
@@ -64,12 +65,13 @@ describe("another picker's trip", () => {
   const pickingPaths = routeTable.filter((r) => r.path.startsWith('/api/picking/trips/:tripId'));
 
   it('covers every picking route of the table', () => {
-    // confirm, short, undo, skip, finish, start, read, plan, result
+    // confirm, short, undo, skip, finish, start, cart set-up, read, plan, result
     expect(pickingPaths.map((r) => `${r.method} ${r.path}`).sort()).toEqual([
       'get /api/picking/trips/:tripId',
       'get /api/picking/trips/:tripId/plan',
       'get /api/picking/trips/:tripId/result',
       'get /api/picking/trips/:tripId/status',
+      'post /api/picking/trips/:tripId/cart-ready',
       'post /api/picking/trips/:tripId/finish',
       'post /api/picking/trips/:tripId/lines/:lineId/confirm',
       'post /api/picking/trips/:tripId/lines/:lineId/short',
@@ -86,7 +88,13 @@ describe("another picker's trip", () => {
       const trip = await readTrip(t.as.picker, w.tripIds[0]!);
       const stop = trip.stopList[0]!;
       const path = route.path.replace(':tripId', String(trip.id)).replace(':lineId', String(stop.lines[0]!.id)).replace(':stopId', String(stop.id));
-      const body = route.path.endsWith('/short') ? { qtyFound: 0, reason: 'empty_bin' } : route.path.endsWith('/confirm') ? { via: 'tap' } : {};
+      const body = route.path.endsWith('/short')
+        ? { qtyFound: 0, reason: 'empty_bin' }
+        : route.path.endsWith('/confirm')
+          ? { via: 'tap' }
+          : route.path.endsWith('/cart-ready')
+            ? { totes: [...new Set(trip.stopList.flatMap((s) => s.lines.map((l) => l.tote)))].map((tote) => ({ tote, via: 'tap' })) }
+            : {};
       const res = route.method === 'get' ? await t.as.picker2.get(path) : await t.as.picker2.post(path).set(csrf).set(IDEMPOTENCY_HEADER, newKey()).send(body);
       expect(res.status, JSON.stringify(res.body)).toBe(403);
       expect(res.body.error.code).toBe('not_your_trip');
@@ -337,12 +345,22 @@ describe('shorts, skips and the end of a trip', () => {
       ['pick.confirm', t.ids.picker, 'cart-tablet-07'],
       ['pick.short', t.ids.picker, 'cart-tablet-07'],
     ]);
-    for (const r of rows) expect(Date.parse(r.at)).toBeGreaterThan(Date.now() - 60_000);
+    for (const r of rows) {
+      expect(Date.parse(r.at)).toBeGreaterThan(Date.now() - 60_000);
+      expect(Date.parse(r.at)).toBeLessThanOrEqual(Date.now());
+    }
     expect(JSON.parse(rows[0].detail)).toMatchObject({ tripId: trip.id, sku: a.sku, bin: a.bin, via: 'scan', scan: a.bin });
     expect(JSON.parse(rows[1].detail)).toMatchObject({ found: 0, reason: 'cannot_reach' });
   });
 
-  it('commits on a connection with synchronous=FULL before answering', async () => {
+  it('commits on a connection with synchronous=FULL (PostgreSQL: synchronous_commit on) before answering', async () => {
+    if (isPg(t.deps.db)) {
+      // PostgreSQL documentation (WAL configuration): synchronous_commit=on waits for the WAL flush before
+      // a commit returns; a 200 is sent after the commit.
+      const r = await t.deps.db.raw('show synchronous_commit');
+      expect(r.rows[0].synchronous_commit).toBe('on');
+      return;
+    }
     // SQLite documentation: synchronous=FULL (2) syncs at each commit; a 200 is sent after the commit.
     const r = await t.deps.db.raw('PRAGMA synchronous');
     expect(r[0].synchronous).toBe(2);

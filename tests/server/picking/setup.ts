@@ -2,6 +2,7 @@
 import request from 'supertest';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';
 import { insertReleasedWave, seedPlan, type TestTripSpec, type TestWave } from '../../helpers/picking';
+import { makeDemoApp } from '../../helpers/waves';
 import { IDEMPOTENCY_HEADER, PickTrip, type ConfirmBody } from '../../../shared/picking';
 
 export type Agent = ReturnType<typeof request.agent>;
@@ -12,15 +13,25 @@ export interface PickingFixture extends TestApp {
   wave(trips: TestTripSpec[], name?: string): Promise<TestWave>;
 }
 
-export async function makePickingApp(): Promise<PickingFixture> {
-  const t = await makeTestApp();
+async function userIds(t: TestApp): Promise<PickingFixture['ids']> {
   const user = async (where: object) => (await t.deps.db('users').where(where).first<{ id: number }>('id'))!.id;
-  const ids = {
+  return {
     supervisor: await user({ role: 'supervisor' }),
     admin: await user({ role: 'admin' }),
     picker: await user({ badge: 'P-1001' }),
     picker2: await user({ badge: 'P-1002' }),
   };
+}
+
+/** The demo plan, SKUs and open orders: waves come through the real release path (tests/helpers/waves.ts). */
+export async function makeDemoPickingApp(): Promise<TestApp & { ids: PickingFixture['ids'] }> {
+  const t = await makeDemoApp();
+  return { ...t, ids: await userIds(t) };
+}
+
+export async function makePickingApp(): Promise<PickingFixture> {
+  const t = await makeTestApp();
+  const ids = await userIds(t);
   const planId = await seedPlan(t.deps.db, t.siteId, ids.supervisor);
   let offset = 0;
   return {

@@ -8,11 +8,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LineAnswer, UNDO_WINDOW_MS } from '../../../shared/picking';
 import { CLOCK_SKEW_MS, TAP_GUARD_MS } from '../../../server/picking/picking.service';
 import { csrf } from '../../helpers/app';
-import { confirm, makePickingApp, post, readTrip, type PickingFixture } from './setup';
+import { releaseTripFor } from '../../helpers/waves';
+import { confirm, makeDemoPickingApp, post, readTrip } from './setup';
 
-let t: PickingFixture;
+let t: Awaited<ReturnType<typeof makeDemoPickingApp>>;
 beforeAll(async () => {
-  t = await makePickingApp();
+  t = await makeDemoPickingApp();
 });
 afterAll(() => t.close());
 
@@ -22,9 +23,9 @@ async function freePickers(): Promise<void> {
 
 async function startedTrip(stops = 4) {
   await freePickers();
-  const w = await t.wave([{ stops, pickerId: t.ids.picker }]);
-  expect((await t.as.picker.post(`/api/picking/trips/${w.tripIds[0]}/start`).set(csrf).send({})).status).toBe(200);
-  return readTrip(t.as.picker, w.tripIds[0]!);
+  const tripId = await releaseTripFor(t, t.ids.picker, { minStops: stops });
+  expect((await t.as.picker.post(`/api/picking/trips/${tripId}/start`).set(csrf).send({})).status).toBe(200);
+  return readTrip(t.as.picker, tripId);
 }
 
 describe('a tap confirms only the line on screen', () => {

@@ -77,18 +77,37 @@ describe('slotting runs', () => {
     expect(xlsx.status).toBe(200);
     const rows = XLSX.utils.sheet_to_json<unknown[]>(XLSX.read(xlsx.body as Buffer, { type: 'buffer' }).Sheets.moves!, { header: 1 });
     expect(rows.length).toBe(r.moves.length + 1);
-  });
+  }, 180_000);
 
   it('refuses an empty recorded history with a plain reason', async () => {
     const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'Nothing', method: 'search', history: { kind: 'recorded', from: '2020-01-01', to: '2020-01-31' }, cartProfileId });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('empty_history');
-  });
+  }, 180_000);
+
+  it('runs on a stored plan that is not active, and applies its moves only on the active plan', async () => {
+    const activeId: number = (await t.deps.db('floor_plans').where({ site_id: t.siteId, state: 'active' }).first('id')).id;
+    const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'On a chosen plan', method: 'popularity', history: { kind: 'upload', historyId }, maxMoves: 5, cartProfileId, planId: activeId });
+    expect(res.status, JSON.stringify(res.body)).toBe(202);
+    const run = await awaitRun(res.body.id);
+    expect(run.status, run.error ?? '').toBe('done');
+    expect(run.results!.planId).toBe(activeId);
+    const unknown = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'No such plan', method: 'popularity', history: { kind: 'upload', historyId }, cartProfileId, planId: 999_999 });
+    expect(unknown.status).toBe(404);
+    await t.deps.db('floor_plans').where({ id: activeId }).update({ state: 'retired' });
+    try {
+      const refused = await t.as.supervisor.post(`${url()}/runs/${run.id}/apply`).set(csrf).send({});
+      expect(refused.status).toBe(409);
+      expect(refused.body.error.code).toBe('plan_changed');
+    } finally {
+      await t.deps.db('floor_plans').where({ id: activeId }).update({ state: 'active' });
+    }
+  }, 180_000);
 
   it('pickers cannot run slotting and engineers cannot apply it', async () => {
     expect((await t.as.picker.get(`${url()}/runs`)).status).toBe(403);
     expect((await t.as.engineer.post(`${url()}/runs/1/apply`).set(csrf).send({})).status).toBe(403);
-  });
+  }, 180_000);
 
   it('applies the chosen moves in one audited step, keeps the old bins, and refuses a second apply', async () => {
     const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'Search', method: 'search', history: { kind: 'upload', historyId }, maxMoves: 20, cartProfileId });
@@ -111,7 +130,7 @@ describe('slotting runs', () => {
     const again = await t.as.supervisor.post(`${url()}/runs/${run.id}/apply`).set(csrf).send({});
     expect(again.status).toBe(409);
     expect(again.body.error.code).toBe('already_applied');
-  });
+  }, 180_000);
 
   it('refuses to move SKUs that open waves still have to pick, naming the wave', async () => {
     const wave = await releaseDemoWave(t, { orders: 40 });

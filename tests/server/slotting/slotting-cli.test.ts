@@ -67,6 +67,7 @@ describe('aislewright slotting', () => {
     expect(checked.errors).toEqual([]);
     const bins = new Map(checked.skus.map((s) => [s.sku, s.bin]));
     expect(bins.size).toBe(80);
+    expect(r.out.moves.length).toBeGreaterThan(0);
     for (const m of r.out.moves) expect(bins.get(m.sku)).toBe(m.toBin);
     const moved = scenario.skus.filter((s) => bins.get(s.code) !== s.bin).length;
     expect(moved).toBe(r.out.moveCount);

@@ -12,6 +12,7 @@ import { buildPlan } from '../../../server/studies/study-engine';
 import type { GeneratePlanParams } from '../../../shared/floor-plans';
 import type { StudyDetail, StudyInputsBody, StudyResults, StudySummary } from '../../../shared/studies';
 import { csrf, type TestApp } from '../../helpers/app';
+import { steppingClock } from '../../helpers/clock';
 import { makeDemoApp, releaseDemoWave } from '../../helpers/waves';
 
 /** One block (front and back cross aisles only): every routing policy applies. */
@@ -101,9 +102,9 @@ describe('studies', () => {
     expect(v.depotNode).toBe(plan.depotNode);
     for (const trip of v.trips) {
       const m = tripMatrix(plan.index, [plan.depotNode, ...trip.nodes]);
-      expect(trip.metres['best+local']).toBeCloseTo(solveTour(m, { method: 'best', improve: 'local', timeLimitMs: 10_000 }).length, 6);
+      expect(trip.metres['best+local']).toBeCloseTo(solveTour(m, { method: 'best', improve: 'local', timeLimitMs: 10_000, clock: steppingClock(0.001) }).length, 6);
       expect(trip.metres['nearest-neighbor+none']).toBeCloseTo(solveTour(m, { method: 'nearest-neighbor' }).length, 6);
-      if (trip.nodes.length <= 16) expect(trip.metres.exact).toBeCloseTo(solveTour(m, { method: 'exact', timeLimitMs: 10_000 }).length, 6);
+      if (trip.nodes.length <= 16) expect(trip.metres.exact).toBeCloseTo(solveTour(m, { method: 'exact', timeLimitMs: 10_000, clock: steppingClock(0.001) }).length, 6);
       const layout = plan.layout;
       if (isNotApplicable(layout)) throw new Error(layout.reason);
       const s = sShape(layout, layout.depots[0]!.x, trip.nodes.map((n) => plan.stopOf(n)!));
@@ -117,7 +118,7 @@ describe('studies', () => {
     for (const orders of waves) {
       const r = planWave({
         orders: orders.map((o) => ({ ref: o.ref, lines: o.lines.map((l) => ({ ...l, node: plan.nodeOfBin.get(l.bin)! })) })),
-        cart: first.results.cart, batching: 'savings', depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), timeLimitMs: 60_000,
+        cart: first.results.cart, batching: 'savings', depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), timeLimitMs: 60_000, clock: steppingClock(0.001),
       });
       direct += r.totals.metres;
     }
