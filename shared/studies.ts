@@ -105,6 +105,11 @@ export const StudyWork = z.discriminatedUnion('kind', [
     /** Batching of the trips the routing methods are compared on. */
     batching: BatchingName.default('savings'),
     cartProfileId: z.number().int().positive().optional(),
+    /**
+     * The cart's sizes as they were when the study was saved (filled in by the server from the profile,
+     * or the fallback cart), so a rerun gives the same figures after the profile is edited or removed.
+     */
+    cart: z.strictObject({ totes: z.number().int().min(1).max(100), maxKg: z.number().positive(), maxLitres: z.number().positive() }).optional(),
     /** How many waves like these the site picks a day: scales hours to hours per day. */
     wavesPerDay: z.number().positive().max(200),
   }),
@@ -142,6 +147,11 @@ export const RoutingRow = z.object({
   hoursPerDay: maybe,
   /** Compute time, milliseconds (wall clock; the only figure that changes between runs). */
   ms: num,
+  /**
+   * Exact method only, when some trips have too many stops for it: the trips it solved. The others are
+   * counted at their lower bound, so the row's metres are then a lower bound themselves.
+   */
+  solved: z.number().int().nullable().default(null),
 });
 export type RoutingRow = z.infer<typeof RoutingRow>;
 
@@ -280,3 +290,33 @@ export const StudyRouteQuery = z.strictObject({
   trip: z.coerce.number().int().positive(),
   method: RoutingMethodKey,
 });
+
+const CONSTRUCTION_HINTS: Record<string, string> = {
+  'nearest-neighbor': 'Walks to the closest stop not yet visited, from the depot.',
+  'repeated-nearest-neighbor': 'Nearest neighbor started from every stop in turn; the shortest circuit is kept.',
+  'sorted-edges': 'Joins the shortest links between stops first, never closing a loop early.',
+  best: 'The shorter of repeated nearest neighbor and sorted edges.',
+};
+const IMPROVE_HINTS: Record<string, string> = {
+  none: '',
+  local: ' Then 2-opt and Or-opt moves (reverse a stretch, move a run of stops) until none shortens the walk.',
+  deep: ' Then deep search: 2-opt/Or-opt, then repeated random double-bridge kicks with local search after each, keeping the best, within a fixed step budget.',
+};
+
+/** One or two sentences per routing method, shown beside its name in the study screens. */
+export const ROUTING_HINTS: Record<RoutingMethodKey, string> = Object.fromEntries(
+  ROUTING_METHOD_KEYS.map((k) => {
+    const [c, imp] = k.split('+');
+    if (imp !== undefined) return [k, `${CONSTRUCTION_HINTS[c!]}${IMPROVE_HINTS[imp]}`];
+    const named: Record<string, string> = {
+      exact: 'Held–Karp dynamic programming: the shortest possible circuit, for trips of up to 16 stops; longer trips are counted at their lower bound and the row says how many were solved.',
+      's-shape': 'Every aisle with a pick is walked end to end, zig-zagging from aisle to aisle, block by block; the usual rule when nothing else is planned, on any layout of parallel aisles with cross aisles.',
+      return: 'Enters each aisle with a pick from the front and turns back at its farthest pick. One block only.',
+      midpoint: 'Picks in the front half of each aisle from the front, the back half from the back; the first and last aisles are walked through. One block only.',
+      'largest-gap': 'Like midpoint, but each aisle turns back at its largest gap between picks. One block only (no middle cross aisle).',
+      combined: 'Chooses per aisle between walking through and turning back, whichever sets up the next aisle better. One block only.',
+      'ratliff-rosenthal': 'The shortest route on a single-block layout, by dynamic programming over the aisles. One block only.',
+    };
+    return [k, named[k]!];
+  }),
+) as Record<RoutingMethodKey, string>;

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { PlanGeometry } from '@shared/floor-plans';
 import { StudyDetail, StudyRoute, StudySummary, type RoutingMethodKey, type StudyInputsBody } from '@shared/studies';
+import { Ok } from '@shared/common';
 import { http } from './http';
 
 const base = (siteId: number) => `/api/sites/${siteId}/studies`;
@@ -15,6 +16,7 @@ export const listStudies = (siteId: number) => http('GET', base(siteId), StudySu
 export const getStudy = (siteId: number, id: number) => http('GET', `${base(siteId)}/${id}`, StudyDetail);
 export const createStudy = (siteId: number, body: StudyInputsBody) => http('POST', base(siteId), StudySummary, { body });
 export const cancelStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/cancel`, StudySummary);
+export const deleteStudy = (siteId: number, id: number) => http('DELETE', `${base(siteId)}/${id}`, Ok);
 export const rerunStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/rerun`, StudySummary);
 export const getStudyPlan = (siteId: number, id: number, variant: string) => http('GET', `${base(siteId)}/${id}/plans/${encodeURIComponent(variant)}`, StudyPlan);
 export const getStudyRoute = (siteId: number, id: number, q: { variant: string; trip: number; method: RoutingMethodKey }) =>

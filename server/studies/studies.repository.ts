@@ -114,3 +114,17 @@ export const linesOfTrips = (db: Q, tripIds: number[]): Promise<DbRecordedLine[]
 
 export const skuUnits = (db: Q, siteId: number): Promise<{ sku: string; unit_weight_kg: number; unit_volume_l: number }[]> =>
   db('skus').where({ site_id: siteId }).select('sku', 'unit_weight_kg', 'unit_volume_l');
+
+export interface DbOrderFacts {
+  ref: string;
+  due: string | null;
+  priority: number | null;
+  created_at: string;
+  id: number;
+}
+
+/** Arrival (created_at, then id), due time and priority of orders by reference. */
+export const orderFacts = (db: Q, siteId: number, refs: string[]): Promise<DbOrderFacts[]> =>
+  db('orders').where({ site_id: siteId }).whereIn('ref', refs).select<DbOrderFacts[]>('ref', 'due', 'priority', 'created_at', 'id');
+
+export const deleteStudyRow = (db: Q, siteId: number, id: number): Promise<number> => db('studies').where({ site_id: siteId, id }).del();

@@ -1,12 +1,12 @@
 import { z } from 'zod';
 import { PlanGeometry } from '../../shared/floor-plans';
-import { Id } from '../../shared/common';
+import { Id, Ok } from '../../shared/common';
 import { StudyDetail, StudyInputs, StudyRoute, StudyRouteQuery, StudySummary } from '../../shared/studies';
 import { defineRoute } from '../http/route';
 import { parseOr400 } from '../http/validate';
 import { studyWorkbook } from './export';
 import { siteTimeZone } from '../sites/sites.repository';
-import { cancelStudy, createStudy, doneStudy, getStudy, listStudies, rerunStudy, studyPlan, studyRoute } from './studies.service';
+import { cancelStudy, createStudy, deleteStudy, doneStudy, getStudy, listStudies, rerunStudy, studyPlan, studyRoute } from './studies.service';
 
 /** Engineers run studies; supervisors read and run them too. Pickers and admins are not given them. */
 const STUDY_ROLES = ['engineer', 'supervisor'] as const;
@@ -33,6 +33,11 @@ export const studyRoutes = [
     method: 'get', path: `${base}/:id`, access: STUDY_ROLES, summary: 'A study: inputs, progress, then its results',
     response: StudyDetail,
     handler: ({ deps, siteId, params }) => getStudy(deps.db, siteId!, idOf(params)),
+  }),
+  defineRoute({
+    method: 'delete', path: `${base}/:id`, access: STUDY_ROLES, summary: 'Delete a study that is not running (reruns of it stay)',
+    response: Ok,
+    handler: ({ deps, siteId, params }) => deleteStudy(deps, siteId!, idOf(params)),
   }),
   defineRoute({
     method: 'post', path: `${base}/:id/cancel`, access: STUDY_ROLES, summary: 'Stop a queued or running study (its worker is terminated)',

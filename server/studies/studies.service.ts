@@ -28,7 +28,7 @@ import { applyChanges, buildPlan, StudyInputError, tripRoute, type BuiltPlan, ty
 import { generateStudyOrders } from './generate-orders';
 import type { StudyProgress } from './study.worker';
 import {
-  getStudyRow, insertStudy, linesOfTrips, listStudyRows, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
+  deleteStudyRow, getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
 } from './studies.repository';
 
 /** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
@@ -91,6 +91,7 @@ async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Prom
   const tripIds = trips.map((t) => t.id);
   const [stops, lines, units] = await Promise.all([stopsOfTrips(db, tripIds), linesOfTrips(db, tripIds), skuUnits(db, siteId)]);
   const unitOf = new Map(units.map((u) => [u.sku, u]));
+  const facts = new Map((await orderFacts(db, siteId, [...new Set(lines.map((l) => l.order_ref))])).map((f) => [f.ref, f]));
   const waves: StudyWave[] = rows.map((w) => {
     const mine = trips.filter((t) => t.wave_id === w.id);
     const byOrder = new Map<string, PlannerOrder>();
@@ -113,10 +114,28 @@ async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Prom
         confirmedBins: confirmed.map((s) => binsOf(s.bins)),
       };
     });
-    return { id: w.id, name: w.name, orders: [...byOrder.values()], cart: { totes: w.cart_totes, maxKg: w.cart_max_kg, maxLitres: w.cart_max_litres }, recorded };
+    // Batching is compared on the orders as they arrived, with their due time and priority, not in the
+    // order the released trips carried them (that order would let FCFS replay the released wave).
+    const arrival = (ref: string): [string, number] => [facts.get(ref)?.created_at ?? '', facts.get(ref)?.id ?? Number.MAX_SAFE_INTEGER];
+    const orders = [...byOrder.values()]
+      .map((o) => ({ ...o, due: facts.get(o.ref)?.due ?? null, priority: facts.get(o.ref)?.priority ?? null }))
+      .sort((a, b) => {
+        const [ca, ia] = arrival(a.ref);
+        const [cb, ib] = arrival(b.ref);
+        return ca < cb ? -1 : ca > cb ? 1 : ia - ib || (a.ref < b.ref ? -1 : 1);
+      });
+    return { id: w.id, name: w.name, orders, cart: { totes: w.cart_totes, maxKg: w.cart_max_kg, maxLitres: w.cart_max_litres }, recorded };
   });
   const days = new Set(rows.map((w) => w.created_at.slice(0, 10))).size;
   return { waves, planId: rows[0]!.plan_id, depotIdx: rows[0]!.depot_idx, days };
+}
+
+/** The sizes of a cart profile (a removed one is unknown), or the fallback cart when none is chosen. */
+async function cartOf(db: Knex, siteId: number, cartProfileId: number | undefined): Promise<{ totes: number; maxKg: number; maxLitres: number }> {
+  if (cartProfileId === undefined) return FALLBACK_CART;
+  const c = await getCartProfile(db, siteId, cartProfileId);
+  if (!c) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'work.cartProfileId', message: 'unknown cart profile' }]);
+  return { totes: c.totes, maxKg: c.maxKg, maxLitres: c.maxLitres };
 }
 
 /** Everything the worker needs, read from the database and generated from the seed. */
@@ -134,21 +153,19 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
   } else {
     const w = inputs.work;
     base = await basePlanOf(db, siteId, inputs, null, 0);
-    let cart = FALLBACK_CART;
-    if (w.cartProfileId !== undefined) {
-      const c = await getCartProfile(db, siteId, w.cartProfileId);
-      if (!c) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'work.cartProfileId', message: 'unknown cart profile' }]);
-      cart = { totes: c.totes, maxKg: c.maxKg, maxLitres: c.maxLitres };
-    }
+    const cart = w.cart ?? (await cartOf(db, siteId, w.cartProfileId));
     waves = generateStudyOrders(base.geometry.bins, w.orders, inputs.seed).map((orders, i) => ({ id: i + 1, name: `Generated wave ${i + 1}`, orders, cart }));
     dayScale = w.wavesPerDay / w.orders.waves;
   }
-  try {
-    for (const wi of inputs.whatIfs) applyChanges(base, wi.changes);
-  } catch (e) {
-    if (e instanceof StudyInputError) throw new AppError('validation', 'validation_failed', e.message, [{ field: 'whatIfs', message: e.message }]);
-    throw e;
-  }
+  inputs.whatIfs.forEach((wi, i) => {
+    try {
+      applyChanges(base, wi.changes);
+    } catch (e) {
+      if (!(e instanceof StudyInputError)) throw e;
+      const field = `whatIfs.${i}${e.field ? `.${e.field}` : ''}`;
+      throw new AppError('validation', 'validation_failed', `What-if "${wi.label}": ${e.message}`, [{ field, message: e.message }]);
+    }
+  });
   return {
     base, whatIfs: inputs.whatIfs, waves, tripsFrom: inputs.work.kind === 'recorded' ? 'recorded' : inputs.work.batching,
     routing: inputs.routing, batching: inputs.batching, speeds, dayScale, seed: inputs.seed,
@@ -215,6 +232,8 @@ export async function createStudy(deps: Deps, siteId: number, userId: number, bo
     if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; choose a draft or generate one');
     inputs.work.plan = { source: 'plan', planId };
   }
+  // The cart's sizes are kept with the study: the profile may change or go before a rerun.
+  if (inputs.work.kind === 'generated' && !inputs.work.cart) inputs.work.cart = await cartOf(deps.db, siteId, inputs.work.cartProfileId);
   const work = await prepareWork(deps.db, siteId, inputs);
   const id = await insertStudy(deps.db, {
     site_id: siteId, name: inputs.name, kind: inputs.work.kind, seed: inputs.seed, inputs: JSON.stringify(inputs), status: 'queued',
@@ -261,6 +280,16 @@ export async function cancelStudy(deps: Deps, siteId: number, id: number): Promi
   jobs.delete(id);
   await setStudyStatus(deps.db, id, { status: 'cancelled', finished_at: nowIso() });
   return (await getStudySummary(deps.db, siteId, id))!;
+}
+
+/** Deletes a finished, failed or cancelled study (a running one is cancelled first); reruns of it keep their figures. */
+export async function deleteStudy(deps: Deps, siteId: number, id: number): Promise<{ ok: true }> {
+  const row = await getStudyRow(deps.db, siteId, id);
+  if (!row) throw notFound('Study');
+  if (jobs.has(id)) throw new AppError('conflict', 'study_running', 'This study is still running; cancel it before deleting it');
+  await deleteStudyRow(deps.db, siteId, id);
+  for (const key of [...planCache.keys()]) if (key.startsWith(`${id}:`)) planCache.delete(key);
+  return { ok: true };
 }
 
 /** A new study with the same inputs and seed (named "… (rerun)"). */

@@ -96,8 +96,11 @@ export interface StudyEngineInput {
 }
 
 export class StudyInputError extends Error {
-  constructor(message: string) {
+  /** The input it concerns, relative to the what-if (e.g. `changes.0.xM`), when one field is at fault. */
+  readonly field: string | null;
+  constructor(message: string, field: string | null = null) {
     super(message);
+    this.field = field;
     this.name = 'StudyInputError';
   }
 }
@@ -113,23 +116,30 @@ export function applyChanges(base: StudyPlanInput, changes: readonly PlanChange[
   const xs = geometry.aisles.map((a) => a.x);
   const ys = geometry.aisles.flatMap((a) => [a.yStart, a.yEnd]);
   const [xMin, xMax, yMin, yMax] = [Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)];
+  // The plan's extent: its aisles, cross aisles and depots. A depot moved outside it could not be walked to.
+  const allX = [...xs, ...geometry.crossAisles.flatMap((c) => [c.xStart, c.xEnd]), ...geometry.depots.map((d) => d.x)];
+  const allY = [...ys, ...geometry.crossAisles.map((c) => c.y), ...geometry.depots.map((d) => d.y)];
+  const [pxMin, pxMax, pyMin, pyMax] = [Math.min(...allX), Math.max(...allX), Math.min(...allY), Math.max(...allY)];
   let added = 0;
-  for (const c of changes) {
+  changes.forEach((c, j) => {
     if (c.kind === 'close_aisle') {
       const aisle = geometry.aisles.find((a) => a.code === c.aisle);
-      if (!aisle) throw new StudyInputError(`what-if: aisle ${c.aisle} is not on the plan`);
-      if (!(c.toM > c.fromM)) throw new StudyInputError(`what-if: the closed stretch of aisle ${c.aisle} must end after it starts`);
+      if (!aisle) throw new StudyInputError(`aisle ${c.aisle} is not on the plan (aisles ${geometry.aisles[0]?.code ?? ''}–${geometry.aisles.at(-1)?.code ?? ''})`, `changes.${j}.aisle`);
+      if (!(c.toM > c.fromM)) throw new StudyInputError(`the closed stretch of aisle ${c.aisle} must end after it starts`, `changes.${j}.toM`);
       closures.push({ kind: 'aisle', code: c.aisle, from: c.fromM, to: c.toM });
     } else if (c.kind === 'add_cross_aisle') {
-      if (!(c.yM > yMin && c.yM < yMax)) throw new StudyInputError(`what-if: a cross aisle at y = ${c.yM} m lies outside the aisles (y ${yMin}–${yMax} m)`);
-      if (geometry.crossAisles.some((x) => Math.abs(x.y - c.yM) < 0.5)) throw new StudyInputError(`what-if: the plan already has a cross aisle at y = ${c.yM} m`);
+      if (!(c.yM > yMin && c.yM < yMax)) throw new StudyInputError(`a cross aisle at y = ${c.yM} m lies outside the aisles (y ${yMin}–${yMax} m)`, `changes.${j}.yM`);
+      const there = geometry.crossAisles.find((x) => Math.abs(x.y - c.yM) < 0.5);
+      if (there) throw new StudyInputError(`the plan already has a cross aisle at y = ${there.y} m; choose another place`, `changes.${j}.yM`);
       geometry.crossAisles.push({ code: `added-${++added}`, y: c.yM, xStart: xMin, xEnd: xMax });
     } else {
       const depot = geometry.depots[base.depotIdx];
-      if (!depot) throw new StudyInputError('what-if: the plan has no depot to move');
+      if (!depot) throw new StudyInputError('the plan has no depot to move', `changes.${j}`);
+      if (!(c.xM >= pxMin && c.xM <= pxMax)) throw new StudyInputError(`the depot at x = ${c.xM} m would lie outside the plan (x ${pxMin}–${pxMax} m)`, `changes.${j}.xM`);
+      if (!(c.yM >= pyMin && c.yM <= pyMax)) throw new StudyInputError(`the depot at y = ${c.yM} m would lie outside the plan (y ${pyMin}–${pyMax} m)`, `changes.${j}.yM`);
       geometry.depots[base.depotIdx] = { code: depot.code, x: c.xM, y: c.yM };
     }
-  }
+  });
   return { geometry, closures, depotIdx: base.depotIdx };
 }
 
@@ -344,10 +354,13 @@ export function runStudy(input: StudyEngineInput): StudyResults {
     for (const method of input.batching) {
       const tb = performance.now();
       const trips: WorkTrip[] = [];
+      // Half of a method's share of progress is its batching, wave by wave; the other half its routing.
+      const share = Math.max(1, tripCount / 4);
       input.waves.forEach((w, wi) => {
         const r = batchWave(plan, ordersByWave[wi]!, w.cart, method, wi + 1);
         trips.push(...r.trips);
         if (method === input.batching[0]) unplaced.push(...r.unplaced);
+        tick(share / 2 / input.waves.length, `${v.label}: batching by ${BATCHING_LABELS[method]}, wave ${wi + 1} of ${input.waves.length}`);
       });
       batchedTrips.set(method, trips);
       let metres = 0;
@@ -366,7 +379,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
         metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBestPct: 0,
         aboveBoundPct: pct(metres, bound), hours, hoursPerDay: hours * input.dayScale, ms: performance.now() - tb,
       });
-      tick(Math.max(1, tripCount / 4), `${v.label}: batching by ${BATCHING_LABELS[method]}`);
+      tick(share / 2, `${v.label}: batching by ${BATCHING_LABELS[method]}, trips routed`);
     }
     const bestBatch = Math.min(...batching.map((b) => b.metres));
     for (const b of batching) b.aboveBestPct = pct(b.metres, bestBatch);
@@ -436,7 +449,8 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       const known = Object.values(metres).filter((x): x is number => x !== null);
       const lowerBound = tripBound(m, Math.min(...known));
       tripReasons.push(reasons);
-      tick(1, `${v.label}: routing trip ${ti + 1} of ${work.length}`);
+      // The routing share was sized on orders (trips are not known before batching): spread it over the trips.
+      tick(tripCount / Math.max(1, work.length), `${v.label}: wave ${t.wave} of ${input.waves.length}, trip ${ti + 1} of ${work.length} routed by ${routingKeys.length} methods`);
       return { n: ti + 1, wave: t.wave, orders: t.orders, lines: t.lines, nodes: t.nodes, lowerBound, metres, visits };
     });
     const lowerBound = trips.reduce((s, t) => s + t.lowerBound, 0);
@@ -445,8 +459,19 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       const missing = trips.filter((t) => t.metres[key] === null);
       const row: RoutingRow = {
         key, label: ROUTING_LABELS[key], applicable: missing.length === 0 && trips.length > 0, reason: null, metres: null, metresPerTrip: null,
-        metresPerLine: null, aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null, ms: ms.get(key)!,
+        metresPerLine: null, aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null, ms: ms.get(key)!, solved: null,
       };
+      if (key === 'exact' && missing.length && trips.length > 0) {
+        // Held–Karp on the trips it can solve; the others (too many stops) at their lower bound.
+        const per = trips.map((t) => t.metres[key] ?? t.lowerBound);
+        const metres = per.reduce((s, x) => s + x, 0);
+        const hours = hoursOf(trips.map((t, i) => ({ lines: t.lines, stops: t.nodes.length, metres: per[i]! })), input.speeds);
+        const solved = trips.length - missing.length;
+        return {
+          ...row, solved, metres, metresPerTrip: metres / trips.length, metresPerLine: lines ? metres / lines : 0, aboveBoundPct: pct(metres, lowerBound), hours, hoursPerDay: hours * input.dayScale,
+          reason: `solved ${solved} of ${trips.length} trips exactly; the other ${missing.length} (${tripReasons[missing[0]!.n - 1]![key] ?? 'too many stops'}) are counted at their lower bound, so this total is a lower bound too`,
+        };
+      }
       if (missing.length) {
         const why = tripReasons[missing[0]!.n - 1]![key] ?? 'does not apply';
         row.reason = missing.length === trips.length ? why : `${missing.length} of ${trips.length} trips: ${why}`;
@@ -456,7 +481,8 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       const hours = hoursOf(trips.map((t) => ({ lines: t.lines, stops: t.nodes.length, metres: t.metres[key]! })), input.speeds);
       return { ...row, metres, metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBoundPct: pct(metres, lowerBound), hours, hoursPerDay: hours * input.dayScale };
     });
-    const best = Math.min(...routing.filter((r) => r.metres !== null).map((r) => r.metres!));
+    // A partly solved exact row is a bound, not a route: it is not "the best".
+    const best = Math.min(...routing.filter((r) => r.metres !== null && r.solved === null).map((r) => r.metres!));
     for (const r of routing) if (r.metres !== null) r.aboveBestPct = pct(r.metres, best);
 
     if (v.key === 'base' && input.tripsFrom === 'recorded') recorded = recordedRows(plan, input.waves, trips);
@@ -495,7 +521,13 @@ function whatIfRows(variants: StudyVariant[]): WhatIfRow[] {
     const unlike = (a: number, b: number) => (a === b ? null : `the plans carry different work (${b} lines here, ${a} on the plan as it is; ${v.unplaced.length} order(s) cannot be placed): compare metres per line instead`);
     for (const r of v.routing) {
       const b = base.routing.find((x) => x.key === r.key);
-      rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, unlike(base.lines, v.lines)));
+      // A method that does not apply on either plan gives no difference: the row says why.
+      const why = r.metres === null && b && b.metres === null
+        ? `does not apply on either plan: ${r.reason ?? 'no route'}`
+        : r.metres === null ? `does not apply on the what-if: ${r.reason ?? 'no route'}`
+        : b && b.metres === null ? `does not apply on the plan as it is: ${b.reason ?? 'no route'}`
+          : r.solved !== null || (b && b.solved !== null) ? 'Held–Karp solved only part of the trips: a difference of lower bounds' : null;
+      rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, why ?? unlike(base.lines, v.lines)));
     }
     for (const r of v.batching) {
       const b = base.batching.find((x) => x.method === r.method);

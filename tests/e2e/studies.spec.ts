@@ -59,3 +59,66 @@ test('an engineer runs a generated study, reads the table and both charts, compa
   const sShape = rows.find((r) => r[0] === 's-shape')!;
   expect(`${Number(sShape[2]).toLocaleString('en-US', { minimumFractionDigits: 1, maximumFractionDigits: 1 })} m`).toBe(shown);
 });
+
+test('the new-study form describes each method and shows a refused what-if on its field; the result keeps the Note in view at 1366 px', async ({ page }) => {
+  test.setTimeout(240_000);
+  await page.setViewportSize({ width: 1366, height: 800 });
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail').fill(ENGINEER.email);
+  await page.getByLabel('Password').fill(ENGINEER.password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await expect(page).toHaveURL('/studies');
+  await page.getByRole('button', { name: 'New study' }).click();
+
+  // Each method carries its description beside its name.
+  await expect(page.getByText('Then deep search: 2-opt/Or-opt, then repeated random double-bridge kicks').first()).toBeVisible();
+  await expect(page.getByText('the usual rule when nothing else is planned')).toBeVisible();
+  await expect(page.getByText('Carts are merged pairwise where sharing a trip saves the most walking.').first()).toBeVisible();
+
+  await page.getByTestId('study-name').locator('input').fill('Browser what-if study');
+  await page.getByTestId('orders-waves').locator('input').fill('1');
+  await page.getByTestId('orders-per-wave').locator('input').fill('16');
+  await page.getByTestId('orders-per-wave').locator('input').blur();
+
+  // A depot far outside the plan is refused, and the form says so under the field.
+  await page.getByRole('button', { name: 'Move the depot' }).click();
+  await page.getByTestId('depot-x').locator('input').fill('900');
+  await page.getByTestId('depot-x').locator('input').blur();
+  await page.getByRole('button', { name: 'Run study' }).click();
+  await expect(page.getByText('The study was not started')).toBeVisible();
+  await expect(page.getByTestId('what-if-0')).toContainText('the depot at x = 900 m would lie outside the plan');
+  await expect(page).toHaveURL('/studies/new');
+
+  // A cross aisle where the demo plan has one is refused too; elsewhere the study runs.
+  await page.getByRole('button', { name: 'Remove' }).click();
+  await page.getByRole('button', { name: 'Add a cross aisle' }).click();
+  await page.getByTestId('cross-aisle-y').locator('input').fill('24');
+  await page.getByTestId('cross-aisle-y').locator('input').blur();
+  await page.getByRole('button', { name: 'Run study' }).click();
+  await expect(page.getByTestId('what-if-0')).toContainText('already has a cross aisle');
+  await page.getByTestId('cross-aisle-y').locator('input').fill('12');
+  await page.getByTestId('cross-aisle-y').locator('input').blur();
+  await page.getByRole('button', { name: 'Run study' }).click();
+  await expect(page).toHaveURL(/\/studies\/\d+$/);
+
+  const table = page.getByTestId('routing-table');
+  await expect(table).toBeVisible({ timeout: 180_000 });
+  await expect(page.getByTestId('lower-bound')).toContainText(/Lower bound: [\d,.]+ m/);
+  await expect(table.getByRole('row').filter({ hasText: 'S-shape (traversal)' })).toContainText('zig-zagging');
+
+  // On the demo plan (a middle cross aisle) the single-block policies do not apply on either plan: the row says why,
+  // and the Note cell is inside the window without scrolling sideways.
+  const whatIf = page.getByTestId('what-if-table');
+  const note = whatIf.getByRole('row').filter({ hasText: 'Largest gap' }).getByTestId('what-if-note');
+  await note.scrollIntoViewIfNeeded();
+  await expect(note).toContainText(/does not apply on (either plan|the what-if|the plan as it is): /);
+  const box = (await note.boundingBox())!;
+  expect(box.x + box.width).toBeLessThanOrEqual(1366);
+  expect(box.x).toBeGreaterThan(600);
+
+  // The study is deleted after a confirmation; the list no longer has it.
+  await page.getByTestId('delete-study').click();
+  await page.getByRole('button', { name: 'Delete', exact: true }).last().click();
+  await expect(page).toHaveURL('/studies');
+  await expect(page.getByText('Browser what-if study')).toHaveCount(0);
+});

@@ -17,7 +17,7 @@ export function totalDistanceOption(v: StudyVariant): Record<string, unknown> {
     grid: { left: 290, right: 40, top: 40, bottom: 30 },
     tooltip: { trigger: 'axis', axisPointer: { type: 'shadow' }, valueFormatter: (x: number) => `${x.toFixed(1)} m` },
     xAxis: { type: 'value', name: 'm', axisLabel: { formatter: '{value} m' } },
-    yAxis: { type: 'category', inverse: true, data: rows.map((r) => (r.key === DEFAULT_ROUTING ? `${r.label} (default)` : r.label)) },
+    yAxis: { type: 'category', inverse: true, data: rows.map((r) => (r.key === DEFAULT_ROUTING ? `${r.label} (default)` : r.solved !== null ? `${r.label} (partly solved: lower bound)` : r.label)) },
     series: [{
       type: 'bar',
       data: rows.map((r) => ({ value: Math.round(r.metres! * 10) / 10, itemStyle: { color: r.key === DEFAULT_ROUTING ? '#B86E00' : '#0E5E63' } })),

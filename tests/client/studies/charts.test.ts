@@ -5,7 +5,7 @@ import type { RoutingRow, StudyVariant } from '../../../shared/studies';
 
 const row = (key: RoutingRow['key'], metres: number | null): RoutingRow => ({
   key, label: key, applicable: metres !== null, reason: metres === null ? 'does not apply' : null, metres, metresPerTrip: null, metresPerLine: null,
-  aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null, ms: 1,
+  aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null, ms: 1, solved: null,
 });
 
 const variant: StudyVariant = {

@@ -245,4 +245,102 @@ describe('studies', () => {
     expect(res.status).toBe(400);
     expect(res.body.error.message).toMatch(/aisle ZZ/);
   });
+
+  it('refuses a depot moved outside the plan and a cross aisle where one exists, naming the field', async () => {
+    const far = await t.as.engineer.post(base()).set(csrf).send(generated('Bad depot', 1, { whatIfs: [{ label: 'Depot far away', changes: [{ kind: 'move_depot', xM: 500, yM: 0 }] }] }));
+    expect(far.status).toBe(400);
+    expect(far.body.error.message).toMatch(/depot .* outside the plan/);
+    expect(far.body.error.details).toEqual([expect.objectContaining({ field: 'whatIfs.0.changes.0.xM' })]);
+    const twice = await t.as.engineer.post(base()).set(csrf).send(generated('Bad cross aisle', 1, {
+      whatIfs: [{ label: 'Ok', changes: [{ kind: 'add_cross_aisle', yM: 10 }] }, { label: 'Twice', changes: [{ kind: 'add_cross_aisle', yM: 15 }, { kind: 'add_cross_aisle', yM: 15.2 }] }],
+    }));
+    expect(twice.status).toBe(400);
+    expect(twice.body.error.message).toMatch(/already has a cross aisle/);
+    expect(twice.body.error.details).toEqual([expect.objectContaining({ field: 'whatIfs.1.changes.1.yM' })]);
+    const count = await t.deps.db('studies').where({ name: 'Bad depot' }).orWhere({ name: 'Bad cross aisle' }).count<{ n: number }[]>({ n: '*' });
+    expect(count[0]!.n).toBe(0);
+  });
+
+  it('says why a what-if row gives no difference when the method does not apply on one plan', () => {
+    const row = first.results.whatIf.find((w) => w.method === 'largest-gap')!;
+    expect(row.deltaMetres).toBeNull();
+    expect(row.note).toMatch(/^does not apply on the what-if: /);
+    expect(row.note).toContain(first.results.variants[1]!.routing.find((r) => r.key === 'largest-gap')!.reason!);
+  });
+
+  it('counts Held–Karp on the trips it solves and the others at their lower bound (never below the bound, never above a route)', () => {
+    const v = first.results.variants[0]!;
+    const exact = v.routing.find((r) => r.key === 'exact')!;
+    const solvable = v.trips.filter((t) => t.metres.exact !== null);
+    expect(solvable.length).toBeGreaterThan(0);
+    expect(solvable.length).toBeLessThan(v.trips.length);
+    expect(exact.solved).toBe(solvable.length);
+    expect(exact.reason).toMatch(new RegExp(`solved ${solvable.length} of ${v.trips.length} trips`));
+    // Held–Karp is the optimum: on each solved trip it equals that trip's bound and no method is shorter.
+    for (const t of solvable) {
+      expect(t.metres.exact).toBeCloseTo(t.lowerBound, 6);
+      for (const m of Object.values(t.metres)) if (m !== null) expect(m).toBeGreaterThanOrEqual(t.metres.exact! - 1e-6);
+    }
+    expect(exact.metres).toBeCloseTo(v.lowerBound, 6);
+    const routes = v.routing.filter((r) => r.solved === null && r.metres !== null);
+    for (const r of routes) expect(r.metres!).toBeGreaterThanOrEqual(exact.metres! - 1e-6);
+    expect(routes.every((r) => r.aboveBestPct! >= 0) && routes.some((r) => r.aboveBestPct === 0)).toBe(true);
+  });
+
+  it("keeps the cart's sizes with the study: a rerun after the profile is edited and removed gives the same figures", async () => {
+    const made = await t.as.admin.post(`/api/sites/${t.siteId}/cart-profiles`).set(csrf).send({ name: 'Study trolley', totes: 4, maxKg: 60, maxLitres: 120 });
+    expect(made.status).toBe(201);
+    const body = generated('Small cart', 5, { routing: ['best+local'], batching: ['savings'], whatIfs: [] });
+    (body.work as { cartProfileId?: number }).cartProfileId = made.body.id;
+    const one = await waitDone((await start(body)).id);
+    expect(one.inputs.work.kind === 'generated' && one.inputs.work.cart).toEqual({ totes: 4, maxKg: 60, maxLitres: 120 });
+    expect(one.results.cart).toEqual({ totes: 4, maxKg: 60, maxLitres: 120 });
+    expect((await t.as.admin.put(`/api/sites/${t.siteId}/cart-profiles/${made.body.id}`).set(csrf).send({ name: 'Study trolley', totes: 10, maxKg: 200, maxLitres: 500 })).status).toBe(200);
+    const edited = await waitDone((await t.as.engineer.post(`${base()}/${one.id}/rerun`).set(csrf).send({})).body.id);
+    expect(figures(edited.results)).toEqual(figures(one.results));
+    expect((await t.as.admin.delete(`/api/sites/${t.siteId}/cart-profiles/${made.body.id}`).set(csrf)).status).toBe(200);
+    const rerun = await t.as.engineer.post(`${base()}/${one.id}/rerun`).set(csrf).send({});
+    expect(rerun.status, JSON.stringify(rerun.body)).toBe(202);
+    const removed = await waitDone(rerun.body.id);
+    expect(figures(removed.results)).toEqual(figures(one.results));
+    expect(removed.results.cart).toEqual({ totes: 4, maxKg: 60, maxLitres: 120 });
+  }, 240_000);
+
+  it("batches recorded waves from the orders' arrival, due time and priority, not the released trips' order", async () => {
+    const wave = await releaseDemoWave(t, { orders: 12, batching: 'savings' });
+    const orders: { id: number; ref: string }[] = await t.deps.db('orders').where({ wave_id: wave.id }).orderBy(['created_at', 'id']).select('id', 'ref');
+    expect(orders.length).toBe(12);
+    // Due times that interleave the arrival order: the even-numbered arrivals are due first.
+    const dueOrder = [...orders.filter((_, i) => i % 2 === 0), ...orders.filter((_, i) => i % 2 === 1)];
+    for (const [i, o] of dueOrder.entries()) await t.deps.db('orders').where({ id: o.id }).update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString(), priority: null });
+    const done = await waitDone((await start({ name: 'Recorded FCFS', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs', 'savings'] })).id);
+    const v = done.results.variants[0]!;
+    const released = v.routing.find((r) => r.key === 'best+local')!.metres!;
+    const fcfs = v.batching.find((b) => b.method === 'fcfs')!;
+    expect(fcfs.orders).toBe(12);
+    // FCFS on the interleaved due times does not replay the savings wave as released.
+    expect(Math.abs(fcfs.metres - released)).toBeGreaterThan(0.01);
+    // The due times decide FCFS: the same wave with due times in arrival order batches differently.
+    for (const [i, o] of orders.entries()) await t.deps.db('orders').where({ id: o.id }).update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString() });
+    const inArrival = await waitDone((await start({ name: 'Recorded FCFS by arrival', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs'] })).id);
+    const fcfs2 = inArrival.results.variants[0]!.batching[0]!;
+    expect(fcfs2.orders).toBe(12);
+    expect(Math.abs(fcfs2.metres - fcfs.metres)).toBeGreaterThan(0.01);
+    // Savings does not depend on arrival: it still reproduces the released wave's metres (same engine, same cart).
+    expect(v.batching.find((b) => b.method === 'savings')!.metres).toBeCloseTo(released, 0);
+  }, 120_000);
+
+  it('deletes a study that is not running; a rerun of it stays', async () => {
+    const one = await waitDone((await start(generated('To delete', 9, { routing: ['best+local'], batching: ['savings'], whatIfs: [] }))).id);
+    const rerun = await waitDone((await t.as.engineer.post(`${base()}/${one.id}/rerun`).set(csrf).send({})).body.id);
+    expect((await t.as.picker.delete(`${base()}/${one.id}`).set(csrf)).status).toBe(403);
+    const del = await t.as.engineer.delete(`${base()}/${one.id}`).set(csrf);
+    expect(del.status).toBe(200);
+    expect((await t.as.engineer.get(`${base()}/${one.id}`)).status).toBe(404);
+    expect((await t.as.engineer.delete(`${base()}/${one.id}`).set(csrf)).status).toBe(404);
+    const kept = await t.as.engineer.get(`${base()}/${rerun.id}`);
+    expect(kept.status).toBe(200);
+    expect(kept.body.rerunOf).toBeNull();
+    expect(kept.body.results).not.toBeNull();
+  }, 120_000);
 });
