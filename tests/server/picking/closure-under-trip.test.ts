@@ -141,11 +141,13 @@ describe('a closure under a trip being picked', () => {
   });
 
   it('refuses a non-finite figure at the database', async () => {
-    await expect(t.deps.db('trips').where({ id: trip.id }).update({ walked_metres: Infinity })).rejects.toThrow(/non_finite_figure/);
-    await expect(t.deps.db('trips').where({ id: trip.id }).update({ planned_metres: -Infinity })).rejects.toThrow(/non_finite_figure/);
-    await expect(t.deps.db('waves').where({ id: waveId }).update({ est_seconds: Infinity })).rejects.toThrow(/non_finite_figure/);
-    // A NaN reaches SQLite as NULL, which NOT NULL refuses.
-    await expect(t.deps.db('trips').where({ id: trip.id }).update({ planned_metres: NaN })).rejects.toThrow(/NOT NULL/);
+    // SQLite's triggers abort with non_finite_figure; PostgreSQL's CHECK constraints are named <table>_<column>_finite.
+    const refused = /non_finite_figure|_finite"/;
+    await expect(t.deps.db('trips').where({ id: trip.id }).update({ walked_metres: Infinity })).rejects.toThrow(refused);
+    await expect(t.deps.db('trips').where({ id: trip.id }).update({ planned_metres: -Infinity })).rejects.toThrow(refused);
+    await expect(t.deps.db('waves').where({ id: waveId }).update({ est_seconds: Infinity })).rejects.toThrow(refused);
+    // A NaN reaches SQLite as NULL, which NOT NULL refuses; PostgreSQL keeps NaN, which the CHECK refuses.
+    await expect(t.deps.db('trips').where({ id: trip.id }).update({ planned_metres: NaN })).rejects.toThrow(/NOT NULL|_finite"/);
     expect(Number.isFinite((await t.deps.db('trips').where({ id: trip.id }).first()).walked_metres)).toBe(true);
   });
 });
