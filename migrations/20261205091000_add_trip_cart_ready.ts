@@ -7,6 +7,8 @@ export async function up(knex: Knex): Promise<void> {
   });
 }
 
+// A plain DROP COLUMN (SQLite ≥ 3.35 and PostgreSQL): Knex's SQLite dropColumn rebuilds the table and
+// would lose the finite-figure triggers on `trips`.
 export async function down(knex: Knex): Promise<void> {
-  await knex.schema.alterTable('trips', (t) => t.dropColumn('cart_ready_at'));
+  await knex.raw('ALTER TABLE trips DROP COLUMN cart_ready_at');
 }
