@@ -98,6 +98,9 @@ test('on http://floor.test a supervisor plans and releases a wave, and a picker 
   await pick.waitForURL('**/pick');
   await expect(pick.getByRole('heading', { name: new RegExp(waveName) })).toBeVisible();
   await pick.getByRole('button', { name: 'I understand' }).click();
+  // Cart set-up: every tote confirmed before the first stop.
+  await expect(pick.getByTestId('tote-ready').first()).toBeVisible();
+  while ((await pick.getByTestId('tote-ready').count()) > 0) await pick.getByTestId('tote-ready').first().tap();
   const bin = (await pick.getByTestId('current-bin').textContent())!.trim();
   await pick.getByTestId('confirm').tap();
   await expect(pick.getByTestId('progress')).toContainText(new RegExp(`(^|\\D)1 of ${trip.lines} lines`));
