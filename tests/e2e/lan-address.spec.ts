@@ -112,4 +112,7 @@ test('on http://floor.test a supervisor plans and releases a wave, and a picker 
   expect(detail.stopList.flatMap((s) => s.lines).filter((l) => l.status === 'picked').map((l) => l.bin)).toEqual([bin]);
   await tablet.close();
   expect(errors).toEqual([]);
+  // Leave the demo picker free for the browser tests after this one (they share one server).
+  const closed = await api(page, 'POST', `/api/sites/${siteId}/board/waves/${waveId}/close`, { reason: 'browser test done' });
+  expect(closed.status, JSON.stringify(closed.body)).toBe(200);
 });
