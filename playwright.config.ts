@@ -35,7 +35,8 @@ export default defineConfig({
     reuseExistingServer: false,
     timeout: 120_000,
     env: { PORT: String(PORT), DATABASE_FILE: `test-results/e2e-db-${PORT}/aislewright.sqlite`, LOG_LEVEL: 'warn', PUBLIC_URL: `http://localhost:${PORT}` },
-    stdout: 'ignore',
+    // E2E_SERVER_LOG=1 keeps the server's log in the output (to check a whole run for 500s).
+    stdout: process.env.E2E_SERVER_LOG ? 'pipe' : 'ignore',
     stderr: 'pipe',
   },
 });
