@@ -21,7 +21,7 @@ test('an admin backs up now, creates and revokes an integration token, and finds
   await page.getByRole('button', { name: 'Back up now' }).click();
   await expect(page.getByText(/is made and checked/)).toBeVisible({ timeout: 30_000 });
   const row = page.getByRole('row').filter({ hasText: 'Back up now' });
-  await expect(row.getByText('✓ Integrity check passed')).toBeVisible();
+  await expect(row.getByText('✓ Integrity check passed')).toBeVisible({ timeout: 30_000 });
   const link = row.getByRole('link', { name: /Download aislewright-\d{8}-\d{6}\.sqlite/ });
   const download = page.waitForEvent('download');
   await link.click();
