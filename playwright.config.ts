@@ -7,6 +7,7 @@ const PORT = Number(process.env.E2E_PORT ?? 3310);
 export default defineConfig({
   testDir: 'tests/e2e',
   testMatch: '**/*.spec.ts',
+  globalTeardown: './tests/e2e/harness/server-log-check.ts',
   timeout: 60_000,
   expect: { timeout: 10_000 },
   fullyParallel: false,
@@ -30,12 +31,13 @@ export default defineConfig({
   ],
   webServer: {
     // A fresh database per run; the demo seed gives every role its sign-in.
-    command: `rm -rf test-results/e2e-db-${PORT} && node --import tsx server/main.ts`,
+    // Its log (pino JSON lines) is kept beside the database; the teardown fails the run on any 5xx answer.
+    command: `rm -rf test-results/e2e-db-${PORT} && mkdir -p test-results/e2e-db-${PORT} && node --import tsx server/main.ts 2>&1 | tee test-results/e2e-db-${PORT}/server.log`,
     url: `http://localhost:${PORT}/api/health`,
     reuseExistingServer: false,
     timeout: 120_000,
     env: { PORT: String(PORT), DATABASE_FILE: `test-results/e2e-db-${PORT}/aislewright.sqlite`, LOG_LEVEL: 'warn', PUBLIC_URL: `http://localhost:${PORT}` },
-    // E2E_SERVER_LOG=1 keeps the server's log in the output (to check a whole run for 500s).
+    // E2E_SERVER_LOG=1 also shows the server's log in the output.
     stdout: process.env.E2E_SERVER_LOG ? 'pipe' : 'ignore',
     stderr: 'pipe',
   },

@@ -68,6 +68,8 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
         res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
       },
       autoLogging: { ignore: (req) => req.url === '/api/health' },
+      // A 5xx answer is an error worth a look at any log level (the browser tests' run is checked for them).
+      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : 'info'),
     }),
   );
   // Board changes signalled while serving a request reach this app's live-board streams (events.ts);
