@@ -46,6 +46,7 @@ export const routes: RouteRecordRaw[] = [
   { path: '/studies', name: 'studies', component: () => import('@client/views/studies/StudiesView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Studies', menu: { label: 'Studies', group: 'Analysis' } } },
   { path: '/studies/new', name: 'study-new', component: () => import('@client/views/studies/StudyNewView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'New study' } },
   { path: '/studies/:id(\\d+)', name: 'study', component: () => import('@client/views/studies/StudyView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Study' } },
+  { path: '/print/studies/:id(\\d+)', name: 'print-study', component: () => import('@client/views/studies/StudySummaryPrint.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Study summary', bare: true } },
   { path: '/slotting', name: 'slotting', component: () => import('@client/views/slotting/SlottingView.vue'), meta: { roles: ['engineer', 'supervisor'], title: 'Slotting', menu: { label: 'Slotting', group: 'Analysis' } } },
   { path: '/slotting/:id(\\d+)', name: 'slotting-run', component: () => import('@client/views/slotting/SlottingRunView.vue'), meta: { roles: ['engineer', 'supervisor', 'admin'], title: 'Slotting run' } },
 

@@ -49,6 +49,18 @@ test('an engineer runs a generated study, reads the table and both charts, compa
   // Each map draws on its own Konva stage (a plan layer and a route layer).
   expect(await routes.locator('canvas').count()).toBeGreaterThanOrEqual(4);
 
+  // The one-page summary for management: the question, the answer with its headline, one chart.
+  const studyPath = new URL(page.url()).pathname;
+  await expect(page.getByTestId('study-summary-link')).toHaveAttribute('href', `/print${studyPath}`);
+  const summary = await page.context().newPage();
+  await summary.goto(`/print${studyPath}`);
+  await expect(summary.getByTestId('summary-question')).toContainText('How much picker walking would the routing methods save');
+  await expect(summary.getByTestId('summary-headline')).toContainText(/of picker time a day, \d+\.\d % less walking/);
+  await expect(summary.getByTestId('summary-answer')).toContainText('switching from S-shape to the default method saves');
+  await expect(summary.getByTestId('summary-chart').locator('svg')).toBeVisible();
+  await summary.screenshot({ path: 'test-results/study-summary.png', fullPage: true });
+  await summary.close();
+
   // The workbook holds the figure the table shows for S-shape.
   const shown = (await sShapeRow.locator('td').nth(1).innerText()).trim();
   const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-workbook').click()]);
