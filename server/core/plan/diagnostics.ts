@@ -3,6 +3,7 @@
  * back to its spreadsheet row (core knows nothing about sheets).
  */
 import type { PlanClosure, PlanGeometry } from './types';
+import { crowdedAislePairs, MIN_WALKING_WIDTH_M, NOMINAL_RACK_DEPTH_M } from './types';
 import type { WalkGraph } from './walk-graph';
 import { NODE_JUNCTION, reachableFrom } from './walk-graph';
 
@@ -10,6 +11,7 @@ export type PlanProblemCode =
   | 'no_depot'
   | 'aisle_no_cross_aisle'
   | 'aisle_no_bins'
+  | 'aisles_too_close'
   | 'bin_unknown_aisle'
   | 'bin_outside_aisle'
   | 'bin_unreachable'
@@ -33,7 +35,7 @@ export interface PlanProblem {
  * Lists every structural problem of `plan` given its walk graph (built with the same closures).
  * Reachability is measured from the first depot that links to a centre line; when no depot links,
  * bins are not listed one by one (the depot errors name the cause). Errors first, in entity order,
- * then warnings ('aisle_no_bins'). Returns [] for a sound plan. O(V + E + B + A).
+ * then warnings ('aisle_no_bins', 'aisles_too_close'). Returns [] for a sound plan. O(V + E + B + A).
  */
 export function diagnosePlan(
   plan: PlanGeometry,
@@ -66,6 +68,17 @@ export function diagnosePlan(
     if (!hasBins[a]) {
       warnings.push({ severity: 'warning', code: 'aisle_no_bins', entity: 'aisle', index: a, message: `aisle ${aisles[a]!.code} has no bins` });
     }
+  }
+
+  for (const p of crowdedAislePairs(plan)) {
+    const [l, r] = [aisles[p.left]!, aisles[p.right]!];
+    warnings.push({
+      severity: 'warning',
+      code: 'aisles_too_close',
+      entity: 'aisle',
+      index: p.right,
+      message: `aisles ${l.code} and ${r.code} are ${fmt(p.pitchM)} m apart: with racks about ${fmt(NOMINAL_RACK_DEPTH_M)} m deep between them that leaves ${fmt(p.clearM)} m to walk, under ${fmt(MIN_WALKING_WIDTH_M)} m`,
+    });
   }
 
   let reference = -1;
@@ -111,4 +124,9 @@ export function diagnosePlan(
   });
 
   return errors.concat(warnings);
+}
+
+/** Metres with at most two decimals, for messages. */
+function fmt(m: number): string {
+  return String(Math.round(m * 100) / 100);
 }

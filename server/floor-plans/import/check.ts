@@ -327,7 +327,9 @@ function mapProblem(
           ? `aisle ${a.code} touches no cross aisle, so no one can walk into it; extend it to a cross aisle or add one`
           : p.code === 'aisle_no_bins'
             ? `aisle ${a.code} has no bins`
-            : p.message;
+            : p.code === 'aisles_too_close'
+              ? `${p.message}; check the x of both aisles`
+              : p.message;
       return { sheet: 'aisles', row: rows.aisles[p.index]!.row, column: 'aisle', value: a.code, message };
     }
     case 'bin': {

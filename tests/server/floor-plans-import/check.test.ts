@@ -216,6 +216,17 @@ describe('geometry (engine diagnostics mapped to rows)', () => {
     expect(r.ok).toBe(true);
     expect(r.plan!.aisles).toHaveLength(4);
   });
+
+  it('warns, on the aisle row, when two aisles stand closer than the racks between them allow', () => {
+    // Template aisles A (x 2 m) and B (x 5 m) hold bins on both sides; B moved to x 4 m leaves
+    // 2 m − two 1 m racks = 0 m to walk between them (see shared/plan-geometry.ts crowdedAislePairs).
+    const r = edited((s) => set(s, 'aisles', 'B', 'x_m', 4));
+    expect(r.errors).toEqual([]);
+    expect(r.warnings).toEqual([
+      { sheet: 'aisles', row: 3, column: 'aisle', value: 'B', message: 'aisles A and B are 2 m apart: with racks about 1 m deep between them that leaves 0 m to walk, under 1 m; check the x of both aisles' },
+    ]);
+    expect(r.ok).toBe(true);
+  });
 });
 
 describe('bins CSV', () => {
