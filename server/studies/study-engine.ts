@@ -1,8 +1,9 @@
 /**
  * The study computation: the same work (orders grouped in waves, or trips as recorded) on a base plan
  * and on what-if changes of it, routed by every chosen method and batched by every chosen batching
- * method, with Held–Karp bounds and hours at the site's speeds. Imports only the engine and pure
- * helpers, so the worker and the tests call this very function.
+ * method, with Held–Karp bounds and hours at the site's speeds. The planning itself is the engine's
+ * site model (server/core/site: build, slot, route); this file orchestrates it. Imports only the engine
+ * and pure helpers, so the worker and the tests call this very function.
  *
  * Reproducible: every budget inside runs on a step counter (`stepClock`), not on wall time, so the
  * same inputs and seed give the same figures on any machine and under any load. Only the compute
