@@ -5,7 +5,7 @@
  */
 import { planWave, type PlanWaveResult } from '../core/batch/plan-wave';
 import type { DistanceIndex } from '../core/plan/distances';
-import type { PlanGeometry } from '../core/plan/types';
+import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { WalkGraph } from '../core/plan/walk-graph';
 import { isNotApplicable } from '../core/policy/types';
 import { buildSiteModel, slotOrders, walkPolyline, type SlotLine, type SlotOrder } from '../core/site/index';
@@ -26,6 +26,8 @@ export interface SiteSpeeds {
 
 export interface PlannerInput {
   geometry: PlanGeometry;
+  /** Open closures the stored graph was built with: while any is open the routing policies, and so the S-shape comparison, do not apply. */
+  closures?: PlanClosure[];
   graph: WalkGraph;
   index: DistanceIndex;
   orders: PlannerOrder[];
@@ -63,7 +65,7 @@ export function estimateMinutes(metres: number, lines: number, stops: number, s:
 }
 
 export function planWaveOnPlan(input: PlannerInput): PlannerOutput {
-  const model = buildSiteModel({ geometry: input.geometry, graph: input.graph, index: input.index, depotIdx: input.depotIdx });
+  const model = buildSiteModel({ geometry: input.geometry, closures: input.closures ?? [], graph: input.graph, index: input.index, depotIdx: input.depotIdx });
   const { depotNode, graph } = model;
   const { orders, unslotted } = slotOrders(model, input.orders);
   const layout = model.layout;
@@ -79,6 +81,9 @@ export function planWaveOnPlan(input: PlannerInput): PlannerOutput {
     ...(input.timeLimitMs !== undefined ? { timeLimitMs: input.timeLimitMs } : {}),
     ...(input.progress ? { progress: input.progress } : {}),
   });
+
+  // Say why there is no S-shape figure, as the command line does.
+  if (isNotApplicable(layout)) result.totals.sShapeNote = `no S-shape figure: ${layout.reason}`;
 
   let estTotal = 0;
   const trips = result.trips.map((t) => {
