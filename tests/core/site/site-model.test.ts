@@ -27,6 +27,16 @@ function handPlan(): PlanGeometry {
   };
 }
 
+/** Site models of `count` seeded random irregular plans with closures, each with its graph rebuilt in graphology. */
+function* randomModels(seed: number, count: number) {
+  const rng = createRng(seed);
+  for (let t = 0; t < count; t++) {
+    const { plan, closures } = randomIrregularPlan(rng);
+    const m = buildSiteModel({ geometry: plan, closures });
+    yield { t, rng, plan, m, ref: toGraphology(m.graph) };
+  }
+}
+
 describe('buildSiteModel', () => {
   it('measures the hand-worked plan: depot link, aisle and cross-aisle metres added by hand', () => {
     const m = buildSiteModel({ geometry: handPlan() });
@@ -52,13 +62,9 @@ describe('buildSiteModel', () => {
   });
 
   it('equals graphology Dijkstra on every node pair of 60 random irregular plans with closures, and reaches what Dijkstra reaches', () => {
-    const rng = createRng(20261205);
     let pairs = 0;
     let unreached = 0;
-    for (let t = 0; t < 60; t++) {
-      const { plan, closures } = randomIrregularPlan(rng);
-      const m = buildSiteModel({ geometry: plan, closures });
-      const ref = toGraphology(m.graph);
+    for (const { t, m, ref } of randomModels(20261205, 60)) {
       // Reference: graphology-shortest-path single-source Dijkstra (general-purpose library).
       const fromDepot = referenceDistancesFrom(ref, m.depotNode, m.graph.nodeCount);
       for (let a = 0; a < m.graph.nodeCount; a += 3) {
@@ -147,13 +153,9 @@ describe('routeTrip', () => {
   });
 
   it('exact and best + local equal the shortest circuit found by enumerating every order on graphology distances', () => {
-    const rng = createRng(4242);
     let trips = 0;
     let local = 0;
-    for (let t = 0; t < 40; t++) {
-      const { plan, closures } = randomIrregularPlan(rng);
-      const m = buildSiteModel({ geometry: plan, closures });
-      const ref = toGraphology(m.graph);
+    for (const { rng, plan, m, ref } of randomModels(4242, 40)) {
       const candidates = [...new Set(plan.bins.map((b) => m.binNode(b.code)).filter((n): n is number => n !== undefined && m.reachesDepot(n) && n !== m.depotNode))];
       if (candidates.length < 3) continue;
       const k = Math.min(candidates.length, 3 + rng.int(4));
