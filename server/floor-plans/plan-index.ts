@@ -1,7 +1,8 @@
 /**
- * A stored plan, loaded for routing: geometry, walk graph and distance index (deserialised from their
- * BLOBs, no recomputation), bin and depot look-ups. Waves and studies use this; it is cached in memory
- * per plan id and closure version, so a closure or reopening makes the next load read the new arrays.
+ * A stored plan, loaded for routing: its site model (server/core/site) over the geometry, walk graph and
+ * distance index deserialised from their BLOBs (no recomputation), with the bin and depot look-ups.
+ * Waves and studies use this; it is cached in memory per plan id and closure version, so a closure or
+ * reopening makes the next load read the new arrays.
  */
 import type { Knex } from 'knex';
 import type { FloorPlanClosure } from '../../shared/floor-plans';
@@ -9,6 +10,7 @@ import { deserializeDistanceIndex, deserializeWalkGraph } from '../core/plan/ser
 import type { DistanceIndex } from '../core/plan/distances';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { WalkGraph } from '../core/plan/walk-graph';
+import { buildSiteModel, type SiteModel } from '../core/site/index';
 import { AppError, notFound } from '../http/errors';
 import { activePlanRow, getPlanRowById, listOpenClosures, loadGeometry, loadGraphSets, toEngineClosure } from './floor-plans.repository';
 
@@ -23,6 +25,8 @@ export interface LoadedPlan {
   closureRows: FloorPlanClosure[];
   graph: WalkGraph;
   index: DistanceIndex;
+  /** The site model of the plan and its open closures, for its first depot. */
+  site: SiteModel;
   /** Access-point node of a bin code; undefined when the code is not on the plan or the bin has no node. */
   binNode(code: string): number | undefined;
   /** Index into geometry.bins of a bin code. */
@@ -77,26 +81,22 @@ export async function loadPlanIndex(db: Knex, planId: number): Promise<LoadedPla
   const [geometry, closureRows] = await Promise.all([loadGeometry(db, planId), listOpenClosures(db, planId)]);
   const graph = deserializeWalkGraph(sets.graph);
   const index = deserializeDistanceIndex(sets.index);
-  const byCode = new Map<string, number>();
-  geometry.bins.forEach((b, i) => byCode.set(b.code, i));
+  const closures = closureRows.map(toEngineClosure);
+  const site = buildSiteModel({ geometry, closures, graph, index });
   const loaded: LoadedPlan = {
     planId,
     siteId: row.site_id,
     version: row.version ?? 0,
     closureVersion: sets.closureVersion,
     geometry,
-    closures: closureRows.map(toEngineClosure),
+    closures,
     closureRows,
     graph,
     index,
-    binIndex: (code) => byCode.get(code),
-    binNode: (code) => {
-      const i = byCode.get(code);
-      if (i === undefined) return undefined;
-      const node = graph.binNode[i]!;
-      return node >= 0 ? node : undefined;
-    },
-    depotNodes: graph.depotNode,
+    site,
+    binIndex: site.binIndex,
+    binNode: site.binNode,
+    depotNodes: site.depotNodes,
   };
   remember(db, loaded);
   return loaded;

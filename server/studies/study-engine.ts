@@ -1,27 +1,25 @@
 /**
  * The study computation: the same work (orders grouped in waves, or trips as recorded) on a base plan
  * and on what-if changes of it, routed by every chosen method and batched by every chosen batching
- * method, with Held–Karp bounds and hours at the site's speeds. Imports only the engine and pure
- * helpers, so the worker and the tests call this very function.
+ * method, with Held–Karp bounds and hours at the site's speeds. The planning itself is the engine's
+ * site model (server/core/site: build, slot, route); this file orchestrates it. Imports only the engine
+ * and pure helpers, so the worker and the tests call this very function.
  *
  * Reproducible: every budget inside runs on a step counter (`stepClock`), not on wall time, so the
  * same inputs and seed give the same figures on any machine and under any load. Only the compute
  * times (`ms`) are wall-clock.
  */
-import { improveFromVisits } from '../core/batch/plan-wave';
 import { batchOrders } from '../core/batch/index';
 import type { Cart, Order } from '../core/batch/types';
 import type { Clock } from '../core/clock';
-import { circuitLength } from '../core/matrix';
 import type { DistanceMatrix } from '../core/matrix';
-import { buildDistanceIndex, circuitPolyline, pairDistance, tripMatrix, type DistanceIndex } from '../core/plan/distances';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
-import { buildWalkGraph, reachableFrom, type WalkGraph } from '../core/plan/walk-graph';
-import { toBlockLayout, type BlockLayout } from '../core/policy/layout';
-import { combined, largestGap, midpoint, returnPolicy, sShape } from '../core/policy/policies';
-import { ratliffRosenthal } from '../core/policy/ratliff-rosenthal';
-import { isNotApplicable, type PolicyResult, type PolicyStop } from '../core/policy/types';
-import { HELD_KARP_MAX_POINTS, heldKarpBound, solveTour, type ImproveMode, type TourMethod } from '../core/tour/index';
+import { isNotApplicable } from '../core/policy/types';
+import {
+  buildSiteModel, closedWalkMetres, routeTrip as routeOnModel, SiteModelError, slotOrders, slotReason, tripMatrixOf, walkPolyline,
+  type SiteModel, type TripRoute,
+} from '../core/site/index';
+import { HELD_KARP_MAX_POINTS, heldKarpBound, solveTour } from '../core/tour/index';
 import { estimateMinutes, type PlannerOrder, type SiteSpeeds } from '../waves/wave-planner';
 import { BATCHING_LABELS, type BatchingName } from '../../shared/waves';
 import {
@@ -143,106 +141,33 @@ export function applyChanges(base: StudyPlanInput, changes: readonly PlanChange[
   return { geometry, closures, depotIdx: base.depotIdx };
 }
 
-export interface BuiltPlan {
+/** A study's plan (base or what-if) as a site model, with the input it was built from. */
+export interface BuiltPlan extends SiteModel {
   input: StudyPlanInput;
-  graph: WalkGraph;
-  index: DistanceIndex;
-  depotNode: number;
-  nodeOfBin: Map<string, number>;
-  /** Block layout for the routing policies, or why they do not apply. */
-  layout: BlockLayout | { reason: string };
-  stopOf: (node: number) => PolicyStop | null;
-  /** False for a node no walk from the depot reaches (a closed stretch cuts it off). */
-  reachesDepot: (node: number) => boolean;
 }
 
-/** Walk graph and distance index of a plan (O(bins log bins + hubs² log hubs), ~70 ms at 2,880 bins). */
+/** The site model of a plan (O(bins log bins + hubs² log hubs), ~70 ms at 2,880 bins). */
 export function buildPlan(input: StudyPlanInput): BuiltPlan {
-  const graph = buildWalkGraph(input.geometry, input.closures);
-  const index = buildDistanceIndex(graph, { budgetMs: 120_000 });
-  const depotNode = graph.depotNode[input.depotIdx];
-  if (depotNode === undefined) throw new StudyInputError(`the plan has no depot number ${input.depotIdx + 1}`);
-  const nodeOfBin = new Map<string, number>();
-  input.geometry.bins.forEach((b, i) => {
-    const node = graph.binNode[i]!;
-    if (node >= 0) nodeOfBin.set(b.code, node);
-  });
-  const depot = input.geometry.depots[input.depotIdx]!;
-  const layout = toBlockLayout(input.geometry, { depot: depot.code, closures: input.closures });
-  const stopOf = (node: number): PolicyStop | null => {
-    if (isNotApplicable(layout)) return null;
-    const a = graph.aisle[node] ?? -1;
-    if (a < 0) return null;
-    const i = layout.aisleIndex.get(input.geometry.aisles[a]!.code);
-    return i === undefined ? null : { aisle: i, y: graph.y[node]! };
-  };
-  const reached = reachableFrom(graph, depotNode);
-  const reachesDepot = (node: number): boolean => reached[node] === 1;
-  return { input, graph, index, depotNode, nodeOfBin, layout, stopOf, reachesDepot };
+  try {
+    const model = buildSiteModel({ geometry: input.geometry, closures: input.closures, depotIdx: input.depotIdx, distanceOptions: { budgetMs: 120_000 } });
+    return Object.assign(model, { input });
+  } catch (e) {
+    if (e instanceof SiteModelError) throw new StudyInputError(e.message);
+    throw e;
+  }
 }
 
-const POLICY_FNS = {
-  's-shape': sShape,
-  return: returnPolicy,
-  midpoint,
-  'largest-gap': largestGap,
-  combined,
-  'ratliff-rosenthal': ratliffRosenthal,
-} as const;
-type PolicyKey = keyof typeof POLICY_FNS;
-const isPolicy = (k: RoutingMethodKey): k is PolicyKey => k in POLICY_FNS;
-
-export interface RouteAnswer {
-  /** Metres, depot to depot; null when the method does not apply. */
-  length: number | null;
-  /** Visiting order as indices into the trip's stops. */
-  visits: number[];
-  reason: string | null;
-  /** Axis-parallel path of a policy, depot to depot (policies only). */
-  path?: { x: number; y: number }[];
-}
+export type RouteAnswer = TripRoute;
 
 /**
- * One trip (`nodes` ascending, the depot not among them) routed by one method. Tour methods solve the
- * matrix over depot + stops; policies walk the block layout and add the depot's link to the front
- * cross aisle twice, as the wave planner does. Deterministic (step-clock budgets).
+ * One trip (`nodes` ascending, the depot not among them) routed by one method on the study's step-clock
+ * budgets (../core/site/route.ts). The product's default (best + local) also restarts local search from
+ * the S-shape order on block layouts, as the wave planner does, so studies and released waves agree.
  */
 export function routeTrip(plan: BuiltPlan, nodes: readonly number[], m: DistanceMatrix, key: RoutingMethodKey, seed: number): RouteAnswer {
-  if (isPolicy(key)) {
-    if (isNotApplicable(plan.layout)) return { length: null, visits: [], reason: plan.layout.reason };
-    const layout = plan.layout;
-    const stops: PolicyStop[] = [];
-    for (const node of nodes) {
-      const s = plan.stopOf(node);
-      if (!s) return { length: null, visits: [], reason: `a stop (node ${node}) is not on the layout's aisles` };
-      stops.push(s);
-    }
-    const depot = layout.depots[0]!;
-    const r: PolicyResult = POLICY_FNS[key](layout, depot.x, stops);
-    if (isNotApplicable(r)) return { length: null, visits: [], reason: r.reason };
-    const d = plan.input.geometry.depots[plan.input.depotIdx]!;
-    return { length: r.length + 2 * depot.offset, visits: r.order, reason: null, path: [{ x: d.x, y: d.y }, ...r.path, { x: d.x, y: d.y }] };
-  }
-  let method: TourMethod;
-  let improve: ImproveMode;
-  if (key === 'exact') {
-    if (m.n > HELD_KARP_MAX_POINTS) return { length: null, visits: [], reason: `more than ${HELD_KARP_MAX_POINTS - 1} stops` };
-    method = 'exact';
-    improve = 'none';
-  } else {
-    const [c, i] = key.split('+') as [TourMethod, ImproveMode];
-    method = c;
-    improve = i;
-  }
-  const r = solveTour(m, { method, improve, clock: stepClock(), timeLimitMs: improve === 'deep' ? DEEP_STEPS : UNLIMITED_STEPS, seed });
-  // The product's default (best + local) also restarts local search from the S-shape order on block
-  // layouts, exactly as the wave planner does, so studies and released waves agree.
-  if (key === 'best+local' && !isNotApplicable(plan.layout)) {
-    const s = routeTrip(plan, nodes, m, 's-shape', seed);
-    const better = s.length !== null ? improveFromVisits(m, r.length, s.visits) : null;
-    if (better) return { length: better.length, visits: better.order.slice(1).map((k) => k - 1), reason: null };
-  }
-  return { length: r.length, visits: r.order.slice(1).map((k) => k - 1), reason: null };
+  return routeOnModel(plan, nodes, key, {
+    matrix: m, seed, clock: stepClock, timeLimitMs: UNLIMITED_STEPS, deepTimeLimitMs: DEEP_STEPS, restartFromSShape: key === DEFAULT_ROUTING,
+  });
 }
 
 /** Metres no circuit through the trip can beat: Held–Karp's optimum up to 16 stops, else its 1-tree bound. */
@@ -252,24 +177,10 @@ export function tripBound(m: DistanceMatrix, bestKnown: number): number {
   return heldKarpBound(m, { upperBound: bestKnown, clock: stepClock(), timeLimitMs: BOUND_STEPS }).lowerBound;
 }
 
-/** Engine orders of a wave on a plan; orders naming a bin not on it are returned as unplaced. */
+/** Engine orders of a wave on a plan; orders that cannot be slotted on it are returned as unplaced. */
 function engineOrders(plan: BuiltPlan, orders: readonly PlannerOrder[]): { orders: Order[]; unplaced: { order: string; reason: string }[] } {
-  const out: Order[] = [];
-  const unplaced: { order: string; reason: string }[] = [];
-  for (const o of orders) {
-    const missing = o.lines.filter((l) => !plan.nodeOfBin.has(l.bin)).map((l) => l.bin);
-    if (missing.length) {
-      unplaced.push({ order: o.ref, reason: `bin ${[...new Set(missing)].join(', ')} is not on this plan or has no access point` });
-      continue;
-    }
-    out.push({
-      ref: o.ref,
-      ...(o.due ? { due: Date.parse(o.due) } : {}),
-      ...(o.priority !== null ? { priority: o.priority } : {}),
-      lines: o.lines.map((l) => ({ sku: l.sku, qty: l.qty, node: plan.nodeOfBin.get(l.bin)!, bin: l.bin, unitKg: l.unitKg, unitLitres: l.unitLitres })),
-    });
-  }
-  return { orders: out, unplaced };
+  const r = slotOrders(plan, orders);
+  return { orders: r.orders, unplaced: r.unslotted.map((u) => ({ order: u.order, reason: u.reason })) };
 }
 
 interface WorkTrip {
@@ -282,7 +193,7 @@ interface WorkTrip {
 /** Trips of one wave by a batching method: distinct stop nodes (ascending) per batch. */
 function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: BatchingName, wave: number): { trips: WorkTrip[]; unplaced: { order: string; reason: string }[] } {
   const r = batchOrders({
-    orders, cart, method, depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), clock: stepClock(), timeLimitMs: method === 'search' ? SEARCH_STEPS : UNLIMITED_STEPS,
+    orders, cart, method, depotNode: plan.depotNode, distance: plan.distance, clock: stepClock(), timeLimitMs: method === 'search' ? SEARCH_STEPS : UNLIMITED_STEPS,
   });
   const trips = r.batches.map((b) => {
     const nodes = new Set<number>();
@@ -301,7 +212,7 @@ function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: Batchin
  * endless work (it once took the whole server down), so it stops the study with a plain message instead.
  */
 function matrixOfTrip(plan: BuiltPlan, nodes: readonly number[]): DistanceMatrix {
-  const m = tripMatrix(plan.index, [plan.depotNode, ...nodes]);
+  const m = tripMatrixOf(plan, nodes);
   for (let i = 0; i < m.d.length; i++) {
     if (!Number.isFinite(m.d[i]!)) throw new StudyInputError('a trip holds a stop no walk from the depot reaches; the study cannot route it');
   }
@@ -398,7 +309,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
           for (const bins of t.stopBins) {
             let cut = false;
             for (const b of bins) {
-              const node = plan.nodeOfBin.get(b);
+              const node = plan.binNode(b);
               if (node === undefined) missing++;
               else if (!plan.reachesDepot(node)) {
                 cutBins.add(b);
@@ -416,7 +327,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
               const lost = orderOf.get(ref)?.lines.filter((l) => cutBins.has(l.bin)) ?? [];
               if (!lost.length) continue;
               lines -= lost.length;
-              unplaced.push({ order: ref, reason: `bin ${lost[0]!.bin} of SKU ${lost[0]!.sku} cannot be reached from the depot` });
+              unplaced.push({ order: ref, reason: slotReason('unreachable', lost[0]!.bin, lost[0]!.sku) });
             }
             notes.push(`${v.label}: ${cutStops} stop(s) of trip ${ti + 1} of ${w.name} cannot be reached from the depot (cut off by a closed stretch) and were left out of its route`);
           }
@@ -574,14 +485,13 @@ function recordedRows(plan: BuiltPlan, waves: readonly StudyWave[], trips: reado
 
 /** Depot → each confirmed stop in confirmation order → depot, on the plan's shortest walking distances. */
 export function confirmedWalk(plan: BuiltPlan, confirmedBins: readonly string[][]): number {
-  const nodes: number[] = [plan.depotNode];
+  const nodes: number[] = [];
   for (const bins of confirmedBins) {
     // A stop cut off since it was picked has no walk to measure on today's plan: left out.
-    const node = bins.map((b) => plan.nodeOfBin.get(b)).find((n) => n !== undefined && plan.reachesDepot(n));
+    const node = bins.map((b) => plan.binNode(b)).find((n) => n !== undefined && plan.reachesDepot(n));
     if (node !== undefined) nodes.push(node);
   }
-  if (nodes.length === 1) return 0;
-  return circuitLength(tripMatrix(plan.index, nodes), nodes.map((_, i) => i));
+  return closedWalkMetres(plan.depotNode, nodes, plan.distance);
 }
 
 /** Polyline and numbered stops of one trip by one method, for the side-by-side maps. */
@@ -592,9 +502,8 @@ export function tripRoute(plan: BuiltPlan, trip: StudyTrip, key: RoutingMethodKe
   const g = plan.graph;
   const stops = r.visits.map((k, i) => ({ n: i + 1, x: g.x[trip.nodes[k]!]!, y: g.y[trip.nodes[k]!]! }));
   if (r.path) return { points: r.path, stops, metres: r.length, reason: null };
-  const circuit = [plan.depotNode, ...r.visits.map((k) => trip.nodes[k]!)];
-  const poly = circuitPolyline(g, circuit, true, plan.index);
+  const poly = walkPolyline(plan, r.visits.map((k) => trip.nodes[k]!));
   const points: { x: number; y: number }[] = [];
-  if (poly) for (let i = 0; i + 1 < poly.length; i += 2) points.push({ x: poly[i]!, y: poly[i + 1]! });
+  for (let i = 0; i + 1 < poly.length; i += 2) points.push({ x: poly[i]!, y: poly[i + 1]! });
   return { points, stops, metres: r.length, reason: null };
 }

@@ -6,12 +6,10 @@
 import type { RowIssue } from '../../shared/imports';
 import type { Order, Unplaced } from '../core/batch/types';
 import type { PolicyComparison } from '../core/batch/plan-wave';
-import { policyComparisonOf } from '../core/batch/plan-wave';
-import { buildDistanceIndex, pairDistance } from '../core/plan/distances';
 import type { PlanGeometry } from '../core/plan/types';
 import type { WalkGraph } from '../core/plan/walk-graph';
-import { buildWalkGraph } from '../core/plan/walk-graph';
 import { isNotApplicable } from '../core/policy/index';
+import { buildSiteModel, slotOrders, type SiteModel } from '../core/site/index';
 import { checkFloorPlanFile } from '../floor-plans/import/index';
 import { readTableFile } from '../orders/orders.files';
 import { validateOrderRows, validateSkuRows, type SkuRecord } from '../orders/orders.validate';
@@ -44,6 +42,8 @@ export interface WaveInputs {
 export type WaveInputsResult = ({ ok: true } & WaveInputs) | { ok: false; file: 'plan' | 'skus' | 'orders'; errors: RowIssue[] };
 
 export interface SiteFiles {
+  /** The plan as a site model, for the depot trips start from. */
+  site: SiteModel;
   plan: PlanGeometry;
   graph: WalkGraph;
   depotIndex: number;
@@ -75,15 +75,15 @@ export async function readSiteFiles(files: { plan: NamedFile; skus: NamedFile },
     const message = options.depot === undefined ? 'the plan has no depot' : `the plan has no depot ${options.depot}`;
     return { ok: false, file: 'plan', errors: [{ sheet: 'depots', row: null, column: 'depot', value: options.depot ?? null, message }] };
   }
-  const graph = buildWalkGraph(plan);
-  const index = buildDistanceIndex(graph);
+  const site = buildSiteModel({ geometry: plan, depotIdx: depotIndex });
   return {
     ok: true,
+    site,
     plan,
-    graph,
+    graph: site.graph,
     depotIndex,
-    depotNode: graph.depotNode[depotIndex]!,
-    distance: (a, b) => pairDistance(index, a, b),
+    depotNode: site.depotNode,
+    distance: site.distance,
     skuRecords: skuCheck.skus,
     skus: new Map(skuCheck.skus.map((s) => [s.sku, s])),
   };
@@ -96,39 +96,29 @@ export async function readSiteFiles(files: { plan: NamedFile; skus: NamedFile },
 export async function readWaveInputs(files: WaveInputFiles, options: { depot?: string } = {}): Promise<WaveInputsResult> {
   const site = await readSiteFiles(files, options);
   if (!site.ok) return site;
-  const { plan, graph, skus, depotIndex } = site;
+  const { plan, graph, skus } = site;
 
   const orderRead = await readTableFile(files.orders.bytes, files.orders.name, 'orders');
   if ('issues' in orderRead) return { ok: false, file: 'orders', errors: orderRead.issues };
   const orderCheck = validateOrderRows('orders', orderRead.rows, (sku) => skus.has(sku));
   if (orderCheck.errors.length > 0) return { ok: false, file: 'orders', errors: orderCheck.errors };
-  const binIndex = new Map(plan.bins.map((b, i) => [b.code, i]));
 
-  const orders: Order[] = [];
-  const unplaced: Unplaced[] = [];
-  for (const rec of orderCheck.orders) {
-    let problem: string | null = null;
-    const lines = rec.lines.map((l) => {
-      const sku = skus.get(l.sku)!;
-      const b = binIndex.get(sku.bin);
-      const node = b === undefined ? -1 : graph.binNode[b]!;
-      if (b === undefined) problem ??= `SKU ${l.sku} is slotted in bin ${sku.bin}, which is not on the floor plan`;
-      else if (node < 0) problem ??= `bin ${sku.bin} of SKU ${l.sku} has no access point on its aisle`;
-      return { sku: l.sku, qty: l.qty, node, bin: sku.bin, unitKg: sku.unitWeightKg, unitLitres: sku.unitVolumeL };
-    });
-    if (problem) {
-      unplaced.push({ order: rec.ref, code: 'bad_line', reason: problem });
-      continue;
-    }
-    orders.push({
+  const slotted = slotOrders(
+    site.site,
+    orderCheck.orders.map((rec) => ({
       ref: rec.ref,
-      lines,
-      ...(rec.due === null ? {} : { due: Date.parse(rec.due) }),
-      ...(rec.priority === null ? {} : { priority: rec.priority }),
-    });
-  }
-
-  const comparison = policyComparisonOf(plan, graph, plan.depots[depotIndex]!.code);
+      due: rec.due,
+      priority: rec.priority,
+      lines: rec.lines.map((l) => {
+        const sku = skus.get(l.sku)!;
+        return { sku: l.sku, qty: l.qty, bin: sku.bin, unitKg: sku.unitWeightKg, unitLitres: sku.unitVolumeL };
+      }),
+    })),
+  );
+  const orders: Order[] = slotted.orders;
+  // A bin not on the plan or off its walk graph is a bad line of the order; an unreachable one keeps its code.
+  const unplaced: Unplaced[] = slotted.unslotted.map((u) => ({ order: u.order, code: u.code === 'unreachable' ? 'unreachable' : 'bad_line', reason: u.reason }));
+  const layout = site.site.layout;
   return {
     ok: true,
     plan,
@@ -137,6 +127,6 @@ export async function readWaveInputs(files: WaveInputFiles, options: { depot?: s
     distance: site.distance,
     orders,
     unplaced,
-    policy: isNotApplicable(comparison) ? { reason: comparison.reason } : comparison,
+    policy: isNotApplicable(layout) ? { reason: layout.reason } : { layout, stopOf: site.site.stopOf },
   };
 }

@@ -3,28 +3,18 @@
  * engine's planWave, and add what the screens need (route polylines, minutes at the site's speeds).
  * Pure apart from its inputs, so the server's worker and the CLI call the very same function.
  */
-import { planWave, policyComparisonOf, type PlanWaveResult } from '../core/batch/plan-wave';
-import type { Order } from '../core/batch/types';
-import { circuitPolyline, pairDistance, type DistanceIndex } from '../core/plan/distances';
-import type { PlanGeometry } from '../core/plan/types';
+import { planWave, type PlanWaveResult } from '../core/batch/plan-wave';
+import type { DistanceIndex } from '../core/plan/distances';
+import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { WalkGraph } from '../core/plan/walk-graph';
 import { isNotApplicable } from '../core/policy/types';
+import { buildSiteModel, slotOrders, walkPolyline, type SlotLine, type SlotOrder } from '../core/site/index';
 import type { ImproveMode, TourMethod } from '../core/tour/index';
 import type { BatchingName } from '../../shared/waves';
 
-export interface PlannerOrderLine {
-  sku: string;
-  qty: number;
-  bin: string;
-  unitKg: number;
-  unitLitres: number;
-}
+export type PlannerOrderLine = SlotLine;
 
-export interface PlannerOrder {
-  ref: string;
-  /** ISO 8601 or null. */
-  due: string | null;
-  priority: number | null;
+export interface PlannerOrder extends SlotOrder {
   lines: PlannerOrderLine[];
 }
 
@@ -36,6 +26,8 @@ export interface SiteSpeeds {
 
 export interface PlannerInput {
   geometry: PlanGeometry;
+  /** Open closures the stored graph was built with: while any is open the routing policies, and so the S-shape comparison, do not apply. */
+  closures?: PlanClosure[];
   graph: WalkGraph;
   index: DistanceIndex;
   orders: PlannerOrder[];
@@ -63,7 +55,7 @@ export interface PlannerOutput {
   trips: PlannedTripExtras[];
   depot: [number, number];
   estMinutes: number;
-  /** Orders that name a bin not on the plan (or unreachable), with the bins; they are left out. */
+  /** Orders with a bin not on the plan, off its walk graph or unreachable, with the reason (../core/site/slot.ts); they are left out. */
   unslotted: { order: string; reason: string }[];
 }
 
@@ -73,34 +65,10 @@ export function estimateMinutes(metres: number, lines: number, stops: number, s:
 }
 
 export function planWaveOnPlan(input: PlannerInput): PlannerOutput {
-  const { geometry, graph, index } = input;
-  const nodeOf = new Map<string, number>();
-  geometry.bins.forEach((b, i) => {
-    const node = graph.binNode[i]!;
-    if (node >= 0) nodeOf.set(b.code, node);
-  });
-  const depotNode = graph.depotNode[input.depotIdx];
-  if (depotNode === undefined) throw new RangeError(`the plan has no depot number ${input.depotIdx + 1}`);
-
-  const unslotted: PlannerOutput['unslotted'] = [];
-  const orders: Order[] = [];
-  for (const o of input.orders) {
-    const missing = o.lines.filter((l) => !nodeOf.has(l.bin)).map((l) => l.bin);
-    if (missing.length) {
-      unslotted.push({ order: o.ref, reason: `bin ${[...new Set(missing)].join(', ')} is not on floor plan or has no access point` });
-      continue;
-    }
-    orders.push({
-      ref: o.ref,
-      ...(o.due ? { due: Date.parse(o.due) } : {}),
-      ...(o.priority !== null ? { priority: o.priority } : {}),
-      lines: o.lines.map((l) => ({ sku: l.sku, qty: l.qty, node: nodeOf.get(l.bin)!, bin: l.bin, unitKg: l.unitKg, unitLitres: l.unitLitres })),
-    });
-  }
-
-  const depot = geometry.depots[input.depotIdx]!;
-  const policy = policyComparisonOf(geometry, graph, depot.code);
-  const policyLayout = isNotApplicable(policy) ? undefined : policy;
+  const model = buildSiteModel({ geometry: input.geometry, closures: input.closures ?? [], graph: input.graph, index: input.index, depotIdx: input.depotIdx });
+  const { depotNode, graph } = model;
+  const { orders, unslotted } = slotOrders(model, input.orders);
+  const layout = model.layout;
 
   const result = planWave({
     orders,
@@ -108,21 +76,22 @@ export function planWaveOnPlan(input: PlannerInput): PlannerOutput {
     batching: input.batching,
     routing: { method: input.method, improve: input.improve },
     depotNode,
-    distance: (a, b) => pairDistance(index, a, b),
-    ...(policyLayout ? { policyLayout } : {}),
+    distance: model.distance,
+    ...(isNotApplicable(layout) ? {} : { policyLayout: { layout, stopOf: model.stopOf } }),
     ...(input.timeLimitMs !== undefined ? { timeLimitMs: input.timeLimitMs } : {}),
     ...(input.progress ? { progress: input.progress } : {}),
   });
 
+  // Say why there is no S-shape figure, as the command line does.
+  if (isNotApplicable(layout)) result.totals.sShapeNote = `no S-shape figure: ${layout.reason}`;
+
   let estTotal = 0;
   const trips = result.trips.map((t) => {
-    const circuit = [depotNode, ...t.stops.map((s) => s.node)];
-    const poly = circuitPolyline(graph, circuit, true, index);
     const lines = t.stops.reduce((a, s) => a + s.lines.length, 0);
     const estMinutes = estimateMinutes(t.metres, lines, t.stops.length, input.speeds);
     estTotal += estMinutes;
     const stopXY = t.stops.flatMap((s) => [graph.x[s.node]!, graph.y[s.node]!]);
-    return { path: poly ? Array.from(poly) : [], estMinutes, lines, stopXY };
+    return { path: walkPolyline(model, t.stops.map((s) => s.node)), estMinutes, lines, stopXY };
   });
-  return { result, trips, depot: [graph.x[depotNode]!, graph.y[depotNode]!], estMinutes: estTotal, unslotted };
+  return { result, trips, depot: [graph.x[depotNode]!, graph.y[depotNode]!], estMinutes: estTotal, unslotted: unslotted.map((u) => ({ order: u.order, reason: u.reason })) };
 }

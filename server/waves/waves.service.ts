@@ -121,7 +121,7 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
     index: sets.index,
     input: {
       orders, cart: { totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, batching: body.batching, method: body.method, improve: body.improve,
-      depotIdx: body.depot, speeds: settingsOf(site), timeLimitMs: 20_000,
+      depotIdx: body.depot, speeds: settingsOf(site), timeLimitMs: 20_000, closures: plan.closures,
     },
   };
   const run = planQueue.then(async () => {

@@ -117,7 +117,7 @@ describe('studies', () => {
     let direct = 0;
     for (const orders of waves) {
       const r = planWave({
-        orders: orders.map((o) => ({ ref: o.ref, lines: o.lines.map((l) => ({ ...l, node: plan.nodeOfBin.get(l.bin)! })) })),
+        orders: orders.map((o) => ({ ref: o.ref, lines: o.lines.map((l) => ({ ...l, node: plan.binNode(l.bin)! })) })),
         cart: first.results.cart, batching: 'savings', depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), timeLimitMs: 60_000, clock: steppingClock(0.001),
       });
       direct += r.totals.metres;

@@ -90,7 +90,7 @@ describe('confirmedWalk on a plan where a closure cut off a confirmed stop', () 
     const [a, cut, c] = [geometry.bins[10]!, geometry.bins[700]!, geometry.bins[1500]!];
     const open = buildPlan({ geometry, closures: [], depotIdx: 0 });
     const closed = buildPlan({ geometry, closures: [{ kind: 'aisle', code: cut.aisle, from: cut.y - 0.4, to: cut.y + 0.4 }], depotIdx: 0 });
-    expect(closed.reachesDepot(closed.nodeOfBin.get(cut.code)!)).toBe(false);
+    expect(closed.reachesDepot(closed.binNode(cut.code)!)).toBe(false);
     const walked = confirmedWalk(closed, [[a.code], [cut.code], [c.code]]);
     expect(Number.isFinite(walked)).toBe(true);
     // The short closure lies away from a and c, so their circuit is the same on both plans.
