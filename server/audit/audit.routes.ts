@@ -13,7 +13,7 @@ export const auditRoutes = [
     query: AuditQuery, response: AuditPage,
     handler: ({ deps, siteId, query }) => {
       const { page, pageSize, ...filter } = query;
-      return auditPage(deps.db, { site: siteId! }, filter, page, pageSize);
+      return auditPage(deps.db, { site: siteId }, filter, page, pageSize);
     },
   }),
   defineRoute({
@@ -21,8 +21,8 @@ export const auditRoutes = [
     query: AuditExportQuery,
     handler: async ({ deps, siteId, query, res }) => {
       const { format, ...filter } = query;
-      const site = await deps.db('sites').where({ id: siteId! }).first<{ code: string } | undefined>('code');
-      return sendExport(res, exportTable(await auditTable(deps.db, { site: siteId! }, filter), format, `audit-log-${site?.code ?? siteId}-${stamp()}`));
+      const site = await deps.db('sites').where({ id: siteId }).first<{ code: string } | undefined>('code');
+      return sendExport(res, exportTable(await auditTable(deps.db, { site: siteId }, filter), format, `audit-log-${site?.code ?? siteId}-${stamp()}`));
     },
   }),
   defineRoute({

@@ -52,7 +52,7 @@ export const backupRoutes = [
     handler: async ({ deps, user }) => {
       if (!deps.backups) throw unavailable();
       try {
-        return toItem(await deps.backups.backupNow('admin', user!.id));
+        return toItem(await deps.backups.backupNow('admin', user.id));
       } catch (err) {
         throw new AppError('internal', 'backup_failed', `The backup failed: ${(err as Error).message}`);
       }

@@ -27,9 +27,9 @@ export const exportRoutes = [
       method: 'get', path: `/api/sites/:siteId/exports/${kind}`, access: SUPERVISE, summary: `Download the site's ${kind.replace('-', ' ')} as xlsx or CSV`,
       query: ExportQuery,
       handler: async ({ deps, siteId, query, res, user }) => {
-        const code = await siteCode(deps.db, siteId!);
-        const file = exportTable(await table(deps.db, siteId!), query.format, `${kind}-${code}-${stamp()}`);
-        await audit(deps.db, { siteId, userId: user!.id, action: 'export.downloaded', subject: kind, detail: { format: query.format } });
+        const code = await siteCode(deps.db, siteId);
+        const file = exportTable(await table(deps.db, siteId), query.format, `${kind}-${code}-${stamp()}`);
+        await audit(deps.db, { siteId, userId: user.id, action: 'export.downloaded', subject: kind, detail: { format: query.format } });
         return sendExport(res, file);
       },
     }),
@@ -37,9 +37,9 @@ export const exportRoutes = [
   defineRoute({
     method: 'get', path: '/api/sites/:siteId/exports/site-data', access: SUPERVISE, summary: 'Everything of the site as one workbook, a sheet per table (no secrets, no binary data)',
     handler: async ({ deps, siteId, res, user }) => {
-      const code = await siteCode(deps.db, siteId!);
-      const body = tablesToXlsx(await siteDataTables(deps.db, siteId!));
-      await audit(deps.db, { siteId, userId: user!.id, action: 'export.downloaded', subject: 'site-data', detail: { format: 'xlsx' } });
+      const code = await siteCode(deps.db, siteId);
+      const body = tablesToXlsx(await siteDataTables(deps.db, siteId));
+      await audit(deps.db, { siteId, userId: user.id, action: 'export.downloaded', subject: 'site-data', detail: { format: 'xlsx' } });
       return sendExport(res, { filename: `site-data-${code}-${stamp()}.xlsx`, contentType: XLSX_TYPE, body });
     },
   }),

@@ -1,13 +1,12 @@
 /** Floor-plan tables: one database operation per function, each taking `db` or a transaction. */
 import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type BetterSqlite3 from 'better-sqlite3';
 import { isPg } from '../db/dialect';
 import type { FloorPlanClosure, FloorPlanState, FloorPlanStats, FloorPlanSummary, GeneratePlanParams } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { SerializedSet } from './build';
-
-type Q = Knex | Knex.Transaction;
 
 export type DbPlanState = FloorPlanState | 'building';
 

@@ -17,7 +17,7 @@ export const tokenRoutes = [
   defineRoute({
     method: 'get', path: '/api/sites/:siteId/integration-tokens', access: ['admin'], summary: "A site's integration tokens (orders only)",
     response: z.array(IntegrationToken),
-    handler: async ({ deps, siteId }) => (await tokens(deps.db).where('t.site_id', siteId!).orderBy('t.id', 'desc')).map(toToken),
+    handler: async ({ deps, siteId }) => (await tokens(deps.db).where('t.site_id', siteId).orderBy('t.id', 'desc')).map(toToken),
   }),
   defineRoute({
     method: 'post', path: '/api/sites/:siteId/integration-tokens', access: ['admin'], summary: 'Create a token for the host system to push orders; shown once', status: 201,
@@ -25,10 +25,10 @@ export const tokenRoutes = [
     handler: async ({ deps, siteId, body, user }) => {
       const token = `awi_${randomBytes(32).toString('base64url')}`;
       const [{ id }] = await deps.db('integration_tokens').insert({
-        site_id: siteId!, name: body.name, token_hash: sha256(token), prefix: token.slice(0, 10), created_by: user!.id, created_at: new Date().toISOString(),
+        site_id: siteId, name: body.name, token_hash: sha256(token), prefix: token.slice(0, 10), created_by: user.id, created_at: new Date().toISOString(),
         expires_at: body.expiresAt ? new Date(body.expiresAt).toISOString() : null,
       }, 'id');
-      await audit(deps.db, { siteId, userId: user!.id, action: 'integration-token.created', subject: body.name, detail: { expiresAt: body.expiresAt ?? null } });
+      await audit(deps.db, { siteId, userId: user.id, action: 'integration-token.created', subject: body.name, detail: { expiresAt: body.expiresAt ?? null } });
       const row = (await tokens(deps.db).where('t.id', id!).first())!;
       return { ...toToken(row), token };
     },
@@ -37,9 +37,9 @@ export const tokenRoutes = [
     method: 'delete', path: '/api/sites/:siteId/integration-tokens/:id', access: ['admin'], summary: 'Revoke a token (refused from then on)',
     response: IntegrationToken,
     handler: async ({ deps, siteId, params, user }) => {
-      const n = await deps.db('integration_tokens').where({ id: Number(params.id), site_id: siteId! }).whereNull('revoked_at').update({ revoked_at: new Date().toISOString() });
+      const n = await deps.db('integration_tokens').where({ id: Number(params.id), site_id: siteId }).whereNull('revoked_at').update({ revoked_at: new Date().toISOString() });
       if (!n) throw notFound('Token');
-      await audit(deps.db, { siteId, userId: user!.id, action: 'integration-token.revoked', subject: params.id });
+      await audit(deps.db, { siteId, userId: user.id, action: 'integration-token.revoked', subject: params.id });
       return toToken((await tokens(deps.db).where('t.id', Number(params.id)).first())!);
     },
   }),

@@ -3,6 +3,7 @@
  * last shift), and the supervisor's actions on it: assign or reassign a trip, cancel the rest of a
  * trip (its open lines go back to open orders), close a wave, mark a short handled.
  */
+import type { Q } from '../db/knex';
 import type { Knex } from 'knex';
 import type { Board, BoardCutOffLine, BoardShort, BoardTrip, BoardWave } from '../../shared/picking';
 import { audit } from '../audit/audit';
@@ -12,7 +13,7 @@ import { getSiteRow, settingsOf } from '../sites/sites.repository';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { estimateMinutes } from '../waves/wave-planner';
 import { siteChanged } from './events';
-import { bumpRevision, depotNodeOf, distanceOf, finiteOrNull, pickerNode, splitStops, walkedStopIds, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow, type Q } from './picking.repository';
+import { bumpRevision, depotNodeOf, distanceOf, finiteOrNull, pickerNode, splitStops, walkedStopIds, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow } from './picking.repository';
 import { remainingMetres } from './route-math';
 import { canReach } from './reroute';
 import { walkedMetres } from './walked';

@@ -1,10 +1,8 @@
 /** Rows of the waves tables as picking reads them, and the trip as the tablet sees it. */
-import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { PickStop, PickTrip } from '../../shared/picking';
 import { circuitPolyline, pairDistance } from '../core/plan/distances';
 import { loadPlanIndex, type LoadedPlan } from '../floor-plans/plan-index';
-
-export type Q = Knex | Knex.Transaction;
 
 export interface DbTripRow {
   id: number;

@@ -3,6 +3,7 @@
  * transaction with its idempotency record and audit entry, so the answer is sent only after SQLite
  * has committed it (synchronous=FULL on every connection, server/db/knex.ts).
  */
+import type { Q } from '../db/knex';
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
@@ -28,7 +29,6 @@ import {
   stopsOf,
   type DbLineRow,
   type DbTripRow,
-  type Q,
   walkedStopIds,
 } from './picking.repository';
 import { groupCommit } from './group-commit';

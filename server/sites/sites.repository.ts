@@ -1,9 +1,7 @@
-import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { Role } from '../../shared/common';
 import type { CartProfile, Site, SiteSettings } from '../../shared/sites';
 import { isIanaTimeZone } from '../../shared/time-zone';
-
-type Q = Knex | Knex.Transaction;
 
 export interface DbSiteRow {
   id: number;
