@@ -4,7 +4,6 @@
  * trip map. Fixed paths (`active`, `jobs`) come before `:planId` so they are not read as ids.
  */
 import { z } from 'zod';
-import type { Response } from 'express';
 import type { Role } from '../../shared/common';
 import { Ok } from '../../shared/common';
 import {
@@ -24,6 +23,8 @@ import {
 } from '../../shared/floor-plans';
 import { AppError, notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
+import { openEventStream } from '../http/event-stream';
 import { defineRoute } from '../http/route';
 import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
@@ -34,18 +35,9 @@ const MANAGE: readonly Role[] = ['supervisor', 'admin'];
 const OFFICE: readonly Role[] = ['supervisor', 'admin', 'engineer'];
 const GENERATE: readonly Role[] = ['supervisor', 'admin', 'engineer'];
 
-const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 const base = '/api/sites/:siteId/floor-plans';
 
 const planIdOf = (params: { planId: string }) => pathId(params.planId, 'Floor plan');
-
-function sendFile(res: Response, bytes: Buffer | string, type: string, filename: string): undefined {
-  res.setHeader('Content-Type', type);
-  res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
-  res.setHeader('Cache-Control', 'no-store');
-  res.send(bytes);
-  return undefined;
-}
 
 function mustJob(siteId: number, id: string): FloorPlanJob {
   const job = getJob(siteId, id);
@@ -56,7 +48,7 @@ function mustJob(siteId: number, id: string): FloorPlanJob {
 export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: '/api/floor-plans/template', access: OFFICE, summary: 'The floor-plan workbook template (instructions sheet and a worked example)',
-    handler: ({ res }) => sendFile(res, buildFloorPlanTemplate(), XLSX_TYPE, 'aislewright-floor-plan-template.xlsx'),
+    handler: ({ res }) => sendAttachment(res, buildFloorPlanTemplate(), XLSX_TYPE, 'aislewright-floor-plan-template.xlsx'),
   }),
   defineRoute({
     method: 'get', path: base, access: OFFICE, summary: "The site's floor plans, newest version first",
@@ -94,20 +86,19 @@ export const floorPlanRoutes = [
     method: 'get', path: `${base}/jobs/:jobId/events`, access: OFFICE, summary: 'A build job as server-sent events (`progress` on every change, `end` once)',
     handler: ({ req, res, siteId, params }) => {
       const job = mustJob(siteId, params.jobId);
-      res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive' });
-      const send = (event: string, data: FloorPlanJob) => res.write(`event: ${event}\ndata: ${JSON.stringify(data)}\n\n`);
-      send('progress', job);
+      const stream = openEventStream(req, res);
+      stream.send('progress', job);
       if (job.finishedAt) {
-        send('end', job);
-        res.end();
+        stream.send('end', job);
+        stream.end();
         return undefined;
       }
-      const stop = watchJob(siteId, job.id, (j) => send('progress', j), (j) => {
-        send('end', j);
+      const stop = watchJob(siteId, job.id, (j) => stream.send('progress', j), (j) => {
+        stream.send('end', j);
         stop?.();
-        res.end();
+        stream.end();
       });
-      req.on('close', () => stop?.());
+      stream.onClose(() => stop?.());
       return undefined;
     },
   }),
@@ -118,8 +109,8 @@ export const floorPlanRoutes = [
       const job = mustJob(siteId, params.jobId);
       if (job.status !== 'invalid') throw new AppError('conflict', 'no_errors', 'This job has no error table');
       return query.format === 'csv'
-        ? sendFile(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
-        : sendFile(res, rowIssuesToXlsx(job.errors), XLSX_TYPE, 'floor-plan-errors.xlsx');
+        ? sendAttachment(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
+        : sendAttachment(res, rowIssuesToXlsx(job.errors), XLSX_TYPE, 'floor-plan-errors.xlsx');
     },
   }),
   defineRoute({
@@ -164,8 +155,8 @@ export const floorPlanRoutes = [
       const check = await service.activationCheckFull(deps.db, siteId, planIdOf(params));
       const name = `skus-without-bin-v${check.plan.version}`;
       return query.format === 'csv'
-        ? sendFile(res, skusWithoutBinCsv(check.allSkusWithoutBin), 'text/csv; charset=utf-8', `${name}.csv`)
-        : sendFile(res, skusWithoutBinXlsx(check.allSkusWithoutBin), XLSX_TYPE, `${name}.xlsx`);
+        ? sendAttachment(res, skusWithoutBinCsv(check.allSkusWithoutBin), 'text/csv; charset=utf-8', `${name}.csv`)
+        : sendAttachment(res, skusWithoutBinXlsx(check.allSkusWithoutBin), XLSX_TYPE, `${name}.xlsx`);
     },
   }),
   defineRoute({

@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { OutboxMessage } from '../../shared/sites';
 import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
+import { sendAttachment } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import { getOutboxAttachment, getOutboxMessage, listOutbox } from './mailer';
 
@@ -21,10 +22,7 @@ export const mailRoutes = [
     handler: async ({ deps, params, res }) => {
       const a = await getOutboxAttachment(deps.db, pathId(params.id, 'Message'), pathId(params.index, 'Attachment', 0));
       if (!a) throw notFound('Attachment');
-      res.setHeader('Content-Type', a.contentType);
-      res.setHeader('Content-Disposition', `attachment; filename="${a.filename.replace(/[^\w.-]/g, '_')}"`);
-      res.send(a.content);
-      return undefined;
+      return sendAttachment(res, a.content, a.contentType, a.filename);
     },
   }),
 ];

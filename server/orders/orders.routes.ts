@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { CancelOrderBody, ImportResult, OrderDetail, OrdersPage, OrdersQuery, PushOrdersBody, Sku } from '../../shared/orders';
 import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import { orderDetail, pageOrders, skuMap } from './orders.repository';
 import { cancelOrder, importOrderRows, importSkus, pushOrders } from './orders.service';
@@ -25,12 +26,7 @@ async function importUpload(req: Request, which: 'skus' | 'orders', save: (rows:
   return 'issues' in read ? failed(read.issues) : save(read.rows);
 }
 
-const sendXlsx = (res: Response, name: string, bytes: Buffer) => {
-  res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
-  res.setHeader('Content-Disposition', `attachment; filename="${name}"`);
-  res.send(bytes);
-  return undefined;
-};
+const sendXlsx = (res: Response, name: string, bytes: Buffer) => sendAttachment(res, bytes, XLSX_TYPE, name);
 
 export const orderRoutes = [
   defineRoute({

@@ -31,8 +31,10 @@ import {
   UndoBody,
 } from '../../shared/picking';
 import { loadPlanIndex } from '../floor-plans/plan-index';
-import { AppError, notFound } from '../http/errors';
+import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
+import { openEventStream, requireEventStream } from '../http/event-stream';
 import { defineRoute, type Access, type RouteContext } from '../http/route';
 import type { SessionUser } from '../http/session';
 import * as board from './board.service';
@@ -42,7 +44,6 @@ import { buildWaveReport } from './report';
 
 const PICKER: readonly Role[] = ['picker'];
 const SUPERVISE: readonly Role[] = ['supervisor', 'admin'];
-const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
 function actorOf(user: SessionUser, req: Request): picking.Actor {
   const device = (req.get(DEVICE_HEADER) ?? req.get('user-agent') ?? '').slice(0, 200) || null;
@@ -142,19 +143,14 @@ export const pickingRoutes = [
   defineRoute({
     method: 'get', path: `${siteBoard}/events`, access: SUPERVISE, summary: 'Live board as server-sent events: `board` with the whole snapshot after each change (one snapshot per site shared by all its streams); 429 too_many_board_streams beyond 5 open streams per person',
     handler: ({ req, res, deps, siteId, user }) => {
-      const site = siteId;
       // Only an event stream client may open the endless stream (EventSource always sends this).
-      if (!(req.get('accept') ?? '').includes('text/event-stream')) {
-        throw new AppError('validation', 'event_stream_only', 'Open this with an EventSource (Accept: text/event-stream)', [{ field: 'Accept', message: 'must accept text/event-stream' }]);
-      }
+      requireEventStream(req);
       // Refused (429) before the response starts when this person holds too many streams.
       deps.boardStreams.checkCap(user.id);
-      res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
-      // The browser's EventSource reconnects by itself; this says after how long.
-      res.write('retry: 3000\n\n');
+      // The browser's EventSource reconnects by itself; retry says after how long.
+      const stream = openEventStream(req, res, { retryMs: 3000 });
       // One snapshot per change per site is built by the app's hub and written to every stream.
-      const stop = deps.boardStreams.open(site, user.id, res);
-      req.on('close', stop);
+      stream.onClose(deps.boardStreams.open(siteId, user.id, res));
       return undefined;
     },
   }),
@@ -197,11 +193,7 @@ export const pickingRoutes = [
       const wave = await getWaveRow(deps.db, waveId);
       if (!wave || wave.site_id !== siteId) throw notFound('Wave');
       const report = await buildWaveReport(deps.db, waveId);
-      res.setHeader('Content-Type', XLSX_TYPE);
-      res.setHeader('Content-Disposition', `attachment; filename="${report.filename}"`);
-      res.setHeader('Cache-Control', 'no-store');
-      res.send(report.xlsx);
-      return undefined;
+      return sendAttachment(res, report.xlsx, XLSX_TYPE, report.filename);
     },
   }),
 ];

@@ -10,6 +10,7 @@ import {
 } from '../../shared/slotting';
 import { AppError } from '../http/errors';
 import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import { skuRowsOf } from './slotting.repository';
 import { applyRun, cancelRun, createRun, getRun, listRuns, uploadHistory } from './slotting.service';
@@ -20,7 +21,6 @@ const RUN_ROLES = ['engineer', 'supervisor'] as const;
 const APPLY_ROLES = ['supervisor', 'admin'] as const;
 const base = '/api/sites/:siteId/slotting';
 const idOf = (params: { id: string }) => pathId(params.id, 'Slotting run');
-const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
 const fileOf = (req: Request) => {
   if (!req.file) throw new AppError('validation', 'validation_failed', 'Attach the file in the field "file"', [{ field: 'file', message: 'missing' }]);
@@ -63,10 +63,7 @@ export const slottingRoutes = [
     handler: async ({ deps, siteId, params, res }) => {
       const run = await getRun(deps, siteId, idOf(params));
       if (!run.results) throw new AppError('conflict', 'run_not_done', 'This run has no results yet');
-      res.setHeader('Content-Type', XLSX_TYPE);
-      res.setHeader('Content-Disposition', `attachment; filename="slotting-${run.id}-moves.xlsx"`);
-      res.send(moveListWorkbook(run.results.moves));
-      return undefined;
+      return sendAttachment(res, moveListWorkbook(run.results.moves), XLSX_TYPE, `slotting-${run.id}-moves.xlsx`);
     },
   }),
   defineRoute({
@@ -77,10 +74,7 @@ export const slottingRoutes = [
       const rows = await skuRowsOf(deps.db, siteId);
       const moved = new Map(run.results.moves.map((m) => [m.sku, m.toBin]));
       const records = rows.map((r) => ({ sku: r.sku, description: r.description, bin: r.bin, unitWeightKg: r.unit_weight_kg, unitVolumeL: r.unit_volume_l }));
-      res.setHeader('Content-Type', XLSX_TYPE);
-      res.setHeader('Content-Disposition', `attachment; filename="slotting-${run.id}-skus.xlsx"`);
-      res.send(newSkuMasterWorkbook(records, moved));
-      return undefined;
+      return sendAttachment(res, newSkuMasterWorkbook(records, moved), XLSX_TYPE, `slotting-${run.id}-skus.xlsx`);
     },
   }),
 ];

@@ -3,6 +3,7 @@ import { PlanGeometry } from '../../shared/floor-plans';
 import { Ok } from '../../shared/common';
 import { StudyDetail, StudyInputs, StudyRoute, StudyRouteQuery, StudySummary } from '../../shared/studies';
 import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import { studyWorkbook } from './export';
 import { siteTimeZone } from '../sites/sites.repository';
@@ -63,10 +64,7 @@ export const studyRoutes = [
     method: 'get', path: `${base}/:id/export.xlsx`, access: STUDY_ROLES, summary: 'The study as a workbook: inputs, then one sheet per table',
     handler: async ({ deps, siteId, params, res }) => {
       const study = await doneStudy(deps.db, siteId, idOf(params));
-      res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
-      res.setHeader('Content-Disposition', `attachment; filename="study-${study.id}.xlsx"`);
-      res.send(studyWorkbook(study, await siteTimeZone(deps.db, siteId)));
-      return undefined;
+      return sendAttachment(res, studyWorkbook(study, await siteTimeZone(deps.db, siteId)), XLSX_TYPE, `study-${study.id}.xlsx`);
     },
   }),
 ];

@@ -1,4 +1,3 @@
-import type { Knex } from 'knex';
 import type { Q } from '../db/knex';
 import type { Role } from '../../shared/common';
 import type { UserRow } from '../../shared/users';
