@@ -11,7 +11,7 @@ import { AppError } from '../http/errors';
 import type { Request, Response } from 'express';
 import type { ImportResult as ImportResultT } from '../../shared/orders';
 import type { InputRow } from './orders.validate';
-import { missingBinsOnActivePlan } from './bins';
+import { missingBinsOnActivePlan } from '../floor-plans/floor-plans.repository';
 
 const uploaded = (req: Request) => {
   const file = req.file;
