@@ -2,17 +2,17 @@ import type { Role } from '../../shared/common';
 import { ExportQuery } from '../../shared/data-safety';
 import { audit } from '../audit/audit';
 import { notFound } from '../http/errors';
+import type { Q } from '../db/knex';
 import { defineRoute } from '../http/route';
+import { siteCodeOf } from '../sites/sites.repository';
 import { ordersTable, pickLinesTable, siteDataTables, usersTable } from './site-exports';
 import { exportTable, sendExport, tablesToXlsx, XLSX_TYPE } from './table-export';
 
 const SUPERVISE: readonly Role[] = ['admin', 'supervisor'];
 const stamp = () => new Date().toISOString().slice(0, 10);
 
-async function siteCode(db: Parameters<typeof ordersTable>[0], siteId: number): Promise<string> {
-  const s = await db('sites').where({ id: siteId }).first<{ code: string } | undefined>('code');
-  if (!s) throw notFound('Site');
-  return s.code;
+async function siteCode(db: Q, siteId: number): Promise<string> {
+  return (await siteCodeOf(db, siteId)) ?? Promise.reject(notFound('Site'));
 }
 
 const KINDS = {

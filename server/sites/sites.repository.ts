@@ -61,6 +61,11 @@ export async function getSite(db: Q, id: number): Promise<Site | null> {
   return { id: s.id, code: s.code, name: s.name, timezone: s.timezone, settings: settingsOf(s), cartProfiles: await cartProfilesOf(db, id) };
 }
 
+/** The site's short code (file names of downloads), or undefined for no such site. */
+export async function siteCodeOf(db: Q, siteId: number): Promise<string | undefined> {
+  return (await db('sites').where({ id: siteId }).first<{ code: string } | undefined>('code'))?.code;
+}
+
 /** Sites a user may work in: their own; admins see every site. */
 export async function listSitesOf(db: Q, userId: number, role: Role): Promise<DbSiteRow[]> {
   if (role === 'admin') return db<DbSiteRow>('sites').orderBy('name');
