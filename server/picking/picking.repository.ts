@@ -1,6 +1,6 @@
 /** Rows of the waves tables as picking reads them, and the trip as the tablet sees it. */
 import type { Q } from '../db/knex';
-import type { PickStop, PickTrip } from '../../shared/picking';
+import type { BoardShort, PickStop, PickTrip } from '../../shared/picking';
 import { circuitPolyline, pairDistance } from '../core/plan/distances';
 import { loadPlanIndex, type LoadedPlan } from '../floor-plans/plan-index';
 
@@ -221,4 +221,129 @@ export async function bumpRevision(db: Q, tripId: number): Promise<number> {
 
 export function lineView(l: DbLineRow) {
   return { id: l.id, orderRef: l.order_ref, sku: l.sku, description: l.description, bin: l.bin, qty: l.qty, tote: l.tote, status: l.status, pickedQty: l.picked_qty, shortReason: l.short_reason };
+}
+
+/* ---- The live board and the supervisor's actions on it ---- */
+
+/** Waves on the site's board: released or picking, and those finished since `since`. */
+export async function boardWaveRows(db: Q, siteId: number, since: string): Promise<DbWaveRow[]> {
+  return db<DbWaveRow>('waves')
+    .where({ site_id: siteId })
+    .andWhere((q) => q.whereIn('status', ['released', 'picking']).orWhere((q2) => q2.whereIn('status', ['completed', 'cancelled']).andWhere('completed_at', '>=', since)))
+    .orderBy('created_at');
+}
+
+export type BoardLineRow = Pick<DbLineRow, 'id' | 'trip_id' | 'stop_id' | 'status' | 'short_reason' | 'order_ref' | 'sku' | 'bin' | 'qty'>;
+
+/** The trips of these waves (with the picker's name), their stops and their lines. */
+export async function boardTripRows(db: Q, waveIds: number[]): Promise<{ trips: (DbTripRow & { picker_name: string | null })[]; stops: DbStopRow[]; lines: BoardLineRow[] }> {
+  const trips: (DbTripRow & { picker_name: string | null })[] = waveIds.length
+    ? await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').whereIn('trips.wave_id', waveIds).orderBy(['trips.wave_id', 'trips.n']).select('trips.*', 'users.name as picker_name')
+    : [];
+  const tripIds = trips.map((t) => t.id);
+  const stops: DbStopRow[] = tripIds.length ? await db<DbStopRow>('stops').whereIn('trip_id', tripIds) : [];
+  const lines: BoardLineRow[] = tripIds.length
+    ? await db('pick_lines').whereIn('trip_id', tripIds).select('id', 'trip_id', 'stop_id', 'status', 'short_reason', 'order_ref', 'sku', 'bin', 'qty')
+    : [];
+  return { trips, stops, lines };
+}
+
+/** Shorts of the site nobody has handled yet, oldest first. */
+export async function unhandledShorts(db: Q, siteId: number): Promise<BoardShort[]> {
+  const rows: (BoardShort & { line_status: string })[] = await db('pick_shorts')
+    .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
+    .join('trips', 'trips.id', 'pick_shorts.trip_id')
+    .join('waves', 'waves.id', 'pick_shorts.wave_id')
+    .leftJoin('users', 'users.id', 'pick_shorts.reported_by')
+    .where('pick_shorts.site_id', siteId)
+    .whereNull('pick_shorts.handled_at')
+    .orderBy('pick_shorts.reported_at')
+    .select({
+      id: 'pick_shorts.id',
+      waveId: 'waves.id',
+      waveName: 'waves.name',
+      tripId: 'trips.id',
+      tripN: 'trips.n',
+      orderRef: 'pick_lines.order_ref',
+      sku: 'pick_lines.sku',
+      description: 'pick_lines.description',
+      bin: 'pick_lines.bin',
+      qtyOrdered: 'pick_shorts.qty_ordered',
+      qtyFound: 'pick_shorts.qty_found',
+      reason: 'pick_shorts.reason',
+      reportedBy: 'users.name',
+      reportedAt: 'pick_shorts.reported_at',
+      line_status: 'pick_lines.status',
+    });
+  return rows.map(({ line_status: _s, ...s }) => s);
+}
+
+/** The site's active pickers by name, and the trip each holds (assigned or picking). */
+export async function sitePickersWithTrip(db: Q, siteId: number): Promise<{ id: number; name: string; tripId: number | null }[]> {
+  const pickerRows: { id: number; name: string }[] = await db('users')
+    .join('user_sites', 'user_sites.user_id', 'users.id')
+    .where({ 'user_sites.site_id': siteId, 'users.role': 'picker', 'users.active': true })
+    .orderBy('users.name')
+    .select('users.id', 'users.name');
+  const busy = await db('trips').where({ site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNotNull('picker_id').select<{ id: number; picker_id: number }[]>('id', 'picker_id');
+  const busyBy = new Map(busy.map((b) => [b.picker_id, b.id]));
+  return pickerRows.map((p) => ({ id: p.id, name: p.name, tripId: busyBy.get(p.id) ?? null }));
+}
+
+export const getSiteTripRow = (db: Q, siteId: number, tripId: number): Promise<DbTripRow | undefined> => db<DbTripRow>('trips').where({ id: tripId, site_id: siteId }).first();
+export const getSiteWaveRow = (db: Q, siteId: number, waveId: number): Promise<DbWaveRow | undefined> => db<DbWaveRow>('waves').where({ id: waveId, site_id: siteId }).first();
+
+/** An active picker of the site, or undefined. */
+export async function activeSitePicker(db: Q, siteId: number, pickerId: number): Promise<{ id: number; name: string } | undefined> {
+  return db('users').join('user_sites', 'user_sites.user_id', 'users.id').where({ 'users.id': pickerId, 'users.role': 'picker', 'users.active': true, 'user_sites.site_id': siteId }).first<{ id: number; name: string } | undefined>('users.id', 'users.name');
+}
+
+/** Another trip of the site the picker holds (assigned or picking), if any. */
+export async function otherActiveTripOf(db: Q, siteId: number, pickerId: number, tripId: number): Promise<{ id: number; n: number } | undefined> {
+  return db('trips').where({ picker_id: pickerId, site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNot({ id: tripId }).first<{ id: number; n: number } | undefined>('id', 'n');
+}
+
+/** Gives the trip to `pickerId`: the former picker's assignment ends, a new one starts. */
+export async function reassignTripRow(db: Q, trip: Pick<DbTripRow, 'id' | 'picker_id' | 'started_at'>, pickerId: number, assignedBy: number, at: string): Promise<void> {
+  if (trip.picker_id !== null) await db('trip_assignments').where({ trip_id: trip.id, picker_id: trip.picker_id }).whereNull('ended_at').update({ ended_at: at });
+  await db('trip_assignments').insert({ trip_id: trip.id, picker_id: pickerId, assigned_by: assignedBy, assigned_at: at });
+  await db('trips').where({ id: trip.id }).update({ picker_id: pickerId, status: trip.started_at ? 'picking' : 'assigned', assigned_at: at });
+}
+
+/** Cancels the trip's open lines and returns them. */
+export async function cancelOpenLines(db: Q, tripId: number): Promise<DbLineRow[]> {
+  const open: DbLineRow[] = await db<DbLineRow>('pick_lines').where({ trip_id: tripId, status: 'open' });
+  await db('pick_lines').where({ trip_id: tripId, status: 'open' }).update({ status: 'cancelled' });
+  return open;
+}
+
+/** These orders go back to the open pool; returns their refs, sorted. */
+export async function reopenOrders(db: Q, orderIds: number[]): Promise<string[]> {
+  if (!orderIds.length) return [];
+  const refs: { ref: string }[] = await db('orders').whereIn('id', orderIds).orderBy('ref').select('ref');
+  await db('orders').whereIn('id', orderIds).update({ status: 'open', wave_id: null });
+  return refs.map((r) => r.ref);
+}
+
+/** Marks the trip cancelled with what was walked, and ends its open assignment. */
+export async function closeTripCancelled(db: Q, trip: Pick<DbTripRow, 'id' | 'finished_at'>, walked: number | null, at: string): Promise<void> {
+  await db('trips').where({ id: trip.id }).update({ status: 'cancelled', cancelled_at: at, finished_at: trip.finished_at ?? at, walked_metres: walked });
+}
+
+export async function endOpenAssignments(db: Q, tripId: number, at: string): Promise<void> {
+  await db('trip_assignments').where({ trip_id: tripId }).whereNull('ended_at').update({ ended_at: at });
+}
+
+export const unfinishedTripsOf = (db: Q, waveId: number): Promise<DbTripRow[]> => db<DbTripRow>('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']);
+
+export async function completeWaveRow(db: Q, waveId: number, at: string): Promise<void> {
+  await db('waves').where({ id: waveId }).update({ status: 'completed', completed_at: at });
+}
+
+export async function getSiteShort(db: Q, siteId: number, shortId: number): Promise<{ id: number; handled_at: string | null; line_id: number } | undefined> {
+  return db('pick_shorts').where({ id: shortId, site_id: siteId }).first<{ id: number; handled_at: string | null; line_id: number } | undefined>('id', 'handled_at', 'line_id');
+}
+
+export async function markShortHandled(db: Q, shortId: number, userId: number, at: string): Promise<void> {
+  await db('pick_shorts').where({ id: shortId }).update({ handled_at: at, handled_by: userId });
 }
