@@ -347,3 +347,126 @@ export async function getSiteShort(db: Q, siteId: number, shortId: number): Prom
 export async function markShortHandled(db: Q, shortId: number, userId: number, at: string): Promise<void> {
   await db('pick_shorts').where({ id: shortId }).update({ handled_at: at, handled_by: userId });
 }
+
+/* ---- The picker's tablet ---- */
+
+/** When the picker's latest ended assignment of this trip ended (reassigned away), if any. */
+export async function formerAssignmentEnd(db: Q, tripId: number, pickerId: number): Promise<string | null> {
+  const r = await db('trip_assignments').where({ trip_id: tripId, picker_id: pickerId }).whereNotNull('ended_at').orderBy('ended_at', 'desc').first<{ ended_at: string } | undefined>('ended_at');
+  return r?.ended_at ?? null;
+}
+
+/** The picker's trip at the site (assigned or picking), earliest assigned first. */
+export const activeTripOf = (db: Q, pickerId: number, siteId: number): Promise<DbTripRow | undefined> =>
+  db<DbTripRow>('trips').where({ picker_id: pickerId, site_id: siteId }).whereIn('status', ACTIVE_TRIP).orderBy('assigned_at').first();
+
+/** Released trips of live waves at the site that nobody holds. */
+export async function releasedTripCount(db: Q, siteId: number): Promise<number> {
+  const r = await db('trips').join('waves', 'waves.id', 'trips.wave_id').where({ 'trips.site_id': siteId, 'trips.status': 'released' }).whereIn('waves.status', ['released', 'picking']).whereNull('trips.picker_id').count<{ n: number }[]>({ n: '*' });
+  return Number(r[0]!.n);
+}
+
+/** The next trip to take: oldest due first (no due date last), then the older wave, then trip number. */
+export async function nextReleasedTripId(db: Q, siteId: number): Promise<number | undefined> {
+  const next = await db('trips')
+    .join('waves', 'waves.id', 'trips.wave_id')
+    .where({ 'trips.site_id': siteId, 'trips.status': 'released' })
+    .whereNull('trips.picker_id')
+    .whereIn('waves.status', ['released', 'picking'])
+    .orderByRaw('trips.due IS NULL, trips.due ASC, waves.created_at ASC, waves.id ASC, trips.n ASC')
+    .first<{ id: number } | undefined>('trips.id');
+  return next?.id;
+}
+
+/** Claims a released trip nobody holds for the picker: one conditional UPDATE; false when another picker was first. */
+export async function claimTrip(db: Q, tripId: number, pickerId: number, at: string): Promise<boolean> {
+  const claimed = await db('trips').where({ id: tripId, status: 'released' }).whereNull('picker_id').update({ status: 'assigned', picker_id: pickerId, assigned_at: at });
+  if (claimed !== 1) return false;
+  await db('trip_assignments').insert({ trip_id: tripId, picker_id: pickerId, assigned_by: pickerId, assigned_at: at });
+  return true;
+}
+
+/** The tote numbers of a trip, ascending. */
+export async function totesOfTrip(db: Q, tripId: number): Promise<number[]> {
+  return (await db('pick_lines').where({ trip_id: tripId }).distinct('tote').orderBy('tote')).map((r: { tote: number }) => r.tote);
+}
+
+export async function setCartReady(db: Q, tripId: number, at: string): Promise<void> {
+  await db('trips').where({ id: tripId }).update({ cart_ready_at: at });
+}
+
+/** The trip, its wave and its orders move to picking (started at `at`). */
+export async function markTripStarted(db: Q, trip: Pick<DbTripRow, 'id' | 'wave_id'>, at: string): Promise<void> {
+  await db('trips').where({ id: trip.id }).update({ status: 'picking', started_at: at });
+  await db('waves').where({ id: trip.wave_id, status: 'released' }).update({ status: 'picking' });
+  const orderIds = db('trip_orders').where({ trip_id: trip.id }).select('order_id');
+  await db('orders').whereIn('id', orderIds).where({ status: 'planned' }).update({ status: 'picking' });
+}
+
+/** The trip is done with what was walked; its orders are done. */
+export async function markTripDone(db: Q, tripId: number, walked: number | null, at: string): Promise<void> {
+  await db('trips').where({ id: tripId }).update({ status: 'done', finished_at: at, walked_metres: walked });
+  const orderIds = db('trip_orders').where({ trip_id: tripId }).select('order_id');
+  await db('orders').whereIn('id', orderIds).whereIn('status', ['planned', 'picking']).update({ status: 'done' });
+}
+
+export async function storedRequest(db: Q, userId: number, key: string): Promise<{ request_hash: string; response: string } | undefined> {
+  return db('pick_requests').where({ user_id: userId, idem_key: key }).first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
+}
+
+export async function storeRequest(db: Q, row: { user_id: number; idem_key: string; request_hash: string; trip_id: number; status: number; response: string; created_at: string }): Promise<void> {
+  await db('pick_requests').insert(row);
+}
+
+export const getLineRow = (db: Q, lineId: number): Promise<DbLineRow | undefined> => db<DbLineRow>('pick_lines').where({ id: lineId }).first();
+export const getLineOfTrip = (db: Q, tripId: number, lineId: number): Promise<DbLineRow | undefined> => db<DbLineRow>('pick_lines').where({ id: lineId, trip_id: tripId }).first();
+
+export async function userNameOf(db: Q, userId: number): Promise<string | undefined> {
+  return (await db('users').where({ id: userId }).first<{ name: string } | undefined>('name'))?.name;
+}
+
+export async function stopNumber(db: Q, stopId: number): Promise<number> {
+  return (await db('stops').where({ id: stopId }).first<{ n: number }>('n'))!.n;
+}
+
+/** The latest tablet time of a picked line of the trip other than `lineId`. */
+export async function lastTabletPick(db: Q, tripId: number, lineId: number): Promise<string | null> {
+  const last = await db('pick_lines').where({ trip_id: tripId, status: 'picked' }).whereNot({ id: lineId }).max<{ m: string | null }[]>({ m: 'tablet_at' });
+  return last[0]?.m ?? null;
+}
+
+/** Open lines of the trip (of one stop when given). */
+export async function openLineCount(db: Q, tripId: number, stopId?: number): Promise<number> {
+  // trip_id first: the (trip_id, stop_id) index serves this; stop_id alone would scan every line.
+  const open = await db('pick_lines').where({ trip_id: tripId, ...(stopId !== undefined && { stop_id: stopId }), status: 'open' }).count<{ n: number }[]>({ n: '*' });
+  return Number(open[0]!.n);
+}
+
+/** Marks an open stop done, numbered after the trip's last done stop. */
+export async function markStopDone(db: Q, tripId: number, stopId: number, at: string): Promise<void> {
+  const seq = await db('stops').where({ trip_id: tripId }).max<{ m: number | null }[]>({ m: 'done_seq' });
+  await db('stops').where({ id: stopId, status: 'open' }).update({ status: 'done', done_at: at, done_seq: (seq[0]!.m ?? 0) + 1 });
+}
+
+export async function confirmScanOf(db: Q, siteId: number): Promise<'bin' | 'sku'> {
+  return (await db('sites').where({ id: siteId }).first<{ confirm_scan: 'bin' | 'sku' }>('confirm_scan'))!.confirm_scan;
+}
+
+export async function settleOpenLine(db: Q, lineId: number, outcome: Record<string, unknown>): Promise<void> {
+  await db('pick_lines').where({ id: lineId, status: 'open' }).update(outcome);
+}
+
+export async function insertShort(db: Q, row: { site_id: number; wave_id: number; trip_id: number; line_id: number; qty_ordered: number; qty_found: number; reason: string; reported_by: number; reported_at: string }): Promise<void> {
+  await db('pick_shorts').insert(row);
+}
+
+export async function markStopSkipped(db: Q, stopId: number, at: string): Promise<void> {
+  await db('stops').where({ id: stopId }).update({ skipped_at: at });
+}
+
+/** The line goes back to open (its short report removed) and its stop with it. */
+export async function reopenLineRow(db: Q, line: Pick<DbLineRow, 'id' | 'stop_id'>): Promise<void> {
+  await db('pick_lines').where({ id: line.id }).update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
+  await db('pick_shorts').where({ line_id: line.id }).del();
+  await db('stops').where({ id: line.stop_id }).update({ status: 'open', done_at: null, done_seq: null });
+}
