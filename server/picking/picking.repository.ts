@@ -470,3 +470,34 @@ export async function reopenLineRow(db: Q, line: Pick<DbLineRow, 'id' | 'stop_id
   await db('pick_shorts').where({ line_id: line.id }).del();
   await db('stops').where({ id: line.stop_id }).update({ status: 'open', done_at: null, done_seq: null });
 }
+
+/* ---- Signed-in pickers and automatic assignment ---- */
+
+/** Active pickers of the site with a live session started after `sinceS` (Unix seconds), by name; the latest sign-in each. */
+export async function signedInPickerRows(db: Q, siteId: number, sinceS: number): Promise<{ id: number; name: string; badge: string | null; signed_in_at: string }[]> {
+  return db('sessions')
+    .join('users', 'users.id', 'sessions.user_id')
+    .join('user_sites', 'user_sites.user_id', 'users.id')
+    .where({ 'users.role': 'picker', 'users.active': true, 'user_sites.site_id': siteId })
+    .whereNull('sessions.revoked_at')
+    .where('sessions.auth_time', '>=', sinceS)
+    .groupBy('users.id', 'users.name', 'users.badge')
+    .orderBy('users.name')
+    .select('users.id', 'users.name', 'users.badge')
+    .max({ signed_in_at: 'sessions.created_at' });
+}
+
+/** The trips of the site these pickers hold (assigned or picking). */
+export async function heldTripsOf(db: Q, siteId: number, pickerIds: number[]): Promise<{ id: number; n: number; wave_id: number; picker_id: number }[]> {
+  return db('trips').where({ site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereIn('picker_id', pickerIds).select('id', 'n', 'wave_id', 'picker_id');
+}
+
+/** When each picker last finished or dropped a trip (ISO), '' when never. */
+export async function lastFreedAt(db: Q, pickerIds: number[]): Promise<Map<number, string>> {
+  const rows: { picker_id: number; at: string | null }[] = await db('trips').whereIn('picker_id', pickerIds).groupBy('picker_id').select('picker_id').max({ at: 'finished_at' });
+  return new Map(rows.map((r) => [r.picker_id, r.at ?? '']));
+}
+
+/** The wave's released trips nobody holds, by trip number. */
+export const waitingTripsOf = (db: Q, waveId: number): Promise<{ id: number; n: number }[]> =>
+  db('trips').where({ wave_id: waveId, status: 'released' }).whereNull('picker_id').orderBy('n').select('id', 'n');
