@@ -2,6 +2,7 @@ import { AllAuditExportQuery, AllAuditQuery, AuditExportQuery, AuditPage, AuditQ
 import type { Role } from '../../shared/common';
 import { exportTable, sendExport } from '../exports/table-export';
 import { defineRoute } from '../http/route';
+import { siteCodeOf } from '../sites/sites.repository';
 import { auditPage, auditTable } from './audit-log.repository';
 
 const SUPERVISE: readonly Role[] = ['admin', 'supervisor'];
@@ -13,7 +14,7 @@ export const auditRoutes = [
     query: AuditQuery, response: AuditPage,
     handler: ({ deps, siteId, query }) => {
       const { page, pageSize, ...filter } = query;
-      return auditPage(deps.db, { site: siteId! }, filter, page, pageSize);
+      return auditPage(deps.db, { site: siteId }, filter, page, pageSize);
     },
   }),
   defineRoute({
@@ -21,8 +22,8 @@ export const auditRoutes = [
     query: AuditExportQuery,
     handler: async ({ deps, siteId, query, res }) => {
       const { format, ...filter } = query;
-      const site = await deps.db('sites').where({ id: siteId! }).first<{ code: string } | undefined>('code');
-      return sendExport(res, exportTable(await auditTable(deps.db, { site: siteId! }, filter), format, `audit-log-${site?.code ?? siteId}-${stamp()}`));
+      const code = (await siteCodeOf(deps.db, siteId)) ?? siteId;
+      return sendExport(res, exportTable(await auditTable(deps.db, { site: siteId }, filter), format, `audit-log-${code}-${stamp()}`));
     },
   }),
   defineRoute({

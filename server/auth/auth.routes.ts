@@ -57,8 +57,8 @@ export const authRoutes = [
     method: 'post', path: '/api/auth/sign-out-everywhere', access: 'signed-in', summary: 'Sign out on every device: ends all your sessions, this one included',
     response: SessionsEnded,
     handler: async ({ deps, req, res, user }) => {
-      const ended = await revokeAllSessions(deps.db, user!.id);
-      await audit(deps.db, { userId: user!.id, action: 'sign-out.everywhere', detail: { ended }, device: deviceOf(req.get('user-agent')) });
+      const ended = await revokeAllSessions(deps.db, user.id);
+      await audit(deps.db, { userId: user.id, action: 'sign-out.everywhere', detail: { ended }, device: deviceOf(req.get('user-agent')) });
       clearSession(deps, res);
       return { ended };
     },
@@ -67,19 +67,19 @@ export const authRoutes = [
     method: 'get', path: '/api/auth/me', access: 'signed-in', summary: 'Who is signed in',
     response: Me,
     handler: async ({ deps, user }) => {
-      const row = await findUserById(deps.db, user!.id);
+      const row = await findUserById(deps.db, user.id);
       if (!row) throw new AppError('unauthenticated', 'unauthenticated', 'Please sign in');
-      return meOf(deps.db, row, user!.authTime);
+      return meOf(deps.db, row, user.authTime);
     },
   }),
   defineRoute({
     method: 'post', path: '/api/auth/password', access: ['admin', 'supervisor', 'engineer'], summary: 'Change your own password',
     body: ChangePasswordBody, response: Ok,
     handler: async ({ deps, body, user, res }) => {
-      await changePassword(deps, user!.id, body.currentPassword, body.newPassword);
+      await changePassword(deps, user.id, body.currentPassword, body.newPassword);
       // The token version moved on: give this device a fresh session so only other devices sign out.
-      const row = (await findUserById(deps.db, user!.id))!;
-      issueSession(deps, res, row.id, row.token_version, user!.authTime, user!.sessionId);
+      const row = (await findUserById(deps.db, user.id))!;
+      issueSession(deps, res, row.id, row.token_version, user.authTime, user.sessionId);
       return { ok: true as const };
     },
   }),

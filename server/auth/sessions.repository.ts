@@ -1,10 +1,8 @@
 import { randomBytes } from 'node:crypto';
-import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { Role } from '../../shared/common';
 import { SESSION_MAX_S } from '../http/session';
 import { siteIdsOf } from '../users/users.repository';
-
-type Q = Knex | Knex.Transaction;
 
 /** Starts a server-side session; sessions past the shift limit (anyone's, revoked or not) are removed. */
 export async function createSession(db: Q, userId: number, authTime: number, device: string | null): Promise<string> {

@@ -4,6 +4,7 @@ import { z } from 'zod';
 import { BackupItem, BackupsStatus } from '../../shared/data-safety';
 import type { Deps } from '../deps';
 import { AppError, notFound } from '../http/errors';
+import { setAttachmentHeaders } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import type { BackupEntry } from './backups.service';
 import { isBackupName } from './backups.service';
@@ -52,7 +53,7 @@ export const backupRoutes = [
     handler: async ({ deps, user }) => {
       if (!deps.backups) throw unavailable();
       try {
-        return toItem(await deps.backups.backupNow('admin', user!.id));
+        return toItem(await deps.backups.backupNow('admin', user.id));
       } catch (err) {
         throw new AppError('internal', 'backup_failed', `The backup failed: ${(err as Error).message}`);
       }
@@ -67,10 +68,8 @@ export const backupRoutes = [
       if (!isBackupName(name)) throw notFound('Backup');
       const entry = deps.backups.list().find((b) => b.name === name);
       if (!entry) throw notFound('Backup');
-      res.setHeader('Content-Type', 'application/vnd.sqlite3');
-      res.setHeader('Content-Disposition', `attachment; filename="${name}"`);
+      setAttachmentHeaders(res, 'application/vnd.sqlite3', name);
       res.setHeader('Content-Length', String(entry.bytes));
-      res.setHeader('Cache-Control', 'no-store');
       return new Promise<undefined>((resolve, reject) => {
         const s = createReadStream(join(deps.backups!.dir, name));
         s.on('error', reject);

@@ -7,6 +7,18 @@ import { migrationSource } from './migration-source';
 
 export type Db = Knex;
 
+/** What a repository function runs on: the database, or a transaction a service opened. */
+export type Q = Knex | Knex.Transaction;
+
+/**
+ * True for a UNIQUE constraint failure (SQLite `SQLITE_CONSTRAINT_UNIQUE`, PostgreSQL 23505): the row
+ * another request inserted first, reported as a conflict rather than a crash.
+ */
+export function isUniqueViolation(err: unknown): boolean {
+  const e = err as { code?: unknown } | null;
+  return !!e && (e.code === 'SQLITE_CONSTRAINT_UNIQUE' || e.code === '23505');
+}
+
 export interface OpenDbOptions {
   /** PostgreSQL only: schema to work in (tests give each file its own). */
   schema?: string;

@@ -4,6 +4,7 @@
  * Text that a spreadsheet program would run as a formula (starting with = + - @ tab or CR) gets a
  * leading single quote (OWASP, "CSV Injection"); numbers stay numbers.
  */
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import * as XLSX from 'xlsx';
 import type { ExportFormat } from '../../shared/data-safety';
 
@@ -64,7 +65,7 @@ export interface ExportFile {
   body: Buffer | string;
 }
 
-export const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+export { XLSX_TYPE };
 
 /** The file for one table in the format asked for. */
 export function exportTable(t: Table, format: ExportFormat, stem: string): ExportFile {
@@ -74,10 +75,6 @@ export function exportTable(t: Table, format: ExportFormat, stem: string): Expor
 }
 
 /** Sends an export as a download. */
-export function sendExport(res: { setHeader(k: string, v: string): unknown; send(b: Buffer | string): unknown }, f: ExportFile): undefined {
-  res.setHeader('Content-Type', f.contentType);
-  res.setHeader('Content-Disposition', `attachment; filename="${f.filename.replace(/[^\w.-]/g, '_')}"`);
-  res.setHeader('Cache-Control', 'no-store');
-  res.send(f.body);
-  return undefined;
+export function sendExport(res: Parameters<typeof sendAttachment>[0], f: ExportFile): undefined {
+  return sendAttachment(res, f.body, f.contentType, f.filename);
 }

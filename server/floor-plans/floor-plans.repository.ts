@@ -1,13 +1,12 @@
 /** Floor-plan tables: one database operation per function, each taking `db` or a transaction. */
 import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type BetterSqlite3 from 'better-sqlite3';
 import { isPg } from '../db/dialect';
 import type { FloorPlanClosure, FloorPlanState, FloorPlanStats, FloorPlanSummary, GeneratePlanParams } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import type { SerializedSet } from './build';
-
-type Q = Knex | Knex.Transaction;
 
 export type DbPlanState = FloorPlanState | 'building';
 
@@ -124,6 +123,19 @@ export async function userName(db: Q, userId: number | null): Promise<string | n
 
 export async function activePlanRow(db: Q, siteId: number): Promise<DbFloorPlanRow | undefined> {
   return db<DbFloorPlanRow>('floor_plans').where({ site_id: siteId, state: 'active' }).first();
+}
+
+/** Of `bins`, those not on the site's active floor plan (every one of them when no plan is active). */
+export async function missingBinsOnActivePlan(db: Q, siteId: number, bins: string[]): Promise<Set<string>> {
+  const wanted = [...new Set(bins)];
+  const plan = await db('floor_plans').where({ site_id: siteId, state: 'active' }).first<{ id: number } | undefined>('id');
+  if (!plan) return new Set(wanted);
+  const found = new Set<string>();
+  for (let i = 0; i < wanted.length; i += 500) {
+    const rows: { code: string }[] = await db('floor_plan_bins').where({ plan_id: plan.id }).whereIn('code', wanted.slice(i, i + 500)).select('code');
+    for (const r of rows) found.add(r.code);
+  }
+  return new Set(wanted.filter((b) => !found.has(b)));
 }
 
 export interface NewPlanRow {

@@ -4,7 +4,6 @@
  * trip map. Fixed paths (`active`, `jobs`) come before `:planId` so they are not read as ids.
  */
 import { z } from 'zod';
-import type { Response } from 'express';
 import type { Role } from '../../shared/common';
 import { Ok } from '../../shared/common';
 import {
@@ -23,6 +22,9 @@ import {
   RenameFloorPlanBody,
 } from '../../shared/floor-plans';
 import { AppError, notFound } from '../http/errors';
+import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
+import { openEventStream } from '../http/event-stream';
 import { defineRoute } from '../http/route';
 import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
@@ -33,18 +35,9 @@ const MANAGE: readonly Role[] = ['supervisor', 'admin'];
 const OFFICE: readonly Role[] = ['supervisor', 'admin', 'engineer'];
 const GENERATE: readonly Role[] = ['supervisor', 'admin', 'engineer'];
 
-const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 const base = '/api/sites/:siteId/floor-plans';
 
-const planIdOf = (params: Record<string, string>) => Number(params.planId);
-
-function sendFile(res: Response, bytes: Buffer | string, type: string, filename: string): undefined {
-  res.setHeader('Content-Type', type);
-  res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
-  res.setHeader('Cache-Control', 'no-store');
-  res.send(bytes);
-  return undefined;
-}
+const planIdOf = (params: { planId: string }) => pathId(params.planId, 'Floor plan');
 
 function mustJob(siteId: number, id: string): FloorPlanJob {
   const job = getJob(siteId, id);
@@ -55,17 +48,17 @@ function mustJob(siteId: number, id: string): FloorPlanJob {
 export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: '/api/floor-plans/template', access: OFFICE, summary: 'The floor-plan workbook template (instructions sheet and a worked example)',
-    handler: ({ res }) => sendFile(res, buildFloorPlanTemplate(), XLSX_TYPE, 'aislewright-floor-plan-template.xlsx'),
+    handler: ({ res }) => sendAttachment(res, buildFloorPlanTemplate(), XLSX_TYPE, 'aislewright-floor-plan-template.xlsx'),
   }),
   defineRoute({
     method: 'get', path: base, access: OFFICE, summary: "The site's floor plans, newest version first",
     response: z.array(FloorPlanSummary),
-    handler: ({ deps, siteId }) => service.listPlans(deps.db, siteId!),
+    handler: ({ deps, siteId }) => service.listPlans(deps.db, siteId),
   }),
   defineRoute({
     method: 'get', path: `${base}/active`, access: 'signed-in', summary: 'The active plan with its geometry and closures (404 no_active_plan when none)',
     response: ActiveFloorPlan,
-    handler: ({ deps, siteId }) => service.getActivePlan(deps.db, siteId!),
+    handler: ({ deps, siteId }) => service.getActivePlan(deps.db, siteId),
   }),
   defineRoute({
     method: 'post', path: `${base}/uploads`, access: MANAGE, upload: 'single-file', status: 202,
@@ -75,38 +68,37 @@ export const floorPlanRoutes = [
       const file = req.file;
       if (!file) throw new AppError('validation', 'validation_failed', 'Send the workbook in the multipart field "file"', [{ field: 'file', message: 'required' }]);
       const name = typeof (req.body as { name?: unknown } | undefined)?.name === 'string' ? (req.body as { name: string }).name.slice(0, 120) : undefined;
-      return service.startUpload(deps, { siteId: siteId!, userId: user!.id, bytes: new Uint8Array(file.buffer), filename: file.originalname, ...(name ? { name } : {}) });
+      return service.startUpload(deps, { siteId: siteId, userId: user.id, bytes: new Uint8Array(file.buffer), filename: file.originalname, ...(name ? { name } : {}) });
     },
   }),
   defineRoute({
     method: 'post', path: `${base}/generate`, access: GENERATE, status: 202,
     summary: 'Generate a rectangular plan from parameters (metres); starts a build job',
     body: GenerateFloorPlanBody, response: FloorPlanJob,
-    handler: ({ deps, body, siteId, user }) => service.startGenerate(deps, { siteId: siteId!, userId: user!.id, name: body.name, params: body.params }),
+    handler: ({ deps, body, siteId, user }) => service.startGenerate(deps, { siteId: siteId, userId: user.id, name: body.name, params: body.params }),
   }),
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId`, access: OFFICE, summary: 'A build job: phase, fraction, and the error table when the file had problems',
     response: FloorPlanJob,
-    handler: ({ siteId, params }) => mustJob(siteId!, params.jobId!),
+    handler: ({ siteId, params }) => mustJob(siteId, params.jobId),
   }),
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId/events`, access: OFFICE, summary: 'A build job as server-sent events (`progress` on every change, `end` once)',
     handler: ({ req, res, siteId, params }) => {
-      const job = mustJob(siteId!, params.jobId!);
-      res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive' });
-      const send = (event: string, data: FloorPlanJob) => res.write(`event: ${event}\ndata: ${JSON.stringify(data)}\n\n`);
-      send('progress', job);
+      const job = mustJob(siteId, params.jobId);
+      const stream = openEventStream(req, res);
+      stream.send('progress', job);
       if (job.finishedAt) {
-        send('end', job);
-        res.end();
+        stream.send('end', job);
+        stream.end();
         return undefined;
       }
-      const stop = watchJob(siteId!, job.id, (j) => send('progress', j), (j) => {
-        send('end', j);
+      const stop = watchJob(siteId, job.id, (j) => stream.send('progress', j), (j) => {
+        stream.send('end', j);
         stop?.();
-        res.end();
+        stream.end();
       });
-      req.on('close', () => stop?.());
+      stream.onClose(() => stop?.());
       return undefined;
     },
   }),
@@ -114,38 +106,38 @@ export const floorPlanRoutes = [
     method: 'get', path: `${base}/jobs/:jobId/errors`, access: OFFICE, summary: "The error table of a refused upload, as xlsx (default) or CSV (?format=csv)",
     query: z.strictObject({ format: z.enum(['xlsx', 'csv']).default('xlsx') }),
     handler: ({ res, siteId, params, query }) => {
-      const job = mustJob(siteId!, params.jobId!);
+      const job = mustJob(siteId, params.jobId);
       if (job.status !== 'invalid') throw new AppError('conflict', 'no_errors', 'This job has no error table');
       return query.format === 'csv'
-        ? sendFile(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
-        : sendFile(res, rowIssuesToXlsx(job.errors), XLSX_TYPE, 'floor-plan-errors.xlsx');
+        ? sendAttachment(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
+        : sendAttachment(res, rowIssuesToXlsx(job.errors), XLSX_TYPE, 'floor-plan-errors.xlsx');
     },
   }),
   defineRoute({
     method: 'get', path: `${base}/:planId`, access: OFFICE, summary: 'One plan: stats, warnings, open closures and unreachable bins',
     response: FloorPlanDetail,
-    handler: ({ deps, siteId, params }) => service.getPlanDetail(deps.db, siteId!, planIdOf(params)),
+    handler: ({ deps, siteId, params }) => service.getPlanDetail(deps.db, siteId, planIdOf(params)),
   }),
   defineRoute({
     method: 'get', path: `${base}/:planId/geometry`, access: OFFICE, summary: "A plan's aisles, cross aisles, bins and depots (metres)",
     response: PlanGeometry,
-    handler: ({ deps, siteId, params }) => service.getGeometry(deps.db, siteId!, planIdOf(params)),
+    handler: ({ deps, siteId, params }) => service.getGeometry(deps.db, siteId, planIdOf(params)),
   }),
   defineRoute({
     method: 'get', path: `${base}/:planId/distance`, access: OFFICE, summary: 'Shortest walking distance between two bins (metres; null when no walk joins them)',
     query: DistanceQuery, response: DistanceAnswer,
-    handler: ({ deps, siteId, params, query }) => service.binDistance(deps.db, siteId!, planIdOf(params), query.from, query.to),
+    handler: ({ deps, siteId, params, query }) => service.binDistance(deps.db, siteId, planIdOf(params), query.from, query.to),
   }),
   defineRoute({
     method: 'patch', path: `${base}/:planId`, access: MANAGE, summary: 'Rename a plan (not retired ones or ones used by waves)',
     body: RenameFloorPlanBody, response: FloorPlanDetail,
-    handler: ({ deps, siteId, params, body, user }) => service.renamePlan(deps.db, siteId!, planIdOf(params), body.name, user!.id),
+    handler: ({ deps, siteId, params, body, user }) => service.renamePlan(deps.db, siteId, planIdOf(params), body.name, user.id),
   }),
   defineRoute({
     method: 'delete', path: `${base}/:planId`, access: MANAGE, summary: 'Delete a draft',
     response: Ok,
     handler: async ({ deps, siteId, params, user }) => {
-      await service.deleteDraft(deps.db, siteId!, planIdOf(params), user!.id);
+      await service.deleteDraft(deps.db, siteId, planIdOf(params), user.id);
       return { ok: true as const };
     },
   }),
@@ -153,35 +145,35 @@ export const floorPlanRoutes = [
     method: 'get', path: `${base}/:planId/activation-check`, access: OFFICE,
     summary: 'What activating the plan would take away: SKUs without a bin, open orders it cannot place, waves still running on another plan',
     response: ActivationCheck,
-    handler: ({ deps, siteId, params }) => service.activationCheck(deps.db, siteId!, planIdOf(params)),
+    handler: ({ deps, siteId, params }) => service.activationCheck(deps.db, siteId, planIdOf(params)),
   }),
   defineRoute({
     method: 'get', path: `${base}/:planId/activation-check/skus-without-bin`, access: OFFICE,
     summary: 'Every SKU whose bin is not on the plan, as xlsx (default) or CSV (?format=csv)',
     query: z.strictObject({ format: z.enum(['xlsx', 'csv']).default('xlsx') }),
     handler: async ({ deps, res, siteId, params, query }) => {
-      const check = await service.activationCheckFull(deps.db, siteId!, planIdOf(params));
+      const check = await service.activationCheckFull(deps.db, siteId, planIdOf(params));
       const name = `skus-without-bin-v${check.plan.version}`;
       return query.format === 'csv'
-        ? sendFile(res, skusWithoutBinCsv(check.allSkusWithoutBin), 'text/csv; charset=utf-8', `${name}.csv`)
-        : sendFile(res, skusWithoutBinXlsx(check.allSkusWithoutBin), XLSX_TYPE, `${name}.xlsx`);
+        ? sendAttachment(res, skusWithoutBinCsv(check.allSkusWithoutBin), 'text/csv; charset=utf-8', `${name}.csv`)
+        : sendAttachment(res, skusWithoutBinXlsx(check.allSkusWithoutBin), XLSX_TYPE, `${name}.xlsx`);
     },
   }),
   defineRoute({
     method: 'post', path: `${base}/:planId/activate`, access: MANAGE,
     summary: 'Activate a draft, or a retired plan again (rollback); the active plan is retired. 409 activation_needs_acknowledgement unless { "acknowledge": true } when SKUs or open orders would lose their bin',
     body: ActivateFloorPlanBody, response: FloorPlanDetail,
-    handler: ({ deps, siteId, params, user, body }) => service.activatePlan(deps.db, siteId!, planIdOf(params), user!.id, { acknowledge: body.acknowledge ?? false }),
+    handler: ({ deps, siteId, params, user, body }) => service.activatePlan(deps.db, siteId, planIdOf(params), user.id, { acknowledge: body.acknowledge ?? false }),
   }),
   defineRoute({
     method: 'post', path: `${base}/:planId/closures`, access: MANAGE, status: 201,
     summary: 'Close a stretch of an aisle or cross aisle; distances are recomputed and unreachable bins listed',
     body: CloseSegmentBody, response: ClosureResult,
-    handler: ({ deps, siteId, params, body, user }) => service.closeSegment(deps.db, siteId!, planIdOf(params), body, user!.id),
+    handler: ({ deps, siteId, params, body, user }) => service.closeSegment(deps.db, siteId, planIdOf(params), body, user.id),
   }),
   defineRoute({
     method: 'delete', path: `${base}/:planId/closures/:closureId`, access: MANAGE, summary: 'Reopen a closed stretch; distances are recomputed',
     response: ClosureResult,
-    handler: ({ deps, siteId, params, user }) => service.reopenSegment(deps.db, siteId!, planIdOf(params), Number(params.closureId), user!.id),
+    handler: ({ deps, siteId, params, user }) => service.reopenSegment(deps.db, siteId, planIdOf(params), pathId(params.closureId, 'Closure'), user.id),
   }),
 ];

@@ -7,6 +7,7 @@ import { findActiveToken } from '../integrations/tokens.repository';
 import { AppError } from './errors';
 import type { AnyRoute } from './route';
 import { issueSession, readSession, shouldRenew, type SessionUser } from './session';
+import { pathId } from './path-id';
 import { parseOr400 } from './validate';
 
 const UNSAFE = new Set(['post', 'put', 'patch', 'delete']);
@@ -96,8 +97,7 @@ export function mountRoutes(app: Express, routes: readonly AnyRoute[], deps: Dep
       const params = { ...(req.params as Record<string, string>) };
       let siteId: number | null = null;
       if (params.siteId !== undefined) {
-        siteId = Number(params.siteId);
-        if (!Number.isInteger(siteId) || siteId <= 0) throw new AppError('not_found', 'not_found', 'Site not found');
+        siteId = pathId(params.siteId, 'Site');
         if (tokenSiteId !== null && tokenSiteId !== siteId) throw new AppError('forbidden', 'wrong_site', 'This token belongs to another site');
         if (user && user.role !== 'admin' && !user.siteIds.includes(siteId)) {
           throw new AppError('forbidden', 'not_site_member', 'You do not belong to this site');

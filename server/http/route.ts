@@ -13,26 +13,43 @@ export type Access = 'public' | 'signed-in' | 'integration' | readonly Role[];
 
 export type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 
-export interface RouteContext<B, Q> {
+/** The names of a path's `:params`, e.g. `'siteId' | 'id'` for `/api/sites/:siteId/orders/:id`. */
+export type PathParamNames<P extends string> = P extends `${string}:${infer Rest}`
+  ? Rest extends `${infer Name}/${infer Tail}`
+    ? Name | PathParamNames<`/${Tail}`>
+    : Rest
+  : never;
+
+/** `params` typed from the path; any string path (the route table) gives a plain record. */
+export type PathParams<P extends string> = string extends P ? Record<string, string> : Record<PathParamNames<P>, string>;
+
+/** The caller as the access rule guarantees it: signed in on every rule but `public` and `integration`. */
+export type UserFor<A extends Access> = A extends 'public' | 'integration' ? null : SessionUser;
+
+/** `siteId` is a number when the path has `:siteId` (checked by the mount), null when it has none. */
+export type SiteIdFor<P extends string> = string extends P ? number | null : 'siteId' extends PathParamNames<P> ? number : null;
+
+export interface RouteContext<B, Q, P extends string = string, A extends Access = Access> {
   req: Request;
   res: Response;
   deps: Deps;
-  /** Null only on public routes. */
-  user: SessionUser | null;
+  /** The signed-in caller; null on public and integration routes. */
+  user: UserFor<A>;
   body: B;
   query: Q;
-  params: Record<string, string>;
+  /** The path's raw parameters; read ids through `pathId`. */
+  params: PathParams<P>;
   /** The path's `:siteId`, already checked against the caller's sites. */
-  siteId: number | null;
+  siteId: SiteIdFor<P>;
   /** Integration token's site, on `integration` routes. */
   tokenSiteId: number | null;
 }
 
-export interface RouteDef<B = unknown, Q = unknown> {
+export interface RouteDef<B = unknown, Q = unknown, P extends string = string, A extends Access = Access> {
   method: Method;
   /** Express path, e.g. `/api/sites/:siteId/floor-plans`. */
-  path: string;
-  access: Access;
+  path: P;
+  access: A;
   summary: string;
   body?: z.ZodType<B>;
   query?: z.ZodType<Q>;
@@ -45,13 +62,18 @@ export interface RouteDef<B = unknown, Q = unknown> {
   upload?: 'single-file';
   /** Returns the JSON answer; or writes to `res` itself (files, SSE) and returns undefined. */
   // Method syntax on purpose: routes with different body types then fit one table (bivariant parameter).
-  handler(ctx: RouteContext<B, Q>): unknown;
+  handler(ctx: RouteContext<B, Q, P, A>): unknown;
   /** HTTP status for a JSON answer; default 200. */
   status?: number;
 }
 
-/** Keeps B and Q inferred from the schemas at each definition. */
-export function defineRoute<B = undefined, Q = undefined>(def: RouteDef<B, Q>): RouteDef<B, Q> {
+/**
+ * Keeps B and Q inferred from the schemas at each definition, and the path and access rule as
+ * literals, so the handler sees `user` non-null and `siteId` a number where the rule and path say so.
+ */
+export function defineRoute<B = undefined, Q = undefined, const P extends string = string, const A extends Access = Access>(
+  def: RouteDef<B, Q, P, A>,
+): RouteDef<B, Q, P, A> {
   return def;
 }
 

@@ -1,10 +1,10 @@
 import { z } from 'zod';
 import { OutboxMessage } from '../../shared/sites';
 import { notFound } from '../http/errors';
+import { pathId } from '../http/path-id';
+import { sendAttachment } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import { getOutboxAttachment, getOutboxMessage, listOutbox } from './mailer';
-
-const idOf = (p: Record<string, string>, key = 'id') => Number(p[key]);
 
 export const mailRoutes = [
   defineRoute({
@@ -15,17 +15,14 @@ export const mailRoutes = [
   defineRoute({
     method: 'get', path: '/api/mail/outbox/:id', access: ['admin'], summary: 'One outbox message',
     response: OutboxMessage,
-    handler: async ({ deps, params }) => (await getOutboxMessage(deps.db, idOf(params))) ?? Promise.reject(notFound('Message')),
+    handler: async ({ deps, params }) => (await getOutboxMessage(deps.db, pathId(params.id, 'Message'))) ?? Promise.reject(notFound('Message')),
   }),
   defineRoute({
     method: 'get', path: '/api/mail/outbox/:id/attachments/:index', access: ['admin'], summary: 'Download an attachment',
     handler: async ({ deps, params, res }) => {
-      const a = await getOutboxAttachment(deps.db, idOf(params), idOf(params, 'index'));
+      const a = await getOutboxAttachment(deps.db, pathId(params.id, 'Message'), pathId(params.index, 'Attachment', 0));
       if (!a) throw notFound('Attachment');
-      res.setHeader('Content-Type', a.contentType);
-      res.setHeader('Content-Disposition', `attachment; filename="${a.filename.replace(/[^\w.-]/g, '_')}"`);
-      res.send(a.content);
-      return undefined;
+      return sendAttachment(res, a.content, a.contentType, a.filename);
     },
   }),
 ];

@@ -1,8 +1,7 @@
 import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { OrderDetail, OrdersPage, OrdersQuery, OrderStatus, OrderSummary } from '../../shared/orders';
 import type { OrderRecord, SkuRecord } from './orders.validate';
-
-type Q = Knex | Knex.Transaction;
 
 export interface DbSkuRow {
   id: number;

@@ -4,48 +4,29 @@
  * trip at a time, so a call assigns at most one trip per free picker; call again as trips finish.
  */
 import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { AutoAssignResult, SignedInPicker } from '../../shared/assign';
 import { SESSION_MAX_S } from '../http/session';
 import { notFound } from '../http/errors';
 import { assignTrip } from './board.service';
 import type { Actor } from './picking.service';
+import * as repo from './picking.repository';
 
-export async function signedInPickers(db: Knex, siteId: number, nowMs = Date.now()): Promise<SignedInPicker[]> {
-  const since = Math.floor(nowMs / 1000) - SESSION_MAX_S;
-  const rows: { id: number; name: string; badge: string | null; signed_in_at: string }[] = await db('sessions')
-    .join('users', 'users.id', 'sessions.user_id')
-    .join('user_sites', 'user_sites.user_id', 'users.id')
-    .where({ 'users.role': 'picker', 'users.active': true, 'user_sites.site_id': siteId })
-    .whereNull('sessions.revoked_at')
-    .where('sessions.auth_time', '>=', since)
-    .groupBy('users.id', 'users.name', 'users.badge')
-    .orderBy('users.name')
-    .select('users.id', 'users.name', 'users.badge')
-    .max({ signed_in_at: 'sessions.created_at' });
-  const held: { id: number; n: number; wave_id: number; picker_id: number }[] = await db('trips')
-    .where({ site_id: siteId })
-    .whereIn('status', ['assigned', 'picking'])
-    .whereIn('picker_id', rows.map((r) => r.id))
-    .select('id', 'n', 'wave_id', 'picker_id');
+export async function signedInPickers(db: Q, siteId: number, nowMs = Date.now()): Promise<SignedInPicker[]> {
+  const rows = await repo.signedInPickerRows(db, siteId, Math.floor(nowMs / 1000) - SESSION_MAX_S);
+  const held = await repo.heldTripsOf(db, siteId, rows.map((r) => r.id));
   return rows.map((r) => {
     const t = held.find((h) => h.picker_id === r.id);
     return { id: r.id, name: r.name, badge: r.badge, signedInAt: r.signed_in_at, tripId: t?.id ?? null, tripN: t?.n ?? null, waveId: t?.wave_id ?? null };
   });
 }
 
-/** When a picker last finished or dropped a trip (ISO), so the longest-free picker goes first; '' when never. */
-async function lastFreedAt(db: Knex, pickerIds: number[]): Promise<Map<number, string>> {
-  const rows: { picker_id: number; at: string | null }[] = await db('trips').whereIn('picker_id', pickerIds).groupBy('picker_id').select('picker_id').max({ at: 'finished_at' });
-  return new Map(rows.map((r) => [r.picker_id, r.at ?? '']));
-}
-
 export async function autoAssignWave(db: Knex, actor: Actor, siteId: number, waveId: number): Promise<AutoAssignResult> {
-  const wave = await db('waves').where({ id: waveId, site_id: siteId }).first<{ id: number } | undefined>('id');
-  if (!wave) throw notFound('Wave');
-  const waitingTrips = (): Promise<{ id: number; n: number }[]> => db('trips').where({ wave_id: waveId, status: 'released' }).whereNull('picker_id').orderBy('n').select('id', 'n');
+  if (!(await repo.getSiteWaveRow(db, siteId, waveId))) throw notFound('Wave');
+  const waitingTrips = () => repo.waitingTripsOf(db, waveId);
   const trips = await waitingTrips();
   const free = (await signedInPickers(db, siteId)).filter((p) => p.tripId === null);
-  const freedAt = await lastFreedAt(db, free.map((p) => p.id));
+  const freedAt = await repo.lastFreedAt(db, free.map((p) => p.id));
   free.sort((a, b) => (freedAt.get(a.id) ?? '').localeCompare(freedAt.get(b.id) ?? '') || a.id - b.id);
   const assigned: AutoAssignResult['assigned'] = [];
   for (let i = 0; i < Math.min(trips.length, free.length); i++) {

@@ -3,8 +3,9 @@
  * last shift), and the supervisor's actions on it: assign or reassign a trip, cancel the rest of a
  * trip (its open lines go back to open orders), close a wave, mark a short handled.
  */
+import type { Q } from '../db/knex';
 import type { Knex } from 'knex';
-import type { Board, BoardCutOffLine, BoardShort, BoardTrip, BoardWave } from '../../shared/picking';
+import type { Board, BoardCutOffLine, BoardTrip, BoardWave } from '../../shared/picking';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
@@ -12,7 +13,8 @@ import { getSiteRow, settingsOf } from '../sites/sites.repository';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { estimateMinutes } from '../waves/wave-planner';
 import { siteChanged } from './events';
-import { bumpRevision, depotNodeOf, distanceOf, finiteOrNull, pickerNode, splitStops, walkedStopIds, type DbLineRow, type DbStopRow, type DbTripRow, type DbWaveRow, type Q } from './picking.repository';
+import * as repo from './picking.repository';
+import { bumpRevision, depotNodeOf, distanceOf, finiteOrNull, pickerNode, splitStops, walkedStopIds, type DbTripRow } from './picking.repository';
 import { remainingMetres } from './route-math';
 import { canReach } from './reroute';
 import { walkedMetres } from './walked';
@@ -29,19 +31,8 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
   if (!site) throw notFound('Site');
   const speeds = settingsOf(site);
   const since = new Date(now - FINISHED_VISIBLE_MS).toISOString();
-  const waves: DbWaveRow[] = await db<DbWaveRow>('waves')
-    .where({ site_id: siteId })
-    .andWhere((q) => q.whereIn('status', ['released', 'picking']).orWhere((q2) => q2.whereIn('status', ['completed', 'cancelled']).andWhere('completed_at', '>=', since)))
-    .orderBy('created_at');
-  const waveIds = waves.map((w) => w.id);
-  const trips: (DbTripRow & { picker_name: string | null })[] = waveIds.length
-    ? await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').whereIn('trips.wave_id', waveIds).orderBy(['trips.wave_id', 'trips.n']).select('trips.*', 'users.name as picker_name')
-    : [];
-  const tripIds = trips.map((t) => t.id);
-  const stops: DbStopRow[] = tripIds.length ? await db<DbStopRow>('stops').whereIn('trip_id', tripIds) : [];
-  const lines: Pick<DbLineRow, 'id' | 'trip_id' | 'stop_id' | 'status' | 'short_reason' | 'order_ref' | 'sku' | 'bin' | 'qty'>[] = tripIds.length
-    ? await db('pick_lines').whereIn('trip_id', tripIds).select('id', 'trip_id', 'stop_id', 'status', 'short_reason', 'order_ref', 'sku', 'bin', 'qty')
-    : [];
+  const waves = await repo.boardWaveRows(db, siteId, since);
+  const { trips, stops, lines } = await repo.boardTripRows(db, waves.map((w) => w.id));
   const cutOff: BoardCutOffLine[] = [];
   const stopsByTrip = groupBy(stops, (s) => s.trip_id);
   const linesByTrip = groupBy(lines, (l) => l.trip_id);
@@ -103,41 +94,9 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
     });
   }
 
-  const shortRows: (BoardShort & { line_status: string })[] = await db('pick_shorts')
-    .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
-    .join('trips', 'trips.id', 'pick_shorts.trip_id')
-    .join('waves', 'waves.id', 'pick_shorts.wave_id')
-    .leftJoin('users', 'users.id', 'pick_shorts.reported_by')
-    .where('pick_shorts.site_id', siteId)
-    .whereNull('pick_shorts.handled_at')
-    .orderBy('pick_shorts.reported_at')
-    .select({
-      id: 'pick_shorts.id',
-      waveId: 'waves.id',
-      waveName: 'waves.name',
-      tripId: 'trips.id',
-      tripN: 'trips.n',
-      orderRef: 'pick_lines.order_ref',
-      sku: 'pick_lines.sku',
-      description: 'pick_lines.description',
-      bin: 'pick_lines.bin',
-      qtyOrdered: 'pick_shorts.qty_ordered',
-      qtyFound: 'pick_shorts.qty_found',
-      reason: 'pick_shorts.reason',
-      reportedBy: 'users.name',
-      reportedAt: 'pick_shorts.reported_at',
-      line_status: 'pick_lines.status',
-    });
-  const shorts: BoardShort[] = shortRows.map(({ line_status: _s, ...s }) => s);
-
-  const pickerRows: { id: number; name: string }[] = await db('users')
-    .join('user_sites', 'user_sites.user_id', 'users.id')
-    .where({ 'user_sites.site_id': siteId, 'users.role': 'picker', 'users.active': true })
-    .orderBy('users.name')
-    .select('users.id', 'users.name');
-  const busy = await db('trips').where({ site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNotNull('picker_id').select<{ id: number; picker_id: number }[]>('id', 'picker_id');
-  const busyBy = new Map(busy.map((b) => [b.picker_id, b.id]));
-  return { siteId, at: new Date(now).toISOString(), waves: outWaves, shorts, cutOff, pickers: pickerRows.map((p) => ({ id: p.id, name: p.name, tripId: busyBy.get(p.id) ?? null })) };
+  const shorts = await repo.unhandledShorts(db, siteId);
+  const pickers = await repo.sitePickersWithTrip(db, siteId);
+  return { siteId, at: new Date(now).toISOString(), waves: outWaves, shorts, cutOff, pickers };
 }
 
 function groupBy<T>(items: T[], key: (t: T) => number): Map<number, T[]> {
@@ -152,7 +111,7 @@ function groupBy<T>(items: T[], key: (t: T) => number): Map<number, T[]> {
 }
 
 async function siteTrip(db: Q, siteId: number, tripId: number): Promise<DbTripRow> {
-  const trip = await db<DbTripRow>('trips').where({ id: tripId, site_id: siteId }).first();
+  const trip = await repo.getSiteTripRow(db, siteId, tripId);
   if (!trip) throw notFound('Trip');
   return trip;
 }
@@ -162,15 +121,13 @@ export async function assignTrip(db: Knex, actor: Actor, siteId: number, tripId:
   await db.transaction(async (trx) => {
     const trip = await siteTrip(trx, siteId, tripId);
     if (!['released', 'assigned', 'picking'].includes(trip.status)) throw new AppError('conflict', 'trip_closed', `Trip ${trip.n} is ${trip.status}`);
-    const picker = await trx('users').join('user_sites', 'user_sites.user_id', 'users.id').where({ 'users.id': pickerId, 'users.role': 'picker', 'users.active': true, 'user_sites.site_id': siteId }).first<{ id: number; name: string } | undefined>('users.id', 'users.name');
+    const picker = await repo.activeSitePicker(trx, siteId, pickerId);
     if (!picker) throw new AppError('validation', 'validation_failed', 'Choose an active picker of this site', [{ field: 'pickerId', message: 'not an active picker of this site' }]);
     if (trip.picker_id === pickerId) return;
-    const busy = await trx('trips').where({ picker_id: pickerId, site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNot({ id: tripId }).first<{ id: number; n: number } | undefined>('id', 'n');
+    const busy = await repo.otherActiveTripOf(trx, siteId, pickerId, tripId);
     if (busy) throw new AppError('conflict', 'picker_busy', `${picker.name} already has trip ${busy.n}; finish, cancel or reassign it first`, { tripId: busy.id });
     const at = nowIso();
-    if (trip.picker_id !== null) await trx('trip_assignments').where({ trip_id: tripId, picker_id: trip.picker_id }).whereNull('ended_at').update({ ended_at: at });
-    await trx('trip_assignments').insert({ trip_id: tripId, picker_id: pickerId, assigned_by: actor.id, assigned_at: at });
-    await trx('trips').where({ id: tripId }).update({ picker_id: pickerId, status: trip.started_at ? 'picking' : 'assigned', assigned_at: at });
+    await repo.reassignTripRow(trx, trip, pickerId, actor.id, at);
     await bumpRevision(trx, tripId);
     await audit(trx, { siteId, userId: actor.id, action: trip.picker_id === null ? 'trip.assign' : 'trip.reassign', subject: `trip:${tripId}`, detail: { from: trip.picker_id, to: pickerId }, device: actor.device });
   });
@@ -180,19 +137,16 @@ export async function assignTrip(db: Knex, actor: Actor, siteId: number, tripId:
 
 /** Cancels the open lines of a trip inside a transaction; their orders go back to open orders. */
 async function cancelRest(trx: Knex.Transaction, actor: Actor, trip: DbTripRow, reason: string | null): Promise<{ linesCancelled: number; ordersReopened: string[] }> {
-  const open: DbLineRow[] = await trx<DbLineRow>('pick_lines').where({ trip_id: trip.id, status: 'open' });
   const at = nowIso();
-  await trx('pick_lines').where({ trip_id: trip.id, status: 'open' }).update({ status: 'cancelled' });
-  const orderIds = [...new Set(open.map((l) => l.order_id))];
-  const refs: { ref: string }[] = orderIds.length ? await trx('orders').whereIn('id', orderIds).orderBy('ref').select('ref') : [];
+  const open = await repo.cancelOpenLines(trx, trip.id);
   // Orders with nothing left in the cart go back to open; the lines picked stay picked on this trip.
-  if (orderIds.length) await trx('orders').whereIn('id', orderIds).update({ status: 'open', wave_id: null });
+  const refs = await repo.reopenOrders(trx, [...new Set(open.map((l) => l.order_id))]);
   const walked = await walkedMetres(trx, trip);
-  await trx('trips').where({ id: trip.id }).update({ status: 'cancelled', cancelled_at: at, finished_at: trip.finished_at ?? at, walked_metres: walked });
+  await repo.closeTripCancelled(trx, trip, walked, at);
   await bumpRevision(trx, trip.id);
-  await trx('trip_assignments').where({ trip_id: trip.id }).whereNull('ended_at').update({ ended_at: at });
-  await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cancel', subject: `trip:${trip.id}`, detail: { reason, linesCancelled: open.length, ordersReopened: refs.map((r) => r.ref), picker: trip.picker_id }, device: actor.device });
-  return { linesCancelled: open.length, ordersReopened: refs.map((r) => r.ref) };
+  await repo.endOpenAssignments(trx, trip.id, at);
+  await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cancel', subject: `trip:${trip.id}`, detail: { reason, linesCancelled: open.length, ordersReopened: refs, picker: trip.picker_id }, device: actor.device });
+  return { linesCancelled: open.length, ordersReopened: refs };
 }
 
 export async function cancelTrip(db: Knex, mailer: Mailer, actor: Actor, siteId: number, tripId: number, reason: string | null) {
@@ -209,13 +163,13 @@ export async function cancelTrip(db: Knex, mailer: Mailer, actor: Actor, siteId:
 /** Closes a wave: every trip not done is cancelled (open lines back to open orders); the report is mailed. */
 export async function closeWave(db: Knex, mailer: Mailer, actor: Actor, siteId: number, waveId: number, reason: string | null) {
   const out = await db.transaction(async (trx) => {
-    const wave = await trx<DbWaveRow>('waves').where({ id: waveId, site_id: siteId }).first();
+    const wave = await repo.getSiteWaveRow(trx, siteId, waveId);
     if (!wave) throw notFound('Wave');
     if (wave.status === 'completed' || wave.status === 'cancelled') throw new AppError('conflict', 'wave_closed', `Wave ${wave.name} is already ${wave.status}`);
-    const trips = await trx<DbTripRow>('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']);
+    const trips = await repo.unfinishedTripsOf(trx, waveId);
     let lines = 0;
     for (const t of trips) lines += (await cancelRest(trx, actor, t, reason ?? 'wave closed')).linesCancelled;
-    await trx('waves').where({ id: waveId }).update({ status: 'completed', completed_at: nowIso() });
+    await repo.completeWaveRow(trx, waveId, nowIso());
     await audit(trx, { siteId, userId: actor.id, action: 'wave.close', subject: `wave:${waveId}`, detail: { reason, tripsCancelled: trips.length, linesCancelled: lines }, device: actor.device });
     return { tripsCancelled: trips.length, linesCancelled: lines };
   });
@@ -226,10 +180,10 @@ export async function closeWave(db: Knex, mailer: Mailer, actor: Actor, siteId: 
 
 export async function handleShort(db: Knex, actor: Actor, siteId: number, shortId: number): Promise<void> {
   await db.transaction(async (trx) => {
-    const row = await trx('pick_shorts').where({ id: shortId, site_id: siteId }).first<{ id: number; handled_at: string | null; line_id: number } | undefined>('id', 'handled_at', 'line_id');
+    const row = await repo.getSiteShort(trx, siteId, shortId);
     if (!row) throw notFound('Short');
     if (row.handled_at) return;
-    await trx('pick_shorts').where({ id: shortId }).update({ handled_at: nowIso(), handled_by: actor.id });
+    await repo.markShortHandled(trx, shortId, actor.id, nowIso());
     await audit(trx, { siteId, userId: actor.id, action: 'short.handled', subject: `line:${row.line_id}`, detail: { shortId }, device: actor.device });
   });
   siteChanged(siteId);

@@ -3,6 +3,8 @@
  * transaction with its idempotency record and audit entry, so the answer is sent only after SQLite
  * has committed it (synchronous=FULL on every connection, server/db/knex.ts).
  */
+import * as repo from './picking.repository';
+import type { Q } from '../db/knex';
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
@@ -13,7 +15,6 @@ import { AppError, invalid, notFound } from '../http/errors';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { siteChanged } from './events';
 import {
-  ACTIVE_TRIP,
   bumpRevision,
   depotNodeOf,
   distanceOf,
@@ -28,7 +29,6 @@ import {
   stopsOf,
   type DbLineRow,
   type DbTripRow,
-  type Q,
   walkedStopIds,
 } from './picking.repository';
 import { groupCommit } from './group-commit';
@@ -74,9 +74,9 @@ async function writableTrip(db: Q, actor: Actor, tripId: number): Promise<{ trip
   const trip = await getTripRow(db, tripId);
   if (!trip || (actor.role !== 'admin' && !actor.siteIds.includes(trip.site_id))) throw notFound('Trip');
   if (trip.picker_id === actor.id) return { trip, formerUntil: null };
-  const former = await db('trip_assignments').where({ trip_id: tripId, picker_id: actor.id }).whereNotNull('ended_at').orderBy('ended_at', 'desc').first<{ ended_at: string }>('ended_at');
-  if (!former) throw notYourTrip();
-  return { trip, formerUntil: former.ended_at };
+  const formerUntil = await repo.formerAssignmentEnd(db, tripId, actor.id);
+  if (formerUntil === null) throw notYourTrip();
+  return { trip, formerUntil };
 }
 
 /** The tablet's poll: status and revision of its trip, one row read. */
@@ -90,14 +90,7 @@ export async function getPickTrip(db: Q, actor: Actor, tripId: number): Promise<
   return (await loadPickTrip(db, tripId))!;
 }
 
-async function activeTripOf(db: Q, pickerId: number, siteId: number): Promise<DbTripRow | undefined> {
-  return db<DbTripRow>('trips').where({ picker_id: pickerId, site_id: siteId }).whereIn('status', ACTIVE_TRIP).orderBy('assigned_at').first();
-}
-
-async function releasedCount(db: Q, siteId: number): Promise<number> {
-  const r = await db('trips').join('waves', 'waves.id', 'trips.wave_id').where({ 'trips.site_id': siteId, 'trips.status': 'released' }).whereIn('waves.status', ['released', 'picking']).whereNull('trips.picker_id').count<{ n: number }[]>({ n: '*' });
-  return Number(r[0]!.n);
-}
+const { activeTripOf, releasedTripCount: releasedCount } = repo;
 
 /** The picker's trip at this site, if any, and how many released trips wait to be taken. */
 export async function currentTrip(db: Q, actor: Actor, siteId: number): Promise<{ trip: PickTrip | null; releasedTrips: number }> {
@@ -115,21 +108,12 @@ export async function takeNextTrip(db: Knex, actor: Actor, siteId: number): Prom
     const mine = await activeTripOf(trx, actor.id, siteId);
     if (mine) return mine.id;
     for (let attempt = 0; attempt < 5; attempt++) {
-      const next = await trx('trips')
-        .join('waves', 'waves.id', 'trips.wave_id')
-        .where({ 'trips.site_id': siteId, 'trips.status': 'released' })
-        .whereNull('trips.picker_id')
-        .whereIn('waves.status', ['released', 'picking'])
-        .orderByRaw('trips.due IS NULL, trips.due ASC, waves.created_at ASC, waves.id ASC, trips.n ASC')
-        .first<{ id: number } | undefined>('trips.id');
-      if (!next) return null;
-      const at = nowIso();
-      const claimed = await trx('trips').where({ id: next.id, status: 'released' }).whereNull('picker_id').update({ status: 'assigned', picker_id: actor.id, assigned_at: at });
-      if (claimed !== 1) continue;
-      await trx('trip_assignments').insert({ trip_id: next.id, picker_id: actor.id, assigned_by: actor.id, assigned_at: at });
-      await bumpRevision(trx, next.id);
-      await audit(trx, { siteId, userId: actor.id, action: 'trip.take', subject: `trip:${next.id}`, detail: { tripId: next.id }, device: actor.device });
-      return next.id;
+      const next = await repo.nextReleasedTripId(trx, siteId);
+      if (next === undefined) return null;
+      if (!(await repo.claimTrip(trx, next, actor.id, nowIso()))) continue;
+      await bumpRevision(trx, next);
+      await audit(trx, { siteId, userId: actor.id, action: 'trip.take', subject: `trip:${next}`, detail: { tripId: next }, device: actor.device });
+      return next;
     }
     return null;
   });
@@ -161,14 +145,14 @@ export async function cartReady(db: Knex, actor: Actor, tripId: number, body: Ca
     const trip = await readableTrip(trx, actor, tripId);
     if (trip.cart_ready_at) return false;
     if (trip.status !== 'picking') throw new AppError('conflict', 'trip_not_started', trip.status === 'assigned' ? 'Start the trip (safety caution) before setting up the cart' : 'This trip is closed');
-    const totes = (await trx('pick_lines').where({ trip_id: trip.id }).distinct('tote').orderBy('tote')).map((r: { tote: number }) => r.tote);
+    const totes = await repo.totesOfTrip(trx, trip.id);
     const sent = [...new Set(body.totes.map((t) => t.tote))].sort((a, b) => a - b);
     const missing = totes.filter((t) => !sent.includes(t));
     const unknown = sent.filter((t) => !totes.includes(t));
     if (missing.length > 0 || unknown.length > 0 || sent.length !== body.totes.length) {
       throw new AppError('validation', 'totes_mismatch', `Confirm each tote of this trip once (totes ${totes.join(', ')})`, { expected: totes, missing, unknown });
     }
-    await trx('trips').where({ id: trip.id }).update({ cart_ready_at: nowIso() });
+    await repo.setCartReady(trx, trip.id, nowIso());
     await bumpRevision(trx, trip.id);
     await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cart_ready', subject: `trip:${trip.id}`, device: actor.device, detail: { totes: body.totes } });
     return true;
@@ -181,10 +165,7 @@ export async function cartReady(db: Knex, actor: Actor, tripId: number, body: Ca
 async function markStarted(trx: Q, trip: DbTripRow, firstWork?: string): Promise<void> {
   if (trip.status === 'picking' && trip.started_at) return;
   const at = trip.started_at ?? firstWork ?? nowIso();
-  await trx('trips').where({ id: trip.id }).update({ status: 'picking', started_at: at });
-  await trx('waves').where({ id: trip.wave_id, status: 'released' }).update({ status: 'picking' });
-  const orderIds = trx('trip_orders').where({ trip_id: trip.id }).select('order_id');
-  await trx('orders').whereIn('id', orderIds).where({ status: 'planned' }).update({ status: 'picking' });
+  await repo.markTripStarted(trx, trip, at);
   trip.status = 'picking';
   trip.started_at = at;
 }
@@ -246,7 +227,7 @@ async function idempotent<T>(
     // write has its own transaction): a repeated key or two pickers on one line see the first one's result.
     await lockForTransaction(trx, `trip:${tripId}`);
     // Keys are per user: a stored answer goes back only to the picker who made it.
-    const stored = await trx('pick_requests').where({ user_id: actor.id, idem_key: key }).first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
+    const stored = await repo.storedRequest(trx, actor.id, key);
     if (stored) {
       if (stored.request_hash !== hash) {
         throw new AppError('unprocessable', 'idempotency_key_reused', 'This Idempotency-Key was already used for a different request');
@@ -262,7 +243,7 @@ async function idempotent<T>(
       }
     }
     const outcome = await run(trx, trip);
-    await trx('pick_requests').insert({ user_id: actor.id, idem_key: key, request_hash: hash, trip_id: tripId, status: 200, response: JSON.stringify(outcome.answer), created_at: nowIso() });
+    await repo.storeRequest(trx, { user_id: actor.id, idem_key: key, request_hash: hash, trip_id: tripId, status: 200, response: JSON.stringify(outcome.answer), created_at: nowIso() });
     return { replay: false as const, ...outcome };
   });
   if (!out.replay) {
@@ -296,7 +277,7 @@ export function pickTime(pickedAt: string | undefined, trip: Pick<DbTripRow, 'st
 }
 
 async function lineOfTrip(trx: Q, trip: DbTripRow, lineId: number): Promise<DbLineRow> {
-  const line = await trx<DbLineRow>('pick_lines').where({ id: lineId, trip_id: trip.id }).first();
+  const line = await repo.getLineOfTrip(trx, trip.id, lineId);
   if (!line) throw notFound('Pick line');
   return line;
 }
@@ -304,11 +285,11 @@ async function lineOfTrip(trx: Q, trip: DbTripRow, lineId: number): Promise<DbLi
 async function assertLineOpen(trx: Q, line: DbLineRow): Promise<void> {
   if (line.status === 'open') return;
   if (line.status === 'cancelled') throw new AppError('conflict', 'line_cancelled', 'This line was cancelled by the supervisor', { lineId: line.id, by: null, byId: null, at: null, status: line.status });
-  const by = line.confirmed_by ? await trx('users').where({ id: line.confirmed_by }).first<{ name: string }>('name') : undefined;
-  const who = by?.name ?? 'someone';
+  const byName = line.confirmed_by ? await repo.userNameOf(trx, line.confirmed_by) : undefined;
+  const who = byName ?? 'someone';
   throw new AppError('conflict', 'already_confirmed', `Already ${line.status === 'short' ? 'reported short' : 'confirmed'} by ${who} at ${line.confirmed_at}`, {
     lineId: line.id,
-    by: by?.name ?? null,
+    by: byName ?? null,
     byId: line.confirmed_by,
     at: line.confirmed_at,
     status: line.status,
@@ -321,14 +302,14 @@ async function assertLineOpen(trx: Q, line: DbLineRow): Promise<void> {
  * (tablet clock) is a double tap. Both answer 409 line_not_shown and record nothing.
  */
 async function assertShown(trx: Q, trip: DbTripRow, line: DbLineRow, body: ConfirmBody): Promise<void> {
-  const stop = (await trx('stops').where({ id: line.stop_id }).first<{ n: number }>('n'))!;
+  const stop = { n: await repo.stopNumber(trx, line.stop_id) };
   if (body.stopN !== undefined && body.stopN !== stop.n) {
     throw new AppError('conflict', 'line_not_shown', `This line is at stop ${stop.n}, not stop ${body.stopN} shown on the tablet; nothing was confirmed`, { lineId: line.id, stopN: stop.n, shownStopN: body.stopN });
   }
   if (body.via !== 'tap' || !body.pickedAt) return;
   const t = Date.parse(body.pickedAt);
-  const last = await trx('pick_lines').where({ trip_id: trip.id, status: 'picked' }).whereNot({ id: line.id }).max<{ m: string | null }[]>({ m: 'tablet_at' });
-  const prev = last[0]?.m ? Date.parse(last[0].m) : NaN;
+  const last = await repo.lastTabletPick(trx, trip.id, line.id);
+  const prev = last ? Date.parse(last) : NaN;
   if (Number.isFinite(prev) && Number.isFinite(t) && t >= prev && t - prev < TAP_GUARD_MS) {
     throw new AppError('conflict', 'line_not_shown', 'A second tap came too soon after the last confirmation; nothing was confirmed', { lineId: line.id, stopN: stop.n, shownStopN: body.stopN ?? null });
   }
@@ -336,11 +317,8 @@ async function assertShown(trx: Q, trip: DbTripRow, line: DbLineRow, body: Confi
 
 /** After a line leaves 'open': its stop is done when none of its lines is open. Returns the stop's status. */
 async function closeStopIfDone(trx: Q, tripId: number, stopId: number, at = nowIso()): Promise<'open' | 'done'> {
-  // trip_id first: the (trip_id, stop_id) index serves this; stop_id alone would scan every line.
-  const open = await trx('pick_lines').where({ trip_id: tripId, stop_id: stopId, status: 'open' }).count<{ n: number }[]>({ n: '*' });
-  if (Number(open[0]!.n) > 0) return 'open';
-  const seq = await trx('stops').where({ trip_id: tripId }).max<{ m: number | null }[]>({ m: 'done_seq' });
-  await trx('stops').where({ id: stopId, status: 'open' }).update({ status: 'done', done_at: at, done_seq: (seq[0]!.m ?? 0) + 1 });
+  if ((await repo.openLineCount(trx, tripId, stopId)) > 0) return 'open';
+  await repo.markStopDone(trx, tripId, stopId, at);
   return 'done';
 }
 
@@ -365,7 +343,7 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
     await assertLineOpen(trx, line);
     await assertShown(trx, trip, line, body);
     if (body.via === 'scan') {
-      const site = (await trx('sites').where({ id: trip.site_id }).first<{ confirm_scan: 'bin' | 'sku' }>('confirm_scan'))!;
+      const site = { confirm_scan: await repo.confirmScanOf(trx, trip.site_id) };
       const expected = expectedScan(line, site.confirm_scan);
       if (!body.scan || !sameCode(body.scan, expected)) {
         throw new AppError('unprocessable', 'wrong_scan', `Expected ${site.confirm_scan === 'bin' ? 'bin' : 'SKU'} ${expected}, scanned ${body.scan ?? '(nothing)'}`, {
@@ -396,7 +374,7 @@ async function settleLine(
   action: 'pick.confirm' | 'pick.short',
   detail: Record<string, unknown>,
 ) {
-  await trx('pick_lines').where({ id: line.id, status: 'open' }).update(outcome);
+  await repo.settleOpenLine(trx, line.id, outcome);
   Object.assign(line, outcome);
   const stopStatus = await closeStopIfDone(trx, trip.id, line.stop_id, line.confirmed_at ?? nowIso());
   await audit(trx, {
@@ -420,7 +398,7 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
     }
     const at = pickTime(body.pickedAt, trip);
     await markStarted(trx, trip, at);
-    await trx('pick_shorts').insert({ site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
+    await repo.insertShort(trx, { site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
     return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.short', {
       ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key,
     });
@@ -450,7 +428,7 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
     const before = open.map((s) => s.id);
     const { walk, cut } = orderRemaining(open, from, depot, distanceOf(plan), stop.id);
     const sequence = [...walk, ...cut];
-    await trx('stops').where({ id: stop.id }).update({ skipped_at: at });
+    await repo.markStopSkipped(trx, stop.id, at);
     await writeWalkOrder(trx, done, sequence);
     await markStarted(trx, trip);
     await bumpRevision(trx, trip.id);
@@ -471,9 +449,7 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
  * the supervisor's correction. The caller checks who may and audits.
  */
 async function reopenLine(trx: Q, line: DbLineRow): Promise<void> {
-  await trx('pick_lines').where({ id: line.id }).update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
-  await trx('pick_shorts').where({ line_id: line.id }).del();
-  await trx('stops').where({ id: line.stop_id }).update({ status: 'open', done_at: null, done_seq: null });
+  await repo.reopenLineRow(trx, line);
   Object.assign(line, { status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
 }
 
@@ -506,7 +482,7 @@ export async function undoLine(db: Knex, actor: Actor, tripId: number, lineId: n
  */
 export async function correctLine(db: Knex, actor: Actor, siteId: number, lineId: number, reason: string): Promise<LineAnswer> {
   const answer = await db.transaction(async (trx) => {
-    const line = await trx<DbLineRow>('pick_lines').where({ id: lineId }).first();
+    const line = await repo.getLineRow(trx, lineId);
     const trip = line ? await getTripRow(trx, line.trip_id) : undefined;
     if (!line || !trip || trip.site_id !== siteId) throw notFound('Pick line');
     if (trip.status === 'done' || trip.status === 'cancelled') {
@@ -561,17 +537,14 @@ export async function finishTrip(db: Knex, mailer: Mailer, actor: Actor, tripId:
   return idempotent(db, actor, tripId, req, undefined, async (trx, trip) => {
     if (trip.picker_id !== actor.id) throw notYourTrip();
     assertOpenTrip(trip);
-    const open = await trx('pick_lines').where({ trip_id: trip.id, status: 'open' }).count<{ n: number }[]>({ n: '*' });
-    const n = Number(open[0]!.n);
+    const n = await repo.openLineCount(trx, trip.id);
     if (n > 0) throw new AppError('conflict', 'lines_open', `${n} line${n === 1 ? '' : 's'} still to pick or report short`, { open: n });
     await markStarted(trx, trip);
     // Null when not measurable (a closure cut off a stop already picked): the trip still finishes.
     const walked = await walkedMetres(trx, trip);
     const at = nowIso();
-    await trx('trips').where({ id: trip.id }).update({ status: 'done', finished_at: at, walked_metres: walked });
+    await repo.markTripDone(trx, trip.id, walked, at);
     await bumpRevision(trx, trip.id);
-    const orderIds = trx('trip_orders').where({ trip_id: trip.id }).select('order_id');
-    await trx('orders').whereIn('id', orderIds).whereIn('status', ['planned', 'picking']).update({ status: 'done' });
     await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.finish', subject: `trip:${trip.id}`, detail: { walkedMetres: walked }, device: actor.device });
     return { answer: await tripResult(trx, trip.id), siteId: trip.site_id, closedTripWave: trip.wave_id };
   }, mailer);

@@ -4,6 +4,7 @@
  * change; only `stops.walk_seq` does. Stops no walk reaches from where the picker is (or back to the
  * depot) are cut off: they go last, and the tablet and the board say so.
  */
+import type { Q } from '../db/knex';
 import type { Knex } from 'knex';
 import { audit } from '../audit/audit';
 import { loadPlanIndex, type LoadedPlan } from '../floor-plans/plan-index';
@@ -21,7 +22,6 @@ import {
   walkOrder,
   walkedStopIds,
   type DbStopRow,
-  type Q,
 } from './picking.repository';
 import { resequenceFree, type Distance } from './route-math';
 

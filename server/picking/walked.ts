@@ -1,5 +1,6 @@
+import type { Q } from '../db/knex';
 import { loadPlanIndex } from '../floor-plans/plan-index';
-import { depotNodeOf, distanceOf, finiteOrNull, getWaveRow, linesOf, splitStops, stopsOf, walkedStopIds, type DbTripRow, type Q } from './picking.repository';
+import { depotNodeOf, distanceOf, finiteOrNull, getWaveRow, linesOf, splitStops, stopsOf, walkedStopIds, type DbTripRow } from './picking.repository';
 import { closedWalkMetres } from './route-math';
 
 /**

@@ -2,6 +2,7 @@
  * A wave ends when every trip is done or cancelled (or the supervisor closes it); its report then
  * goes by mail to the site's supervisors, once (guarded by waves.report_mailed_at).
  */
+import { XLSX_TYPE } from '../http/attachment';
 import type { Knex } from 'knex';
 import { siteMembersWithRole } from '../users/users.repository';
 import type { Mailer } from '../mail/mailer';
@@ -9,7 +10,6 @@ import { buildWaveReport } from './report';
 import { siteChanged } from './events';
 import { getWaveRow } from './picking.repository';
 
-const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
 /** Marks the wave completed when no trip remains open; mails the report. Returns the addresses mailed. */
 export async function afterTripClosed(db: Knex, mailer: Mailer, waveId: number): Promise<string[]> {

@@ -13,13 +13,13 @@ export const retentionRoutes = [
     method: 'put', path: '/api/admin/retention', access: ['admin'], summary: 'Change how long data is kept (days)',
     body: RetentionBody, response: RetentionState,
     handler: async ({ deps, body, user }) => {
-      await setRetention(deps.db, body, user!.id);
+      await setRetention(deps.db, body, user.id);
       return retentionState(deps.db);
     },
   }),
   defineRoute({
     method: 'post', path: '/api/admin/retention/prune', access: ['admin'], summary: 'Prune now by the retention settings (audited)',
     body: z.strictObject({}), response: PruneCounts,
-    handler: ({ deps, user }) => pruneNow(deps.db, { userId: user!.id }),
+    handler: ({ deps, user }) => pruneNow(deps.db, { userId: user.id }),
   }),
 ];

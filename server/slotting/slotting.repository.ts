@@ -1,8 +1,7 @@
 /** Rows of slotting runs, uploaded histories and the SKU bin history. One DB operation per function. */
 import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { HistoryOrder } from '../core/slotting/types';
-
-type Q = Knex | Knex.Transaction;
 
 export interface DbSlottingRunRow {
   id: number;

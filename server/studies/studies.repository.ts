@@ -1,8 +1,6 @@
 /** Rows of the studies table and the recorded waves a study reads. One DB operation per function. */
-import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import { StudyInputs, StudyResults, type StudyDetail, type StudyStatus, type StudySummary } from '../../shared/studies';
-
-export type Q = Knex | Knex.Transaction;
 
 export interface DbStudyRow {
   id: number;

@@ -1,9 +1,10 @@
 import { z } from 'zod';
 import { PlanGeometry } from '../../shared/floor-plans';
-import { Id, Ok } from '../../shared/common';
+import { Ok } from '../../shared/common';
 import { StudyDetail, StudyInputs, StudyRoute, StudyRouteQuery, StudySummary } from '../../shared/studies';
+import { pathId } from '../http/path-id';
+import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import { defineRoute } from '../http/route';
-import { parseOr400 } from '../http/validate';
 import { studyWorkbook } from './export';
 import { siteTimeZone } from '../sites/sites.repository';
 import { cancelStudy, createStudy, deleteStudy, doneStudy, getStudy, listStudies, rerunStudy, studyPlan, studyRoute } from './studies.service';
@@ -11,7 +12,7 @@ import { cancelStudy, createStudy, deleteStudy, doneStudy, getStudy, listStudies
 /** Engineers run studies; supervisors read and run them too. Pickers and admins are not given them. */
 const STUDY_ROLES = ['engineer', 'supervisor'] as const;
 const base = '/api/sites/:siteId/studies';
-const idOf = (params: Record<string, string>) => parseOr400(Id, params.id, 'study id');
+const idOf = (params: { id: string }) => pathId(params.id, 'Study');
 
 const StudyPlan = z.object({
   geometry: PlanGeometry,
@@ -22,51 +23,48 @@ export const studyRoutes = [
   defineRoute({
     method: 'get', path: base, access: STUDY_ROLES, summary: "The site's studies, newest first",
     response: z.array(StudySummary),
-    handler: ({ deps, siteId }) => listStudies(deps.db, siteId!),
+    handler: ({ deps, siteId }) => listStudies(deps.db, siteId),
   }),
   defineRoute({
     method: 'post', path: base, access: STUDY_ROLES, summary: 'Save a study and run it in the background; poll it for progress', status: 202,
     body: StudyInputs, response: StudySummary,
-    handler: ({ deps, siteId, user, body }) => createStudy(deps, siteId!, user!.id, body),
+    handler: ({ deps, siteId, user, body }) => createStudy(deps, siteId, user.id, body),
   }),
   defineRoute({
     method: 'get', path: `${base}/:id`, access: STUDY_ROLES, summary: 'A study: inputs, progress, then its results',
     response: StudyDetail,
-    handler: ({ deps, siteId, params }) => getStudy(deps.db, siteId!, idOf(params)),
+    handler: ({ deps, siteId, params }) => getStudy(deps.db, siteId, idOf(params)),
   }),
   defineRoute({
     method: 'delete', path: `${base}/:id`, access: STUDY_ROLES, summary: 'Delete a study that is not running (reruns of it stay)',
     response: Ok,
-    handler: ({ deps, siteId, params }) => deleteStudy(deps, siteId!, idOf(params)),
+    handler: ({ deps, siteId, params }) => deleteStudy(deps, siteId, idOf(params)),
   }),
   defineRoute({
     method: 'post', path: `${base}/:id/cancel`, access: STUDY_ROLES, summary: 'Stop a queued or running study (its worker is terminated)',
     response: StudySummary,
-    handler: ({ deps, siteId, params }) => cancelStudy(deps, siteId!, idOf(params)),
+    handler: ({ deps, siteId, params }) => cancelStudy(deps, siteId, idOf(params)),
   }),
   defineRoute({
     method: 'post', path: `${base}/:id/rerun`, access: STUDY_ROLES, summary: 'Run a study again with the same inputs and seed, as a new study', status: 202,
     response: StudySummary,
-    handler: ({ deps, siteId, user, params }) => rerunStudy(deps, siteId!, user!.id, idOf(params)),
+    handler: ({ deps, siteId, user, params }) => rerunStudy(deps, siteId, user.id, idOf(params)),
   }),
   defineRoute({
     method: 'get', path: `${base}/:id/plans/:variant`, access: STUDY_ROLES, summary: 'The plan of a study variant (as it is, or a what-if) for the maps',
     response: StudyPlan,
-    handler: ({ deps, siteId, params }) => studyPlan(deps.db, siteId!, idOf(params), params.variant!),
+    handler: ({ deps, siteId, params }) => studyPlan(deps.db, siteId, idOf(params), params.variant),
   }),
   defineRoute({
     method: 'get', path: `${base}/:id/route`, access: STUDY_ROLES, summary: "One trip's route by one method, for the side-by-side maps",
     query: StudyRouteQuery, response: StudyRoute,
-    handler: ({ deps, siteId, params, query }) => studyRoute(deps.db, siteId!, idOf(params), query),
+    handler: ({ deps, siteId, params, query }) => studyRoute(deps.db, siteId, idOf(params), query),
   }),
   defineRoute({
     method: 'get', path: `${base}/:id/export.xlsx`, access: STUDY_ROLES, summary: 'The study as a workbook: inputs, then one sheet per table',
     handler: async ({ deps, siteId, params, res }) => {
-      const study = await doneStudy(deps.db, siteId!, idOf(params));
-      res.setHeader('Content-Type', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet');
-      res.setHeader('Content-Disposition', `attachment; filename="study-${study.id}.xlsx"`);
-      res.send(studyWorkbook(study, await siteTimeZone(deps.db, siteId!)));
-      return undefined;
+      const study = await doneStudy(deps.db, siteId, idOf(params));
+      return sendAttachment(res, studyWorkbook(study, await siteTimeZone(deps.db, siteId)), XLSX_TYPE, `study-${study.id}.xlsx`);
     },
   }),
 ];

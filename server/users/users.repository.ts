@@ -1,4 +1,4 @@
-import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { Role } from '../../shared/common';
 import type { UserRow } from '../../shared/users';
 import { normaliseBadge } from '../../shared/auth';
@@ -15,8 +15,6 @@ export interface DbUserRow {
   token_version: number;
   created_at: string;
 }
-
-type Q = Knex | Knex.Transaction;
 
 export async function siteIdsOf(db: Q, userId: number): Promise<number[]> {
   const rows = await db('user_sites').where({ user_id: userId }).orderBy('site_id').select<{ site_id: number }[]>('site_id');

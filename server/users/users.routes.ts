@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { Ok } from '../../shared/common';
 import { CreatePickerBody, InviteBody, InviteRow, ResetPinBody, SessionsEnded, UpdateUserBody, UserRow } from '../../shared/users';
+import { pathId } from '../http/path-id';
 import { defineRoute } from '../http/route';
 import { createPicker, endSessionsOf, inviteUser, listInvites, resetPin, updateUserAsAdmin } from './users.service';
 import { listUsers } from './users.repository';
@@ -17,29 +18,29 @@ export const userRoutes = [
   defineRoute({
     method: 'post', path: '/api/users/invites', access: ['admin'], summary: 'Invite a user by e-mail (single-use link, 72 h)', status: 201,
     body: InviteBody, response: InviteRow,
-    handler: ({ deps, body, user }) => inviteUser(deps, user!.id, body),
+    handler: ({ deps, body, user }) => inviteUser(deps, user.id, body),
   }),
   defineRoute({
     method: 'post', path: '/api/users/pickers', access: ['admin'], summary: 'Create a picker with badge code and PIN', status: 201,
     body: CreatePickerBody, response: UserRow,
-    handler: ({ deps, body, user }) => createPicker(deps, user!.id, body),
+    handler: ({ deps, body, user }) => createPicker(deps, user.id, body),
   }),
   defineRoute({
     method: 'patch', path: '/api/users/:id', access: ['admin'], summary: 'Change role, sites, name; deactivate or reactivate',
     body: UpdateUserBody, response: UserRow,
-    handler: ({ deps, body, user, params }) => updateUserAsAdmin(deps, user!.id, Number(params.id), body),
+    handler: ({ deps, body, user, params }) => updateUserAsAdmin(deps, user.id, pathId(params.id, 'User'), body),
   }),
   defineRoute({
     method: 'post', path: '/api/users/:id/pin', access: ['admin'], summary: "Reset a picker's PIN",
     body: ResetPinBody, response: Ok,
     handler: async ({ deps, body, user, params }) => {
-      await resetPin(deps, user!.id, Number(params.id), body.pin);
+      await resetPin(deps, user.id, pathId(params.id, 'User'), body.pin);
       return { ok: true as const };
     },
   }),
   defineRoute({
     method: 'post', path: '/api/users/:id/end-sessions', access: ['admin'], summary: "End all of a user's sessions on every device (they sign in again)",
     response: SessionsEnded,
-    handler: ({ deps, user, params }) => endSessionsOf(deps, user!.id, Number(params.id)),
+    handler: ({ deps, user, params }) => endSessionsOf(deps, user.id, pathId(params.id, 'User')),
   }),
 ];

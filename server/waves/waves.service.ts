@@ -1,12 +1,12 @@
 import { lockForTransaction } from '../db/dialect';
-import type { Knex } from 'knex';
+import type { Q } from '../db/knex';
 import type { TripDetail, WaveDetail, WaveJob, WavePreview, WavePreviewBody, WaveSummary } from '../../shared/waves';
 import { audit } from '../audit/audit';
 import type { Deps } from '../deps';
 import { loadPlanIndex, activePlanId } from '../floor-plans/plan-index';
 import { getPlanRowById, loadGraphSets } from '../floor-plans/floor-plans.repository';
 import { AppError, notFound } from '../http/errors';
-import { linesOf, skuMap, type DbOrderRow } from '../orders/orders.repository';
+import { linesOf, skuMap } from '../orders/orders.repository';
 import { formatInZone } from '../../shared/time-zone';
 import { getCartProfile, getSiteRow, settingsOf, siteTimeZone } from '../sites/sites.repository';
 import { siteMembersWithRole } from '../users/users.repository';
@@ -14,6 +14,7 @@ import { jobStopMessage, runInWorker } from '../workers/spawn';
 import { circuitPolyline } from '../core/plan/distances';
 import type { PlannerOrder, PlannerOutput } from './wave-planner';
 import type { PlanJobData } from './plan.worker';
+import * as repo from './waves.repository';
 import { createPreviewJob, getPreview, updatePreviewJob, type PreviewContext } from './preview-jobs';
 
 const round = (v: number, d = 1) => Math.round(v * 10 ** d) / 10 ** d;
@@ -29,9 +30,8 @@ let planQueue: Promise<unknown> = Promise.resolve();
 const PLAN_HEAP_MB = 1024;
 
 /** Loads the chosen open orders with their lines slotted from the SKU master. */
-async function plannerOrders(db: Knex, siteId: number, orderIds: number[]): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
-  const rows: DbOrderRow[] = [];
-  for (let i = 0; i < orderIds.length; i += 500) rows.push(...(await db<DbOrderRow>('orders').where({ site_id: siteId }).whereIn('id', orderIds.slice(i, i + 500))));
+async function plannerOrders(db: Q, siteId: number, orderIds: number[]): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
+  const rows = await repo.ordersOfSite(db, siteId, orderIds);
   const missing = orderIds.filter((id) => !rows.some((r) => r.id === id));
   if (missing.length) throw new AppError('validation', 'unknown_orders', `Orders not found on this site: ${missing.slice(0, 10).join(', ')}`, [{ field: 'orderIds', message: 'unknown order' }]);
   const notOpen = rows.filter((r) => r.status !== 'open');
@@ -141,13 +141,6 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
   return job;
 }
 
-interface DbWaveRow {
-  id: number; site_id: number; plan_id: number; name: string; status: WaveSummary['status']; cart_name: string; batching: WaveSummary['batching'];
-  routing_method: WaveSummary['method']; routing_improve: WaveSummary['improve']; orders_count: number; lines_count: number; planned_metres: number;
-  lower_bound_metres: number; single_metres: number; s_shape_metres: number | null; est_seconds: number; notes: string; created_by: number | null;
-  created_at: string; completed_at: string | null; release_key: string; depot_idx: number;
-}
-
 /**
  * Releases a previewed wave: saves the wave, its trips, numbered stops and pick lines on the plan
  * it was planned on, and takes its orders out of the open pool — all in one transaction. The same
@@ -155,7 +148,7 @@ interface DbWaveRow {
  */
 export async function releaseWave(deps: Deps, siteId: number, userId: number, previewId: string, releaseKey: string, name?: string): Promise<WaveDetail> {
   const { db } = deps;
-  const existing = await db<DbWaveRow>('waves').where({ site_id: siteId, release_key: releaseKey }).first();
+  const existing = await repo.waveByReleaseKey(db, siteId, releaseKey);
   if (existing) return waveDetail(db, siteId, existing.id);
   const found = getPreview(siteId, previewId);
   if (!found) throw new AppError('not_found', 'preview_gone', 'This preview has expired or was never made; plan the wave again');
@@ -175,47 +168,47 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
   const waveId = await db.transaction(async (trx) => {
     // One release per site at a time: the release key and the open orders are checked, then taken.
     await lockForTransaction(trx, `wave-release:${siteId}`);
-    const again = await trx<DbWaveRow>('waves').where({ site_id: siteId, release_key: releaseKey }).first();
+    const again = await repo.waveByReleaseKey(trx, siteId, releaseKey);
     if (again) return again.id;
     const refs = preview.trips.flatMap((t) => t.orders.map((o) => o.ref));
     const orderIds = refs.map((r) => ctx.orderIds.get(r)!);
-    const open = await trx('orders').whereIn('id', orderIds).andWhere({ status: 'open' }).pluck('id');
+    const open = await repo.openOrderIds(trx, orderIds);
     if (open.length !== orderIds.length) {
-      const gone = refs.filter((_r, i) => !open.includes(orderIds[i]));
+      const gone = refs.filter((_r, i) => !open.includes(orderIds[i]!));
       throw new AppError('conflict', 'orders_not_open', `Orders already taken by another wave: ${gone.slice(0, 10).join(', ')}; plan again`, { orders: gone });
     }
     const t = preview.totals;
-    const [{ id }] = await trx('waves').insert({
+    const id = await repo.insertWave(trx, {
       site_id: siteId, plan_id: ctx.planId, name: waveName, status: 'released', cart_name: preview.cart.name, cart_totes: preview.cart.totes,
       cart_max_kg: preview.cart.maxKg, cart_max_litres: preview.cart.maxLitres, batching: preview.batching, routing_method: preview.method,
       routing_improve: preview.improve, depot_idx: ctx.depotIdx, orders_count: t.orders, lines_count: t.lines, planned_metres: t.metres,
       lower_bound_metres: t.lowerBound, single_metres: t.singleMetres, s_shape_metres: t.sShapeMetres, est_seconds: t.estMinutes * 60,
       notes: JSON.stringify(preview.notes), release_key: releaseKey, created_by: userId, created_at: now,
-    }, 'id');
+    });
     const lineRows = await linesOf(trx, orderIds);
     for (const trip of preview.trips) {
-      const dues = (await trx<DbOrderRow>('orders').whereIn('id', trip.orders.map((o) => ctx.orderIds.get(o.ref)!)).pluck('due')).filter(Boolean).sort();
-      const [{ id: tripId }] = await trx('trips').insert({
+      const dues = await repo.dueDatesOf(trx, trip.orders.map((o) => ctx.orderIds.get(o.ref)!));
+      const tripId = await repo.insertTrip(trx, {
         wave_id: id, site_id: siteId, n: trip.n, status: 'released', planned_metres: trip.metres, lower_bound_metres: trip.lowerBound,
         s_shape_metres: trip.sShapeMetres, est_seconds: trip.estMinutes * 60, totes: trip.totes, kg: trip.kg, litres: trip.litres,
         depot_node: depotNode, due: dues[0] ?? null,
-      }, 'id');
+      });
       const toteOf = new Map<string, number>();
       for (const o of trip.orders) {
-        await trx('trip_orders').insert({ trip_id: tripId, order_id: ctx.orderIds.get(o.ref), totes: JSON.stringify(o.totes) });
+        await repo.insertTripOrder(trx, { trip_id: tripId, order_id: ctx.orderIds.get(o.ref), totes: JSON.stringify(o.totes) });
         toteOf.set(o.ref, o.totes[0]!);
       }
       // Lines per access point, in the order they were planned; an order's lines keep their line numbers.
       const used = new Set<number>();
       for (const s of trip.stops) {
-        const [{ id: stopId }] = await trx('stops').insert({ trip_id: tripId, n: s.n, node: s.node, x_m: s.x, y_m: s.y, bins: JSON.stringify(s.bins) }, 'id');
+        const stopId = await repo.insertStop(trx, { trip_id: tripId, n: s.n, node: s.node, x_m: s.x, y_m: s.y, bins: JSON.stringify(s.bins) });
         for (const o of trip.orders) {
           const orderId = ctx.orderIds.get(o.ref)!;
           for (const l of lineRows.get(orderId) ?? []) {
             const sku = skus.get(l.sku);
             if (!sku || !s.bins.includes(sku.bin) || used.has(l.id)) continue;
             used.add(l.id);
-            await trx('pick_lines').insert({
+            await repo.insertPickLine(trx, {
               trip_id: tripId, stop_id: stopId, order_id: orderId, order_line_id: l.id, order_ref: o.ref, sku: l.sku, description: sku.description,
               bin: sku.bin, qty: l.qty, tote: toteOf.get(o.ref)!,
             });
@@ -223,9 +216,9 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
         }
       }
     }
-    await trx('orders').whereIn('id', orderIds).update({ status: 'planned', wave_id: id });
+    await repo.markOrdersPlanned(trx, orderIds, id);
     await audit(trx, { siteId, userId, action: 'wave.released', subject: String(id), detail: { trips: preview.trips.length, orders: orderIds.length, previewId } });
-    return id!;
+    return id;
   });
 
   const detail = await waveDetail(db, siteId, waveId);
@@ -250,39 +243,19 @@ async function mailReleaseSummary(deps: Deps, siteId: number, w: WaveDetail, spe
   for (const s of supervisors) await deps.mailer.send({ to: s.email!, subject: `Released: ${w.name} (${w.trips} trips)`, text: lines.join('\n'), siteId });
 }
 
-const toSummary = (w: DbWaveRow & { plan_version: number | null; creator: string | null; trips_count: number }): WaveSummary => ({
+const toSummary = (w: repo.DbWaveListRow): WaveSummary => ({
   id: w.id, name: w.name, status: w.status, planId: w.plan_id, planVersion: w.plan_version ?? 0, cartName: w.cart_name, batching: w.batching,
   method: w.routing_method, improve: w.routing_improve, trips: w.trips_count, orders: w.orders_count, lines: w.lines_count,
   plannedMetres: w.planned_metres, singleMetres: w.single_metres, sShapeMetres: w.s_shape_metres, lowerBoundMetres: w.lower_bound_metres,
   estMinutes: Math.round(w.est_seconds / 6) / 10, createdAt: w.created_at, createdBy: w.creator, completedAt: w.completed_at,
 });
 
-function waveQuery(db: Knex, siteId: number) {
-  return db('waves')
-    .leftJoin('floor_plans', 'floor_plans.id', 'waves.plan_id')
-    .leftJoin('users', 'users.id', 'waves.created_by')
-    .where('waves.site_id', siteId)
-    .select('waves.*', 'floor_plans.version as plan_version', 'users.name as creator', db.raw('(select count(*) from trips where trips.wave_id = waves.id) as trips_count'));
+export async function listWaves(db: Q, siteId: number, status?: WaveSummary['status']): Promise<WaveSummary[]> {
+  return (await repo.listWaveRows(db, siteId, status)).map(toSummary);
 }
 
-export async function listWaves(db: Knex, siteId: number, status?: WaveSummary['status']): Promise<WaveSummary[]> {
-  const q = waveQuery(db, siteId).orderBy('waves.id', 'desc').limit(200);
-  if (status) q.andWhere('waves.status', status);
-  return (await q).map(toSummary);
-}
-
-interface DbTripRow {
-  id: number; wave_id: number; n: number; status: TripDetail['status']; picker_id: number | null; picker_name: string | null; planned_metres: number;
-  lower_bound_metres: number; est_seconds: number; totes: number; kg: number; litres: number;
-}
-
-async function tripSummaries(db: Knex, where: Record<string, unknown>) {
-  const trips: DbTripRow[] = await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').where(where).orderBy('trips.n').select('trips.*', 'users.name as picker_name');
-  const ids = trips.map((t) => t.id);
-  const orders: { trip_id: number; ref: string }[] = ids.length ? await db('trip_orders').join('orders', 'orders.id', 'trip_orders.order_id').whereIn('trip_id', ids).select('trip_id', 'orders.ref') : [];
-  const counts: { trip_id: number; stops: number; lines: number }[] = ids.length
-    ? await db('trips').whereIn('trips.id', ids).select('trips.id as trip_id', db.raw('(select count(*) from stops where stops.trip_id = trips.id) as stops'), db.raw('(select count(*) from pick_lines where pick_lines.trip_id = trips.id) as lines'))
-    : [];
+async function tripSummaries(db: Q, where: Record<string, unknown>) {
+  const { trips, orders, counts } = await repo.tripRows(db, where);
   return trips.map((t) => {
     const c = counts.find((x) => x.trip_id === t.id);
     return {
@@ -293,22 +266,19 @@ async function tripSummaries(db: Knex, where: Record<string, unknown>) {
   });
 }
 
-export async function waveDetail(db: Knex, siteId: number, waveId: number): Promise<WaveDetail> {
-  const w = await waveQuery(db, siteId).andWhere('waves.id', waveId).first();
+export async function waveDetail(db: Q, siteId: number, waveId: number): Promise<WaveDetail> {
+  const w = await repo.getWaveListRow(db, siteId, waveId);
   if (!w) throw notFound('Wave');
   return { ...toSummary(w), notes: JSON.parse(w.notes) as string[], tripList: await tripSummaries(db, { 'trips.wave_id': waveId }) };
 }
 
 /** A trip with its stops, pick lines and the route to draw, as the print view and the tablet show it. */
-export async function tripDetail(db: Knex, siteId: number, tripId: number): Promise<TripDetail> {
+export async function tripDetail(db: Q, siteId: number, tripId: number): Promise<TripDetail> {
   const [summary] = await tripSummaries(db, { 'trips.id': tripId, 'trips.site_id': siteId });
   if (!summary) throw notFound('Trip');
-  const trip = (await db('trips').where({ id: tripId }).first<{ wave_id: number }>())!;
-  const wave = (await db<DbWaveRow>('waves').where({ id: trip.wave_id }).first())!;
+  const wave = (await repo.waveOfTrip(db, tripId))!;
   const site = (await getSiteRow(db, siteId))!;
-  const stops: { id: number; n: number; x_m: number; y_m: number; bins: string; status: 'open' | 'done'; node: number }[] = await db('stops').where({ trip_id: tripId }).orderBy('n');
-  const lines: { id: number; stop_id: number; order_ref: string; sku: string; description: string; bin: string; qty: number; tote: number; status: 'open' | 'picked' | 'short' | 'cancelled'; picked_qty: number | null; short_reason: string | null }[] =
-    await db('pick_lines').where({ trip_id: tripId }).orderBy('id');
+  const { stops, lines } = await repo.printStopsAndLines(db, tripId);
   const plan = await loadPlanIndex(db, wave.plan_id);
   const depotNode = plan.depotNodes[wave.depot_idx]!;
   const poly = circuitPolyline(plan.graph, [depotNode, ...stops.map((s) => s.node)], true, plan.index);
@@ -331,15 +301,11 @@ export async function tripDetail(db: Knex, siteId: number, tripId: number): Prom
 /** Cancels a wave that no picker has started: its orders go back to the open pool. */
 export async function cancelWave(deps: Deps, siteId: number, userId: number, waveId: number): Promise<WaveDetail> {
   await deps.db.transaction(async (trx) => {
-    const w = await trx<DbWaveRow>('waves').where({ id: waveId, site_id: siteId }).first();
+    const w = await repo.waveOfSite(trx, siteId, waveId);
     if (!w) throw notFound('Wave');
     if (w.status !== 'released') throw new AppError('conflict', 'wave_started', 'Picking has started on this wave; cancel its trips from the live board instead');
-    const picked = await trx('pick_lines').join('trips', 'trips.id', 'pick_lines.trip_id').where('trips.wave_id', waveId).whereNot('pick_lines.status', 'open').count({ n: '*' });
-    if (Number(picked[0]!.n) > 0) throw new AppError('conflict', 'wave_started', 'Lines of this wave are already picked; cancel its trips from the live board instead');
-    await trx('waves').where({ id: waveId }).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
-    await trx('trips').where({ wave_id: waveId }).update({ status: 'cancelled' });
-    await trx('pick_lines').whereIn('trip_id', trx('trips').where({ wave_id: waveId }).select('id')).update({ status: 'cancelled' });
-    await trx('orders').where({ wave_id: waveId, site_id: siteId }).update({ status: 'open', wave_id: null });
+    if ((await repo.recordedLineCount(trx, waveId)) > 0) throw new AppError('conflict', 'wave_started', 'Lines of this wave are already picked; cancel its trips from the live board instead');
+    await repo.cancelWaveRows(trx, siteId, waveId);
     await audit(trx, { siteId, userId, action: 'wave.cancelled', subject: String(waveId) });
   });
   return waveDetail(deps.db, siteId, waveId);
