@@ -27,6 +27,7 @@ import { defineRoute } from '../http/route';
 import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
 import { getJob, watchJob } from './jobs';
+import type { Deps } from '../deps';
 import { skusWithoutBinCsv, skusWithoutBinXlsx } from './activation-check';
 
 const MANAGE: readonly Role[] = ['supervisor', 'admin'];
@@ -46,8 +47,8 @@ function sendFile(res: Response, bytes: Buffer | string, type: string, filename:
   return undefined;
 }
 
-function mustJob(siteId: number, id: string): FloorPlanJob {
-  const job = getJob(siteId, id);
+async function mustJob(deps: Deps, siteId: number, id: string): Promise<FloorPlanJob> {
+  const job = await getJob(deps, siteId, id);
   if (!job) throw notFound('Job');
   return job;
 }
@@ -87,12 +88,12 @@ export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId`, access: OFFICE, summary: 'A build job: phase, fraction, and the error table when the file had problems',
     response: FloorPlanJob,
-    handler: ({ siteId, params }) => mustJob(siteId!, params.jobId!),
+    handler: ({ deps, siteId, params }) => mustJob(deps, siteId!, params.jobId!),
   }),
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId/events`, access: OFFICE, summary: 'A build job as server-sent events (`progress` on every change, `end` once)',
-    handler: ({ req, res, siteId, params }) => {
-      const job = mustJob(siteId!, params.jobId!);
+    handler: async ({ deps, req, res, siteId, params }) => {
+      const job = await mustJob(deps, siteId!, params.jobId!);
       res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive' });
       const send = (event: string, data: FloorPlanJob) => res.write(`event: ${event}\ndata: ${JSON.stringify(data)}\n\n`);
       send('progress', job);
@@ -101,7 +102,7 @@ export const floorPlanRoutes = [
         res.end();
         return undefined;
       }
-      const stop = watchJob(siteId!, job.id, (j) => send('progress', j), (j) => {
+      const stop = watchJob(deps, siteId!, job.id, (j) => send('progress', j), (j) => {
         send('end', j);
         stop?.();
         res.end();
@@ -113,8 +114,8 @@ export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId/errors`, access: OFFICE, summary: "The error table of a refused upload, as xlsx (default) or CSV (?format=csv)",
     query: z.strictObject({ format: z.enum(['xlsx', 'csv']).default('xlsx') }),
-    handler: ({ res, siteId, params, query }) => {
-      const job = mustJob(siteId!, params.jobId!);
+    handler: async ({ deps, res, siteId, params, query }) => {
+      const job = await mustJob(deps, siteId!, params.jobId!);
       if (job.status !== 'invalid') throw new AppError('conflict', 'no_errors', 'This job has no error table');
       return query.format === 'csv'
         ? sendFile(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')
