@@ -190,6 +190,7 @@ class LocalJobRunner implements JobRunner {
       },
     };
     try {
+      await holdUnlessCancelled(testHoldMs(0), e.abort.signal);
       const result = await kind.run(e.data as never, ctx);
       if ((r.state as JobState) !== 'running') return;
       Object.assign(r, { state: 'done', progress: 1, phase: 'done', result: result ?? null, finishedAt: new Date().toISOString() });

@@ -18,7 +18,7 @@ import type { Knex } from 'knex';
 import type { EventHub } from '../events/hub';
 import { isJobStop } from './spawn';
 import {
-  describeJobFailure, isActive, JOB_CANCEL, JOB_CHANGED, KEEP_FINISHED_MS, PROGRESS_EVERY_MS,
+  describeJobFailure, holdUnlessCancelled, isActive, testHoldMs, JOB_CANCEL, JOB_CHANGED, KEEP_FINISHED_MS, PROGRESS_EVERY_MS,
   type JobContext, type JobKind, type JobRecord, type JobRunner, type JobState, type SubmitOptions,
 } from './jobs';
 
@@ -157,6 +157,7 @@ class PgJobRunner implements JobRunner {
       };
       let patch: Partial<Row>;
       try {
+        await holdUnlessCancelled(testHoldMs(attempt), abort.signal);
         const result = await kind.run(data as never, ctx);
         patch = { state: 'done', progress: 1, phase: 'done', result: JSON.stringify(result ?? null), finished_at: now() };
       } catch (err) {
