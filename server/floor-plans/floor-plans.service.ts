@@ -331,15 +331,18 @@ export function floorPlanBuildJob(deps: Deps): JobKind<BuildJobData, JobOutcome>
  * One closure change per plan at a time, so two supervisors cannot overwrite each other's arrays: in
  * this process by a promise chain, and between instances on PostgreSQL by an advisory lock as well.
  */
-const planLocks = new Map<number, Promise<unknown>>();
+const planLockChains = new WeakMap<Knex, Map<number, Promise<unknown>>>();
 function withPlanLock<T>(db: Knex, planId: number, work: () => Promise<T>): Promise<T> {
+  // Per database: plan ids are only unique within one (a process may hold several: tests, benchmarks).
+  let planLocks = planLockChains.get(db);
+  if (!planLocks) planLockChains.set(db, (planLocks = new Map()));
   const task = () => withAdvisoryLock(db, `floor-plan-closures:${planId}`, work);
   const prev = planLocks.get(planId) ?? Promise.resolve();
   const run = prev.then(task, task);
   const tail = run.catch(() => undefined);
   planLocks.set(planId, tail);
   void tail.then(() => {
-    if (planLocks.get(planId) === tail) planLocks.delete(planId);
+    if (planLocks!.get(planId) === tail) planLocks!.delete(planId);
   });
   return run;
 }

@@ -17,6 +17,7 @@ import type { Logger } from 'pino';
 import type { Knex } from 'knex';
 import type { EventHub } from '../events/hub';
 import { isJobStop } from './spawn';
+import { withAdvisoryLock } from '../db/dialect';
 import {
   describeJobFailure, holdUnlessCancelled, isActive, testHoldMs, JOB_CANCEL, JOB_CHANGED, KEEP_FINISHED_MS, PROGRESS_EVERY_MS,
   type JobContext, type JobKind, type JobRecord, type JobRunner, type JobState, type SubmitOptions,
@@ -266,9 +267,10 @@ class PgJobRunner implements JobRunner {
   }
 }
 
-/** Starts pg-boss (it creates or upgrades its schema once, under its own lock) and answers the runner. */
+/** Starts pg-boss (it creates or upgrades its schema at first start) and answers the runner. */
 export async function createPgJobRunner(o: PgJobRunnerOptions): Promise<JobRunner> {
   const boss = new PgBoss({ connectionString: o.url, schema: o.bossSchema, max: 4, application_name: 'aislewright-jobs', schedule: false });
-  await boss.start();
+  // Instances starting together would race creating pg-boss's schema: one at a time.
+  await withAdvisoryLock(o.db, `pg-boss-start:${o.bossSchema}`, () => boss.start());
   return new PgJobRunner(boss, o);
 }
