@@ -68,6 +68,7 @@ class PgJobRunner implements JobRunner {
   private readonly timers: NodeJS.Timeout[] = [];
   private readonly unsubscribe: (() => void)[] = [];
   private closed = false;
+  private queues: Promise<unknown> = Promise.resolve();
 
   constructor(
     private readonly boss: PgBoss,
@@ -99,15 +100,16 @@ class PgJobRunner implements JobRunner {
     const known = this.kinds.has(k.name);
     this.kinds.set(k.name, k);
     if (known) return;
+    // Queues are created one at a time, across instances too: pg-boss's create_queue alters shared
+    // tables, and two at once deadlock (seen here with four kinds defined together).
+    const created = this.queues.then(() =>
+      withAdvisoryLock(this.db, `pg-boss-queues:${this.o.bossSchema}`, async () => {
+        if (!(await this.boss.getQueue(k.name))) await this.boss.createQueue(k.name, { name: k.name, retryLimit: RETRY_LIMIT, retryDelay: 0, expireInSeconds: k.expireInSeconds });
+      }),
+    );
+    this.queues = created.catch(() => undefined);
     const start = (async () => {
-      if (!(await this.boss.getQueue(k.name))) {
-        try {
-          await this.boss.createQueue(k.name, { name: k.name, retryLimit: RETRY_LIMIT, retryDelay: 0, expireInSeconds: k.expireInSeconds });
-        } catch (err) {
-          // Another instance created it at the same moment.
-          if (!(await this.boss.getQueue(k.name))) throw err;
-        }
-      }
+      await created;
       if (this.closed) return;
       const workerId = await this.boss.work<{ data: unknown }>(k.name, { batchSize: 1, pollingIntervalSeconds: POLL_SECONDS, includeMetadata: true }, async ([job]) => {
         if (job) await this.execute(job.name, job.id, job.data.data, job.retryCount);
