@@ -42,6 +42,8 @@ import {
 } from './slotting.repository';
 
 const DAY_MS = 86_400_000;
+/** A queued or running row without a live job this long after it was saved was cut off. */
+const ORPHAN_AFTER_MS = 30_000;
 /** A run that has not finished in this long is stopped (a large site's search takes a few minutes at most). */
 const RUN_TIMEOUT_MS = 15 * 60_000;
 /** Seconds the search may spend improving, beside the before/after measurements. */
@@ -81,8 +83,9 @@ function summaryOf(r: Omit<DbSlottingRunRow, 'results' | 'inputs'> & { creator: 
 }
 
 /** A run left queued or running by a restart has nobody working on it: say so. */
-async function settleOrphan<T extends { id: number; site_id: number; status: string; error: string | null; finished_at: string | null }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
-  if ((row.status === 'queued' || row.status === 'running') && !isActive(job)) {
+async function settleOrphan<T extends { id: number; site_id: number; status: string; error: string | null; finished_at: string | null; created_at: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
+  // A row just saved may not have its job yet (the submit is a moment after the insert).
+  if ((row.status === 'queued' || row.status === 'running') && !isActive(job) && Date.now() - Date.parse(row.created_at) > ORPHAN_AFTER_MS) {
     // The job may have ended a moment ago and be writing the row: read it again first.
     const again = await getRunRow(deps.db, row.site_id, row.id);
     if (again && again.status !== 'queued' && again.status !== 'running') return { ...row, ...again };

@@ -32,6 +32,8 @@ import {
   deleteStudyRow, getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
 } from './studies.repository';
 
+/** A queued or running row without a live job this long after it was saved was cut off. */
+const ORPHAN_AFTER_MS = 30_000;
 /** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
 const FALLBACK_CART = { totes: 8, maxKg: 150, maxLitres: 400 };
 /** A study's process is stopped after this long; the engine's own budgets are step counts, not time. */
@@ -255,8 +257,9 @@ async function getStudySummary(deps: Deps, siteId: number, id: number): Promise<
  * A row still queued or running whose job has ended or is unknown was cut off (by a restart of the one
  * SQLite process; on PostgreSQL a dead instance's job is taken over by another and stays live).
  */
-async function settleOrphan<T extends { id: number; site_id: number; status: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
-  if ((row.status === 'queued' || row.status === 'running') && !isActive(job)) {
+async function settleOrphan<T extends { id: number; site_id: number; status: string; created_at: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
+  // A row just saved may not have its job yet (the submit is a moment after the insert).
+  if ((row.status === 'queued' || row.status === 'running') && !isActive(job) && Date.now() - Date.parse(row.created_at) > ORPHAN_AFTER_MS) {
     // The job may have ended a moment ago and be writing the row: read it again first.
     const again = await getStudyRow(deps.db, row.site_id, row.id);
     if (again && again.status !== 'queued' && again.status !== 'running') return { ...row, ...again };
