@@ -13,9 +13,10 @@ import { mountRoutes } from './http/mount';
 import { DbRateLimitStore } from './http/rate-limit-store';
 import { isPg } from './db/dialect';
 import type { AnyRoute } from './http/route';
-import { eventHub } from './events/hub';
 import { SITE_CHANGED, withSiteEvents, type SiteChangeSink } from './picking/events';
 import { routeTable } from './routes';
+import { buildOpenApi } from './system/openapi';
+import { registerJobKinds } from './workers/job-kinds';
 
 export interface AppOptions {
   /** Built client to serve (dist/client); omitted in API tests. */
@@ -75,7 +76,7 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
   // Board changes signalled while serving a request reach this app's live-board streams (events.ts);
   // with several instances on PostgreSQL they travel through the shared hub, so every instance's
   // streams hear them (this one included, through its own subscription).
-  const hub = eventHub();
+  const hub = deps.events;
   const sink: SiteChangeSink = hub.shared ? { siteChanged: (siteId) => hub.publish(SITE_CHANGED, siteId) } : deps.boardStreams;
   if (hub.shared) hub.subscribe(SITE_CHANGED, (siteId) => deps.boardStreams.siteChanged(Number(siteId)));
   app.use((_req, _res, next) => withSiteEvents(sink, next));
@@ -103,7 +104,13 @@ export function createApp(deps: Deps, options: AppOptions = {}): Express {
     }),
   );
 
-  mountRoutes(app, options.routes ?? routeTable, deps);
+  const routes = options.routes ?? routeTable;
+  // The OpenAPI document describes the routes this app mounted, built on first request.
+  let openApi: unknown = null;
+  app.locals.openApi = () => (openApi ??= buildOpenApi(routes, deps.version));
+  // Heavy jobs of every kind run through this app's job runner (server/workers/jobs.ts).
+  registerJobKinds(deps);
+  mountRoutes(app, routes, deps);
   app.use('/api', apiNotFound);
 
   if (options.clientDir && existsSync(options.clientDir)) {

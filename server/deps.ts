@@ -7,6 +7,8 @@ import type { SignInBackoff } from './auth/backoff';
 import type { Background } from './system/background';
 import type { BoardStreams } from './picking/board-streams';
 import type { BackupRunner } from './backups/backup-runner';
+import type { EventHub } from './events/hub';
+import type { JobRunner } from './workers/jobs';
 
 /** Everything the app needs, built in main.ts (or a test helper) and passed to createApp. */
 export interface Deps {
@@ -17,6 +19,13 @@ export interface Deps {
   /** Sign-in back-off and attempt limits, kept in the database. */
   backoff: SignInBackoff;
   background: Background;
+  /** This app's event hub: in-process on SQLite, LISTEN/NOTIFY between instances on PostgreSQL. */
+  events: EventHub;
+  /**
+   * Heavy jobs (wave previews, studies, slotting runs, plan builds): in memory on SQLite, queued in
+   * PostgreSQL (pg-boss) with several instances. createApp registers the kinds.
+   */
+  jobs: JobRunner;
   jwtSecret: string;
   logger: Logger;
   version: string;

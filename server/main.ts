@@ -11,7 +11,9 @@ import { SignInBackoff } from './auth/backoff';
 import { createHasher } from './auth/hasher';
 import { loadConfig } from './config';
 import { migrateLatest, openDb } from './db/knex';
-import { createPgHub, useEventHub } from './events/hub';
+import { createLocalHub, createPgHub } from './events/hub';
+import { createLocalJobRunner } from './workers/jobs';
+import { createPgJobRunner } from './workers/pg-jobs';
 import { createMailer } from './mail/mailer';
 import { createBackground } from './system/background';
 import { createBoardStreams } from './picking/board-streams';
@@ -51,10 +53,12 @@ async function main(): Promise<void> {
   await migrateLatest(db);
   // `aislewright backup restore` refuses while this claim is held by a live process.
   const releaseDatabase = config.DATABASE_URL || dbFile === ':memory:' ? () => undefined : claimDatabase(dbFile);
-  if (config.DATABASE_URL) {
-    // Several instances: live-board and job events travel between them through LISTEN/NOTIFY.
-    useEventHub(await createPgHub(config.DATABASE_URL, (err) => logger.warn({ err }, 'event hub connection')));
-  }
+  // Several instances: live-board and job events travel between them through LISTEN/NOTIFY, and heavy
+  // jobs through a queue in PostgreSQL (pg-boss, schema "pgboss"); one SQLite process keeps both in memory.
+  const events = config.DATABASE_URL ? await createPgHub(config.DATABASE_URL, (err) => logger.warn({ err }, 'event hub connection')) : createLocalHub();
+  const jobs = config.DATABASE_URL
+    ? await createPgJobRunner({ db, url: config.DATABASE_URL, bossSchema: 'pgboss', events, logger })
+    : createLocalJobRunner(events, logger);
   const hasher = createHasher();
   const mailer = createMailer(db, { smtpUrl: config.SMTP_URL, from: config.MAIL_FROM });
   // Backups copy the SQLite file; on PostgreSQL the site backs up with pg_dump (README).
@@ -77,6 +81,8 @@ async function main(): Promise<void> {
     hasher,
     backoff: new SignInBackoff(db),
     background: createBackground(logger),
+    events,
+    jobs,
     mailer,
     jwtSecret: jwtSecret(config.JWT_SECRET, dbFile === ':memory:' ? join(root, 'data') : dirname(dbFile)),
     logger,
@@ -116,7 +122,7 @@ async function main(): Promise<void> {
   }
   const tasks = startTasks(deps);
   const stop = () => {
-    server.close(() => void tasks.stop().then(() => deps.background.settled()).then(() => db.destroy()).then(() => {
+    server.close(() => void tasks.stop().then(() => deps.background.settled()).then(() => jobs.close()).then(() => events.close()).then(() => db.destroy()).then(() => {
       releaseDatabase();
       process.exit(0);
     }));

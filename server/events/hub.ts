@@ -3,6 +3,9 @@
  * With SQLite there is one process, so the hub is in-process. With PostgreSQL several instances share
  * the data, so a publish also goes out as a `NOTIFY` on one channel (through pg-listen) and every
  * instance's subscribers hear it, typically within a few milliseconds.
+ *
+ * Each app has its own hub (`deps.events`, built in main.ts or a test helper); nothing here is held at
+ * module level.
  */
 import { randomUUID } from 'node:crypto';
 import createPostgresSubscriber, { type Subscriber } from 'pg-listen';
@@ -101,18 +104,4 @@ export async function createPgHub(url: string, onError: (err: Error) => void = (
   await subscriber.connect();
   await subscriber.listenTo(NOTIFY_CHANNEL);
   return new PgHub(subscriber, onError);
-}
-
-let current: EventHub = createLocalHub();
-
-/** The process's hub: in-process unless main.ts installed the PostgreSQL one. */
-export function eventHub(): EventHub {
-  return current;
-}
-
-/** Installs the process's hub (main.ts on PostgreSQL; tests). Returns the one it replaced. */
-export function useEventHub(hub: EventHub): EventHub {
-  const before = current;
-  current = hub;
-  return before;
 }

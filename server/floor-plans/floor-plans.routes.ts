@@ -29,6 +29,7 @@ import { defineRoute } from '../http/route';
 import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
 import { getJob, watchJob } from './jobs';
+import type { Deps } from '../deps';
 import { skusWithoutBinCsv, skusWithoutBinXlsx } from './activation-check';
 
 const MANAGE: readonly Role[] = ['supervisor', 'admin'];
@@ -39,8 +40,8 @@ const base = '/api/sites/:siteId/floor-plans';
 
 const planIdOf = (params: { planId: string }) => pathId(params.planId, 'Floor plan');
 
-function mustJob(siteId: number, id: string): FloorPlanJob {
-  const job = getJob(siteId, id);
+async function mustJob(deps: Deps, siteId: number, id: string): Promise<FloorPlanJob> {
+  const job = await getJob(deps, siteId, id);
   if (!job) throw notFound('Job');
   return job;
 }
@@ -80,12 +81,12 @@ export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId`, access: OFFICE, summary: 'A build job: phase, fraction, and the error table when the file had problems',
     response: FloorPlanJob,
-    handler: ({ siteId, params }) => mustJob(siteId, params.jobId),
+    handler: ({ deps, siteId, params }) => mustJob(deps, siteId, params.jobId),
   }),
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId/events`, access: OFFICE, summary: 'A build job as server-sent events (`progress` on every change, `end` once)',
-    handler: ({ req, res, siteId, params }) => {
-      const job = mustJob(siteId, params.jobId);
+    handler: async ({ deps, req, res, siteId, params }) => {
+      const job = await mustJob(deps, siteId, params.jobId);
       const stream = openEventStream(req, res);
       stream.send('progress', job);
       if (job.finishedAt) {
@@ -93,7 +94,7 @@ export const floorPlanRoutes = [
         stream.end();
         return undefined;
       }
-      const stop = watchJob(siteId, job.id, (j) => stream.send('progress', j), (j) => {
+      const stop = watchJob(deps, siteId, job.id, (j) => stream.send('progress', j), (j) => {
         stream.send('end', j);
         stop?.();
         stream.end();
@@ -105,8 +106,8 @@ export const floorPlanRoutes = [
   defineRoute({
     method: 'get', path: `${base}/jobs/:jobId/errors`, access: OFFICE, summary: "The error table of a refused upload, as xlsx (default) or CSV (?format=csv)",
     query: z.strictObject({ format: z.enum(['xlsx', 'csv']).default('xlsx') }),
-    handler: ({ res, siteId, params, query }) => {
-      const job = mustJob(siteId, params.jobId);
+    handler: async ({ deps, res, siteId, params, query }) => {
+      const job = await mustJob(deps, siteId, params.jobId);
       if (job.status !== 'invalid') throw new AppError('conflict', 'no_errors', 'This job has no error table');
       return query.format === 'csv'
         ? sendAttachment(res, rowIssuesToCsv(job.errors), 'text/csv; charset=utf-8', 'floor-plan-errors.csv')

@@ -33,7 +33,9 @@ import { jobStopMessage } from '../workers/spawn';
 import { BUILD_BUDGET_MS, runBuild, type BuildOutput } from './build';
 import * as repo from './floor-plans.repository';
 import { checkFloorPlanFile } from './import';
-import { startJob, type JobControl, type JobOutcome } from './jobs';
+import { FLOOR_PLAN_BUILD_JOB, startJob, type BuildJobData, type JobControl, type JobOutcome } from './jobs';
+import type { Deps } from '../deps';
+import type { JobKind } from '../workers/jobs';
 import { forgetPlanIndex, loadPlanIndex } from './plan-index';
 import { packPlan, unpackPlan } from './packed-plan';
 import { unreachableBinCodes } from './reachability';
@@ -250,31 +252,29 @@ const stripExtension = (filename: string) => filename.replace(/\.(xlsx|xls|csv)$
  * Starts an upload job: check every row (worker), then walk graph and distances (worker), then save a
  * draft. A file with errors ends the job as 'invalid' with its RowIssue table and saves nothing.
  */
-export function startUpload({ db, logger }: { db: Knex; logger: Logger }, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }): FloorPlanJob {
-  return startJob(
-    input.siteId,
-    'upload',
-    async (control): Promise<JobOutcome> => {
-      control.progress('parsing', 0);
-      const check = await checkFloorPlanFile(input.bytes, input.filename, { onProgress: (p) => control.progress(p.phase, p.fraction) });
-      if (!check.ok || !check.plan) {
-        return { status: 'invalid', errors: check.errors, warnings: check.warnings, message: `${check.errors.length} problem${check.errors.length === 1 ? '' : 's'} found; nothing was saved` };
-      }
-      const plan = check.plan;
-      const built = await buildWithProgress(control, { kind: 'geometry', plan: packPlan(plan), closures: [], budgetMs: BUILD_BUDGET_MS });
-      control.progress('saving', 0);
-      const name = input.name?.trim() || stripExtension(input.filename) || 'Uploaded plan';
-      const planId = await saveBuiltPlan(
-        db,
-        { siteId: input.siteId, userId: input.userId, name, source: 'upload', sourceFilename: input.filename, generatorParams: null, warnings: check.warnings },
-        plan,
-        built,
-        (f) => control.progress('saving', f),
-      );
-      return { status: 'done', planId, warnings: check.warnings };
-    },
-    failureDescriber(logger),
+export function startUpload(deps: Deps, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }): Promise<FloorPlanJob> {
+  const { bytes, ...rest } = input;
+  return startJob(deps, { kind: 'upload', ...rest, bytes: Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('base64') });
+}
+
+async function runUpload(db: Knex, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }, control: JobControl): Promise<JobOutcome> {
+  control.progress('parsing', 0);
+  const check = await checkFloorPlanFile(input.bytes, input.filename, { onProgress: (p) => control.progress(p.phase, p.fraction) });
+  if (!check.ok || !check.plan) {
+    return { status: 'invalid', errors: check.errors, warnings: check.warnings, message: `${check.errors.length} problem${check.errors.length === 1 ? '' : 's'} found; nothing was saved` };
+  }
+  const plan = check.plan;
+  const built = await buildWithProgress(control, { kind: 'geometry', plan: packPlan(plan), closures: [], budgetMs: BUILD_BUDGET_MS });
+  control.progress('saving', 0);
+  const name = input.name?.trim() || stripExtension(input.filename) || 'Uploaded plan';
+  const planId = await saveBuiltPlan(
+    db,
+    { siteId: input.siteId, userId: input.userId, name, source: 'upload', sourceFilename: input.filename, generatorParams: null, warnings: check.warnings },
+    plan,
+    built,
+    (f) => control.progress('saving', f),
   );
+  return { status: 'done', planId, warnings: check.warnings };
 }
 
 export const engineParams = (p: GeneratePlanParams): RectangularPlanParams => ({
@@ -290,24 +290,39 @@ export const engineParams = (p: GeneratePlanParams): RectangularPlanParams => ({
 });
 
 /** Starts a job that generates a rectangular plan from parameters and saves it as a draft. */
-export function startGenerate({ db, logger }: { db: Knex; logger: Logger }, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }): FloorPlanJob {
-  return startJob(
-    input.siteId,
-    'generate',
-    async (control): Promise<JobOutcome> => {
-      const built = await buildWithProgress(control, { kind: 'generate', params: engineParams(input.params), closures: [], budgetMs: BUILD_BUDGET_MS });
-      control.progress('saving', 0);
-      const planId = await saveBuiltPlan(
-        db,
-        { siteId: input.siteId, userId: input.userId, name: input.name, source: 'generated', sourceFilename: null, generatorParams: input.params, warnings: [] },
-        unpackPlan(built.plan!),
-        built,
-        (f) => control.progress('saving', f),
-      );
-      return { status: 'done', planId, warnings: [] };
-    },
-    failureDescriber(logger),
+export function startGenerate(deps: Deps, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }): Promise<FloorPlanJob> {
+  return startJob(deps, { kind: 'generate', ...input });
+}
+
+async function runGenerate(db: Knex, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }, control: JobControl): Promise<JobOutcome> {
+  const built = await buildWithProgress(control, { kind: 'generate', params: engineParams(input.params), closures: [], budgetMs: BUILD_BUDGET_MS });
+  control.progress('saving', 0);
+  const planId = await saveBuiltPlan(
+    db,
+    { siteId: input.siteId, userId: input.userId, name: input.name, source: 'generated', sourceFilename: null, generatorParams: input.params, warnings: [] },
+    unpackPlan(built.plan!),
+    built,
+    (f) => control.progress('saving', f),
   );
+  return { status: 'done', planId, warnings: [] };
+}
+
+/** Plan builds (upload and generate) as one job kind: one build at a time per instance. */
+export function floorPlanBuildJob(deps: Deps): JobKind<BuildJobData, JobOutcome> {
+  return {
+    name: FLOOR_PLAN_BUILD_JOB,
+    run: (data, job) => {
+      const control: JobControl = { progress: (phase, fraction) => job.progress(fraction, phase) };
+      if (data.kind === 'upload') {
+        const { bytes, kind: _kind, ...rest } = data;
+        return runUpload(deps.db, { ...rest, bytes: new Uint8Array(Buffer.from(bytes, 'base64')) }, control);
+      }
+      const { kind: _kind, ...rest } = data;
+      return runGenerate(deps.db, rest, control);
+    },
+    describeFailure: failureDescriber(deps.logger),
+    expireInSeconds: 10 * 60,
+  };
 }
 
 // ---- closures ----
@@ -316,15 +331,18 @@ export function startGenerate({ db, logger }: { db: Knex; logger: Logger }, inpu
  * One closure change per plan at a time, so two supervisors cannot overwrite each other's arrays: in
  * this process by a promise chain, and between instances on PostgreSQL by an advisory lock as well.
  */
-const planLocks = new Map<number, Promise<unknown>>();
+const planLockChains = new WeakMap<Knex, Map<number, Promise<unknown>>>();
 function withPlanLock<T>(db: Knex, planId: number, work: () => Promise<T>): Promise<T> {
+  // Per database: plan ids are only unique within one (a process may hold several: tests, benchmarks).
+  let planLocks = planLockChains.get(db);
+  if (!planLocks) planLockChains.set(db, (planLocks = new Map()));
   const task = () => withAdvisoryLock(db, `floor-plan-closures:${planId}`, work);
   const prev = planLocks.get(planId) ?? Promise.resolve();
   const run = prev.then(task, task);
   const tail = run.catch(() => undefined);
   planLocks.set(planId, tail);
   void tail.then(() => {
-    if (planLocks.get(planId) === tail) planLocks.delete(planId);
+    if (planLocks!.get(planId) === tail) planLocks!.delete(planId);
   });
   return run;
 }

@@ -1,129 +1,96 @@
 /**
- * Floor-plan build jobs: in memory, one at a time (the machine has two cores shared by everyone),
- * each readable by polling or as a stream of updates. A job is forgotten an hour after it ends.
+ * Floor-plan build jobs (upload check-and-build, generate) as jobs of the app's job runner
+ * (server/workers/jobs.ts): one at a time per instance, each readable by polling or as a stream of
+ * updates, on any instance when several share PostgreSQL. A job is forgotten an hour after it ends.
  */
-import { EventEmitter } from 'node:events';
-import { randomUUID } from 'node:crypto';
-import type { FloorPlanJob, JobPhase } from '../../shared/floor-plans';
+import type { FloorPlanJob, GeneratePlanParams, JobPhase } from '../../shared/floor-plans';
+import { JobPhase as JobPhaseSchema } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
+import type { Deps } from '../deps';
+import { isActive, type JobRecord } from '../workers/jobs';
 
-const KEEP_FINISHED_MS = 60 * 60_000;
-/** Progress events closer together than this are merged (a poll or SSE client needs no more). */
-const PROGRESS_EVERY_MS = 100;
+export const FLOOR_PLAN_BUILD_JOB = 'floor-plan-build';
 
 export type JobOutcome =
   | { status: 'done'; planId: number; warnings: RowIssue[] }
   | { status: 'invalid'; errors: RowIssue[]; warnings: RowIssue[]; message: string };
 
-interface JobEntry {
-  job: FloorPlanJob;
-  started: number;
-  lastEmit: number;
-  events: EventEmitter;
-}
-
 export interface JobControl {
   progress(phase: JobPhase, fraction: number): void;
 }
 
-const jobs = new Map<string, JobEntry>();
-let queue: Promise<unknown> = Promise.resolve();
+/** What a build job is given (JSON: it may travel to another instance; an upload's bytes as base64). */
+export type BuildJobData =
+  | { kind: 'upload'; siteId: number; userId: number; bytes: string; filename: string; name?: string }
+  | { kind: 'generate'; siteId: number; userId: number; name: string; params: GeneratePlanParams };
 
-function emit(entry: JobEntry, force: boolean): void {
-  const now = Date.now();
-  if (!force && now - entry.lastEmit < PROGRESS_EVERY_MS) return;
-  entry.lastEmit = now;
-  entry.events.emit('update', entry.job);
+/** The job's key tells its kind (the record carries no data). */
+const keyOf = (kind: FloorPlanJob['kind']) => `floor-plan-${kind}`;
+
+function toFloorPlanJob(r: JobRecord<JobOutcome>): FloorPlanJob {
+  const out = r.state === 'done' ? r.result : null;
+  const phase = JobPhaseSchema.safeParse(r.phase);
+  const finishedAt = isActive(r) ? null : (r.finishedAt ?? new Date().toISOString());
+  return {
+    id: r.id,
+    siteId: r.siteId ?? 0,
+    kind: r.key === keyOf('upload') ? 'upload' : 'generate',
+    status: isActive(r) ? 'running' : out ? out.status : 'failed',
+    phase: out?.status === 'done' ? 'done' : phase.success ? phase.data : 'queued',
+    fraction: out?.status === 'done' ? 1 : Math.max(0, Math.min(1, r.progress)),
+    message: out?.status === 'invalid' ? out.message : r.state === 'failed' || r.state === 'cancelled' ? (r.error ?? 'The job was cancelled') : null,
+    planId: out?.status === 'done' ? out.planId : null,
+    errors: out?.status === 'invalid' ? out.errors : [],
+    warnings: out?.warnings ?? [],
+    createdAt: r.createdAt,
+    finishedAt,
+    totalMs: finishedAt ? Math.max(0, Date.parse(finishedAt) - Date.parse(r.createdAt)) : null,
+  };
 }
 
-function sweep(): void {
-  const cutoff = Date.now() - KEEP_FINISHED_MS;
-  for (const [id, e] of jobs) if (e.job.finishedAt && Date.parse(e.job.finishedAt) < cutoff) jobs.delete(id);
-}
-
-/**
- * Registers a job and queues `work` behind any running one. `work` reports progress through the
- * control and resolves to its outcome; a throw marks the job failed with the error's message.
- */
-export function startJob(
-  siteId: number,
-  kind: FloorPlanJob['kind'],
-  work: (control: JobControl) => Promise<JobOutcome>,
-  describeFailure: (err: unknown) => string,
-): FloorPlanJob {
-  sweep();
-  const job: FloorPlanJob = {
-    id: randomUUID(),
-    siteId,
-    kind,
-    status: 'running',
-    phase: 'queued',
-    fraction: 0,
-    message: null,
-    planId: null,
-    errors: [],
-    warnings: [],
-    createdAt: new Date().toISOString(),
-    finishedAt: null,
-    totalMs: null,
-  };
-  const entry: JobEntry = { job, started: performance.now(), lastEmit: 0, events: new EventEmitter() };
-  entry.events.setMaxListeners(50);
-  jobs.set(job.id, entry);
-  const control: JobControl = {
-    progress(phase, fraction) {
-      const changed = phase !== job.phase;
-      job.phase = phase;
-      job.fraction = Math.max(0, Math.min(1, fraction));
-      emit(entry, changed);
-    },
-  };
-  const finish = (patch: Partial<FloorPlanJob>) => {
-    Object.assign(job, patch, { finishedAt: new Date().toISOString(), totalMs: Math.round(performance.now() - entry.started) });
-    emit(entry, true);
-    entry.events.emit('end', job);
-  };
-  const run = queue.then(() => work(control));
-  queue = run.catch(() => undefined);
-  run.then(
-    (outcome) => {
-      if (outcome.status === 'done') finish({ status: 'done', phase: 'done', fraction: 1, planId: outcome.planId, warnings: outcome.warnings });
-      else finish({ status: 'invalid', errors: outcome.errors, warnings: outcome.warnings, message: outcome.message });
-    },
-    (err: unknown) => finish({ status: 'failed', message: describeFailure(err) }),
-  );
-  return { ...job };
+/** Submits a build job; it waits behind any build running on the instance that takes it. */
+export async function startJob(deps: Deps, data: BuildJobData): Promise<FloorPlanJob> {
+  const r = await deps.jobs.submit(FLOOR_PLAN_BUILD_JOB, data, { siteId: data.siteId, key: keyOf(data.kind) });
+  return toFloorPlanJob(r as JobRecord<JobOutcome>);
 }
 
 /** The job as it stands, or undefined when unknown, forgotten, or of another site. */
-export function getJob(siteId: number, id: string): FloorPlanJob | undefined {
-  const e = jobs.get(id);
-  return e && e.job.siteId === siteId ? { ...e.job } : undefined;
+export async function getJob(deps: Deps, siteId: number, id: string): Promise<FloorPlanJob | undefined> {
+  const r = await deps.jobs.get<JobOutcome>(id);
+  return r && r.kind === FLOOR_PLAN_BUILD_JOB && r.siteId === siteId ? toFloorPlanJob(r) : undefined;
 }
 
-/** Calls `onUpdate` on every change until the job ends; returns the unsubscribe function. */
-export function watchJob(siteId: number, id: string, onUpdate: (job: FloorPlanJob) => void, onEnd: (job: FloorPlanJob) => void): (() => void) | null {
-  const e = jobs.get(id);
-  if (!e || e.job.siteId !== siteId) return null;
-  const update = (j: FloorPlanJob) => onUpdate({ ...j });
-  const end = (j: FloorPlanJob) => onEnd({ ...j });
-  e.events.on('update', update);
-  e.events.on('end', end);
+/** Calls `onUpdate` on every change until the job ends, then `onEnd` once; returns the unsubscribe function. */
+export function watchJob(deps: Deps, siteId: number, id: string, onUpdate: (job: FloorPlanJob) => void, onEnd: (job: FloorPlanJob) => void): () => void {
+  let ended = false;
+  let reading: Promise<unknown> = Promise.resolve();
+  const check = () => {
+    reading = reading.then(async () => {
+      if (ended) return;
+      const j = await getJob(deps, siteId, id);
+      if (!j || ended) return;
+      if (j.finishedAt) {
+        ended = true;
+        stop();
+        onEnd(j);
+      } else onUpdate(j);
+    }).catch(() => undefined);
+  };
+  const stop = deps.jobs.watch(id, check);
+  // A change made before the watch began is read once now.
+  check();
   return () => {
-    e.events.off('update', update);
-    e.events.off('end', end);
+    ended = true;
+    stop();
   };
 }
 
 /** Resolves when the job ends (tests, the seeder). */
-export function whenJobEnds(siteId: number, id: string): Promise<FloorPlanJob> {
-  return new Promise((resolve, reject) => {
-    const now = getJob(siteId, id);
-    if (!now) return reject(new Error(`unknown job ${id}`));
-    if (now.finishedAt) return resolve(now);
-    const stop = watchJob(siteId, id, () => undefined, (j) => {
-      stop?.();
-      resolve(j);
-    });
-  });
+export async function whenJobEnds(deps: Deps, siteId: number, id: string): Promise<FloorPlanJob> {
+  for (;;) {
+    const j = await getJob(deps, siteId, id);
+    if (!j) throw new Error(`unknown job ${id}`);
+    if (j.finishedAt) return j;
+    await new Promise((r) => setTimeout(r, 100));
+  }
 }

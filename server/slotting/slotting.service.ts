@@ -14,6 +14,7 @@ import { readTableFile } from '../orders/orders.files';
 import { validateOrderRows } from '../orders/orders.validate';
 import { getCartProfile, getSiteRow } from '../sites/sites.repository';
 import { jobStopMessage, runInWorker } from '../workers/spawn';
+import { isActive, type JobContext, type JobKind, type JobRecord } from '../workers/jobs';
 import {
   SlottingApplyBody,
   SlottingInputs,
@@ -41,30 +42,27 @@ import {
 } from './slotting.repository';
 
 const DAY_MS = 86_400_000;
+/** A queued or running row without a live job this long after it was saved was cut off. */
+const ORPHAN_AFTER_MS = 30_000;
 /** A run that has not finished in this long is stopped (a large site's search takes a few minutes at most). */
 const RUN_TIMEOUT_MS = 15 * 60_000;
 /** Seconds the search may spend improving, beside the before/after measurements. */
 const SEARCH_BUDGET_MS = 20_000;
 
-interface Live {
-  progress: number;
-  cancel: AbortController;
+export const SLOTTING_JOB = 'slotting-run';
+/** The job key of a run: its newest job tells its live progress. */
+const runKey = (id: number) => `slotting:${id}`;
+
+/** What a run's job is given (JSON): the run and everything it needs, read and checked when it was started. */
+interface SlottingRunData {
+  siteId: number;
+  runId: number;
+  job: SlottingJobInput;
 }
 
-/** Runs in flight of one app, and the chain that keeps them one at a time (two cores serve every request too). */
-interface RunState {
-  live: Map<number, Live>;
-  chain: Promise<unknown>;
-}
-const states = new WeakMap<Deps, RunState>();
-const stateOf = (deps: Deps): RunState => {
-  let s = states.get(deps);
-  if (!s) {
-    s = { live: new Map(), chain: Promise.resolve() };
-    states.set(deps, s);
-  }
-  return s;
-};
+type Live = { progress: number } | undefined;
+const liveOf = (r: JobRecord | null): Live => (r && isActive(r) ? { progress: r.progress } : undefined);
+const runJobOf = (deps: Deps, id: number) => deps.jobs.latest(runKey(id));
 
 const dayText = (day: number): string => new Date(day * DAY_MS).toISOString().slice(0, 10);
 
@@ -85,8 +83,12 @@ function summaryOf(r: Omit<DbSlottingRunRow, 'results' | 'inputs'> & { creator: 
 }
 
 /** A run left queued or running by a restart has nobody working on it: say so. */
-async function settleOrphan<T extends { id: number; status: string; error: string | null; finished_at: string | null }>(deps: Deps, row: T): Promise<T> {
-  if ((row.status === 'queued' || row.status === 'running') && !stateOf(deps).live.has(row.id)) {
+async function settleOrphan<T extends { id: number; site_id: number; status: string; error: string | null; finished_at: string | null; created_at: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
+  // A row just saved may not have its job yet (the submit is a moment after the insert).
+  if ((row.status === 'queued' || row.status === 'running') && !isActive(job) && Date.now() - Date.parse(row.created_at) > ORPHAN_AFTER_MS) {
+    // The job may have ended a moment ago and be writing the row: read it again first.
+    const again = await getRunRow(deps.db, row.site_id, row.id);
+    if (again && again.status !== 'queued' && again.status !== 'running') return { ...row, ...again };
     const error = 'The server restarted while this run was working; start it again';
     const finished = nowIso();
     await setRun(deps.db, row.id, { status: 'failed', error, finished_at: finished });
@@ -97,15 +99,21 @@ async function settleOrphan<T extends { id: number; status: string; error: strin
 
 export async function listRuns(deps: Deps, siteId: number): Promise<SlottingRunSummary[]> {
   const rows = await listRunRows(deps.db, siteId);
-  return Promise.all(rows.map(async (r) => summaryOf(await settleOrphan(deps, r), stateOf(deps).live.get(r.id))));
+  return Promise.all(
+    rows.map(async (r) => {
+      const job = r.status === 'queued' || r.status === 'running' ? await runJobOf(deps, r.id) : null;
+      return summaryOf(await settleOrphan(deps, r, job), liveOf(job));
+    }),
+  );
 }
 
 export async function getRun(deps: Deps, siteId: number, id: number): Promise<SlottingRunDetail> {
   const found = await getRunRow(deps.db, siteId, id);
   if (!found) throw notFound('Slotting run');
-  const row = await settleOrphan(deps, found);
+  const job = found.status === 'queued' || found.status === 'running' ? await runJobOf(deps, id) : null;
+  const row = await settleOrphan(deps, found, job);
   return {
-    ...summaryOf(row, stateOf(deps).live.get(id)),
+    ...summaryOf(row, liveOf(job)),
     inputs: SlottingInputs.parse(JSON.parse(row.inputs)),
     results: row.results ? SlottingResults.parse(JSON.parse(row.results)) : null,
   };
@@ -175,48 +183,48 @@ export async function createRun(deps: Deps, siteId: number, userId: number, body
   };
   const id = await insertRun(deps.db, { site_id: siteId, name: inputs.name, method: inputs.method, inputs: JSON.stringify(inputs), status: 'queued', created_by: userId, created_at: nowIso() });
   await audit(deps.db, { siteId, userId, action: 'slotting.run', subject: `slotting run ${id}`, detail: { method: inputs.method, maxMoves: inputs.maxMoves, orders: history.length } });
-  enqueue(deps, id, job);
+  const record = await deps.jobs.submit(SLOTTING_JOB, { siteId, runId: id, job } satisfies SlottingRunData, { siteId, key: runKey(id) });
   const row = (await getRunRow(deps.db, siteId, id))!;
-  return summaryOf(row, stateOf(deps).live.get(id));
+  return summaryOf(row, liveOf(record));
 }
 
-function enqueue(deps: Deps, id: number, job: SlottingJobInput): void {
-  const state = stateOf(deps);
-  const live: Live = { progress: 0, cancel: new AbortController() };
-  state.live.set(id, live);
-  const run = state.chain.then(async () => {
-    if (live.cancel.signal.aborted) return;
-    await setRun(deps.db, id, { status: 'running' });
-    try {
-      const results = await runInWorker<SlottingResults, number>(new URL('./slotting.worker.ts', import.meta.url), job, {
-        timeoutMs: RUN_TIMEOUT_MS,
-        heapMb: 1024,
-        signal: live.cancel.signal,
-        onProgress: (f) => {
-          live.progress = f;
-        },
-      });
-      if (live.cancel.signal.aborted) return;
-      await setRun(deps.db, id, { status: 'done', results: JSON.stringify(results), finished_at: nowIso() });
-    } catch (err) {
-      if (live.cancel.signal.aborted) return;
-      deps.logger.warn({ err, slottingRun: id }, 'slotting run failed');
-      await setRun(deps.db, id, { status: 'failed', error: jobStopMessage('The run', err) ?? `The run stopped: ${(err as Error).message}`, finished_at: nowIso() });
-    } finally {
-      state.live.delete(id);
-    }
-  });
-  state.chain = run.catch((err: unknown) => deps.logger.error({ err, slottingRun: id }, 'slotting bookkeeping failed'));
+/** The job body of a slotting run, on whichever instance takes it: the search in its own process, then the results saved. */
+async function runSlotting(deps: Deps, { siteId, runId: id, job: input }: SlottingRunData, job: JobContext): Promise<null> {
+  const row = await getRunRow(deps.db, siteId, id);
+  if (!row || (row.status !== 'queued' && row.status !== 'running')) return null;
+  await setRun(deps.db, id, { status: 'running' });
+  try {
+    const results = await runInWorker<SlottingResults, number>(new URL('./slotting.worker.ts', import.meta.url), input, {
+      timeoutMs: RUN_TIMEOUT_MS,
+      heapMb: 1024,
+      signal: job.signal,
+      onProgress: (f) => job.progress(f),
+    });
+    if (job.signal.aborted) return null;
+    await setRun(deps.db, id, { status: 'done', results: JSON.stringify(results), finished_at: nowIso() });
+  } catch (err) {
+    if (job.signal.aborted) throw err;
+    deps.logger.warn({ err, slottingRun: id }, 'slotting run failed');
+    await setRun(deps.db, id, { status: 'failed', error: runFailure(err), finished_at: nowIso() });
+    throw err;
+  }
+  return null;
+}
+
+const runFailure = (err: unknown) => jobStopMessage('The run', err) ?? `The run stopped: ${(err as Error).message}`;
+
+/** Slotting runs as a job kind; one runs at a time per instance (two cores serve every request too). */
+export function slottingJob(deps: Deps): JobKind<SlottingRunData, null> {
+  return { name: SLOTTING_JOB, run: (data, job) => runSlotting(deps, data, job), describeFailure: runFailure, expireInSeconds: RUN_TIMEOUT_MS / 1000 + 5 * 60 };
 }
 
 /** Stops a queued or running run. */
 export async function cancelRun(deps: Deps, siteId: number, id: number): Promise<SlottingRunSummary> {
   const row = await getRunRow(deps.db, siteId, id);
   if (!row) throw notFound('Slotting run');
-  const live = stateOf(deps).live.get(id);
-  if (!live) throw new AppError('conflict', 'not_running', `This run is ${row.status}; only a queued or running run can be cancelled`);
-  live.cancel.abort();
-  stateOf(deps).live.delete(id);
+  const job = await runJobOf(deps, id);
+  if (!isActive(job)) throw new AppError('conflict', 'not_running', `This run is ${row.status}; only a queued or running run can be cancelled`);
+  await deps.jobs.cancel(job!.id);
   await setRun(deps.db, id, { status: 'cancelled', finished_at: nowIso() });
   return summaryOf({ ...row, status: 'cancelled' });
 }

@@ -23,7 +23,7 @@ export const studyRoutes = [
   defineRoute({
     method: 'get', path: base, access: STUDY_ROLES, summary: "The site's studies, newest first",
     response: z.array(StudySummary),
-    handler: ({ deps, siteId }) => listStudies(deps.db, siteId),
+    handler: ({ deps, siteId }) => listStudies(deps, siteId),
   }),
   defineRoute({
     method: 'post', path: base, access: STUDY_ROLES, summary: 'Save a study and run it in the background; poll it for progress', status: 202,
@@ -33,7 +33,7 @@ export const studyRoutes = [
   defineRoute({
     method: 'get', path: `${base}/:id`, access: STUDY_ROLES, summary: 'A study: inputs, progress, then its results',
     response: StudyDetail,
-    handler: ({ deps, siteId, params }) => getStudy(deps.db, siteId, idOf(params)),
+    handler: ({ deps, siteId, params }) => getStudy(deps, siteId, idOf(params)),
   }),
   defineRoute({
     method: 'delete', path: `${base}/:id`, access: STUDY_ROLES, summary: 'Delete a study that is not running (reruns of it stay)',

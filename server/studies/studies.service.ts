@@ -11,7 +11,8 @@ import { getPlanRowById } from '../floor-plans/floor-plans.repository';
 import { engineParams } from '../floor-plans/floor-plans.service';
 import { AppError, notFound } from '../http/errors';
 import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
-import { jobStopMessage, runInWorker, WorkerCancelledError } from '../workers/spawn';
+import { jobStopMessage, runInWorker } from '../workers/spawn';
+import { isActive, type JobContext, type JobKind, type JobRecord } from '../workers/jobs';
 import type { PlannerOrder } from '../waves/wave-planner';
 import {
   ROUTING_LABELS,
@@ -31,6 +32,8 @@ import {
   deleteStudyRow, getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
 } from './studies.repository';
 
+/** A queued or running row without a live job this long after it was saved was cut off. */
+const ORPHAN_AFTER_MS = 30_000;
 /** Cart used when the site has no cart profile: 8 totes, 150 kg, 400 L (invented, typical of a picking cart). */
 const FALLBACK_CART = { totes: 8, maxKg: 150, maxLitres: 400 };
 /** A study's process is stopped after this long; the engine's own budgets are step counts, not time. */
@@ -172,53 +175,54 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
   };
 }
 
-interface Job {
-  progress: number;
-  phase: string | null;
-  /** Cancels the study: its process is killed. */
-  abort: AbortController;
-  cancelled: boolean;
+export const STUDY_JOB = 'study';
+/** The job key of a study: its newest job tells its live progress. */
+const studyKey = (id: number) => `study:${id}`;
+
+/** What a study's job is given (JSON): the study to run; its inputs are read from its row. */
+interface StudyJobData {
+  siteId: number;
+  studyId: number;
 }
 
-/** Live state of queued and running studies; the database holds everything else. */
-const jobs = new Map<number, Job>();
-/** Studies run one at a time: the machine has two cores shared with every request. */
-let queue: Promise<unknown> = Promise.resolve();
+/** Progress of a queued or running study's job, for the summaries (none when it has no live job). */
+type Live = { progress: number; phase: string | null } | undefined;
+const liveOf = (r: JobRecord | null): Live => (r && isActive(r) ? { progress: r.progress, phase: r.phase } : undefined);
+const studyJobOf = (deps: Deps, id: number) => deps.jobs.latest(studyKey(id));
 
-/** Runs the study in its own process: whatever goes wrong in it fails this study only. */
-function runWorker(job: Job, work: Work): Promise<StudyResults> {
-  return runInWorker<StudyResults, StudyProgress>(new URL('./study.worker.ts', import.meta.url), work, {
-    timeoutMs: STUDY_TIMEOUT_MS,
-    heapMb: STUDY_HEAP_MB,
-    signal: job.abort.signal,
-    onProgress: (p) => {
-      job.progress = p.fraction;
-      job.phase = p.phase;
-    },
-  });
+/**
+ * The job body of a study, on whichever instance takes it: reads its inputs, prepares the work, runs
+ * it in its own process (whatever goes wrong in it fails this study only) and saves the results.
+ */
+async function runStudy(deps: Deps, { siteId, studyId: id }: StudyJobData, job: JobContext): Promise<null> {
+  const row = await getStudyRow(deps.db, siteId, id);
+  if (!row || (row.status !== 'queued' && row.status !== 'running')) return null;
+  await setStudyStatus(deps.db, id, { status: 'running' });
+  job.progress(0, 'starting');
+  try {
+    const work = await prepareWork(deps.db, siteId, StudyInputs.parse(JSON.parse(row.inputs)));
+    const results = await runInWorker<StudyResults, StudyProgress>(new URL('./study.worker.ts', import.meta.url), work, {
+      timeoutMs: STUDY_TIMEOUT_MS,
+      heapMb: STUDY_HEAP_MB,
+      signal: job.signal,
+      onProgress: (p) => job.progress(p.fraction, p.phase),
+    });
+    if (job.signal.aborted) return null;
+    await setStudyStatus(deps.db, id, { status: 'done', results: JSON.stringify(results), finished_at: nowIso() });
+  } catch (err) {
+    if (job.signal.aborted) throw err;
+    deps.logger.warn({ err, study: id }, 'study failed');
+    await setStudyStatus(deps.db, id, { status: 'failed', error: studyFailure(err), finished_at: nowIso() });
+    throw err;
+  }
+  return null;
 }
 
-function enqueue(deps: Deps, id: number, work: Work): void {
-  const job: Job = { progress: 0, phase: 'queued', abort: new AbortController(), cancelled: false };
-  jobs.set(id, job);
-  const run = queue.then(async () => {
-    if (job.cancelled) return;
-    await setStudyStatus(deps.db, id, { status: 'running' });
-    job.phase = 'starting';
-    try {
-      const results = await runWorker(job, work);
-      if (job.cancelled) return;
-      await setStudyStatus(deps.db, id, { status: 'done', results: JSON.stringify(results), finished_at: nowIso() });
-    } catch (err) {
-      if (job.cancelled || err instanceof WorkerCancelledError) return;
-      deps.logger.warn({ err, study: id }, 'study failed');
-      const error = jobStopMessage('The study', err) ?? (err as Error).message;
-      await setStudyStatus(deps.db, id, { status: 'failed', error, finished_at: nowIso() });
-    } finally {
-      jobs.delete(id);
-    }
-  });
-  queue = run.catch((err: unknown) => deps.logger.error({ err, study: id }, 'study bookkeeping failed'));
+const studyFailure = (err: unknown) => jobStopMessage('The study', err) ?? (err as Error).message;
+
+/** Studies as a job kind; one runs at a time per instance (two cores serve every request too). */
+export function studyJob(deps: Deps): JobKind<StudyJobData, null> {
+  return { name: STUDY_JOB, run: (data, job) => runStudy(deps, data, job), describeFailure: studyFailure, expireInSeconds: STUDY_TIMEOUT_MS / 1000 + 5 * 60 };
 }
 
 /**
@@ -234,60 +238,73 @@ export async function createStudy(deps: Deps, siteId: number, userId: number, bo
   }
   // The cart's sizes are kept with the study: the profile may change or go before a rerun.
   if (inputs.work.kind === 'generated' && !inputs.work.cart) inputs.work.cart = await cartOf(deps.db, siteId, inputs.work.cartProfileId);
-  const work = await prepareWork(deps.db, siteId, inputs);
+  // Prepared here to answer a bad request at once; the job prepares it again wherever it runs.
+  await prepareWork(deps.db, siteId, inputs);
   const id = await insertStudy(deps.db, {
     site_id: siteId, name: inputs.name, kind: inputs.work.kind, seed: inputs.seed, inputs: JSON.stringify(inputs), status: 'queued',
     rerun_of: rerunOf, created_by: userId, created_at: nowIso(),
   });
-  enqueue(deps, id, work);
-  return (await getStudySummary(deps.db, siteId, id))!;
+  await deps.jobs.submit(STUDY_JOB, { siteId, studyId: id } satisfies StudyJobData, { siteId, key: studyKey(id) });
+  return (await getStudySummary(deps, siteId, id))!;
 }
 
-async function getStudySummary(db: Knex, siteId: number, id: number): Promise<StudySummary | null> {
-  const row = await getStudyRow(db, siteId, id);
-  return row ? toSummary(row, jobs.get(id)) : null;
+async function getStudySummary(deps: Deps, siteId: number, id: number): Promise<StudySummary | null> {
+  const row = await getStudyRow(deps.db, siteId, id);
+  return row ? toSummary(row, liveOf(await studyJobOf(deps, id))) : null;
 }
 
-/** A row still queued or running with no job in memory was cut off by a restart. */
-async function settleOrphan<T extends { id: number; status: string }>(db: Knex, row: T): Promise<T> {
-  if ((row.status === 'queued' || row.status === 'running') && !jobs.has(row.id)) {
+/**
+ * A row still queued or running whose job has ended or is unknown was cut off (by a restart of the one
+ * SQLite process; on PostgreSQL a dead instance's job is taken over by another and stays live).
+ */
+async function settleOrphan<T extends { id: number; site_id: number; status: string; created_at: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
+  // A row just saved may not have its job yet (the submit is a moment after the insert).
+  if ((row.status === 'queued' || row.status === 'running') && !isActive(job) && Date.now() - Date.parse(row.created_at) > ORPHAN_AFTER_MS) {
+    // The job may have ended a moment ago and be writing the row: read it again first.
+    const again = await getStudyRow(deps.db, row.site_id, row.id);
+    if (again && again.status !== 'queued' && again.status !== 'running') return { ...row, ...again };
     const error = 'The server restarted while this study ran; rerun it';
-    await setStudyStatus(db, row.id, { status: 'failed', error, finished_at: nowIso() });
+    await setStudyStatus(deps.db, row.id, { status: 'failed', error, finished_at: nowIso() });
     return { ...row, status: 'failed', error };
   }
   return row;
 }
 
-export async function listStudies(db: Knex, siteId: number): Promise<StudySummary[]> {
-  const rows = await listStudyRows(db, siteId);
-  return Promise.all(rows.map(async (r) => toSummary(await settleOrphan(db, r), jobs.get(r.id))));
+export async function listStudies(deps: Deps, siteId: number): Promise<StudySummary[]> {
+  const rows = await listStudyRows(deps.db, siteId);
+  return Promise.all(
+    rows.map(async (r) => {
+      const job = r.status === 'queued' || r.status === 'running' ? await studyJobOf(deps, r.id) : null;
+      return toSummary(await settleOrphan(deps, r, job), liveOf(job));
+    }),
+  );
 }
 
-export async function getStudy(db: Knex, siteId: number, id: number): Promise<StudyDetail> {
-  const row = await getStudyRow(db, siteId, id);
+export async function getStudy(deps: Deps, siteId: number, id: number): Promise<StudyDetail> {
+  const row = await getStudyRow(deps.db, siteId, id);
   if (!row) throw notFound('Study');
-  return toDetail(await settleOrphan(db, row), jobs.get(id));
+  const job = row.status === 'queued' || row.status === 'running' ? await studyJobOf(deps, id) : null;
+  return toDetail(await settleOrphan(deps, row, job), liveOf(job));
 }
 
 /** Stops a queued or running study (its process is killed); a finished one is left as it is. */
 export async function cancelStudy(deps: Deps, siteId: number, id: number): Promise<StudySummary> {
   const row = await getStudyRow(deps.db, siteId, id);
   if (!row) throw notFound('Study');
-  const job = jobs.get(id);
-  if (!job) throw new AppError('conflict', 'not_running', `This study is ${row.status}; only a queued or running study can be cancelled`);
-  job.cancelled = true;
-  job.abort.abort();
-  jobs.delete(id);
+  const job = await studyJobOf(deps, id);
+  if (!isActive(job)) throw new AppError('conflict', 'not_running', `This study is ${row.status}; only a queued or running study can be cancelled`);
+  await deps.jobs.cancel(job!.id);
   await setStudyStatus(deps.db, id, { status: 'cancelled', finished_at: nowIso() });
-  return (await getStudySummary(deps.db, siteId, id))!;
+  return (await getStudySummary(deps, siteId, id))!;
 }
 
 /** Deletes a finished, failed or cancelled study (a running one is cancelled first); reruns of it keep their figures. */
 export async function deleteStudy(deps: Deps, siteId: number, id: number): Promise<{ ok: true }> {
   const row = await getStudyRow(deps.db, siteId, id);
   if (!row) throw notFound('Study');
-  if (jobs.has(id)) throw new AppError('conflict', 'study_running', 'This study is still running; cancel it before deleting it');
+  if (isActive(await studyJobOf(deps, id))) throw new AppError('conflict', 'study_running', 'This study is still running; cancel it before deleting it');
   await deleteStudyRow(deps.db, siteId, id);
+  const planCache = planCacheOf(deps.db);
   for (const key of [...planCache.keys()]) if (key.startsWith(`${id}:`)) planCache.delete(key);
   return { ok: true };
 }
@@ -301,12 +318,21 @@ export async function rerunStudy(deps: Deps, siteId: number, userId: number, id:
   return createStudy(deps, siteId, userId, { ...inputs, name }, id);
 }
 
-/** Built variant plans of recently viewed studies (route drawing), a few at a time. */
-const planCache = new Map<string, BuiltPlan>();
+/**
+ * Built variant plans of recently viewed studies (route drawing), a few at a time, per database: study
+ * ids are only unique within one (a process may hold several: tests, benchmarks).
+ */
+const planCaches = new WeakMap<Knex, Map<string, BuiltPlan>>();
+const planCacheOf = (db: Knex): Map<string, BuiltPlan> => {
+  let c = planCaches.get(db);
+  if (!c) planCaches.set(db, (c = new Map()));
+  return c;
+};
 const PLAN_CACHE_LIMIT = 6;
 
 async function variantPlan(db: Knex, siteId: number, detail: StudyDetail, variant: string): Promise<BuiltPlan> {
   const key = `${detail.id}:${variant}`;
+  const planCache = planCacheOf(db);
   const hit = planCache.get(key);
   if (hit) return hit;
   const results = detail.results;
@@ -327,7 +353,9 @@ async function variantPlan(db: Knex, siteId: number, detail: StudyDetail, varian
 }
 
 async function doneStudy(db: Knex, siteId: number, id: number): Promise<StudyDetail & { results: StudyResults }> {
-  const detail = await getStudy(db, siteId, id);
+  const row = await getStudyRow(db, siteId, id);
+  if (!row) throw notFound('Study');
+  const detail = toDetail(row);
   if (!detail.results) throw new AppError('conflict', 'study_not_done', 'This study has no results yet');
   return detail as StudyDetail & { results: StudyResults };
 }

@@ -1,8 +1,5 @@
 import { Health } from '../../shared/common';
 import { defineRoute } from '../http/route';
-import { buildOpenApi } from './openapi';
-
-let openApiCache: unknown = null;
 
 export const systemRoutes = [
   defineRoute({
@@ -14,10 +11,7 @@ export const systemRoutes = [
   }),
   defineRoute({
     method: 'get', path: '/api/openapi.json', access: 'public', summary: 'This API described as OpenAPI 3.1',
-    handler: async ({ deps }) => {
-      const { routeTable } = await import('../routes');
-      openApiCache ??= buildOpenApi(routeTable, deps.version);
-      return openApiCache;
-    },
+    // Built by createApp from the routes it mounted (server/app.ts), once per app.
+    handler: ({ req }) => (req.app.locals.openApi as () => unknown)(),
   }),
 ];

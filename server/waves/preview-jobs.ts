@@ -1,11 +1,14 @@
 /**
- * Wave previews: planned in a worker, kept in memory for an hour so the supervisor can look, change
- * options and release one. A preview is bound to its site, plan and the plan's closure version.
+ * Wave previews as jobs of the app's job runner (server/workers/jobs.ts): planned in a job process,
+ * kept an hour after they end so the supervisor can look, change options and release one. On
+ * PostgreSQL any instance plans a preview and any instance answers for it (its state and outcome are
+ * in the database). A preview is bound to its site, plan and the plan's closure version.
  */
-import { randomUUID } from 'node:crypto';
-import type { WaveJob, WavePreview } from '../../shared/waves';
+import type { WaveJob, WavePreview, WavePreviewBody } from '../../shared/waves';
+import type { Deps } from '../deps';
+import type { JobRecord } from '../workers/jobs';
 
-const KEEP_MS = 60 * 60_000;
+export const WAVE_PREVIEW_JOB = 'wave-preview';
 
 export interface PreviewContext {
   siteId: number;
@@ -18,37 +21,52 @@ export interface PreviewContext {
   orderIds: Map<string, number>;
 }
 
-interface Entry {
-  job: WaveJob;
-  ctx: PreviewContext;
-  at: number;
+/** What a preview job is given (JSON: it may travel to another instance). */
+export interface PreviewJobData {
+  siteId: number;
+  userId: number;
+  planId: number;
+  closureVersion: number;
+  cartProfileId: number;
+  body: WavePreviewBody;
 }
 
-const entries = new Map<string, Entry>();
-
-function sweep(): void {
-  const cutoff = Date.now() - KEEP_MS;
-  for (const [id, e] of entries) if (e.at < cutoff) entries.delete(id);
+/** What a preview job answers (JSON): the preview, what it was planned on and, per order ref, its order id. */
+export interface PreviewOutcome {
+  preview: WavePreview;
+  context: Omit<PreviewContext, 'orderIds'>;
+  orderIds: [string, number][];
 }
 
-export function createPreviewJob(ctx: PreviewContext): WaveJob {
-  sweep();
-  const job: WaveJob = { id: randomUUID(), state: 'running', progress: 0, phase: 'queued', error: null, preview: null };
-  entries.set(job.id, { job, ctx, at: Date.now() });
-  return { ...job };
+/** A failed preview's message is stored as `code: message`. */
+export const PLANNING_FAILED = 'planning_failed';
+
+export function toWaveJob(r: JobRecord<PreviewOutcome>): WaveJob {
+  const running = r.state === 'queued' || r.state === 'running';
+  return {
+    id: r.id,
+    state: running ? 'running' : r.state === 'done' ? 'done' : 'failed',
+    progress: r.state === 'done' ? 1 : Math.min(0.99, r.progress),
+    phase: running ? (r.phase === 'starting' ? 'planning' : (r.phase ?? 'queued')) : r.state === 'done' ? 'done' : 'failed',
+    error: r.state === 'failed' || r.state === 'cancelled' ? { code: PLANNING_FAILED, message: r.error ?? 'Planning was cancelled' } : null,
+    preview: r.state === 'done' ? (r.result?.preview ?? null) : null,
+  };
 }
 
-export function updatePreviewJob(id: string, patch: Partial<WaveJob>): void {
-  const e = entries.get(id);
-  if (e) Object.assign(e.job, patch);
+async function previewRecord(deps: Deps, siteId: number, id: string): Promise<JobRecord<PreviewOutcome> | undefined> {
+  const r = await deps.jobs.get<PreviewOutcome>(id);
+  return r && r.kind === WAVE_PREVIEW_JOB && r.siteId === siteId ? r : undefined;
 }
 
-export function getPreviewJob(siteId: number, id: string): WaveJob | undefined {
-  const e = entries.get(id);
-  return e && e.ctx.siteId === siteId ? { ...e.job } : undefined;
+export async function getPreviewJob(deps: Deps, siteId: number, id: string): Promise<WaveJob | undefined> {
+  const r = await previewRecord(deps, siteId, id);
+  return r ? toWaveJob(r) : undefined;
 }
 
-export function getPreview(siteId: number, id: string): { preview: WavePreview; ctx: PreviewContext } | undefined {
-  const e = entries.get(id);
-  return e && e.ctx.siteId === siteId && e.job.preview ? { preview: e.job.preview, ctx: e.ctx } : undefined;
+/** A finished preview with what its release needs, or undefined (unknown, expired, of another site, not done). */
+export async function getPreview(deps: Deps, siteId: number, id: string): Promise<{ preview: WavePreview; ctx: PreviewContext } | undefined> {
+  const r = await previewRecord(deps, siteId, id);
+  if (!r || r.state !== 'done' || !r.result) return undefined;
+  const { preview, context, orderIds } = r.result;
+  return { preview, ctx: { ...context, orderIds: new Map(orderIds) } };
 }

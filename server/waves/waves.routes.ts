@@ -18,7 +18,7 @@ export const waveRoutes = [
   defineRoute({
     method: 'get', path: '/api/sites/:siteId/wave-previews/:id', access: PLANNERS, summary: 'A wave preview job: progress, then the preview',
     response: WaveJob,
-    handler: ({ siteId, params }) => getPreviewJob(siteId, params.id) ?? Promise.reject(notFound('Preview')),
+    handler: async ({ deps, siteId, params }) => (await getPreviewJob(deps, siteId, params.id)) ?? Promise.reject(notFound('Preview')),
   }),
   defineRoute({
     method: 'post', path: '/api/sites/:siteId/waves', access: PLANNERS, summary: 'Release a previewed wave (idempotent by releaseKey)', status: 201,

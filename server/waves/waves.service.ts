@@ -15,7 +15,8 @@ import { circuitPolyline } from '../core/plan/distances';
 import type { PlannerOrder, PlannerOutput } from './wave-planner';
 import type { PlanJobData } from './plan.worker';
 import * as repo from './waves.repository';
-import { createPreviewJob, getPreview, updatePreviewJob, type PreviewContext } from './preview-jobs';
+import type { JobContext, JobKind, JobRecord } from '../workers/jobs';
+import { getPreview, toWaveJob, WAVE_PREVIEW_JOB, type PreviewJobData, type PreviewOutcome } from './preview-jobs';
 
 const round = (v: number, d = 1) => Math.round(v * 10 ** d) / 10 ** d;
 const pairs = (flat: number[]): [number, number][] => {
@@ -24,8 +25,6 @@ const pairs = (flat: number[]): [number, number][] => {
   return out;
 };
 
-/** Waves plan one at a time: the machine has two cores shared with every request. */
-let planQueue: Promise<unknown> = Promise.resolve();
 /** Heap cap of a planning process (MiB): the plan's distance index plus the wave's matrices. */
 const PLAN_HEAP_MB = 1024;
 
@@ -96,8 +95,9 @@ function toPreview(id: string, out: PlannerOutput, extra: { planId: number; plan
 }
 
 /**
- * Starts planning a wave preview in a worker and returns the job at once; poll it for progress.
- * The wave is planned on the site's active plan.
+ * Starts planning a wave preview as a job of the app's runner and returns the job at once; poll it for
+ * progress. The wave is planned on the site's active plan. Everything is checked here first, so a
+ * bad request is answered at once; the job reads its inputs again wherever it runs.
  */
 export async function startPreview(deps: Deps, siteId: number, userId: number, body: WavePreviewBody): Promise<WaveJob> {
   const { db } = deps;
@@ -105,16 +105,26 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
   if (!planId) throw new AppError('conflict', 'no_active_plan', 'This site has no active floor plan; activate one first');
   const cart = await getCartProfile(db, siteId, body.cartProfileId);
   if (!cart) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'cartProfileId', message: 'unknown cart profile' }]);
-  const site = (await getSiteRow(db, siteId))!;
   const plan = await loadPlanIndex(db, planId);
   if (body.depot >= plan.geometry.depots.length) throw new AppError('validation', 'validation_failed', `The plan has ${plan.geometry.depots.length} depot(s)`, [{ field: 'depot', message: 'no such depot' }]);
+  await plannerOrders(db, siteId, body.orderIds);
+  const data: PreviewJobData = { siteId, userId, planId, closureVersion: plan.closureVersion, cartProfileId: cart.id, body };
+  return toWaveJob((await deps.jobs.submit(WAVE_PREVIEW_JOB, data, { siteId })) as JobRecord<PreviewOutcome>);
+}
+
+/** The job body of a wave preview: reads the plan, cart and orders, plans in a job process, answers the preview. */
+async function runPreview(deps: Deps, d: PreviewJobData, job: JobContext): Promise<PreviewOutcome> {
+  const { db } = deps;
+  const { siteId, planId, body } = d;
+  const cart = await getCartProfile(db, siteId, d.cartProfileId);
+  if (!cart) throw new AppError('conflict', 'cart_gone', 'The cart profile was removed; plan the wave again');
+  const site = (await getSiteRow(db, siteId))!;
+  const plan = await loadPlanIndex(db, planId);
   const sets = await loadGraphSets(db, planId);
   if (!sets) throw new AppError('internal', 'plan_not_built', 'The active plan has no stored walk graph');
+  if (sets.closureVersion !== d.closureVersion) throw new AppError('conflict', 'plan_changed', 'The floor plan changed while the wave waited to be planned; plan it again');
   const { orders, ids, unslotted } = await plannerOrders(db, siteId, body.orderIds);
   const planRow = (await getPlanRowById(db, planId))!;
-
-  const ctx: PreviewContext = { siteId, planId, closureVersion: sets.closureVersion, userId, depotIdx: body.depot, cartProfileId: cart.id, orderIds: ids };
-  const job = createPreviewJob(ctx);
   const data: PlanJobData = {
     geometry: plan.geometry,
     graph: sets.graph,
@@ -124,21 +134,29 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
       depotIdx: body.depot, speeds: settingsOf(site), timeLimitMs: 20_000, closures: plan.closures,
     },
   };
-  const run = planQueue.then(async () => {
-    updatePreviewJob(job.id, { phase: 'planning' });
-    const out = await runInWorker<PlannerOutput, number>(new URL('./plan.worker.ts', import.meta.url), data, {
-      timeoutMs: 60_000,
-      heapMb: PLAN_HEAP_MB,
-      onProgress: (f) => updatePreviewJob(job.id, { progress: Math.min(0.99, f) }),
-    });
-    const preview = toPreview(job.id, out, { planId, planVersion: planRow.version ?? 0, cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, body, unslotted });
-    updatePreviewJob(job.id, { state: 'done', progress: 1, phase: 'done', preview });
+  job.progress(0, 'planning');
+  const out = await runInWorker<PlannerOutput, number>(new URL('./plan.worker.ts', import.meta.url), data, {
+    timeoutMs: 60_000,
+    heapMb: PLAN_HEAP_MB,
+    signal: job.signal,
+    onProgress: (f) => job.progress(Math.min(0.99, f)),
   });
-  planQueue = run.catch((err: unknown) => {
-    deps.logger.warn({ err }, 'wave preview failed');
-    updatePreviewJob(job.id, { state: 'failed', phase: 'failed', error: { code: 'planning_failed', message: jobStopMessage('Planning', err) ?? (err as Error).message } });
-  });
-  return job;
+  const preview = toPreview(job.id, out, { planId, planVersion: planRow.version ?? 0, cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, body, unslotted });
+  return {
+    preview,
+    context: { siteId, planId, closureVersion: sets.closureVersion, userId: d.userId, depotIdx: body.depot, cartProfileId: cart.id },
+    orderIds: [...ids],
+  };
+}
+
+/** Wave previews as a job kind; one plans at a time per instance (two cores serve every request too). */
+export function wavePreviewJob(deps: Deps): JobKind<PreviewJobData, PreviewOutcome> {
+  return {
+    name: WAVE_PREVIEW_JOB,
+    run: (data, job) => runPreview(deps, data, job),
+    describeFailure: (err) => jobStopMessage('Planning', err) ?? (err as Error).message,
+    expireInSeconds: 5 * 60,
+  };
 }
 
 /**
@@ -150,7 +168,7 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
   const { db } = deps;
   const existing = await repo.waveByReleaseKey(db, siteId, releaseKey);
   if (existing) return waveDetail(db, siteId, existing.id);
-  const found = getPreview(siteId, previewId);
+  const found = await getPreview(deps, siteId, previewId);
   if (!found) throw new AppError('not_found', 'preview_gone', 'This preview has expired or was never made; plan the wave again');
   const { preview, ctx } = found;
   if (preview.trips.length === 0) throw new AppError('validation', 'empty_wave', 'The preview has no trips to release', []);

@@ -17,6 +17,9 @@ import { migrateLatest, openDb, type Db } from '../../server/db/knex';
 import { createMailer } from '../../server/mail/mailer';
 import { createBackground } from '../../server/system/background';
 import { createBoardStreams } from '../../server/picking/board-streams';
+import { createLocalHub } from '../../server/events/hub';
+import { createLocalJobRunner, type JobRunner } from '../../server/workers/jobs';
+import { createPgJobRunner } from '../../server/workers/pg-jobs';
 import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS, seedDemoIfEmpty, type DemoSeeder } from '../../server/seed/demo';
 import { CSRF_HEADER, CSRF_VALUE, type Role } from '../../shared/common';
 
@@ -56,6 +59,7 @@ export async function openTestDb(): Promise<Db> {
 /** Closes a test database; on PostgreSQL drops its schema too. */
 export async function dropTestDb(db: Db): Promise<void> {
   const schema = schemas.get(db);
+  if (schema) await db.raw(`drop schema if exists ${schema}_boss cascade`);
   if (schema) await db.raw(`drop schema ${schema} cascade`);
   await db.destroy();
 }
@@ -65,12 +69,18 @@ export async function makeDeps(file = ':memory:'): Promise<Deps> {
   const db = file === ':memory:' ? await openTestDb() : openDb(file);
   await migrateLatest(db);
   const logger = pino({ level: process.env.TEST_LOG_LEVEL ?? 'silent' });
+  const events = createLocalHub();
+  const schema = schemas.get(db);
+  // On PostgreSQL the jobs go through pg-boss, in a schema beside the test file's own.
+  const jobs: JobRunner = schema && testDatabaseUrl ? await createPgJobRunner({ db, url: testDatabaseUrl, bossSchema: `${schema}_boss`, events, logger }) : createLocalJobRunner(events, logger);
   return {
     config: loadConfig({ DATABASE_FILE: file, PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
     hasher: testHasher(),
     backoff: new SignInBackoff(db),
     background: createBackground(logger),
+    events,
+    jobs,
     mailer: createMailer(db, { from: 'Aislewright <no-reply@aislewright.invalid>' }),
     jwtSecret: 'test-secret-that-is-long-enough-for-256-bits-0123456789',
     logger,
@@ -101,8 +111,9 @@ export async function makeTestApp(options: { seeders?: DemoSeeder[] } = {}): Pro
     picker: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[0].badge, pin: DEMO_PIN }),
     picker2: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[1].badge, pin: DEMO_PIN }),
   };
-  return { app, deps, as, anon: request.agent(app), siteId, close: () => {
+  return { app, deps, as, anon: request.agent(app), siteId, close: async () => {
     deps.boardStreams.close();
+    await deps.jobs.close();
     return dropTestDb(deps.db);
   } };
 }

@@ -11,6 +11,7 @@ import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS } from '../../server/
 import { SESSION_COOKIE } from '../../server/http/session';
 import { Board } from '../../shared/picking';
 import type { Db } from '../../server/db/knex';
+import { HOLD_FIRST_ATTEMPT_TEST_ENV } from '../../server/workers/jobs';
 
 describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', () => {
   let a: Instance;
@@ -126,4 +127,76 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
     expect(tripOf(events[1]!).linesDone).toBe(1);
     console.log(`board on B updated ${secondAt - confirmedAt} ms after the confirmation on A answered`);
   }, 120_000);
+});
+
+describe.skipIf(!testDatabaseUrl)('a wave preview whose instance dies on one PostgreSQL database', () => {
+  let a: Instance;
+  let b: Instance;
+  let db: Db;
+  let drop: () => Promise<void>;
+  let siteId: number;
+
+  beforeAll(async () => {
+    const fresh = await freshDatabase(testDatabaseUrl!);
+    db = fresh.db;
+    drop = fresh.drop;
+    // Test-only hold: a job's first attempt waits 10 minutes before planning, on whichever instance takes
+    // it, so the test can stop that instance mid-job; the attempt after it plans at once.
+    const env = { [HOLD_FIRST_ATTEMPT_TEST_ENV]: String(10 * 60_000) };
+    [a, b] = await Promise.all([startInstance(fresh.url, env), startInstance(fresh.url, env)]);
+    siteId = (await db('sites').first<{ id: number }>('id'))!.id;
+  }, 180_000);
+
+  afterAll(async () => {
+    await Promise.all([a?.kill(), b?.kill()]);
+    await drop?.();
+  });
+
+  it('finishes on the other instance a preview whose instance was killed mid-job', async () => {
+    const supervisorA = request.agent(a.url);
+    expect((await supervisorA.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
+    const orderIds = await db('orders').where({ site_id: siteId, status: 'open' }).orderBy('id').limit(8).pluck('id');
+    const cartProfileId = (await db('cart_profiles').where({ site_id: siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
+    const started = await supervisorA.post(`/api/sites/${siteId}/wave-previews`).set(csrf).send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
+    expect(started.status, JSON.stringify(started.body)).toBe(202);
+    const jobId: string = started.body.id;
+
+    // Whichever instance took the job is named on its row (host:pid:…); wait until one holds it.
+    let holder: string | null = null;
+    for (let i = 0; i < 300 && !holder; i++) {
+      const row = await db('background_jobs').where({ id: jobId }).first<{ state: string; instance: string | null }>();
+      if (row?.state === 'running' && row.instance) holder = row.instance;
+      else await new Promise((r) => setTimeout(r, 100));
+    }
+    expect(holder, 'no instance took the preview within 30 s').not.toBeNull();
+    const pidOf = (inst: Instance) => inst.child.pid;
+    const victim = [a, b].find((inst) => holder!.split(':')[1] === String(pidOf(inst)))!;
+    const survivor = victim === a ? b : a;
+    expect(victim, `holder ${holder} is neither instance`).toBeDefined();
+
+    // Killed without any chance to finish or hand the job back.
+    await victim.kill('SIGKILL');
+    const killedAt = Date.now();
+
+    // The supervisor polls the survivor (a session is valid on every instance).
+    const supervisor = request.agent(survivor.url);
+    expect((await supervisor.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
+    let job = (await supervisor.get(`/api/sites/${siteId}/wave-previews/${jobId}`)).body;
+    expect(job.id).toBe(jobId);
+    for (let i = 0; i < 900 && job.state === 'running'; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      job = (await supervisor.get(`/api/sites/${siteId}/wave-previews/${jobId}`)).body;
+    }
+    expect(job.state, JSON.stringify(job.error)).toBe('done');
+    expect(job.preview.totals.orders).toBe(orderIds.length);
+    const row = await db('background_jobs').where({ id: jobId }).first<{ instance: string; attempt: number }>();
+    expect(row!.instance).not.toBe(holder);
+    expect(row!.attempt).toBeGreaterThanOrEqual(1);
+    console.log(`preview finished on the survivor ${Date.now() - killedAt} ms after its first instance was killed`);
+
+    // And the preview taken over is released like any other.
+    const released = await supervisor.post(`/api/sites/${siteId}/waves`).set(csrf).send({ previewId: jobId, releaseKey: `take-over-${jobId}` });
+    expect(released.status, JSON.stringify(released.body)).toBe(201);
+    expect(released.body.orders).toBe(orderIds.length);
+  }, 180_000);
 });
