@@ -378,33 +378,6 @@ export function usePickTrip() {
     poll.resume();
   });
 
-  return {
-    phase,
-    trip,
-    pending,
-    plan,
-    result,
-    released,
-    online,
-    busy,
-    notice,
-    lastDone,
-    guarded,
-    progress,
-    currentStop,
-    currentLine,
-    currentIndex,
-    openStops,
-    waitingFinish,
-    takeNext,
-    startTrip,
-    cartReady,
-    confirmLine,
-    confirmDown,
-    undoLast,
-    cannotReach,
-    reportShort,
-    skipStop,
-    returnToDepot,
-  };
+  // Read by PickTripView; every piece of the trip a screen needs, and the actions it calls.
+  return { phase, trip, pending, plan, result, released, online, busy, notice, lastDone, guarded, progress, currentStop, currentLine, currentIndex, openStops, waitingFinish, takeNext, startTrip, cartReady, confirmLine, confirmDown, undoLast, cannotReach, reportShort, skipStop, returnToDepot };
 }
