@@ -7,6 +7,7 @@ import '@fontsource/ibm-plex-sans/600.css';
 import '@fontsource/ibm-plex-sans/700.css';
 import '@fontsource/ibm-plex-mono/400.css';
 import './assets/base.css';
+import './components/picker/picker.css';
 import App from './App.vue';
 import { createAppRouter, handleSessionExpired, installGuards } from './router';
 import { setUnauthenticatedHandler } from './api/http';

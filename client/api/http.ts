@@ -42,8 +42,8 @@ export interface HttpDeps {
 
 export type Http = <S extends z.ZodType>(method: Method, path: string, schema: S, options?: RequestOptions) => Promise<z.infer<S>>;
 
-async function readJson(response: Response): Promise<unknown> {
-  const text = await response.text();
+/** A body's JSON, or undefined when it is empty or not JSON (a proxy's HTML error page). */
+export function parseJsonText(text: string): unknown {
   if (text === '') return undefined;
   try {
     return JSON.parse(text) as unknown;
@@ -51,6 +51,28 @@ async function readJson(response: Response): Promise<unknown> {
     return undefined;
   }
 }
+
+async function readJson(response: Response): Promise<unknown> {
+  return parseJsonText(await response.text());
+}
+
+/** The error for a request that never got an answer (no network, server down). */
+export const networkError = (): ApiError => new ApiError('network', 'The server could not be reached. Check the connection and try again.', 0);
+
+/**
+ * The one decoder of an error answer, for fetch and XMLHttpRequest alike: the server's
+ * `{ error: { code, message, details? } }`, or, from anything else in front of it, the status.
+ */
+export function errorFromAnswer(status: number, statusText: string, json: unknown): ApiError {
+  const body = ErrorBody.safeParse(json);
+  return body.success
+    ? new ApiError(body.data.error.code, body.data.error.message, status, body.data.error.details)
+    : new ApiError('http_error', `The server answered ${status} ${statusText}`.trim(), status);
+}
+
+/** A 2xx answer the schema refuses: the client and server disagree on the contract. */
+export const badResponse = (method: Method, path: string, status: number, issues: unknown): ApiError =>
+  new ApiError('bad_response', `Unexpected answer from ${method} ${path}.`, status, issues);
 
 /** A typed fetch: CSRF header on unsafe methods, same-origin cookies, every body parsed with its schema. */
 export function createHttp(deps: HttpDeps): Http {
@@ -67,15 +89,12 @@ export function createHttp(deps: HttpDeps): Http {
     try {
       response = await deps.fetch(path, init);
     } catch {
-      throw new ApiError('network', 'The server could not be reached. Check the connection and try again.', 0);
+      throw networkError();
     }
 
     const json = await readJson(response);
     if (!response.ok) {
-      const body = ErrorBody.safeParse(json);
-      const error = body.success
-        ? new ApiError(body.data.error.code, body.data.error.message, response.status, body.data.error.details)
-        : new ApiError('http_error', `The server answered ${response.status} ${response.statusText}`.trim(), response.status);
+      const error = errorFromAnswer(response.status, response.statusText, json);
       if (response.status === 401 && error.code === 'unauthenticated' && !options.quietUnauthenticated) {
         deps.onUnauthenticated();
       }
@@ -84,7 +103,7 @@ export function createHttp(deps: HttpDeps): Http {
 
     const parsed = schema.safeParse(json);
     if (!parsed.success) {
-      throw new ApiError('bad_response', `Unexpected answer from ${method} ${path}.`, response.status, parsed.error.issues);
+      throw badResponse(method, path, response.status, parsed.error.issues);
     }
     return parsed.data;
   };

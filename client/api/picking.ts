@@ -2,7 +2,7 @@
 import { z } from 'zod';
 import { Ok } from '@shared/common';
 import { Board, CancelResult, CloseWaveResult, CurrentTrip, LineAnswer, PickAnswer, PickTrip, TripPlan, TripPulse, TripResult, type CartReadyBody, type ShortReason } from '@shared/picking';
-import { ApiError, http } from './http';
+import { ApiError, badResponse, errorFromAnswer, http, networkError, parseJsonText } from './http';
 
 export const currentTrip = (siteId: number) => http('GET', `/api/sites/${siteId}/picking/current`, CurrentTrip);
 export const takeNextTrip = (siteId: number) => http('POST', `/api/sites/${siteId}/picking/next`, CurrentTrip);
@@ -55,20 +55,12 @@ export async function sendAction(a: PickAction, key: string, device: string, fet
       body: JSON.stringify(a.body),
     });
   } catch {
-    return { ok: false, error: new ApiError('network', 'No connection to the server', 0) };
+    return { ok: false, error: networkError() };
   }
-  let json: unknown;
-  try {
-    json = await response.json();
-  } catch {
-    json = undefined;
-  }
-  if (!response.ok) {
-    const e = (json as { error?: { code?: string; message?: string; details?: unknown } } | undefined)?.error;
-    return { ok: false, error: new ApiError(e?.code ?? 'http_error', e?.message ?? `The server answered ${response.status}`, response.status, e?.details) };
-  }
+  const json = parseJsonText(await response.text().catch(() => ''));
+  if (!response.ok) return { ok: false, error: errorFromAnswer(response.status, response.statusText, json) };
   const parsed = (a.kind === 'finish' ? TripResult : a.kind === 'skip' ? PickAnswer : LineAnswer).safeParse(json);
-  if (!parsed.success) return { ok: false, error: new ApiError('bad_response', 'Unexpected answer from the server', response.status) };
+  if (!parsed.success) return { ok: false, error: badResponse('POST', actionPath(a), response.status, parsed.error.issues) };
   return { ok: true, answer: parsed.data };
 }
 

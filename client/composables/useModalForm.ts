@@ -1,6 +1,6 @@
-import { ref, watch, type Ref } from 'vue';
+import { watch, type Ref } from 'vue';
 import type { z } from 'zod';
-import { useFormErrors } from './useFormErrors';
+import { useFormSubmit } from './useFormSubmit';
 
 interface ModalFormOptions<S extends z.ZodType> {
   /** The modal's v-model:show; the form resets each time it opens and closes after a good save. */
@@ -19,29 +19,25 @@ interface ModalFormOptions<S extends z.ZodType> {
 
 /** Open/reset, check, save, busy and error handling shared by the admin form modals. */
 export function useModalForm<S extends z.ZodType>(options: ModalFormOptions<S>) {
-  const errors = useFormErrors();
-  const busy = ref(false);
+  const form = useFormSubmit({
+    schema: options.schema,
+    value: options.value,
+    send: async (body) => {
+      await options.save(body);
+      options.show.value = false;
+    },
+  });
 
   watch(options.show, (open) => {
     if (!open) return;
-    errors.clear();
+    form.errors.clear();
     options.reset();
   });
 
   async function submit(): Promise<void> {
     if (options.ready && !options.ready()) return;
-    const body = errors.check(options.schema, options.value());
-    if (!body) return;
-    busy.value = true;
-    try {
-      await options.save(body);
-      options.show.value = false;
-    } catch (error) {
-      errors.fromError(error);
-    } finally {
-      busy.value = false;
-    }
+    await form.submit();
   }
 
-  return { errors, busy, submit };
+  return { errors: form.errors, busy: form.busy, submit };
 }

@@ -1,5 +1,6 @@
 import { computed, ref } from 'vue';
 import { defineStore } from 'pinia';
+import { usePreferredDark } from '@vueuse/core';
 
 export type ThemeMode = 'light' | 'dark';
 const THEME_KEY = 'aislewright.theme';
@@ -11,12 +12,8 @@ function readStored(): ThemeMode | null {
 
 export const useThemeStore = defineStore('theme', () => {
   const chosen = ref<ThemeMode | null>(readStored());
-  const media = typeof window.matchMedia === 'function' ? window.matchMedia('(prefers-color-scheme: dark)') : null;
-  const systemDark = ref(media?.matches ?? false);
   // Until the user picks, follow the device: a tablet in a dim aisle may already be in dark mode.
-  media?.addEventListener('change', (event) => {
-    systemDark.value = event.matches;
-  });
+  const systemDark = usePreferredDark();
 
   const mode = computed<ThemeMode>(() => chosen.value ?? (systemDark.value ? 'dark' : 'light'));
   const isDark = computed(() => mode.value === 'dark');

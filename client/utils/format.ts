@@ -69,6 +69,38 @@ export function count(n: number, noun: string, plural = IRREGULAR[noun] ?? `${no
 export const NBSP = '\u00a0';
 
 /**
+ * The locale figures are grouped in ("1,709" or "1.709"): the site's when one is set, else the
+ * browser's. Set beside the site's time zone, so every screen writes numbers the same way.
+ */
+let displayLocale: string | undefined;
+
+export function setDisplayLocale(locale: string | null | undefined): void {
+  displayLocale = locale || undefined;
+}
+
+const numberFormats = new Map<string, Intl.NumberFormat>();
+function numberFormat(digits: number): Intl.NumberFormat {
+  const key = `${displayLocale ?? ''}|${digits}`;
+  let f = numberFormats.get(key);
+  if (!f) {
+    f = new Intl.NumberFormat(displayLocale, { minimumFractionDigits: digits, maximumFractionDigits: digits });
+    numberFormats.set(key, f);
+  }
+  return f;
+}
+
+/**
+ * The one metre formatter: a distance in the display locale with its unit, e.g. "1,709 m".
+ * `digits: 'auto'` writes one decimal only when the value has a fraction; `space` is what stands
+ * between figure and unit (a non-breaking space unless a caller's layout needs a plain one).
+ */
+export function formatMetres(m: number, options: { digits?: number | 'auto'; space?: string } = {}): string {
+  const { digits = 0, space = NBSP } = options;
+  const d = digits === 'auto' ? (Number.isInteger(m) ? 0 : 1) : digits;
+  return `${numberFormat(d).format(m)}${space}m`;
+}
+
+/**
  * One unit for a group of distances read together (a sentence, a row of figures): kilometres when the
  * largest is 10 km or more, else metres — so "447 m … 12.30 km" never appears side by side.
  */
@@ -76,7 +108,7 @@ export function distanceUnit(values: readonly number[]): 'm' | 'km' {
   return values.some((m) => m >= 10_000) ? 'km' : 'm';
 }
 export function distance(m: number, unit: 'm' | 'km' = distanceUnit([m])): string {
-  return unit === 'km' ? `${(m / 1000).toFixed(2)}${NBSP}km` : `${Math.round(m).toLocaleString('en-GB')}${NBSP}m`;
+  return unit === 'km' ? `${numberFormat(2).format(m / 1000)}${NBSP}km` : formatMetres(Math.round(m));
 }
 /** Every figure of a group in the same unit, in the order given. */
 export const distances = (values: readonly number[]): string[] => values.map((m) => distance(m, distanceUnit(values)));

@@ -1,6 +1,7 @@
 import { describe, expect, it, vi } from 'vitest';
 import { z } from 'zod';
-import { ApiError, createHttp } from '@client/api/http';
+import { ApiError, createHttp, errorFromAnswer, parseJsonText } from '@client/api/http';
+import { sendAction } from '@client/api/picking';
 import { Me } from '@shared/auth';
 import { Ok } from '@shared/common';
 
@@ -85,5 +86,28 @@ describe('http', () => {
     const { http, onUnauthenticated } = setup(401, { error: { code: 'unauthenticated', message: 'Sign in first.' } });
     await expect(http('GET', '/api/auth/me', Me, { quietUnauthenticated: true })).rejects.toBeInstanceOf(ApiError);
     expect(onUnauthenticated).not.toHaveBeenCalled();
+  });
+});
+
+describe('errorFromAnswer (the one decoder behind createHttp, uploads and the picker queue)', () => {
+  it("reads the server's error body: code, message, details and status", () => {
+    const e = errorFromAnswer(409, 'Conflict', { error: { code: 'trip_closed', message: 'Trip 4 was cancelled.', details: { tripId: 4 } } });
+    expect(e).toBeInstanceOf(ApiError);
+    expect([e.code, e.message, e.status, e.details]).toEqual(['trip_closed', 'Trip 4 was cancelled.', 409, { tripId: 4 }]);
+  });
+
+  it('names the status when something in front of the server answered (an HTML page, no body)', () => {
+    const e = errorFromAnswer(502, 'Bad Gateway', parseJsonText('<html>proxy</html>'));
+    expect([e.code, e.message, e.status]).toEqual(['http_error', 'The server answered 502 Bad Gateway', 502]);
+    expect(errorFromAnswer(500, '', undefined).message).toBe('The server answered 500');
+  });
+
+  it('gives the picker queue the same error as createHttp for the same answer', async () => {
+    const answer = () => new Response(JSON.stringify({ error: { code: 'line_not_shown', message: 'Not the line on screen' } }), { status: 409, statusText: 'Conflict' });
+    const viaHttp = await createHttp({ fetch: async () => answer(), onUnauthenticated: () => {} })('POST', '/x', z.object({})).catch((e: unknown) => e as ApiError);
+    const viaQueue = await sendAction({ kind: 'undo', tripId: 1, lineId: 2, body: {} }, 'key-123456789', 'tablet-1', async () => answer());
+    expect(viaQueue.ok).toBe(false);
+    const queued = (viaQueue as { ok: false; error: ApiError }).error;
+    expect([queued.code, queued.message, queued.status]).toEqual([viaHttp.code, viaHttp.message, viaHttp.status]);
   });
 });

@@ -296,6 +296,18 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
   ctx.textAlign = 'left';
 }
 
+/** Strokes the current path twice: `halo` 3 px wider underneath, then `colour` at `width` (dashed when `dash` is given). */
+function strokeOverHalo(ctx: CanvasRenderingContext2D, halo: string, colour: string, width: number, dash?: number[]): void {
+  ctx.strokeStyle = halo;
+  ctx.lineWidth = width + 3;
+  ctx.stroke();
+  ctx.strokeStyle = colour;
+  ctx.lineWidth = width;
+  if (dash) ctx.setLineDash(dash);
+  ctx.stroke();
+  if (dash) ctx.setLineDash([]);
+}
+
 export interface OverlayScene {
   plan: PlanGeometry;
   compact: boolean;
@@ -433,26 +445,15 @@ export function drawOverlayScene(ctx: CanvasRenderingContext2D, o: OverlayScene,
   if (route) {
     ctx.lineJoin = 'round';
     ctx.lineCap = 'round';
+    // Each part over a halo 3 px wider, so it reads over racks; the walked part dashed.
     if (o.remaining.length > 1) {
       polyline(ctx, vp, o.remaining);
-      ctx.strokeStyle = p.labelHalo;
-      ctx.lineWidth = 7;
-      ctx.stroke();
-      ctx.strokeStyle = p.routeRemaining;
-      ctx.lineWidth = 4;
-      ctx.stroke();
+      strokeOverHalo(ctx, p.labelHalo, p.routeRemaining, 4);
       chevrons(ctx, vp, o.remaining, p.routeRemaining);
     }
     if (o.walked.length > 1) {
       polyline(ctx, vp, o.walked);
-      ctx.strokeStyle = p.labelHalo;
-      ctx.lineWidth = 6;
-      ctx.stroke();
-      ctx.strokeStyle = p.routeWalked;
-      ctx.lineWidth = 3;
-      ctx.setLineDash([7, 6]);
-      ctx.stroke();
-      ctx.setLineDash([]);
+      strokeOverHalo(ctx, p.labelHalo, p.routeWalked, 3, [7, 6]);
     }
   }
   drawDepots(ctx, o.plan, p, vp, view, o.compact);

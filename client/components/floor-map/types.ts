@@ -3,6 +3,7 @@
  * (metres, x across the aisles, y along them), so the map draws what the engine routes on.
  */
 import type { PlanBin, PlanClosure, PlanGeometry } from '../../../shared/plan-geometry';
+import type { Viewport } from './viewport';
 
 export type { PlanBin, PlanClosure, PlanGeometry };
 
@@ -110,4 +111,14 @@ export interface FloorMapStats {
   /** Bin cells drawn in the last vector render (after culling). */
   lastBinsDrawn: number;
   indexBuildMs: number;
+}
+
+/**
+ * The map's view, shared by its drawing and its gestures. A plain object, outside Vue's reactivity:
+ * it changes on every frame of a gesture.
+ */
+export interface MapView {
+  vp: Viewport;
+  /** Until this `performance.now()` time a gesture is going on: a scaled blit of the plan will do. */
+  interactingUntil: number;
 }

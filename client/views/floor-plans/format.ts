@@ -1,15 +1,12 @@
 /** Plain formatting helpers for the floor-plan views; free of Vue so they unit-test on their own. */
 import type { JobPhase } from '@shared/floor-plans';
-import { count as countNoun } from '@client/utils/format';
+import { count as countNoun, formatMetres } from '@client/utils/format';
 
 /** A number, or with a noun its count in the right number: `count(1, 'bin')` → "1 bin". */
 export const count = (n: number, noun?: string, plural?: string): string => (noun ? countNoun(n, noun, plural) : n.toLocaleString('en-GB'));
 
 /** Metres with one decimal when the value has a fraction, e.g. `3,600 m`, `12.5 m`. */
-export function metres(m: number): string {
-  const digits = Number.isInteger(m) ? 0 : 1;
-  return `${m.toLocaleString('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits })} m`;
-}
+export const metres = (m: number): string => formatMetres(m, { digits: 'auto', space: ' ' });
 
 export function kibibytes(bytes: number): string {
   return bytes < 1024 * 1024 ? `${(bytes / 1024).toFixed(0)} KiB` : `${(bytes / 1024 / 1024).toFixed(1)} MiB`;

@@ -1,4 +1,4 @@
-/** The tablet's own feedback and identity: a name for the audit trail, sound, vibration, screen wake. */
+/** The tablet's own feedback and identity: a name for the audit trail, sound, vibration (the screen wake lock: usePickTrip). */
 import { newId } from '@client/utils/ids';
 
 const DEVICE_KEY = 'aislewright.device';
@@ -43,30 +43,4 @@ export function beep(kind: 'error' | 'ok'): void {
 
 export function vibrate(kind: 'error' | 'ok'): void {
   if (typeof navigator.vibrate === 'function') navigator.vibrate(kind === 'error' ? [180, 80, 180] : 60);
-}
-
-/**
- * Keeps the screen on while a trip is open (Screen Wake Lock where the browser has it). The lock
- * drops whenever the page is hidden, so it is asked for again when the page comes back.
- */
-export function keepScreenOn(): () => void {
-  let lock: WakeLockSentinel | null = null;
-  let active = true;
-  const request = async () => {
-    if (!active || document.visibilityState !== 'visible' || !('wakeLock' in navigator)) return;
-    try {
-      lock = await navigator.wakeLock.request('screen');
-    } catch {
-      lock = null;
-    }
-  };
-  const onVisible = () => void request();
-  document.addEventListener('visibilitychange', onVisible);
-  void request();
-  return () => {
-    active = false;
-    document.removeEventListener('visibilitychange', onVisible);
-    void lock?.release().catch(() => undefined);
-    lock = null;
-  };
 }

@@ -1,9 +1,10 @@
 /** Study figures as the page and the workbook show them; numbers always carry units. */
+import { formatMetres } from '@client/utils/format';
+
 const nf = (digits: number) => new Intl.NumberFormat('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits });
-const n1 = nf(1);
 const n2 = nf(2);
 
-export const metres1 = (m: number | null): string => (m === null ? '—' : `${n1.format(m)} m`);
+export const metres1 = (m: number | null): string => (m === null ? '—' : formatMetres(m, { digits: 1, space: ' ' }));
 export const hours2 = (h: number | null): string => (h === null ? '—' : `${n2.format(h)} h`);
 export const pct2 = (p: number | null): string => (p === null ? '—' : `${n2.format(p)} %`);
 export const ms0 = (ms: number): string => `${Math.round(ms).toLocaleString('en-US')} ms`;
