@@ -8,7 +8,9 @@
  * Then batching by search against savings (issue 14): per generated site, the walking of `search`
  * after 2 s, the default budget (40 % of the 8 s wave budget = 3.2 s) and 8 s beside savings', and the
  * planning time of a 300-order wave with `search`, the wave builder's default. Walking is the sum of
- * each trip's circuit with the wave's default routing (best + local). Options (environment):
+ * each trip's circuit with the wave's default routing (best + local); a second table says where the
+ * default budget went (kicks, quick estimates, moves measured by the router, router calls, cache hit
+ * rate by order set). Options (environment):
  * BENCH_LONG=1 adds the 30 s column; BENCH_CLOCK=cpu counts the search budgets in this process's CPU
  * time instead of wall time (on a shared machine wall time gives the search whatever CPU is left).
  */
