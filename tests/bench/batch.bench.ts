@@ -8,7 +8,9 @@
  * Then batching by search against savings (issue 14): per generated site, the walking of `search`
  * after 2 s, the default budget (40 % of the 8 s wave budget = 3.2 s) and 8 s beside savings', and the
  * planning time of a 300-order wave with `search`, the wave builder's default. Walking is the sum of
- * each trip's circuit with the wave's default routing (best + local). Options (environment):
+ * each trip's circuit with the wave's default routing (best + local); a second table says where the
+ * default budget went (kicks, quick estimates, moves measured by the router, router calls, cache hit
+ * rate by order set). Options (environment):
  * BENCH_LONG=1 adds the 30 s column; BENCH_CLOCK=cpu counts the search budgets in this process's CPU
  * time instead of wall time (on a shared machine wall time gives the search whatever CPU is left).
  */
@@ -87,6 +89,7 @@ async function runSearch(): Promise<void> {
   console.log(`| site and wave | trips (savings) | savings m | ${budgets.map((b) => `search ${fmt(b / 1000, 1)} s${b === DEFAULT_SEARCH_MS ? ' (default)' : ''}`).join(' | ')} |`);
   console.log(`|---|---:|---:|${budgets.map(() => '---:').join('|')}|`);
   const gains = budgets.map(() => [] as number[]);
+  const profile: string[] = [];
   for (const sc of SEARCH_SCENARIOS) {
     const floor = floorOf(sc.floor);
     const orders = generateOrders(floor, sc.seed, sc.orders);
@@ -104,6 +107,10 @@ async function runSearch(): Promise<void> {
       }
       const pct = (1 - stats.waveLength / stats.savingsWaveLength) * 100;
       gains[i]!.push(pct);
+      if (b === DEFAULT_SEARCH_MS) {
+        const lookups = stats.routed + stats.cacheHits;
+        profile.push(`| ${sc.name} | ${stats.kicks} | ${stats.quick} | ${stats.measured} | ${stats.routed} | ${fmt((100 * stats.cacheHits) / Math.max(1, lookups), 1)} % |`);
+      }
       cells.push(`${fmt(stats.waveLength, 0)} (−${fmt(pct, 2)} %, ${r.batches.length} trips, ${fmt(ms / 1000, 1)} s wall)`);
     });
     console.log(`| ${sc.name} | ${trips} | ${fmt(savingsM, 0)} | ${cells.join(' | ')} |`);
@@ -112,6 +119,11 @@ async function runSearch(): Promise<void> {
   console.log(`| **mean less walking than savings** | | | ${gains.map((g) => `**${fmt(mean(g), 2)} %**`).join(' | ')} |`);
   const atDefault = mean(gains[budgets.indexOf(DEFAULT_SEARCH_MS)]!);
   console.log(`\nGoal: at least ${SEARCH_GOAL_PCT} % less walking than savings on average at the default budget: ${fmt(atDefault, 2)} % → ${atDefault >= SEARCH_GOAL_PCT ? 'pass' : 'FAIL'}\n`);
+  console.log('Where the default budget goes: kicks, quick estimates (circuits changed in place and improved around the change), moves measured by the router, router calls (trip lengths not in the cache) and the cache hit rate by order set.\n');
+  console.log('| site and wave | kicks | quick estimates | moves measured | router calls | cache hits |');
+  console.log('|---|---:|---:|---:|---:|---:|');
+  for (const row of profile) console.log(row);
+  console.log('');
 
   // Planning time of a 300-order wave with search (default wave budget 8 s), wall time.
   const big = SEARCH_SCENARIOS[3]!;

@@ -15,7 +15,7 @@
 import { MinHeap } from '../plan/heap';
 import type { BatchContext, Load } from './context';
 import { fits } from './context';
-import { unionSorted } from './route-length';
+import { closeness, unionInto, unionSorted } from './route-length';
 
 /** Partners per order considered for a saving. */
 const NEIGHBOURS = 64;
@@ -46,21 +46,21 @@ export function batchSavings(ctx: BatchContext): Load[] {
 
   const pairA: number[] = [];
   const pairB: number[] = [];
-  const pairStops: Int32Array[] = [];
   const pairLength: number[] = [];
   const heap = new MinHeap(1024);
+  // One scratch array for every candidate union: only merged pairs keep theirs (rebuilt at the merge).
+  let scratch = new Int32Array(64);
   const consider = (a: number, b: number): void => {
     const ga = groups[a]!;
     const gb = groups[b]!;
     if (!fits(ga, gb, cart)) return;
-    const union = unionSorted(ga.stops, gb.stops);
-    const length = table.routeLength(union);
+    if (scratch.length < ga.stops.length + gb.stops.length) scratch = new Int32Array(2 * (ga.stops.length + gb.stops.length));
+    const length = table.routeLength(scratch.subarray(0, unionInto(ga.stops, gb.stops, scratch)));
     const saving = ga.length + gb.length - length;
     if (!(saving > 0)) return;
     heap.push(-saving, pairA.length);
     pairA.push(a);
     pairB.push(b);
-    pairStops.push(union);
     pairLength.push(length);
   };
 
@@ -83,7 +83,7 @@ export function batchSavings(ctx: BatchContext): Load[] {
     const members = [...ga.members, ...gb.members];
     groups.push({
       members,
-      stops: pairStops[id]!,
+      stops: unionSorted(ga.stops, gb.stops),
       kg: ga.kg + gb.kg,
       litres: ga.litres + gb.litres,
       totes: ga.totes + gb.totes,
@@ -118,25 +118,10 @@ function neighbourLists(ctx: BatchContext): number[][] {
   const all = Array.from({ length: n }, (_, p) => p);
   if (n - 1 <= NEIGHBOURS) return all.map((p) => all.filter((q) => q !== p));
   const close = new Float64Array(n * n);
-  // Index loops over typed arrays: this runs n² · k² times.
-  const oneWay = (from: Int32Array, to: Int32Array): number => {
-    let sum = 0;
-    for (let i = 0; i < from.length; i++) {
-      const s = from[i]!;
-      let best = Infinity;
-      for (let j = 0; j < to.length; j++) {
-        const v = table.d(s, to[j]!);
-        if (v < best) best = v;
-      }
-      sum += best;
-    }
-    return sum;
-  };
   for (let p = 0; p < n; p++) {
     const sp = stops[p]!;
     for (let q = p + 1; q < n; q++) {
-      const sq = stops[q]!;
-      const v = oneWay(sp, sq) + oneWay(sq, sp);
+      const v = closeness(table, sp, stops[q]!);
       close[p * n + q] = v;
       close[q * n + p] = v;
     }

@@ -1,26 +1,12 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { planWave } from '../../../server/core/batch/plan-wave';
-import type { Order } from '../../../server/core/batch/types';
+import { ordersArb as ordersArbOf } from './arbitraries';
 import { floorOf } from './fixtures';
 import { waveProblems } from './invariants';
 
 const floor = floorOf({ aisles: 6, aisleLengthM: 20, aisleSpacingM: 3, baysPerAisle: 8, levels: 2 });
-const bins = floor.plan.bins.length;
-
-const lineArb = fc.record({
-  bin: fc.integer({ min: 0, max: bins - 1 }),
-  qty: fc.integer({ min: 1, max: 5 }),
-  unitKg: fc.double({ min: 0, max: 15, noNaN: true }),
-  unitLitres: fc.double({ min: 0, max: 25, noNaN: true }),
-});
-const ordersArb = fc.array(fc.array(lineArb, { minLength: 1, maxLength: 5 }), { minLength: 0, maxLength: 24 }).map((list): Order[] =>
-  list.map((lines, i) => ({
-    ref: `P${i}`,
-    lines: lines.map((l, k) => ({ sku: `S${l.bin}-${k}`, qty: l.qty, node: floor.graph.binNode[l.bin]!, bin: floor.plan.bins[l.bin]!.code, unitKg: l.unitKg, unitLitres: l.unitLitres })),
-    ...(i % 3 === 0 ? { due: 1000 - i } : {}),
-  })),
-);
+const ordersArb = ordersArbOf(floor, 24, true);
 const cartArb = fc.record({
   totes: fc.integer({ min: 1, max: 10 }),
   maxKg: fc.double({ min: 5, max: 120, noNaN: true }),

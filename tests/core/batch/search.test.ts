@@ -12,6 +12,7 @@ import type { Cart, Order } from '../../../server/core/batch/types';
 import { matrixOf } from '../../../server/core/matrix';
 import { solveTour } from '../../../server/core/tour/index';
 import { steppingClock } from '../../helpers/clock';
+import { ordersArb } from './arbitraries';
 import { floorOf, generateOrders } from './fixtures';
 import { waveProblems } from './invariants';
 
@@ -96,22 +97,9 @@ describe('batching: search', () => {
   });
 
   it('keeps every guarantee on random orders and carts', () => {
-    const bins = floor.plan.bins.length;
-    const lineArb = fc.record({
-      bin: fc.integer({ min: 0, max: bins - 1 }),
-      qty: fc.integer({ min: 1, max: 5 }),
-      unitKg: fc.double({ min: 0, max: 15, noNaN: true }),
-      unitLitres: fc.double({ min: 0, max: 25, noNaN: true }),
-    });
-    const ordersArb = fc.array(fc.array(lineArb, { minLength: 1, maxLength: 5 }), { minLength: 0, maxLength: 20 }).map((list): Order[] =>
-      list.map((lines, i) => ({
-        ref: `P${i}`,
-        lines: lines.map((l, k) => ({ sku: `S${l.bin}-${k}`, qty: l.qty, node: floor.graph.binNode[l.bin]!, bin: floor.plan.bins[l.bin]!.code, unitKg: l.unitKg, unitLitres: l.unitLitres })),
-      })),
-    );
     const cartArb = fc.record({ totes: fc.integer({ min: 1, max: 8 }), maxKg: fc.double({ min: 5, max: 120, noNaN: true }), maxLitres: fc.double({ min: 10, max: 300, noNaN: true }) });
     fc.assert(
-      fc.property(ordersArb, cartArb, (orders, cart) => {
+      fc.property(ordersArb(floor, 20), cartArb, (orders, cart) => {
         const wave = planWave({ orders, cart, batching: 'search', depotNode: floor.depotNode, distance: floor.distance, clock: steppingClock(1), timeLimitMs: 1500, routing: { improve: 'none' } });
         expect(waveProblems({ orders, cart, depotNode: floor.depotNode, distance: floor.distance }, wave)).toEqual([]);
       }),
