@@ -44,13 +44,15 @@ export interface LocalMoves {
   orOpt: boolean;
   /** Lin–Kernighan-style chains of 2-opt flips; off when omitted. */
   lk?: boolean;
+  /** The chains' or-3opt alternative (segment insertion, see lkStep); off when omitted. */
+  or3?: boolean;
   /** Candidates tried per chain level (LK_DEPTH entries); LK_BREADTH_NARROW when omitted. */
   lkBreadth?: readonly number[];
 }
 
 const BOTH: LocalMoves = { twoOpt: true, orOpt: true, lk: true };
 /** `local`'s moves: all three, with the wide chains. */
-export const LOCAL_MOVES: LocalMoves = { twoOpt: true, orOpt: true, lk: true, lkBreadth: LK_BREADTH_WIDE };
+export const LOCAL_MOVES: LocalMoves = { twoOpt: true, orOpt: true, lk: true, or3: true, lkBreadth: LK_BREADTH_WIDE };
 
 /** Each point's K nearest others, row-major in n·K entries: nearest first, lower index on ties. */
 export interface Neighbors {
@@ -151,6 +153,7 @@ export function createLocalSearch(
   const eps = 1e-9 * Math.max(1, maxD);
   const moves3 = { twoOpt: moves.twoOpt, orOpt: moves.orOpt, lk: moves.lk === true };
   const lkBreadth = moves.lkBreadth ?? LK_BREADTH_NARROW;
+  const or3 = moves.or3 === true;
 
   // Undo log: while recording, every write to the circuit logs its position and old occupant.
   /** Length change since the last `load` or `mark`. */
@@ -318,47 +321,118 @@ export function createLocalSearch(
     return false;
   };
 
-  const lkFlipA = new Int32Array(LK_DEPTH);
-  const lkFlipB = new Int32Array(LK_DEPTH);
-  let lkFlips = 0;
-  /** Reverses the path from the point after t1 (in the circuit's current sense at t1) to x. */
-  const flipFrom = (t1: number, t2: number, x: number): void => {
-    if (succ(t1) === t2) reversePath(t2, x);
-    else reversePath(x, t2);
+  // The chain's moves as 2-opt moves (a, b, c, d): edges (a, b) and (c, d) out, (a, c) and (b, d) in.
+  const MOVES_MAX = 3 * LK_DEPTH;
+  const mvA = new Int32Array(MOVES_MAX);
+  const mvB = new Int32Array(MOVES_MAX);
+  const mvC = new Int32Array(MOVES_MAX);
+  const mvD = new Int32Array(MOVES_MAX);
+  let mvN = 0;
+  /**
+   * The 2-opt move that takes out (a, b) and (c, d), where b follows a and d follows c in the same
+   * sense, and puts in (a, c) and (b, d); logged so the chain can be undone.
+   */
+  const move2 = (a: number, b: number, c: number, d: number): void => {
+    if (succ(a) === b) reversePath(b, c);
+    else reversePath(a, d);
+    mvA[mvN] = a;
+    mvB[mvN] = b;
+    mvC[mvN] = c;
+    mvD[mvN] = d;
+    mvN++;
   };
+  /** Undoes the chain's moves back to `to` of them (each 2-opt move's inverse swaps b and c). */
+  const undoTo = (to: number): void => {
+    while (mvN > to) {
+      mvN--;
+      const a = mvA[mvN]!;
+      const c = mvC[mvN]!;
+      if (succ(a) === c) reversePath(c, mvB[mvN]!);
+      else reversePath(a, mvD[mvN]!);
+    }
+  };
+  /** True when x lies on the path from a to b in the sense `fwd` (forward when true). */
+  const between = (a: number, x: number, b: number, fwd: boolean): boolean =>
+    fwd ? (pos[x]! - pos[a]! + n) % n <= (pos[b]! - pos[a]! + n) % n : (pos[a]! - pos[x]! + n) % n <= (pos[a]! - pos[b]! + n) % n;
+
   /**
    * One level of the chain: the edge (t1, t2) is out, `gain` is what the chain has saved so far. Tries
-   * new edges (t2, t3) with t3 among t2's nearest while the gain stays positive; t4 is t3's neighbour on
-   * t2's side, and flipping t2…t4 gives the circuit with (t2, t3) in and (t3, t4) out, closed by (t4, t1).
+   * new edges (t2, t3) with t3 among t2's nearest while the gain stays positive. With t4 the neighbour
+   * of t3 on t2's side, the 2-opt move t2…t4 gives the circuit with (t2, t3) in and (t3, t4) out, closed
+   * by (t4, t1). With t4 on the other side, closing would split the circuit, so a third edge (t4, t5),
+   * t5 among t4's nearest between t2 and t3, and (t5, t6) out with t6 either neighbour of t5 make the
+   * sequential 3-opt move (segment insertion, "or-3opt"), closed by (t6, t1).
    */
   const lkStep = (t1: number, t2: number, gain: number, depth: number): boolean => {
-    const fwd = succ(t1) === t2;
     const breadth = lkBreadth[depth] ?? 1;
+    const mark0 = mvN;
     let tried = 0;
     for (let t = 0; t < K && tried < breadth; t++) {
       const t3 = nb[t2 * K + t]!;
       const g1 = gain - dist(t2, t3);
       if (!(g1 > eps)) break;
       if (t3 === t1) continue;
+      // An undone chain may leave the array mirrored: the sense is read again for every candidate.
+      const fwd = succ(t1) === t2;
       const t4 = fwd ? pred(t3) : succ(t3);
       if (t4 === t2 || t3 === t2) continue;
       tried++;
       const g2 = g1 + dist(t3, t4);
       const close = g2 - dist(t4, t1);
       // The last level only tests closing; deeper levels need the flip made to find their t4.
-      if (!(close > eps) && depth + 1 >= LK_DEPTH) continue;
-      flipFrom(t1, t2, t4);
-      lkFlipA[lkFlips] = t2;
-      lkFlipB[lkFlips] = t4;
-      lkFlips++;
-      if (close > eps) {
-        acc -= close;
-        return true;
+      if (close > eps || depth + 1 < LK_DEPTH) {
+        move2(t1, t2, t4, t3);
+        if (close > eps) {
+          acc -= close;
+          return true;
+        }
+        if (lkStep(t1, t4, g2, depth + 1)) return true;
+        undoTo(mark0);
       }
-      if (lkStep(t1, t4, g2, depth + 1)) return true;
-      // Undo this flip: t4 now follows t1 and the flipped path runs t4 … t2.
-      lkFlips--;
-      flipFrom(t1, t4, t2);
+      if (or3 && depth + 1 < LK_DEPTH && or3At(t1, t2, t3, g1, depth)) return true;
+    }
+    return false;
+  };
+  /** The or-3opt alternative of lkStep for t3 (t4 = t3's neighbour away from t2). */
+  const or3At = (t1: number, t2: number, t3: number, g1: number, depth: number): boolean => {
+    const t4 = succ(t1) === t2 ? succ(t3) : pred(t3);
+    if (t4 === t1) return false;
+    const g2 = g1 + dist(t3, t4);
+    const mark0 = mvN;
+    const breadth = lkBreadth[depth + 1] ?? 1;
+    let tried = 0;
+    for (let t = 0; t < K && tried < breadth; t++) {
+      const t5 = nb[t4 * K + t]!;
+      const g3 = g2 - dist(t4, t5);
+      if (!(g3 > eps)) break;
+      const fwd = succ(t1) === t2;
+      if (t5 === t3 || t5 === t4 || !between(t2, t5, t3, fwd)) continue;
+      tried++;
+      for (let side = 0; side < 2; side++) {
+        // side 0: t6 follows t5 (towards t3); side 1: t6 precedes t5 (towards t2).
+        if (side === 0 ? t5 === t3 : t5 === t2) continue;
+        const fwd = succ(t1) === t2;
+        const t6 = side === 0 ? (fwd ? succ(t5) : pred(t5)) : fwd ? pred(t5) : succ(t5);
+        const g4 = g3 + dist(t5, t6);
+        const close = g4 - dist(t6, t1);
+        if (!(close > eps) && depth + 2 >= LK_DEPTH) continue;
+        if (side === 0) {
+          // t1 t2…t5 t6…t3 t4 → t1 t6…t3 t2…t5 t4
+          move2(t1, t2, t3, t4);
+          move2(t1, t3, t6, t5);
+          move2(t3, t5, t2, t4);
+        } else {
+          // t1 t2…t6 t5…t3 t4 → t1 t6…t2 t3…t5 t4
+          move2(t1, t2, t6, t5);
+          move2(t2, t5, t3, t4);
+        }
+        if (close > eps) {
+          acc -= close;
+          return true;
+        }
+        if (lkStep(t1, t6, g4, depth + 2)) return true;
+        undoTo(mark0);
+      }
     }
     return false;
   };
@@ -366,18 +440,13 @@ export function createLocalSearch(
   const lkAt = (a: number): boolean => {
     for (let side = 0; side < 2; side++) {
       const t2 = side === 0 ? succ(a) : pred(a);
-      lkFlips = 0;
+      mvN = 0;
       if (lkStep(a, t2, dist(a, t2), 0)) {
-        push(a);
-        for (let f = 0; f < lkFlips; f++) {
-          const x = lkFlipA[f]!;
-          const y = lkFlipB[f]!;
-          push(x);
-          push(y);
-          push(succ(x));
-          push(pred(x));
-          push(succ(y));
-          push(pred(y));
+        for (let f = 0; f < mvN; f++) {
+          push(mvA[f]!);
+          push(mvB[f]!);
+          push(mvC[f]!);
+          push(mvD[f]!);
         }
         return true;
       }
