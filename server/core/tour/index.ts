@@ -15,7 +15,7 @@ import { nearestNeighbor, repeatedNearestNeighbor, SORTED_EDGES_ALL_PAIRS_MAX, s
 import { improveDeep } from './deep';
 import { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 import type { Neighbors } from './local';
-import { improveLocal, LOCAL_MOVES, neighborLists, neighborsFor } from './local';
+import { improveLocal, localMovesFor, neighborLists, neighborsFor } from './local';
 
 export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 export type { TourResult } from './exact';
@@ -130,7 +130,7 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
     }
   }
 
-  if (improve === 'local') order = improveLocal(m, order, budget, LOCAL_MOVES, lists());
+  if (improve === 'local') order = improveLocal(m, order, budget, localMovesFor(n), lists());
   else if (improve === 'deep') order = improveDeep(m, order, budget, createRng(opts.seed ?? 1), lists());
   canonicalize(order, depot);
   return { method, improve, order, length: circuitLength(m, order), ms: clock() - t0 };
