@@ -4,17 +4,11 @@
  * stop number, and the skipped stop comes back with it.
  */
 import Database from 'better-sqlite3';
-import { expect, request, test, type APIRequestContext, type Page } from '@playwright/test';
+import { expect, test, type APIRequestContext, type Page } from '@playwright/test';
+import { supervisorApi } from './harness/session';
 
-const CSRF = { 'x-aislewright': '1' };
 const PICKER = { badge: 'P-1001', pin: '246810', name: 'Pat Picker' };
 
-async function supervisorApi(baseURL: string): Promise<APIRequestContext> {
-  const api = await request.newContext({ baseURL, extraHTTPHeaders: CSRF });
-  const res = await api.post('/api/auth/sign-in', { data: { email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' } });
-  expect(res.status()).toBe(200);
-  return api;
-}
 
 /** Releases a wave of six open orders and gives its longest trip to the picker. */
 async function releaseTrip(api: APIRequestContext): Promise<{ tripId: number; lines: number; stops: number }> {

@@ -5,17 +5,11 @@
  * live board must show the trip done with one short.
  */
 import Database from 'better-sqlite3';
-import { expect, request, test, type APIRequestContext, type Page } from '@playwright/test';
+import { expect, test, type APIRequestContext, type Page } from '@playwright/test';
+import { supervisorApi } from './harness/session';
 
-const CSRF = { 'x-aislewright': '1' };
 const PICKER = { badge: 'P-1003', pin: '246810', name: 'Kai Picker' };
 
-async function supervisorApi(baseURL: string): Promise<APIRequestContext> {
-  const api = await request.newContext({ baseURL, extraHTTPHeaders: CSRF });
-  const res = await api.post('/api/auth/sign-in', { data: { email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' } });
-  expect(res.status()).toBe(200);
-  return api;
-}
 
 /** Releases a wave of four open orders (first come, first served) and gives its longest trip to the picker. */
 async function releaseTrip(api: APIRequestContext): Promise<{ siteId: number; tripId: number; lines: number; waveName: string }> {

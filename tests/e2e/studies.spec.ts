@@ -1,16 +1,13 @@
 import { readFileSync } from 'node:fs';
 import { expect, test } from '@playwright/test';
 import * as XLSX from 'xlsx';
+import { signInPage } from './harness/session';
 
-const ENGINEER = { email: 'engineer@demo.aislewright.test', password: 'demo-password-1' };
+const ENGINEER = 'engineer@demo.aislewright.test';
 
 test('an engineer runs a generated study, reads the table and both charts, compares two routes and exports the workbook', async ({ page }) => {
   test.setTimeout(240_000);
-  await page.goto('/sign-in');
-  await page.getByLabel('E-mail').fill(ENGINEER.email);
-  await page.getByLabel('Password').fill(ENGINEER.password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await expect(page).toHaveURL('/studies');
+  await signInPage(page, ENGINEER, '/studies');
 
   await page.getByRole('button', { name: 'New study' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'New study' })).toBeVisible();
@@ -75,11 +72,7 @@ test('an engineer runs a generated study, reads the table and both charts, compa
 test('the new-study form describes each method and shows a refused what-if on its field; the result keeps the Note in view at 1366 px', async ({ page }) => {
   test.setTimeout(240_000);
   await page.setViewportSize({ width: 1366, height: 800 });
-  await page.goto('/sign-in');
-  await page.getByLabel('E-mail').fill(ENGINEER.email);
-  await page.getByLabel('Password').fill(ENGINEER.password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await expect(page).toHaveURL('/studies');
+  await signInPage(page, ENGINEER, '/studies');
   await page.getByRole('button', { name: 'New study' }).click();
 
   // Each method carries its description beside its name.
