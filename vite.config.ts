@@ -68,6 +68,8 @@ export default defineConfig({
           environment: 'happy-dom',
           include: ['tests/client/**/*.test.ts'],
           setupFiles: ['tests/client/setup.ts'],
+          // Mounting a page with Naive UI took over 5 s (Vitest's default) at load 15 on 2 cores.
+          testTimeout: 30_000,
         },
       },
     ],

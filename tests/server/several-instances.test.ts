@@ -13,6 +13,19 @@ import { Board } from '../../shared/picking';
 import type { Db } from '../../server/db/knex';
 import { HOLD_FIRST_ATTEMPT_TEST_ENV } from '../../server/workers/jobs';
 
+/** Two instances started together on a fresh database (the test's own schema), and the site they share. */
+async function startPair(env: Record<string, string> = {}): Promise<{ a: Instance; b: Instance; db: Db; drop: () => Promise<void>; siteId: number }> {
+  const fresh = await freshDatabase(testDatabaseUrl!);
+  const [a, b] = await Promise.all([startInstance(fresh.url, env), startInstance(fresh.url, env)]);
+  const siteId = (await fresh.db('sites').first<{ id: number }>('id'))!.id;
+  return { a, b, db: fresh.db, drop: fresh.drop, siteId };
+}
+
+async function stopPair(a: Instance | undefined, b: Instance | undefined, drop: (() => Promise<void>) | undefined): Promise<void> {
+  await Promise.all([a?.kill(), b?.kill()]);
+  await drop?.();
+}
+
 describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', () => {
   let a: Instance;
   let b: Instance;
@@ -21,18 +34,10 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
   let siteId: number;
 
   beforeAll(async () => {
-    const fresh = await freshDatabase(testDatabaseUrl!);
-    db = fresh.db;
-    drop = fresh.drop;
     // Started together: both run the migrations and the demo seed against the same empty database.
-    [a, b] = await Promise.all([startInstance(fresh.url), startInstance(fresh.url)]);
-    siteId = (await db('sites').first<{ id: number }>('id'))!.id;
+    ({ a, b, db, drop, siteId } = await startPair());
   }, 180_000);
-
-  afterAll(async () => {
-    await Promise.all([a?.kill(), b?.kill()]);
-    await drop?.();
-  });
+  afterAll(() => stopPair(a, b, drop));
 
   it('seeds the demo once and runs each migration once, though both started on an empty database', async () => {
     expect(Number((await db('sites').count({ n: '*' }))[0]!.n)).toBe(1);
@@ -137,20 +142,11 @@ describe.skipIf(!testDatabaseUrl)('a wave preview whose instance dies on one Pos
   let siteId: number;
 
   beforeAll(async () => {
-    const fresh = await freshDatabase(testDatabaseUrl!);
-    db = fresh.db;
-    drop = fresh.drop;
     // Test-only hold: a job's first attempt waits 10 minutes before planning, on whichever instance takes
     // it, so the test can stop that instance mid-job; the attempt after it plans at once.
-    const env = { [HOLD_FIRST_ATTEMPT_TEST_ENV]: String(10 * 60_000) };
-    [a, b] = await Promise.all([startInstance(fresh.url, env), startInstance(fresh.url, env)]);
-    siteId = (await db('sites').first<{ id: number }>('id'))!.id;
+    ({ a, b, db, drop, siteId } = await startPair({ [HOLD_FIRST_ATTEMPT_TEST_ENV]: String(10 * 60_000) }));
   }, 180_000);
-
-  afterAll(async () => {
-    await Promise.all([a?.kill(), b?.kill()]);
-    await drop?.();
-  });
+  afterAll(() => stopPair(a, b, drop));
 
   it('finishes on the other instance a preview whose instance was killed mid-job', async () => {
     const supervisorA = request.agent(a.url);
