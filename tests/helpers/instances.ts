@@ -35,3 +35,14 @@ export function isCircuit(order: readonly number[], n: number, depot = 0): boole
   }
   return true;
 }
+
+/** 0…n−1 in a seeded random order (Fisher–Yates), as a starting circuit to improve. */
+export function shuffled(n: number, seed: number): number[] {
+  const rng = createRng(seed);
+  const a = Array.from({ length: n }, (_, i) => i);
+  for (let i = n - 1; i > 0; i--) {
+    const j = rng.int(i + 1);
+    [a[i], a[j]] = [a[j]!, a[i]!];
+  }
+  return a;
+}

@@ -3,26 +3,16 @@ import { circuitLength } from '../../../server/core/matrix';
 import { nearestNeighbor } from '../../../server/core/tour/construct';
 import { improveLocal, neighborLists } from '../../../server/core/tour/local';
 import { bestOrOptGain, bestTwoOptGain } from '../../helpers/moves';
-import { isCircuit, randomEuclidean, randomIntegerMatrix } from '../../helpers/instances';
+import { isCircuit, randomEuclidean, randomIntegerMatrix, shuffled } from '../../helpers/instances';
 import { loadTour, loadTsp, TSPLIB_LARGE_OPTIMA, TSPLIB_OPTIMA } from '../../helpers/tsplib';
 import { solveTour } from '../../../server/core/tour/index';
 import { steppingClock } from '../../helpers/clock';
-import { createRng } from '../../../server/core/rng';
 import type { DistanceMatrix } from '../../../server/core/matrix';
 
 const maxD = (m: DistanceMatrix): number => m.d.reduce((a, b) => Math.max(a, b), 0);
 // The engine promises no move gains more than 1e-9 of the longest distance; twice that absorbs re-summing.
 const tol = (m: DistanceMatrix): number => 2e-9 * Math.max(1, maxD(m));
 
-function shuffled(n: number, seed: number): number[] {
-  const rng = createRng(seed);
-  const a = Array.from({ length: n }, (_, i) => i);
-  for (let i = n - 1; i > 0; i--) {
-    const j = rng.int(i + 1);
-    [a[i], a[j]] = [a[j]!, a[i]!];
-  }
-  return a;
-}
 
 const cases: [string, DistanceMatrix][] = [
   ['random points n=60', randomEuclidean(60, 11)],

@@ -12,7 +12,7 @@ import { createRng } from '../../../server/core/rng';
 import { nearestNeighbor } from '../../../server/core/tour/construct';
 import type { LocalMoves } from '../../../server/core/tour/local';
 import { createLocalSearch, LK_BREADTH_NARROW, LK_BREADTH_WIDE, neighborLists } from '../../../server/core/tour/local';
-import { isCircuit, randomEuclidean, randomIntegerMatrix } from '../../helpers/instances';
+import { isCircuit, randomEuclidean, randomIntegerMatrix, shuffled } from '../../helpers/instances';
 import { loadTsp, TSPLIB_OPTIMA } from '../../helpers/tsplib';
 
 const CHAINS_OR3: LocalMoves = { twoOpt: false, orOpt: false, lk: true, or3: true, lkBreadth: LK_BREADTH_WIDE };
@@ -20,15 +20,6 @@ const CHAINS_ONLY: LocalMoves = { twoOpt: false, orOpt: false, lk: true, lkBread
 const ALL_WIDE: LocalMoves = { twoOpt: true, orOpt: true, lk: true, or3: true, lkBreadth: LK_BREADTH_WIDE };
 const ALL_NARROW: LocalMoves = { twoOpt: true, orOpt: true, lk: true, or3: true, lkBreadth: LK_BREADTH_NARROW };
 
-function shuffled(n: number, seed: number): number[] {
-  const rng = createRng(seed);
-  const a = Array.from({ length: n }, (_, i) => i);
-  for (let i = n - 1; i > 0; i--) {
-    const j = rng.int(i + 1);
-    [a[i], a[j]] = [a[j]!, a[i]!];
-  }
-  return a;
-}
 
 const tol = (m: DistanceMatrix): number => 1e-6 * Math.max(1, circuitLength(m, Array.from({ length: m.n }, (_, i) => i)));
 
