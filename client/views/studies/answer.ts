@@ -3,17 +3,23 @@
  * saved by the default routing method against S-shape, and what each what-if saves or costs.
  * Pure: no Vue, no DOM.
  */
-import { DEFAULT_ROUTING, type StudyDetail, type StudyResults } from '@shared/studies';
+import { DEFAULT_ROUTING, type StudyDetail, type StudyResults, type StudyVariant } from '@shared/studies';
 import { hours2, metres1, signed } from './format';
+
+/** What the default routing method saves against S-shape on one plan, or null when either figure is missing. */
+export function savingOverSShape(v: StudyVariant): { hoursPerDay: number; metres: number; pct: number | null } | null {
+  const s = v.routing.find((x) => x.key === 's-shape');
+  const d = v.routing.find((x) => x.key === DEFAULT_ROUTING);
+  if (s?.hoursPerDay == null || d?.hoursPerDay == null || s.metres == null || d.metres == null) return null;
+  const metres = s.metres - d.metres;
+  return { hoursPerDay: s.hoursPerDay - d.hoursPerDay, metres, pct: s.metres > 0 ? (metres / s.metres) * 100 : null };
+}
 
 export function studyAnswerLines(r: StudyResults): string[] {
   const lines: string[] = [];
   for (const v of r.variants) {
-    const s = v.routing.find((x) => x.key === 's-shape');
-    const d = v.routing.find((x) => x.key === DEFAULT_ROUTING);
-    if (s?.hoursPerDay != null && d?.hoursPerDay != null && s.metres != null && d.metres != null) {
-      lines.push(`${v.label}: switching from S-shape to the default method saves ${hours2(s.hoursPerDay - d.hoursPerDay)} of picker time a day (${metres1(s.metres - d.metres)} less walking in the study's ${v.trips.length} trips).`);
-    }
+    const saved = savingOverSShape(v);
+    if (saved) lines.push(`${v.label}: switching from S-shape to the default method saves ${hours2(saved.hoursPerDay)} of picker time a day (${metres1(saved.metres)} less walking in the study's ${v.trips.length} trips).`);
   }
   for (const w of r.whatIf) {
     if ((w.method === DEFAULT_ROUTING || w.method === 's-shape') && w.deltaHoursPerDay !== null) {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { studyAnswerLines, studyDayNote, studyQuestion } from '../../../client/views/studies/answer';
+import { savingOverSShape, studyAnswerLines, studyDayNote, studyQuestion } from '../../../client/views/studies/answer';
 import { DEFAULT_ROUTING, type RoutingRow, type StudyDetail, type StudyResults, type StudyVariant } from '../../../shared/studies';
 
 // Hand-worked figures: S-shape walks 300 m and the default 200 m; at 1 m/s with no time per line or
@@ -41,6 +41,13 @@ describe('study answer sentences', () => {
     expect(lines[1]).toContain('Middle cross aisle, routed by the default method: saves 0.05 h of picker time a day');
     const costly = { ...results, whatIf: [{ ...results.whatIf[0]!, deltaHoursPerDay: 0.1, deltaMetres: 40, deltaPct: 20 }] };
     expect(studyAnswerLines(costly)[1]).toContain('costs 0.10 h');
+  });
+
+  it('gives the summary headline: 0.25 h a day and (300 − 200) / 300 = 33.3 % less walking', () => {
+    const saved = savingOverSShape(variant)!;
+    expect(saved.hoursPerDay).toBeCloseTo(0.25, 12);
+    expect(saved.metres).toBe(100);
+    expect(saved.pct!.toFixed(1)).toBe('33.3');
   });
 
   it('leaves out a plan whose S-shape or default figure is missing', () => {
