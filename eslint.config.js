@@ -38,38 +38,47 @@ export default tseslint.config(
     files: ['client/**/*.{ts,vue}'],
     languageOptions: { globals: { ...globals.browser } },
     rules: {
-      'no-restricted-imports': ['error', {
-        patterns: [
-          { regex: '(^|/)server(/|$)', message: 'The client imports types from shared/, never from server/.' },
-          nodeBuiltins,
-          serverPackages,
-        ],
-      }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [{ regex: '(^|/)server(/|$)', message: 'The client imports types from shared/, never from server/.' }, nodeBuiltins, serverPackages],
+        },
+      ],
     },
   },
   {
     files: ['shared/**/*.ts'],
     rules: {
-      'no-restricted-imports': ['error', {
-        patterns: [
-          { regex: '(^|/)(server|client)(/|$)', message: 'shared/ is used by both sides and imports neither.' },
-          { regex: '^(vue|naive-ui|pinia|vue-router|konva)(/|$)', message: 'shared/ has no DOM or client packages.' },
-          nodeBuiltins,
-          serverPackages,
-        ],
-      }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            { regex: '(^|/)(server|client)(/|$)', message: 'shared/ is used by both sides and imports neither.' },
+            { regex: '^(vue|naive-ui|pinia|vue-router|konva)(/|$)', message: 'shared/ has no DOM or client packages.' },
+            nodeBuiltins,
+            serverPackages,
+          ],
+        },
+      ],
     },
   },
   {
     files: ['server/core/**/*.ts'],
     rules: {
-      'no-restricted-imports': ['error', {
-        patterns: [
-          nodeBuiltins,
-          serverPackages,
-          { regex: '^(\\.\\./)+(http|db|auth|waves|picking|studies|floor-plans|orders|imports|mail|audit|users|sites|system|workers|cli|seed|integrations|deps|app|config|routes)(/|$)', message: 'The engine imports nothing from the rest of the server.' },
-        ],
-      }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            nodeBuiltins,
+            serverPackages,
+            {
+              regex:
+                '^(\\.\\./)+(http|db|auth|waves|picking|studies|floor-plans|orders|imports|mail|audit|users|sites|system|workers|cli|seed|integrations|deps|app|config|routes)(/|$)',
+              message: 'The engine imports nothing from the rest of the server.',
+            },
+          ],
+        },
+      ],
     },
   },
 );

@@ -20,14 +20,27 @@ export default defineConfig({
     browserName: 'chromium',
     launchOptions: {
       executablePath: CHROMIUM,
-      args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--disable-quic',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     },
     trace: 'off',
     screenshot: 'only-on-failure',
   },
   projects: [
     { name: 'desktop', use: { viewport: { width: 1366, height: 800 } }, testIgnore: '**/*.tablet.spec.ts' },
-    { name: 'tablet', use: { ...devices['Galaxy Tab S4 landscape'], browserName: 'chromium', viewport: { width: 1024, height: 768 } }, testMatch: '**/*.tablet.spec.ts' },
+    {
+      name: 'tablet',
+      use: { ...devices['Galaxy Tab S4 landscape'], browserName: 'chromium', viewport: { width: 1024, height: 768 } },
+      testMatch: '**/*.tablet.spec.ts',
+    },
   ],
   webServer: {
     // A fresh database per run; the demo seed gives every role its sign-in.

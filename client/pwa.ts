@@ -7,13 +7,12 @@
  */
 
 /** Whether this page can have the offline app shell at all. */
-export const appShellPossible = (): boolean => typeof navigator !== 'undefined' && 'serviceWorker' in navigator && typeof isSecureContext !== 'undefined' && isSecureContext;
+export const appShellPossible = (): boolean =>
+  typeof navigator !== 'undefined' && 'serviceWorker' in navigator && typeof isSecureContext !== 'undefined' && isSecureContext;
 
 /** Registers the service worker where the browser allows one; returns whether it tried. */
 export function registerAppShell(): boolean {
   if (!('serviceWorker' in navigator) || !isSecureContext) return false;
-  void import('virtual:pwa-register')
-    .then(({ registerSW }) => registerSW({ immediate: true }))
-    .catch(() => undefined);
+  void import('virtual:pwa-register').then(({ registerSW }) => registerSW({ immediate: true })).catch(() => undefined);
   return true;
 }

@@ -110,7 +110,16 @@ export async function up(knex: Knex): Promise<void> {
 }
 
 export async function down(knex: Knex): Promise<void> {
-  for (const t of ['floor_plan_arrays', 'floor_plan_graphs', 'floor_plan_closures', 'floor_plan_depots', 'floor_plan_bins', 'floor_plan_cross_aisles', 'floor_plan_aisles', 'floor_plans']) {
+  for (const t of [
+    'floor_plan_arrays',
+    'floor_plan_graphs',
+    'floor_plan_closures',
+    'floor_plan_depots',
+    'floor_plan_bins',
+    'floor_plan_cross_aisles',
+    'floor_plan_aisles',
+    'floor_plans',
+  ]) {
     await knex.schema.dropTableIfExists(t);
   }
 }

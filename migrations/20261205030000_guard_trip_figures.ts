@@ -39,13 +39,18 @@ export async function up(knex: Knex): Promise<void> {
   for (const [table, columns] of Object.entries(FIGURES)) {
     if (isPg(knex)) {
       for (const c of columns) {
-        await knex.raw(`ALTER TABLE ?? ADD CONSTRAINT ?? CHECK (?? IS NULL OR (?? <> 'Infinity'::float8 AND ?? <> '-Infinity'::float8 AND ?? <> 'NaN'::float8))`, [table, `${table}_${c}_finite`, c, c, c, c]);
+        await knex.raw(
+          `ALTER TABLE ?? ADD CONSTRAINT ?? CHECK (?? IS NULL OR (?? <> 'Infinity'::float8 AND ?? <> '-Infinity'::float8 AND ?? <> 'NaN'::float8))`,
+          [table, `${table}_${c}_finite`, c, c, c, c],
+        );
       }
     } else {
       // 9e999 is how SQLite writes ±Infinity; a NaN arrives as NULL and meets NOT NULL where it matters.
       const bad = columns.map((c) => `NEW.${c} IN (9e999, -9e999)`).join(' OR ');
       for (const op of ['INSERT', 'UPDATE']) {
-        await knex.raw(`CREATE TRIGGER ${table}_finite_${op.toLowerCase()} BEFORE ${op} ON ${table} WHEN ${bad} BEGIN SELECT RAISE(ABORT, 'non_finite_figure: ${table} metres, minutes and weights must be finite numbers'); END`);
+        await knex.raw(
+          `CREATE TRIGGER ${table}_finite_${op.toLowerCase()} BEFORE ${op} ON ${table} WHEN ${bad} BEGIN SELECT RAISE(ABORT, 'non_finite_figure: ${table} metres, minutes and weights must be finite numbers'); END`,
+        );
       }
     }
   }

@@ -50,12 +50,21 @@ export async function up(knex: Knex): Promise<void> {
     if (code !== r.badge) changes.push({ id: r.id, from: r.badge, to: code, renamed: code !== norm });
   }
   // Two steps, so a row never takes a code another row still holds (badge is unique).
-  for (const c of changes) await knex('users').where({ id: c.id }).update({ badge: `~migrating-${c.id}` });
+  for (const c of changes)
+    await knex('users')
+      .where({ id: c.id })
+      .update({ badge: `~migrating-${c.id}` });
   const now = new Date().toISOString();
   for (const c of changes) {
     await knex('users').where({ id: c.id }).update({ badge: c.to });
     if (c.renamed) {
-      await knex('audit_log').insert({ user_id: null, action: 'badge.renamed', subject: String(c.id), detail: JSON.stringify({ from: c.from, to: c.to, reason: 'another badge differs only in case' }), at: now });
+      await knex('audit_log').insert({
+        user_id: null,
+        action: 'badge.renamed',
+        subject: String(c.id),
+        detail: JSON.stringify({ from: c.from, to: c.to, reason: 'another badge differs only in case' }),
+        at: now,
+      });
     }
   }
 }

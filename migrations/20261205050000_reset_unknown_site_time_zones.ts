@@ -12,7 +12,14 @@ export async function up(knex: Knex): Promise<void> {
   for (const s of sites) {
     if (isIanaTimeZone(s.timezone)) continue;
     await knex('sites').where({ id: s.id }).update({ timezone: 'UTC' });
-    await knex('audit_log').insert({ site_id: s.id, user_id: null, action: 'site.timezone_reset', subject: null, detail: JSON.stringify({ was: s.timezone, now: 'UTC' }), at: now });
+    await knex('audit_log').insert({
+      site_id: s.id,
+      user_id: null,
+      action: 'site.timezone_reset',
+      subject: null,
+      detail: JSON.stringify({ was: s.timezone, now: 'UTC' }),
+      at: now,
+    });
   }
 }
 

@@ -38,7 +38,8 @@ const AUTH_ATTEMPT_BODIES: Record<string, z.ZodType> = {
   '/api/auth/reset': ResetCompleteBody,
   '/api/auth/invites/accept': InviteAcceptBody,
 };
-const wellFormedAttempt = (req: Request): boolean => req.method === 'POST' && AUTH_ATTEMPT_BODIES[req.baseUrl + req.path.replace(/\/$/, '')]?.safeParse(req.body).success === true;
+const wellFormedAttempt = (req: Request): boolean =>
+  req.method === 'POST' && AUTH_ATTEMPT_BODIES[req.baseUrl + req.path.replace(/\/$/, '')]?.safeParse(req.body).success === true;
 
 /** Builds the Express app; never listens (main.ts does). */
 export function createApp(deps: Deps, options: AppOptions = {}): Express {

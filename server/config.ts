@@ -19,14 +19,27 @@ const Env = z.object({
   PUBLIC_URL: z.string().url().optional(),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Seed the invented demo site when the database has no users. */
-  DEMO_SEED: z.enum(['true', 'false']).default('true').transform((v) => v === 'true'),
+  DEMO_SEED: z
+    .enum(['true', 'false'])
+    .default('true')
+    .transform((v) => v === 'true'),
   /** Served over HTTPS (directly or behind a proxy): cookies get `Secure`. */
-  COOKIE_SECURE: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
-  TRUST_PROXY: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
+  COOKIE_SECURE: z
+    .enum(['true', 'false'])
+    .default('false')
+    .transform((v) => v === 'true'),
+  TRUST_PROXY: z
+    .enum(['true', 'false'])
+    .default('false')
+    .transform((v) => v === 'true'),
   /** Folder for scheduled and on-demand backups; default `backups/` beside the database file. */
   BACKUP_DIR: z.string().min(1).optional(),
   /** Hours between scheduled backups; 0 turns the schedule off. */
-  BACKUP_EVERY_HOURS: z.coerce.number().min(0).max(24 * 366).default(24),
+  BACKUP_EVERY_HOURS: z.coerce
+    .number()
+    .min(0)
+    .max(24 * 366)
+    .default(24),
   /** Scheduled and on-demand backups kept in BACKUP_DIR (oldest removed first). */
   BACKUP_KEEP: z.coerce.number().int().min(1).max(10_000).default(14),
   /**

@@ -122,10 +122,19 @@ async function main(): Promise<void> {
   }
   const tasks = startTasks(deps);
   const stop = () => {
-    server.close(() => void tasks.stop().then(() => deps.background.settled()).then(() => jobs.close()).then(() => events.close()).then(() => db.destroy()).then(() => {
-      releaseDatabase();
-      process.exit(0);
-    }));
+    server.close(
+      () =>
+        void tasks
+          .stop()
+          .then(() => deps.background.settled())
+          .then(() => jobs.close())
+          .then(() => events.close())
+          .then(() => db.destroy())
+          .then(() => {
+            releaseDatabase();
+            process.exit(0);
+          }),
+    );
     setTimeout(() => {
       releaseDatabase();
       process.exit(0);

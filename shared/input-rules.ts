@@ -34,8 +34,11 @@ const BIDI = /[\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/;
  * value in an error table without it reordering or hiding what is around it.
  */
 export function visibleText(text: string): string {
-  // eslint-disable-next-line no-control-regex -- matching control characters is the point
-  return text.replace(/[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/g, (c) => `⟨U+${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}⟩`);
+  return text.replace(
+    // eslint-disable-next-line no-control-regex -- matching control characters is the point
+    /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069\u2028\u2029]/g,
+    (c) => `⟨U+${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}⟩`,
+  );
 }
 
 export interface TextRule {

@@ -78,7 +78,16 @@ export type OrdersPage = z.infer<typeof OrdersPage>;
 export const OrderDetail = OrderSummary.extend({
   lineItems: z.array(z.object({ lineNo: z.number().int(), sku: z.string(), description: z.string(), bin: z.string().nullable(), qty: z.number().int() })),
   /** The trips that carry (or carried) this order, newest first: which wave, which trip, its state. */
-  trips: z.array(z.object({ tripId: z.number().int(), n: z.number().int(), status: z.string(), waveId: z.number().int(), waveName: z.string(), totes: z.array(z.number().int()) })),
+  trips: z.array(
+    z.object({
+      tripId: z.number().int(),
+      n: z.number().int(),
+      status: z.string(),
+      waveId: z.number().int(),
+      waveName: z.string(),
+      totes: z.array(z.number().int()),
+    }),
+  ),
 });
 export type OrderDetail = z.infer<typeof OrderDetail>;
 

@@ -55,7 +55,10 @@ export type SkipBody = z.infer<typeof SkipBody>;
 export const FinishBody = z.strictObject({});
 /** Cart set-up before the first stop: each of the trip's totes confirmed by a scan of its label or a tap. */
 export const CartReadyBody = z.strictObject({
-  totes: z.array(z.strictObject({ tote: z.number().int().min(1), via: z.enum(['scan', 'tap']) })).min(1).max(100),
+  totes: z
+    .array(z.strictObject({ tote: z.number().int().min(1), via: z.enum(['scan', 'tap']) }))
+    .min(1)
+    .max(100),
 });
 export type CartReadyBody = z.infer<typeof CartReadyBody>;
 
@@ -112,7 +115,13 @@ export const PickAnswer = z.object({ trip: PickTrip });
 export type PickAnswer = z.infer<typeof PickAnswer>;
 
 /** 409 already_confirmed details: who confirmed the line, and when. */
-export const AlreadyConfirmed = z.object({ lineId: z.number().int(), by: z.string().nullable(), byId: z.number().int().nullable(), at: z.string().nullable(), status: z.string() });
+export const AlreadyConfirmed = z.object({
+  lineId: z.number().int(),
+  by: z.string().nullable(),
+  byId: z.number().int().nullable(),
+  at: z.string().nullable(),
+  status: z.string(),
+});
 
 // ---- live board ----
 
@@ -202,7 +211,12 @@ export const AssignBody = z.strictObject({ pickerId: z.number().int().positive()
 export const CancelTripBody = z.strictObject({ reason: z.string().trim().max(200).optional() });
 export const CloseWaveBody = z.strictObject({ reason: z.string().trim().max(200).optional() });
 export const CancelResult = z.object({ tripId: z.number().int(), linesCancelled: z.number().int(), ordersReopened: z.array(z.string()) });
-export const CloseWaveResult = z.object({ waveId: z.number().int(), tripsCancelled: z.number().int(), linesCancelled: z.number().int(), reportMailedTo: z.array(z.string()) });
+export const CloseWaveResult = z.object({
+  waveId: z.number().int(),
+  tripsCancelled: z.number().int(),
+  linesCancelled: z.number().int(),
+  reportMailedTo: z.array(z.string()),
+});
 
 /** The trip's floor plan for the tablet's map: geometry and the closures its routes avoid. */
 export const TripPlan = z.object({
@@ -222,5 +236,9 @@ export const LineAnswer = z.object({
 export type LineAnswer = z.infer<typeof LineAnswer>;
 
 /** The tablet's 5-second poll: one row; a changed revision means "read the trip again". */
-export const TripPulse = z.object({ id: z.number().int(), status: z.enum(['released', 'assigned', 'picking', 'done', 'cancelled']), revision: z.number().int() });
+export const TripPulse = z.object({
+  id: z.number().int(),
+  status: z.enum(['released', 'assigned', 'picking', 'done', 'cancelled']),
+  revision: z.number().int(),
+});
 export type TripPulse = z.infer<typeof TripPulse>;

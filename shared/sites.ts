@@ -51,7 +51,10 @@ export const Site = z.object({
 export type Site = z.infer<typeof Site>;
 
 export const CreateSiteBody = z.strictObject({
-  code: z.string().trim().regex(/^[A-Z0-9-]{2,16}$/, '2–16 capital letters, digits or dashes'),
+  code: z
+    .string()
+    .trim()
+    .regex(/^[A-Z0-9-]{2,16}$/, '2–16 capital letters, digits or dashes'),
   name: z.string().trim().min(1).max(120),
   timezone: TimeZoneName.default('UTC'),
 });
@@ -99,5 +102,8 @@ export const NewIntegrationToken = IntegrationToken.extend({ token: z.string() }
 export const CreateIntegrationTokenBody = z.strictObject({
   name: z.string().trim().min(1).max(80),
   /** Optional expiry (ISO time, in the future); refused from then on. */
-  expiresAt: z.iso.datetime({ offset: true }).refine((v) => new Date(v).getTime() > Date.now(), 'must be in the future').optional(),
+  expiresAt: z.iso
+    .datetime({ offset: true })
+    .refine((v) => new Date(v).getTime() > Date.now(), 'must be in the future')
+    .optional(),
 });

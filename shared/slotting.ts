@@ -20,7 +20,8 @@ export const SLOTTING_METHOD_LABELS: Record<SlottingMethodName, { label: string;
   },
   search: {
     label: 'Search on your orders',
-    about: 'Starts from the better of the two rules and moves or swaps SKUs so the trips your orders need get shorter, e.g. SKUs often ordered together end up near each other.',
+    about:
+      'Starts from the better of the two rules and moves or swaps SKUs so the trips your orders need get shorter, e.g. SKUs often ordered together end up near each other.',
   },
 };
 
@@ -44,9 +45,16 @@ export const SlottingInputs = z.strictObject({
   pinnedZones: z.array(z.string().trim().min(1).max(40)).max(100).default([]),
   pinnedBins: z.array(z.string().trim().min(1).max(64)).max(10_000).default([]),
   /** Heavy items on low levels; null: no rule. */
-  weightRule: z.strictObject({ minUnitKg: z.number().positive().max(1000), maxLevel: z.number().int().min(1).max(50) }).nullable().default(null),
+  weightRule: z
+    .strictObject({ minUnitKg: z.number().positive().max(1000), maxLevel: z.number().int().min(1).max(50) })
+    .nullable()
+    .default(null),
   /** Share of the history's days learnt from (the earliest); the rest measure the saving honestly. */
-  learnShare: z.number().gt(0).max(1).default(2 / 3),
+  learnShare: z
+    .number()
+    .gt(0)
+    .max(1)
+    .default(2 / 3),
   cartProfileId: z.number().int().positive(),
   /** A stored plan of the site (draft, active or retired) to slot on; null: the active plan. Moves apply only on the active plan. */
   planId: z.number().int().positive().nullable().default(null),

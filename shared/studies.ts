@@ -12,12 +12,24 @@ import { BatchingName } from './waves';
  * shortest walking distances; the rest are the warehouse routing policies and the two exact methods.
  */
 export const ROUTING_METHOD_KEYS = [
-  'nearest-neighbor+none', 'nearest-neighbor+local', 'nearest-neighbor+deep',
-  'repeated-nearest-neighbor+none', 'repeated-nearest-neighbor+local', 'repeated-nearest-neighbor+deep',
-  'sorted-edges+none', 'sorted-edges+local', 'sorted-edges+deep',
-  'best+none', 'best+local', 'best+deep',
+  'nearest-neighbor+none',
+  'nearest-neighbor+local',
+  'nearest-neighbor+deep',
+  'repeated-nearest-neighbor+none',
+  'repeated-nearest-neighbor+local',
+  'repeated-nearest-neighbor+deep',
+  'sorted-edges+none',
+  'sorted-edges+local',
+  'sorted-edges+deep',
+  'best+none',
+  'best+local',
+  'best+deep',
   'exact',
-  's-shape', 'return', 'midpoint', 'largest-gap', 'combined',
+  's-shape',
+  'return',
+  'midpoint',
+  'largest-gap',
+  'combined',
   'ratliff-rosenthal',
 ] as const;
 export const RoutingMethodKey = z.enum(ROUTING_METHOD_KEYS);
@@ -119,10 +131,18 @@ export type StudyWork = z.infer<typeof StudyWork>;
 export const StudyInputs = z.strictObject({
   name: z.string().trim().min(1).max(120),
   work: StudyWork,
-  routing: z.array(RoutingMethodKey).min(1).default([...ROUTING_METHOD_KEYS]),
+  routing: z
+    .array(RoutingMethodKey)
+    .min(1)
+    .default([...ROUTING_METHOD_KEYS]),
   batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings', 'search']),
   whatIfs: z.array(WhatIf).max(4).default([]),
-  seed: z.number().int().min(0).max(2 ** 31 - 1).default(1),
+  seed: z
+    .number()
+    .int()
+    .min(0)
+    .max(2 ** 31 - 1)
+    .default(1),
 });
 export type StudyInputs = z.infer<typeof StudyInputs>;
 export type StudyInputsBody = z.input<typeof StudyInputs>;
@@ -192,7 +212,13 @@ export const StudyVariant = z.object({
   key: z.string(),
   label: z.string(),
   changes: z.array(PlanChange),
-  layout: z.object({ aisles: z.number().int(), crossAisles: z.number().int(), bins: z.number().int(), blocks: z.number().int().nullable(), policyNote: z.string().nullable() }),
+  layout: z.object({
+    aisles: z.number().int(),
+    crossAisles: z.number().int(),
+    bins: z.number().int(),
+    blocks: z.number().int().nullable(),
+    policyNote: z.string().nullable(),
+  }),
   depotNode: z.number().int(),
   routing: z.array(RoutingRow),
   batching: z.array(BatchingRow),
@@ -309,10 +335,13 @@ export const ROUTING_HINTS: Record<RoutingMethodKey, string> = Object.fromEntrie
     const [c, imp] = k.split('+');
     if (imp !== undefined) return [k, `${CONSTRUCTION_HINTS[c!]}${IMPROVE_HINTS[imp]}`];
     const named: Record<string, string> = {
-      exact: 'Held–Karp dynamic programming: the shortest possible circuit, for trips of up to 16 stops; longer trips are counted at their lower bound and the row says how many were solved.',
-      's-shape': 'Every aisle with a pick is walked end to end, zig-zagging from aisle to aisle, block by block; the usual rule when nothing else is planned, on any layout of parallel aisles with cross aisles.',
+      exact:
+        'Held–Karp dynamic programming: the shortest possible circuit, for trips of up to 16 stops; longer trips are counted at their lower bound and the row says how many were solved.',
+      's-shape':
+        'Every aisle with a pick is walked end to end, zig-zagging from aisle to aisle, block by block; the usual rule when nothing else is planned, on any layout of parallel aisles with cross aisles.',
       return: 'Enters each aisle with a pick from the front and turns back at its farthest pick. One block only.',
-      midpoint: 'Picks in the front half of each aisle from the front, the back half from the back; the first and last aisles are walked through. One block only.',
+      midpoint:
+        'Picks in the front half of each aisle from the front, the back half from the back; the first and last aisles are walked through. One block only.',
       'largest-gap': 'Like midpoint, but each aisle turns back at its largest gap between picks. One block only (no middle cross aisle).',
       combined: 'Chooses per aisle between walking through and turning back, whichever sets up the next aisle better. One block only.',
       'ratliff-rosenthal': 'The shortest route on a single-block layout, by dynamic programming over the aisles. One block only.',

@@ -35,7 +35,15 @@ export function formatInZone(iso: string | null | undefined, zone: string): stri
   if (Number.isNaN(date.getTime())) return '';
   let f = formatters.get(zone);
   if (!f) {
-    f = new Intl.DateTimeFormat('en-CA', { timeZone: zone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
+    f = new Intl.DateTimeFormat('en-CA', {
+      timeZone: zone,
+      year: 'numeric',
+      month: '2-digit',
+      day: '2-digit',
+      hour: '2-digit',
+      minute: '2-digit',
+      hourCycle: 'h23',
+    });
     formatters.set(zone, f);
   }
   const p = Object.fromEntries(f.formatToParts(date).map((x) => [x.type, x.value]));

@@ -48,7 +48,14 @@ export type WavePreviewBody = z.infer<typeof WavePreviewBody>;
 
 export const RoutePoint = z.tuple([z.number(), z.number()]);
 
-export const PreviewStop = z.object({ n: z.number().int(), node: z.number().int(), x: z.number(), y: z.number(), bins: z.array(z.string()), lines: z.number().int() });
+export const PreviewStop = z.object({
+  n: z.number().int(),
+  node: z.number().int(),
+  x: z.number(),
+  y: z.number(),
+  bins: z.array(z.string()),
+  lines: z.number().int(),
+});
 
 export const PreviewTrip = z.object({
   n: z.number().int(),

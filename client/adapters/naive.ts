@@ -76,9 +76,7 @@ const locale = createLocale(
 );
 
 export function configFor(mode: ThemeMode): ConfigProviderProps {
-  return mode === 'dark'
-    ? { theme: darkTheme, themeOverrides: overrides(DARK), locale }
-    : { theme: null, themeOverrides: overrides(LIGHT), locale };
+  return mode === 'dark' ? { theme: darkTheme, themeOverrides: overrides(DARK), locale } : { theme: null, themeOverrides: overrides(LIGHT), locale };
 }
 
 export function paletteFor(mode: ThemeMode): Palette {

@@ -21,6 +21,5 @@ export const signOutEverywhere = () => http('POST', '/api/auth/sign-out-everywhe
 export const changePassword = (body: z.input<typeof ChangePasswordBody>) => http('POST', '/api/auth/password', Ok, { body });
 export const requestReset = (body: z.input<typeof ResetRequestBody>) => http('POST', '/api/auth/reset-request', Ok, { body });
 export const completeReset = (body: z.input<typeof ResetCompleteBody>) => http('POST', '/api/auth/reset', Ok, { body });
-export const getInvite = (token: string) =>
-  http('GET', `/api/auth/invites/${encodeURIComponent(token)}`, InviteInfo, { quietUnauthenticated: true });
+export const getInvite = (token: string) => http('GET', `/api/auth/invites/${encodeURIComponent(token)}`, InviteInfo, { quietUnauthenticated: true });
 export const acceptInvite = (body: z.input<typeof InviteAcceptBody>) => http('POST', '/api/auth/invites/accept', Me, { body });

@@ -1,5 +1,14 @@
 import { z } from 'zod';
-import { AuditPage, BackupItem, BackupsStatus, PruneCounts, RetentionState, type AuditFilter, type ExportFormat, type RetentionSettings } from '@shared/data-safety';
+import {
+  AuditPage,
+  BackupItem,
+  BackupsStatus,
+  PruneCounts,
+  RetentionState,
+  type AuditFilter,
+  type ExportFormat,
+  type RetentionSettings,
+} from '@shared/data-safety';
 import { IntegrationToken, NewIntegrationToken } from '@shared/sites';
 import { http } from './http';
 
@@ -26,5 +35,6 @@ export const exportUrl = (siteId: number, kind: 'orders' | 'pick-lines' | 'users
   kind === 'site-data' ? `/api/sites/${siteId}/exports/site-data` : `/api/sites/${siteId}/exports/${kind}?format=${format}`;
 
 export const listTokens = (siteId: number) => http('GET', `/api/sites/${siteId}/integration-tokens`, z.array(IntegrationToken));
-export const createToken = (siteId: number, body: { name: string; expiresAt?: string }) => http('POST', `/api/sites/${siteId}/integration-tokens`, NewIntegrationToken, { body });
+export const createToken = (siteId: number, body: { name: string; expiresAt?: string }) =>
+  http('POST', `/api/sites/${siteId}/integration-tokens`, NewIntegrationToken, { body });
 export const revokeToken = (siteId: number, id: number) => http('DELETE', `/api/sites/${siteId}/integration-tokens/${id}`, IntegrationToken);

@@ -21,14 +21,18 @@ export const listFloorPlans = (siteId: number) => http('GET', base(siteId), Floo
 export const getFloorPlan = (siteId: number, planId: number) => http('GET', `${base(siteId)}/${planId}`, FloorPlanDetail);
 export const getPlanGeometry = (siteId: number, planId: number) => http('GET', `${base(siteId)}/${planId}/geometry`, PlanGeometry);
 export const getActivePlan = (siteId: number) => http('GET', `${base(siteId)}/active`, ActiveFloorPlan);
-export const activateFloorPlan = (siteId: number, planId: number, body: ActivateFloorPlanBody = {}) => http('POST', `${base(siteId)}/${planId}/activate`, FloorPlanDetail, { body });
+export const activateFloorPlan = (siteId: number, planId: number, body: ActivateFloorPlanBody = {}) =>
+  http('POST', `${base(siteId)}/${planId}/activate`, FloorPlanDetail, { body });
 export const getActivationCheck = (siteId: number, planId: number) => http('GET', `${base(siteId)}/${planId}/activation-check`, ActivationCheck);
 export const deleteFloorPlan = (siteId: number, planId: number) => http('DELETE', `${base(siteId)}/${planId}`, Ok);
-export const renameFloorPlan = (siteId: number, planId: number, name: string) => http('PATCH', `${base(siteId)}/${planId}`, FloorPlanDetail, { body: { name } });
+export const renameFloorPlan = (siteId: number, planId: number, name: string) =>
+  http('PATCH', `${base(siteId)}/${planId}`, FloorPlanDetail, { body: { name } });
 export const generateFloorPlan = (siteId: number, body: GenerateFloorPlanBody) => http('POST', `${base(siteId)}/generate`, FloorPlanJob, { body });
 export const getFloorPlanJob = (siteId: number, jobId: string) => http('GET', `${base(siteId)}/jobs/${jobId}`, FloorPlanJob);
-export const closeSegment = (siteId: number, planId: number, body: CloseSegmentBody) => http('POST', `${base(siteId)}/${planId}/closures`, ClosureResult, { body });
-export const reopenSegment = (siteId: number, planId: number, closureId: number) => http('DELETE', `${base(siteId)}/${planId}/closures/${closureId}`, ClosureResult);
+export const closeSegment = (siteId: number, planId: number, body: CloseSegmentBody) =>
+  http('POST', `${base(siteId)}/${planId}/closures`, ClosureResult, { body });
+export const reopenSegment = (siteId: number, planId: number, closureId: number) =>
+  http('DELETE', `${base(siteId)}/${planId}/closures/${closureId}`, ClosureResult);
 export const binDistance = (siteId: number, planId: number, from: string, to: string) =>
   http('GET', `${base(siteId)}/${planId}/distance?${new URLSearchParams({ from, to })}`, DistanceAnswer);
 

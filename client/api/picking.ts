@@ -1,7 +1,20 @@
 /** Typed calls for the picker's tablet and the supervisor's live board (shared/picking.ts). */
 import { z } from 'zod';
 import { Ok } from '@shared/common';
-import { Board, CancelResult, CloseWaveResult, CurrentTrip, LineAnswer, PickAnswer, PickTrip, TripPlan, TripPulse, TripResult, type CartReadyBody, type ShortReason } from '@shared/picking';
+import {
+  Board,
+  CancelResult,
+  CloseWaveResult,
+  CurrentTrip,
+  LineAnswer,
+  PickAnswer,
+  PickTrip,
+  TripPlan,
+  TripPulse,
+  TripResult,
+  type CartReadyBody,
+  type ShortReason,
+} from '@shared/picking';
 import { ApiError, badResponse, errorFromAnswer, http, networkError, parseJsonText } from './http';
 
 export const currentTrip = (siteId: number) => http('GET', `/api/sites/${siteId}/picking/current`, CurrentTrip);
@@ -38,8 +51,7 @@ export function actionPath(a: PickAction): string {
 }
 
 export type SendOutcome =
-  | { ok: true; answer: z.infer<typeof LineAnswer> | z.infer<typeof PickAnswer> | z.infer<typeof TripResult> }
-  | { ok: false; error: ApiError };
+  { ok: true; answer: z.infer<typeof LineAnswer> | z.infer<typeof PickAnswer> | z.infer<typeof TripResult> } | { ok: false; error: ApiError };
 
 /**
  * Sends one picker write with its idempotency key. Not through `http`: the key and device headers
@@ -67,9 +79,13 @@ export async function sendAction(a: PickAction, key: string, device: string, fet
 // ---- live board ----
 export const getBoard = (siteId: number) => http('GET', `/api/sites/${siteId}/board`, Board);
 export const boardEventsUrl = (siteId: number) => `/api/sites/${siteId}/board/events`;
-export const assignTrip = (siteId: number, tripId: number, pickerId: number) => http('POST', `/api/sites/${siteId}/board/trips/${tripId}/assign`, Ok, { body: { pickerId } });
-export const cancelTrip = (siteId: number, tripId: number, reason?: string) => http('POST', `/api/sites/${siteId}/board/trips/${tripId}/cancel`, CancelResult, { body: reason ? { reason } : {} });
-export const closeWave = (siteId: number, waveId: number, reason?: string) => http('POST', `/api/sites/${siteId}/board/waves/${waveId}/close`, CloseWaveResult, { body: reason ? { reason } : {} });
-export const reopenLine = (siteId: number, lineId: number, reason: string) => http('POST', `/api/sites/${siteId}/board/lines/${lineId}/reopen`, LineAnswer, { body: { reason } });
+export const assignTrip = (siteId: number, tripId: number, pickerId: number) =>
+  http('POST', `/api/sites/${siteId}/board/trips/${tripId}/assign`, Ok, { body: { pickerId } });
+export const cancelTrip = (siteId: number, tripId: number, reason?: string) =>
+  http('POST', `/api/sites/${siteId}/board/trips/${tripId}/cancel`, CancelResult, { body: reason ? { reason } : {} });
+export const closeWave = (siteId: number, waveId: number, reason?: string) =>
+  http('POST', `/api/sites/${siteId}/board/waves/${waveId}/close`, CloseWaveResult, { body: reason ? { reason } : {} });
+export const reopenLine = (siteId: number, lineId: number, reason: string) =>
+  http('POST', `/api/sites/${siteId}/board/lines/${lineId}/reopen`, LineAnswer, { body: { reason } });
 export const markShortHandled = (siteId: number, shortId: number) => http('POST', `/api/sites/${siteId}/board/shorts/${shortId}/handled`, Ok, { body: {} });
 export const waveReportUrl = (siteId: number, waveId: number) => `/api/sites/${siteId}/board/waves/${waveId}/report.xlsx`;

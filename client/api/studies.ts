@@ -18,7 +18,8 @@ export const createStudy = (siteId: number, body: StudyInputsBody) => http('POST
 export const cancelStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/cancel`, StudySummary);
 export const deleteStudy = (siteId: number, id: number) => http('DELETE', `${base(siteId)}/${id}`, Ok);
 export const rerunStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/rerun`, StudySummary);
-export const getStudyPlan = (siteId: number, id: number, variant: string) => http('GET', `${base(siteId)}/${id}/plans/${encodeURIComponent(variant)}`, StudyPlan);
+export const getStudyPlan = (siteId: number, id: number, variant: string) =>
+  http('GET', `${base(siteId)}/${id}/plans/${encodeURIComponent(variant)}`, StudyPlan);
 export const getStudyRoute = (siteId: number, id: number, q: { variant: string; trip: number; method: RoutingMethodKey }) =>
   http('GET', `${base(siteId)}/${id}/route?${new URLSearchParams({ variant: q.variant, trip: String(q.trip), method: q.method })}`, StudyRoute);
 /** The workbook is a plain download: the browser keeps the session cookie on a same-origin link. */

@@ -6,7 +6,13 @@ import { badResponse, errorFromAnswer, networkError, parseJsonText } from './htt
  * Sends one file as multipart (field "file", as the server's multer expects) and parses the answer
  * with `schema`. XMLHttpRequest rather than fetch: it reports upload progress (0…1).
  */
-export function uploadFile<S extends z.ZodType>(path: string, file: Blob, filename: string, schema: S, onProgress?: (fraction: number) => void): Promise<z.infer<S>> {
+export function uploadFile<S extends z.ZodType>(
+  path: string,
+  file: Blob,
+  filename: string,
+  schema: S,
+  onProgress?: (fraction: number) => void,
+): Promise<z.infer<S>> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', path);

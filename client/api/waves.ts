@@ -6,7 +6,8 @@ const base = (siteId: number) => `/api/sites/${siteId}`;
 
 export const startPreview = (siteId: number, body: WavePreviewBody) => http('POST', `${base(siteId)}/wave-previews`, WaveJob, { body });
 export const getPreviewJob = (siteId: number, id: string) => http('GET', `${base(siteId)}/wave-previews/${id}`, WaveJob);
-export const releaseWave = (siteId: number, body: { previewId: string; releaseKey: string; name?: string }) => http('POST', `${base(siteId)}/waves`, WaveDetail, { body });
+export const releaseWave = (siteId: number, body: { previewId: string; releaseKey: string; name?: string }) =>
+  http('POST', `${base(siteId)}/waves`, WaveDetail, { body });
 export const listWaves = (siteId: number) => http('GET', `${base(siteId)}/waves`, WaveSummary.array());
 export const getWave = (siteId: number, id: number) => http('GET', `${base(siteId)}/waves/${id}`, WaveDetail);
 export const cancelWave = (siteId: number, id: number) => http('POST', `${base(siteId)}/waves/${id}/cancel`, WaveDetail);
@@ -40,4 +41,5 @@ export async function waitForPreview(siteId: number, id: string, onProgress: (jo
   }
 }
 export const listSignedInPickers = (siteId: number) => http('GET', `/api/sites/${siteId}/pickers/signed-in`, SignedInPicker.array());
-export const autoAssignWave = (siteId: number, waveId: number) => http('POST', `/api/sites/${siteId}/waves/${waveId}/auto-assign`, AutoAssignResult, { body: {} });
+export const autoAssignWave = (siteId: number, waveId: number) =>
+  http('POST', `/api/sites/${siteId}/waves/${waveId}/auto-assign`, AutoAssignResult, { body: {} });

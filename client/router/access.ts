@@ -27,10 +27,7 @@ export interface Target {
 
 export type SignInMode = 'email' | 'badge';
 
-export type Access =
-  | { kind: 'allow' }
-  | { kind: 'not-allowed' }
-  | { kind: 'redirect'; to: string };
+export type Access = { kind: 'allow' } | { kind: 'not-allowed' } | { kind: 'redirect'; to: string };
 
 export function isRoleAllowed(roles: readonly Role[] | undefined, role: Role): boolean {
   return roles === undefined || roles.includes(role);

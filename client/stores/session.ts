@@ -46,7 +46,11 @@ export const useSessionStore = defineStore('session', () => {
   const currentSite = computed(() => sites.value.find((s) => s.id === storedSiteId.value) ?? sites.value[0] ?? null);
   const siteId = computed(() => currentSite.value?.id ?? null);
   // Every time on screen and on printed pick lists is shown in the current site's zone.
-  watch(() => currentSite.value?.timezone, (zone) => setDisplayTimeZone(zone), { immediate: true });
+  watch(
+    () => currentSite.value?.timezone,
+    (zone) => setDisplayTimeZone(zone),
+    { immediate: true },
+  );
 
   function setSignedIn(next: Me, mode: SignInMode): void {
     me.value = next;
@@ -129,5 +133,22 @@ export const useSessionStore = defineStore('session', () => {
     localStorage.setItem(SITE_KEY, String(id));
   }
 
-  return { me, loaded, offline, role, sites, currentSite, siteId, signInMode, ensureLoaded, signIn, badgeSignIn, adopt, forget, signOut, signOutEverywhere, selectSite };
+  return {
+    me,
+    loaded,
+    offline,
+    role,
+    sites,
+    currentSite,
+    siteId,
+    signInMode,
+    ensureLoaded,
+    signIn,
+    badgeSignIn,
+    adopt,
+    forget,
+    signOut,
+    signOutEverywhere,
+    selectSite,
+  };
 });

@@ -44,7 +44,9 @@ export function formatClock(iso: string | null): string {
 
 /** " CET", " UTC", " GMT+1"…: the zone's short name at that date in the site's zone. */
 function zoneSuffix(date: Date): string {
-  const name = new Intl.DateTimeFormat('en-GB', { timeZone: displayTimeZone, timeZoneName: 'short' }).formatToParts(date).find((p) => p.type === 'timeZoneName')?.value;
+  const name = new Intl.DateTimeFormat('en-GB', { timeZone: displayTimeZone, timeZoneName: 'short' })
+    .formatToParts(date)
+    .find((p) => p.type === 'timeZoneName')?.value;
   return name ? ` ${name}` : '';
 }
 

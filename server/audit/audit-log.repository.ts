@@ -47,7 +47,19 @@ function withNames(q: Knex.QueryBuilder): Knex.QueryBuilder {
   return q
     .leftJoin('users as u', 'u.id', 'a.user_id')
     .leftJoin('sites as s', 's.id', 'a.site_id')
-    .select('a.id', 'a.at', 'a.site_id', 's.code as site_code', 'a.user_id', 'u.name as user_name', 'u.role as user_role', 'a.action', 'a.subject', 'a.detail', 'a.device')
+    .select(
+      'a.id',
+      'a.at',
+      'a.site_id',
+      's.code as site_code',
+      'a.user_id',
+      'u.name as user_name',
+      'u.role as user_role',
+      'a.action',
+      'a.subject',
+      'a.detail',
+      'a.device',
+    )
     .orderBy('a.at', 'desc')
     .orderBy('a.id', 'desc');
 }
@@ -68,7 +80,9 @@ const toItem = (r: Row): AuditItem => ({
 
 export async function auditPage(db: Knex, scope: AuditScope, f: AuditFilter, page: number, pageSize: number): Promise<AuditPage> {
   const c = (await filtered(db, scope, f).count({ n: '*' }).first()) as { n: number | string } | undefined;
-  const rows = (await withNames(filtered(db, scope, f)).limit(pageSize).offset((page - 1) * pageSize)) as Row[];
+  const rows = (await withNames(filtered(db, scope, f))
+    .limit(pageSize)
+    .offset((page - 1) * pageSize)) as Row[];
   const base = () => (scope === 'all' ? db('audit_log as a') : db('audit_log as a').where('a.site_id', scope.site));
   const actions = (await base().distinct('a.action').orderBy('a.action')).map((r: { action: string }) => r.action);
   const people = (await base().join('users as u', 'u.id', 'a.user_id').distinct('u.id', 'u.name').orderBy('u.name')) as { id: number; name: string }[];

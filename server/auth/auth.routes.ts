@@ -12,7 +12,14 @@ import { createSession, revokeAllSessions, revokeSession } from './sessions.repo
 import type { Deps } from '../deps';
 import { findUserById, type DbUserRow } from '../users/users.repository';
 import {
-  acceptInvite, changePassword, completePasswordReset, inviteInfo, meOf, requestPasswordReset, signInWithBadge, signInWithPassword,
+  acceptInvite,
+  changePassword,
+  completePasswordReset,
+  inviteInfo,
+  meOf,
+  requestPasswordReset,
+  signInWithBadge,
+  signInWithPassword,
 } from './auth.service';
 
 const nowS = () => Math.floor(Date.now() / 1000);
@@ -32,17 +39,28 @@ async function startSession(ctx: { deps: Deps; res: Response; req: Request }, us
 
 export const authRoutes = [
   defineRoute({
-    method: 'post', path: '/api/auth/sign-in', access: 'public', summary: 'Sign in with e-mail and password',
-    body: SignInBody, response: Me,
+    method: 'post',
+    path: '/api/auth/sign-in',
+    access: 'public',
+    summary: 'Sign in with e-mail and password',
+    body: SignInBody,
+    response: Me,
     handler: async (ctx) => startSession(ctx, await signInWithPassword(ctx.deps, ctx.body.email, ctx.body.password, addressOf(ctx.req)), 'sign-in'),
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/badge-sign-in', access: 'public', summary: 'Sign in on a shared tablet with badge code and PIN',
-    body: BadgeSignInBody, response: Me,
+    method: 'post',
+    path: '/api/auth/badge-sign-in',
+    access: 'public',
+    summary: 'Sign in on a shared tablet with badge code and PIN',
+    body: BadgeSignInBody,
+    response: Me,
     handler: async (ctx) => startSession(ctx, await signInWithBadge(ctx.deps, ctx.body.badge, ctx.body.pin, addressOf(ctx.req)), 'badge-sign-in'),
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/sign-out', access: 'public', summary: 'Sign out: ends this session on the server and clears its cookie',
+    method: 'post',
+    path: '/api/auth/sign-out',
+    access: 'public',
+    summary: 'Sign out: ends this session on the server and clears its cookie',
     response: Ok,
     handler: async ({ deps, req, res }) => {
       const claims = readSession(deps, req);
@@ -54,7 +72,10 @@ export const authRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/sign-out-everywhere', access: 'signed-in', summary: 'Sign out on every device: ends all your sessions, this one included',
+    method: 'post',
+    path: '/api/auth/sign-out-everywhere',
+    access: 'signed-in',
+    summary: 'Sign out on every device: ends all your sessions, this one included',
     response: SessionsEnded,
     handler: async ({ deps, req, res, user }) => {
       const ended = await revokeAllSessions(deps.db, user.id);
@@ -64,7 +85,10 @@ export const authRoutes = [
     },
   }),
   defineRoute({
-    method: 'get', path: '/api/auth/me', access: 'signed-in', summary: 'Who is signed in',
+    method: 'get',
+    path: '/api/auth/me',
+    access: 'signed-in',
+    summary: 'Who is signed in',
     response: Me,
     handler: async ({ deps, user }) => {
       const row = await findUserById(deps.db, user.id);
@@ -73,8 +97,12 @@ export const authRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/password', access: ['admin', 'supervisor', 'engineer'], summary: 'Change your own password',
-    body: ChangePasswordBody, response: Ok,
+    method: 'post',
+    path: '/api/auth/password',
+    access: ['admin', 'supervisor', 'engineer'],
+    summary: 'Change your own password',
+    body: ChangePasswordBody,
+    response: Ok,
     handler: async ({ deps, body, user, res }) => {
       await changePassword(deps, user.id, body.currentPassword, body.newPassword);
       // The token version moved on: give this device a fresh session so only other devices sign out.
@@ -84,29 +112,45 @@ export const authRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/reset-request', access: 'public', summary: 'Mail a password-reset link (always answers ok)',
-    body: ResetRequestBody, response: Ok,
+    method: 'post',
+    path: '/api/auth/reset-request',
+    access: 'public',
+    summary: 'Mail a password-reset link (always answers ok)',
+    body: ResetRequestBody,
+    response: Ok,
     handler: async ({ deps, body }) => {
       await requestPasswordReset(deps, body.email);
       return { ok: true as const };
     },
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/reset', access: 'public', summary: 'Set a new password with a reset link',
-    body: ResetCompleteBody, response: Ok,
+    method: 'post',
+    path: '/api/auth/reset',
+    access: 'public',
+    summary: 'Set a new password with a reset link',
+    body: ResetCompleteBody,
+    response: Ok,
     handler: async ({ deps, body }) => {
       await completePasswordReset(deps, body.token, body.newPassword);
       return { ok: true as const };
     },
   }),
   defineRoute({
-    method: 'get', path: '/api/auth/invites/:token', access: 'public', summary: 'What an invitation is for',
+    method: 'get',
+    path: '/api/auth/invites/:token',
+    access: 'public',
+    summary: 'What an invitation is for',
     response: InviteInfo,
     handler: ({ deps, params }) => inviteInfo(deps.db, parseOr400(z.string().max(200), params.token, 'invitation link')),
   }),
   defineRoute({
-    method: 'post', path: '/api/auth/invites/accept', access: 'public', summary: 'Accept an invitation: choose a name and password',
-    body: InviteAcceptBody, response: Me, status: 201,
+    method: 'post',
+    path: '/api/auth/invites/accept',
+    access: 'public',
+    summary: 'Accept an invitation: choose a name and password',
+    body: InviteAcceptBody,
+    response: Me,
+    status: 201,
     handler: async (ctx) => startSession(ctx, await acceptInvite(ctx.deps, ctx.body.token, ctx.body.name, ctx.body.password), 'sign-in'),
   }),
 ];

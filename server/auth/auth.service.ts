@@ -44,7 +44,14 @@ export const RESET_MAIL_LIMIT = { limit: 3, windowMs: 60 * 60_000 } as const;
  * without that kind of secret cost the same verify and get the same answer.
  * `account` is the identifier as typed (normalised), `address` the caller's IP.
  */
-async function verifySecret(deps: Deps, account: string, address: string, user: DbUserRow | undefined, kind: 'password' | 'pin', secret: string): Promise<DbUserRow> {
+async function verifySecret(
+  deps: Deps,
+  account: string,
+  address: string,
+  user: DbUserRow | undefined,
+  kind: 'password' | 'pin',
+  secret: string,
+): Promise<DbUserRow> {
   // Per account and address together: one noisy address cannot lock out other accounts behind it.
   const pair = await deps.backoff.claimWindow(`pair:${account}|${address}`, PAIR_LIMIT);
   if (!pair.ok) throw tooMany(pair.waitMs);
@@ -91,7 +98,12 @@ export async function requestPasswordReset(deps: Deps, email: string): Promise<v
   const claim = await deps.backoff.claimWindow(`reset:${email}`, RESET_MAIL_LIMIT);
   if (!claim.ok) {
     const s = Math.ceil(claim.waitMs / 1000);
-    throw new AppError('rate_limited', 'too_many_resets', `Reset links for this address were asked for ${RESET_MAIL_LIMIT.limit} times in the last hour; check your mail, or try again in ${Math.ceil(s / 60)} min`, { retryAfterSeconds: s });
+    throw new AppError(
+      'rate_limited',
+      'too_many_resets',
+      `Reset links for this address were asked for ${RESET_MAIL_LIMIT.limit} times in the last hour; check your mail, or try again in ${Math.ceil(s / 60)} min`,
+      { retryAfterSeconds: s },
+    );
   }
   deps.background.run('password reset mail', () => mailPasswordReset(deps, email));
 }
@@ -113,7 +125,10 @@ async function mailPasswordReset(deps: Deps, email: string): Promise<void> {
 }
 
 export async function completePasswordReset(deps: Deps, token: string, newPassword: string): Promise<void> {
-  const row = await deps.db('password_resets').where({ token_hash: sha256(token) }).first<{ id: number; user_id: number; expires_at: string; used_at: string | null } | undefined>();
+  const row = await deps
+    .db('password_resets')
+    .where({ token_hash: sha256(token) })
+    .first<{ id: number; user_id: number; expires_at: string; used_at: string | null } | undefined>();
   if (!row || row.used_at || row.expires_at < new Date().toISOString()) {
     throw new AppError('validation', 'invalid_token', 'This reset link is not valid any more; ask for a new one');
   }
@@ -145,7 +160,9 @@ interface DbInvite {
 }
 
 async function liveInvite(db: Knex, token: string): Promise<DbInvite> {
-  const inv = await db<DbInvite>('invites').where({ token_hash: sha256(token) }).first();
+  const inv = await db<DbInvite>('invites')
+    .where({ token_hash: sha256(token) })
+    .first();
   if (!inv || inv.accepted_at || inv.expires_at < new Date().toISOString()) {
     throw new AppError('not_found', 'invalid_token', 'This invitation is not valid any more; ask your admin for a new one');
   }
@@ -164,7 +181,11 @@ export async function acceptInvite(deps: Deps, token: string, name: string, pass
   const id = await deps.db.transaction(async (trx) => {
     const n = await trx('invites').where({ id: inv.id }).whereNull('accepted_at').update({ accepted_at: new Date().toISOString() });
     if (n !== 1) throw new AppError('not_found', 'invalid_token', 'This invitation has already been used');
-    return insertUser(trx, { name, email: inv.email, badge: null, role: inv.role, password_hash: hash, pin_hash: null, created_at: new Date().toISOString() }, JSON.parse(inv.site_ids) as number[]);
+    return insertUser(
+      trx,
+      { name, email: inv.email, badge: null, role: inv.role, password_hash: hash, pin_hash: null, created_at: new Date().toISOString() },
+      JSON.parse(inv.site_ids) as number[],
+    );
   });
   await closeOutboxLinks(deps.db, [inv.token_hash], 'used');
   await audit(deps.db, { userId: id, action: 'invite.accepted', subject: inv.email });

@@ -77,7 +77,10 @@ export class SignInBackoff {
     return row ? Math.max(0, Number(row.until) - this.now()) : 0;
   }
 
-  private async claim(key: string, decide: (row: DbThrottleRow | undefined, t: number) => { refuse: number } | { set: Omit<DbThrottleRow, 'key'> }): Promise<Claim> {
+  private async claim(
+    key: string,
+    decide: (row: DbThrottleRow | undefined, t: number) => { refuse: number } | { set: Omit<DbThrottleRow, 'key'> },
+  ): Promise<Claim> {
     const t0 = this.now();
     if (++this.claims % PRUNE_EVERY === 0) await this.prune(t0);
     for (let i = 0; i < MAX_TRIES; i++) {
@@ -98,6 +101,9 @@ export class SignInBackoff {
   }
 
   private async prune(t: number): Promise<void> {
-    await this.db('auth_throttle').where('last_at', '<', t - FORGET_AFTER_MS).andWhere('until', '<', t).delete();
+    await this.db('auth_throttle')
+      .where('last_at', '<', t - FORGET_AFTER_MS)
+      .andWhere('until', '<', t)
+      .delete();
   }
 }

@@ -7,7 +7,9 @@ import { siteIdsOf } from '../users/users.repository';
 /** Starts a server-side session; sessions past the shift limit (anyone's, revoked or not) are removed. */
 export async function createSession(db: Q, userId: number, authTime: number, device: string | null): Promise<string> {
   const id = randomBytes(18).toString('base64url');
-  await db('sessions').where('auth_time', '<', authTime - SESSION_MAX_S).delete();
+  await db('sessions')
+    .where('auth_time', '<', authTime - SESSION_MAX_S)
+    .delete();
   await db('sessions').insert({ id, user_id: userId, auth_time: authTime, device, created_at: new Date().toISOString(), revoked_at: null });
   return id;
 }
@@ -31,7 +33,12 @@ export async function loadLiveSession(db: Q, sessionId: string, userId: number):
     .join('users', 'users.id', 'sessions.user_id')
     .where('sessions.id', sessionId)
     .first<{ user_id: number; revoked_at: string | null; name: string; role: Role; active: number | boolean; token_version: number } | undefined>(
-      'sessions.user_id', 'sessions.revoked_at', 'users.name', 'users.role', 'users.active', 'users.token_version',
+      'sessions.user_id',
+      'sessions.revoked_at',
+      'users.name',
+      'users.role',
+      'users.active',
+      'users.token_version',
     );
   if (!row || row.revoked_at !== null || row.user_id !== userId || !row.active) return null;
   return { sessionId, id: row.user_id, name: row.name, role: row.role, tokenVersion: row.token_version, siteIds: await siteIdsOf(db, userId) };

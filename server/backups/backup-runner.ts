@@ -81,9 +81,14 @@ export class BackupRunner {
     const at = new Date();
     try {
       ensureDir(dir, 0o700);
-      const entry = this.options.inWorker === false
-        ? await takeBackup(dbFile, dir, trigger, at)
-        : await runInWorker<BackupEntry>(new URL('./backup.worker.ts', import.meta.url), { dbFile, dir, trigger, at: at.toISOString() }, { timeoutMs: 30 * 60_000, heapMb: 256 });
+      const entry =
+        this.options.inWorker === false
+          ? await takeBackup(dbFile, dir, trigger, at)
+          : await runInWorker<BackupEntry>(
+              new URL('./backup.worker.ts', import.meta.url),
+              { dbFile, dir, trigger, at: at.toISOString() },
+              { timeoutMs: 30 * 60_000, heapMb: 256 },
+            );
       const removed = pruneBackups(dir, keep);
       rmSync(join(dir, 'last-failure.json'), { force: true });
       this.failure = null;
@@ -158,5 +163,4 @@ export class BackupRunner {
     this.nextAt = null;
     if (this.running) await this.running.catch(() => undefined);
   }
-
 }

@@ -9,7 +9,15 @@ import { defineRoute } from '../http/route';
 import type { BackupEntry } from './backups.service';
 import { isBackupName } from './backups.service';
 
-const toItem = (b: BackupEntry): BackupItem => ({ name: b.name, createdAt: b.createdAt, bytes: b.bytes, ms: b.ms, verified: b.verified, problems: b.problems, trigger: b.trigger });
+const toItem = (b: BackupEntry): BackupItem => ({
+  name: b.name,
+  createdAt: b.createdAt,
+  bytes: b.bytes,
+  ms: b.ms,
+  verified: b.verified,
+  problems: b.problems,
+  trigger: b.trigger,
+});
 
 function status(deps: Deps): BackupsStatus {
   const r = deps.backups;
@@ -43,13 +51,21 @@ const unavailable = () => new AppError('conflict', 'backups_unavailable', 'Backu
 
 export const backupRoutes = [
   defineRoute({
-    method: 'get', path: '/api/admin/backups', access: ['admin'], summary: 'Backups in BACKUP_DIR (newest first), the schedule and the last failure',
+    method: 'get',
+    path: '/api/admin/backups',
+    access: ['admin'],
+    summary: 'Backups in BACKUP_DIR (newest first), the schedule and the last failure',
     response: BackupsStatus,
     handler: ({ deps }) => status(deps),
   }),
   defineRoute({
-    method: 'post', path: '/api/admin/backups', access: ['admin'], summary: 'Back up now (online, consistent; checked after copying)', status: 201,
-    body: z.strictObject({}), response: BackupItem,
+    method: 'post',
+    path: '/api/admin/backups',
+    access: ['admin'],
+    summary: 'Back up now (online, consistent; checked after copying)',
+    status: 201,
+    body: z.strictObject({}),
+    response: BackupItem,
     handler: async ({ deps, user }) => {
       if (!deps.backups) throw unavailable();
       try {
@@ -60,7 +76,10 @@ export const backupRoutes = [
     },
   }),
   defineRoute({
-    method: 'get', path: '/api/admin/backups/:name', access: ['admin'], summary: 'Download one backup file',
+    method: 'get',
+    path: '/api/admin/backups/:name',
+    access: ['admin'],
+    summary: 'Download one backup file',
     handler: ({ deps, params, res }) => {
       if (!deps.backups) throw unavailable();
       const name = params.name ?? '';

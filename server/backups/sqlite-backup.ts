@@ -4,7 +4,20 @@
  * mid-write can be torn. The backup API reads one consistent snapshot (WAL readers see the database as
  * of their read transaction) while the server goes on writing.
  */
-import { closeSync, existsSync, fsyncSync, openSync, readFileSync, renameSync, rmSync, statSync, chmodSync, writeFileSync, copyFileSync, mkdirSync } from 'node:fs';
+import {
+  closeSync,
+  existsSync,
+  fsyncSync,
+  openSync,
+  readFileSync,
+  renameSync,
+  rmSync,
+  statSync,
+  chmodSync,
+  writeFileSync,
+  copyFileSync,
+  mkdirSync,
+} from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import Database from 'better-sqlite3';
 
@@ -98,7 +111,11 @@ export function verifyBackup(file: string): VerifyResult {
     const problems = rows.length === 1 && rows[0] === 'ok' ? [] : rows;
     const names = db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name").pluck().all() as string[];
     const tables: Record<string, number> = {};
-    for (const name of names) tables[name] = db.prepare(`SELECT count(*) FROM "${name.replace(/"/g, '""')}"`).pluck().get() as number;
+    for (const name of names)
+      tables[name] = db
+        .prepare(`SELECT count(*) FROM "${name.replace(/"/g, '""')}"`)
+        .pluck()
+        .get() as number;
     if (problems.length === 0 && !('knex_migrations' in tables)) problems.push('not an Aislewright database (no knex_migrations table)');
     return { ok: problems.length === 0, problems, tables };
   } catch (err) {

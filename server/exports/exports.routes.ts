@@ -24,7 +24,10 @@ const KINDS = {
 export const exportRoutes = [
   ...Object.entries(KINDS).map(([kind, table]) =>
     defineRoute({
-      method: 'get', path: `/api/sites/:siteId/exports/${kind}`, access: SUPERVISE, summary: `Download the site's ${kind.replace('-', ' ')} as xlsx or CSV`,
+      method: 'get',
+      path: `/api/sites/:siteId/exports/${kind}`,
+      access: SUPERVISE,
+      summary: `Download the site's ${kind.replace('-', ' ')} as xlsx or CSV`,
       query: ExportQuery,
       handler: async ({ deps, siteId, query, res, user }) => {
         const code = await siteCode(deps.db, siteId);
@@ -35,7 +38,10 @@ export const exportRoutes = [
     }),
   ),
   defineRoute({
-    method: 'get', path: '/api/sites/:siteId/exports/site-data', access: SUPERVISE, summary: 'Everything of the site as one workbook, a sheet per table (no secrets, no binary data)',
+    method: 'get',
+    path: '/api/sites/:siteId/exports/site-data',
+    access: SUPERVISE,
+    summary: 'Everything of the site as one workbook, a sheet per table (no secrets, no binary data)',
     handler: async ({ deps, siteId, res, user }) => {
       const code = await siteCode(deps.db, siteId);
       const body = tablesToXlsx(await siteDataTables(deps.db, siteId));

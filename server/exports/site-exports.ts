@@ -30,17 +30,74 @@ export async function pickLinesTable(db: Knex, siteId: number): Promise<Table> {
     .leftJoin('users as u', 'u.id', 'p.confirmed_by')
     .where('t.site_id', siteId)
     .orderBy('p.id')
-    .select('w.name as wave', 't.n as trip', 's.n as stop', 'p.order_ref', 'p.sku', 'p.description', 'p.bin', 'p.qty', 'p.picked_qty', 'p.status', 'p.short_reason', 'u.name as by', 'u.badge as badge', 'p.confirmed_at');
+    .select(
+      'w.name as wave',
+      't.n as trip',
+      's.n as stop',
+      'p.order_ref',
+      'p.sku',
+      'p.description',
+      'p.bin',
+      'p.qty',
+      'p.picked_qty',
+      'p.status',
+      'p.short_reason',
+      'u.name as by',
+      'u.badge as badge',
+      'p.confirmed_at',
+    );
   return {
     name: 'pick lines',
-    header: ['wave', 'trip', 'stop', 'order', 'sku', 'description', 'bin', 'qty ordered', 'qty picked', 'status', 'short reason', 'confirmed by', 'badge', 'confirmed at (UTC)'],
-    rows: rows.map((r: Record<string, Cell>) => [r.wave, r.trip, r.stop, r.order_ref, r.sku, r.description, r.bin, r.qty, r.picked_qty, r.status, r.short_reason, r.by, r.badge, r.confirmed_at]),
+    header: [
+      'wave',
+      'trip',
+      'stop',
+      'order',
+      'sku',
+      'description',
+      'bin',
+      'qty ordered',
+      'qty picked',
+      'status',
+      'short reason',
+      'confirmed by',
+      'badge',
+      'confirmed at (UTC)',
+    ],
+    rows: rows.map((r: Record<string, Cell>) => [
+      r.wave,
+      r.trip,
+      r.stop,
+      r.order_ref,
+      r.sku,
+      r.description,
+      r.bin,
+      r.qty,
+      r.picked_qty,
+      r.status,
+      r.short_reason,
+      r.by,
+      r.badge,
+      r.confirmed_at,
+    ]),
   };
 }
 
 export async function usersTable(db: Knex, siteId: number): Promise<Table> {
-  const rows = await db('users as u').join('user_sites as us', 'us.user_id', 'u.id').where('us.site_id', siteId).orderBy('u.role').orderBy('u.name').select('u.id', 'u.name', 'u.email', 'u.badge', 'u.role', 'u.active', 'u.created_at');
-  const admins = await db('users').where({ role: 'admin' }).whereNotIn('id', rows.map((r: { id: number }) => r.id)).orderBy('name').select('id', 'name', 'email', 'badge', 'role', 'active', 'created_at');
+  const rows = await db('users as u')
+    .join('user_sites as us', 'us.user_id', 'u.id')
+    .where('us.site_id', siteId)
+    .orderBy('u.role')
+    .orderBy('u.name')
+    .select('u.id', 'u.name', 'u.email', 'u.badge', 'u.role', 'u.active', 'u.created_at');
+  const admins = await db('users')
+    .where({ role: 'admin' })
+    .whereNotIn(
+      'id',
+      rows.map((r: { id: number }) => r.id),
+    )
+    .orderBy('name')
+    .select('id', 'name', 'email', 'badge', 'role', 'active', 'created_at');
   return {
     name: 'users',
     header: ['name', 'e-mail', 'badge', 'role', 'active', 'created (UTC)', 'site member'],
@@ -59,10 +116,16 @@ function tableOf(name: string, rows: Record<string, unknown>[]): Table {
   return {
     name,
     header,
-    rows: rows.map((r) => header.map((h) => {
-      const v = r[h];
-      return v === null || v === undefined || typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean' ? v : Buffer.isBuffer(v) ? '' : JSON.stringify(v);
-    })),
+    rows: rows.map((r) =>
+      header.map((h) => {
+        const v = r[h];
+        return v === null || v === undefined || typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean'
+          ? v
+          : Buffer.isBuffer(v)
+            ? ''
+            : JSON.stringify(v);
+      }),
+    ),
   };
 }
 
@@ -93,7 +156,12 @@ export async function siteDataTables(db: Knex, siteId: number): Promise<Table[]>
     ['pick_lines', db('pick_lines').whereIn('trip_id', trips)],
     ['pick_shorts', db('pick_shorts').where({ site_id: siteId })],
     ['studies', db('studies').where({ site_id: siteId })],
-    ['integration_tokens', db('integration_tokens').where({ site_id: siteId }).select('id', 'name', 'prefix', 'created_by', 'created_at', 'expires_at', 'revoked_at', 'last_used_at')],
+    [
+      'integration_tokens',
+      db('integration_tokens')
+        .where({ site_id: siteId })
+        .select('id', 'name', 'prefix', 'created_by', 'created_at', 'expires_at', 'revoked_at', 'last_used_at'),
+    ],
     ['audit_log', db('audit_log').where({ site_id: siteId })],
   ];
   const out: Table[] = [];

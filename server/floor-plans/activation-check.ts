@@ -6,7 +6,14 @@
  */
 import type { Knex } from 'knex';
 import * as XLSX from 'xlsx';
-import { ACTIVATION_CHECK_SAMPLE, type ActivationCheck, type PlanRef, type RunningWave, type SkuWithoutBin, type UnplaceableOrder } from '../../shared/floor-plans';
+import {
+  ACTIVATION_CHECK_SAMPLE,
+  type ActivationCheck,
+  type PlanRef,
+  type RunningWave,
+  type SkuWithoutBin,
+  type UnplaceableOrder,
+} from '../../shared/floor-plans';
 import { csvDocument, neutraliseCells } from '../../shared/input-rules';
 import { skuMap } from '../orders/orders.repository';
 import { activePlanRow, type DbFloorPlanRow } from './floor-plans.repository';
@@ -73,7 +80,12 @@ export interface FullActivationCheck extends ActivationCheck {
 }
 
 /** The check for `plan` (a row of the site). Reads the SKU master, open orders and both plans' bins. */
-export async function computeActivationCheck(db: Knex, siteId: number, plan: DbFloorPlanRow, links: { xlsx: string; csv: string }): Promise<FullActivationCheck> {
+export async function computeActivationCheck(
+  db: Knex,
+  siteId: number,
+  plan: DbFloorPlanRow,
+  links: { xlsx: string; csv: string },
+): Promise<FullActivationCheck> {
   const activeRow = await activePlanRow(db, siteId);
   const current = activeRow && activeRow.id !== plan.id ? activeRow : null;
   const [target, now, skus, orders, waves] = await Promise.all([

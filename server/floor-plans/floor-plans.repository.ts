@@ -110,9 +110,7 @@ export async function listPlanRows(db: Q, siteId: number): Promise<(DbFloorPlanR
     .whereNot('p.state', 'building')
     .orderBy('p.version', 'desc')
     .select('p.*', 'u.name as uploader_name')
-    .select(
-      db.raw('(select count(*) from floor_plan_closures c where c.plan_id = p.id and c.reopened_at is null) as open_closures'),
-    );
+    .select(db.raw('(select count(*) from floor_plan_closures c where c.plan_id = p.id and c.reopened_at is null) as open_closures'));
 }
 
 export async function userName(db: Q, userId: number | null): Promise<string | null> {
@@ -132,7 +130,10 @@ export async function missingBinsOnActivePlan(db: Q, siteId: number, bins: strin
   if (!plan) return new Set(wanted);
   const found = new Set<string>();
   for (let i = 0; i < wanted.length; i += 500) {
-    const rows: { code: string }[] = await db('floor_plan_bins').where({ plan_id: plan.id }).whereIn('code', wanted.slice(i, i + 500)).select('code');
+    const rows: { code: string }[] = await db('floor_plan_bins')
+      .where({ plan_id: plan.id })
+      .whereIn('code', wanted.slice(i, i + 500))
+      .select('code');
     for (const r of rows) found.add(r.code);
   }
   return new Set(wanted.filter((b) => !found.has(b)));
@@ -155,28 +156,31 @@ export interface NewPlanRow {
 
 /** A plan row in state 'building': invisible until `finishPlan` numbers it as a draft. */
 export async function insertBuildingPlan(db: Q, p: NewPlanRow, now: string): Promise<number> {
-  const [{ id }] = await db('floor_plans').insert({
-    site_id: p.site_id,
-    version: null,
-    name: p.name,
-    state: 'building',
-    source: p.source,
-    source_filename: p.source_filename,
-    generator_params: p.generator_params,
-    uploaded_by: p.uploaded_by,
-    created_at: now,
-    bins: p.stats.bins,
-    aisles: p.stats.aisles,
-    cross_aisles: p.stats.crossAisles,
-    access_points: p.stats.accessPoints,
-    depots: p.stats.depots,
-    total_aisle_length_m: p.stats.totalAisleLengthM,
-    node_count: p.node_count,
-    hub_count: p.hub_count,
-    stored_bytes: p.stored_bytes,
-    build_ms: p.build_ms,
-    warnings: JSON.stringify(p.warnings),
-  }, 'id');
+  const [{ id }] = await db('floor_plans').insert(
+    {
+      site_id: p.site_id,
+      version: null,
+      name: p.name,
+      state: 'building',
+      source: p.source,
+      source_filename: p.source_filename,
+      generator_params: p.generator_params,
+      uploaded_by: p.uploaded_by,
+      created_at: now,
+      bins: p.stats.bins,
+      aisles: p.stats.aisles,
+      cross_aisles: p.stats.crossAisles,
+      access_points: p.stats.accessPoints,
+      depots: p.stats.depots,
+      total_aisle_length_m: p.stats.totalAisleLengthM,
+      node_count: p.node_count,
+      hub_count: p.hub_count,
+      stored_bytes: p.stored_bytes,
+      build_ms: p.build_ms,
+      warnings: JSON.stringify(p.warnings),
+    },
+    'id',
+  );
   return id!;
 }
 
@@ -204,7 +208,13 @@ export async function deletePlan(db: Q, planId: number): Promise<void> {
 
 export async function retireActive(db: Q, siteId: number, now: string): Promise<number[]> {
   const rows = await db('floor_plans').where({ site_id: siteId, state: 'active' }).select<{ id: number }[]>('id');
-  if (rows.length) await db('floor_plans').whereIn('id', rows.map((r) => r.id)).update({ state: 'retired', retired_at: now });
+  if (rows.length)
+    await db('floor_plans')
+      .whereIn(
+        'id',
+        rows.map((r) => r.id),
+      )
+      .update({ state: 'retired', retired_at: now });
   return rows.map((r) => r.id);
 }
 
@@ -228,7 +238,15 @@ export function geometryInsertChunks(planId: number, plan: PlanGeometry): { tabl
   push('floor_plan_cross_aisles', plan.crossAisles, (c, i) => ({ plan_id: planId, idx: i, code: c.code, y_m: c.y, x_start_m: c.xStart, x_end_m: c.xEnd }));
   push('floor_plan_depots', plan.depots, (d, i) => ({ plan_id: planId, idx: i, code: d.code, x_m: d.x, y_m: d.y }));
   push('floor_plan_bins', plan.bins, (b, i) => ({
-    plan_id: planId, idx: i, code: b.code, aisle: b.aisle, y_m: b.y, bay: b.bay, side: b.side, level: b.level, zone: b.zone,
+    plan_id: planId,
+    idx: i,
+    code: b.code,
+    aisle: b.aisle,
+    y_m: b.y,
+    bay: b.bay,
+    side: b.side,
+    level: b.level,
+    zone: b.zone,
   }));
   return out;
 }
@@ -263,7 +281,10 @@ export async function replaceGraph(db: Q, planId: number, closureVersion: number
   await db('floor_plan_graphs').where({ plan_id: planId }).delete();
   await db('floor_plan_graphs').insert({ plan_id: planId, closure_version: closureVersion, graph_header: graph.json, index_header: index.json });
   const rows: Record<string, unknown>[] = [];
-  for (const [set, data] of [['graph', graph], ['index', index]] as const) {
+  for (const [set, data] of [
+    ['graph', graph],
+    ['index', index],
+  ] as const) {
     for (const [name, bytes] of Object.entries(data.blobs)) {
       rows.push({ plan_id: planId, set_name: set, array_name: name, data: Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength) });
     }
@@ -272,9 +293,13 @@ export async function replaceGraph(db: Q, planId: number, closureVersion: number
 }
 
 export async function loadGraphSets(db: Q, planId: number): Promise<{ closureVersion: number; graph: SerializedSet; index: SerializedSet } | null> {
-  const head = await db('floor_plan_graphs').where({ plan_id: planId }).first<{ closure_version: number; graph_header: string; index_header: string } | undefined>();
+  const head = await db('floor_plan_graphs')
+    .where({ plan_id: planId })
+    .first<{ closure_version: number; graph_header: string; index_header: string } | undefined>();
   if (!head) return null;
-  const rows = await db('floor_plan_arrays').where({ plan_id: planId }).select<{ set_name: string; array_name: string; data: Buffer }[]>('set_name', 'array_name', 'data');
+  const rows = await db('floor_plan_arrays')
+    .where({ plan_id: planId })
+    .select<{ set_name: string; array_name: string; data: Buffer }[]>('set_name', 'array_name', 'data');
   const graph: SerializedSet = { json: head.graph_header, blobs: {} };
   const index: SerializedSet = { json: head.index_header, blobs: {} };
   for (const r of rows) (r.set_name === 'graph' ? graph : index).blobs[r.array_name] = r.data;
@@ -283,11 +308,27 @@ export async function loadGraphSets(db: Q, planId: number): Promise<{ closureVer
 
 export async function loadGeometry(db: Q, planId: number): Promise<PlanGeometry> {
   const [aisles, crossAisles, depots, bins] = await Promise.all([
-    db('floor_plan_aisles').where({ plan_id: planId }).orderBy('idx').select<{ code: string; x_m: number; y_start_m: number; y_end_m: number }[]>('code', 'x_m', 'y_start_m', 'y_end_m'),
-    db('floor_plan_cross_aisles').where({ plan_id: planId }).orderBy('idx').select<{ code: string; y_m: number; x_start_m: number; x_end_m: number }[]>('code', 'y_m', 'x_start_m', 'x_end_m'),
+    db('floor_plan_aisles')
+      .where({ plan_id: planId })
+      .orderBy('idx')
+      .select<{ code: string; x_m: number; y_start_m: number; y_end_m: number }[]>('code', 'x_m', 'y_start_m', 'y_end_m'),
+    db('floor_plan_cross_aisles')
+      .where({ plan_id: planId })
+      .orderBy('idx')
+      .select<{ code: string; y_m: number; x_start_m: number; x_end_m: number }[]>('code', 'y_m', 'x_start_m', 'x_end_m'),
     db('floor_plan_depots').where({ plan_id: planId }).orderBy('idx').select<{ code: string; x_m: number; y_m: number }[]>('code', 'x_m', 'y_m'),
-    db('floor_plan_bins').where({ plan_id: planId }).orderBy('idx')
-      .select<{ code: string; aisle: string; y_m: number; bay: number | null; side: 'L' | 'R'; level: number; zone: string | null }[]>('code', 'aisle', 'y_m', 'bay', 'side', 'level', 'zone'),
+    db('floor_plan_bins')
+      .where({ plan_id: planId })
+      .orderBy('idx')
+      .select<{ code: string; aisle: string; y_m: number; bay: number | null; side: 'L' | 'R'; level: number; zone: string | null }[]>(
+        'code',
+        'aisle',
+        'y_m',
+        'bay',
+        'side',
+        'level',
+        'zone',
+      ),
   ]);
   return {
     aisles: aisles.map((a) => ({ code: a.code, x: a.x_m, yStart: a.y_start_m, yEnd: a.y_end_m })),
@@ -323,9 +364,19 @@ export async function insertClosure(
   c: { planId: number; kind: 'aisle' | 'cross_aisle'; code: string; fromM: number; toM: number; reason: string | null; userId: number },
   now: string,
 ): Promise<number> {
-  const [{ id }] = await db('floor_plan_closures').insert({
-    plan_id: c.planId, kind: c.kind, code: c.code, from_m: c.fromM, to_m: c.toM, reason: c.reason, created_by: c.userId, created_at: now,
-  }, 'id');
+  const [{ id }] = await db('floor_plan_closures').insert(
+    {
+      plan_id: c.planId,
+      kind: c.kind,
+      code: c.code,
+      from_m: c.fromM,
+      to_m: c.toM,
+      reason: c.reason,
+      created_by: c.userId,
+      created_at: now,
+    },
+    'id',
+  );
   return id!;
 }
 
@@ -335,7 +386,10 @@ export async function setClosureRange(db: Q, planId: number, closureId: number, 
 }
 
 export async function reopenClosure(db: Q, planId: number, closureId: number, userId: number, now: string): Promise<boolean> {
-  const n = await db('floor_plan_closures').where({ id: closureId, plan_id: planId }).whereNull('reopened_at').update({ reopened_at: now, reopened_by: userId });
+  const n = await db('floor_plan_closures')
+    .where({ id: closureId, plan_id: planId })
+    .whereNull('reopened_at')
+    .update({ reopened_at: now, reopened_by: userId });
   return n > 0;
 }
 

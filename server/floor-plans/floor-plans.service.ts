@@ -52,7 +52,10 @@ async function summaryOf(db: Knex, row: repo.DbFloorPlanRow): Promise<FloorPlanS
 
 export async function listPlans(db: Knex, siteId: number): Promise<FloorPlanSummary[]> {
   const rows = await repo.listPlanRows(db, siteId);
-  const inUse = await repo.plansInUse(db, rows.map((r) => r.id));
+  const inUse = await repo.plansInUse(
+    db,
+    rows.map((r) => r.id),
+  );
   return rows.map((r) => repo.toSummary(r, { uploaderName: r.uploader_name, openClosures: Number(r.open_closures), inUse: inUse.has(r.id) }));
 }
 
@@ -123,16 +126,31 @@ export async function activationCheck(db: Knex, siteId: number, planId: number):
  * When SKUs would lose their bin or open orders their placement, it refuses (409
  * activation_needs_acknowledgement, the check in `details`) unless `acknowledge` is set.
  */
-export async function activatePlan(db: Knex, siteId: number, planId: number, userId: number, options: { acknowledge?: boolean } = {}): Promise<FloorPlanDetail> {
+export async function activatePlan(
+  db: Knex,
+  siteId: number,
+  planId: number,
+  userId: number,
+  options: { acknowledge?: boolean } = {},
+): Promise<FloorPlanDetail> {
   const row = await mustPlan(db, siteId, planId);
   if (row.state === 'active') return getPlanDetail(db, siteId, planId);
   const check = publicCheck(await computeActivationCheck(db, siteId, row, skusWithoutBinLinks(siteId, planId)));
   if (check.needsAcknowledgement && options.acknowledge !== true) {
     const what = [
       check.skusLosingBin ? `${check.skusLosingBin} SKU${check.skusLosingBin === 1 ? '' : 's'} without a bin` : null,
-      check.openOrdersLosingPlacement ? `${check.openOrdersLosingPlacement} open order${check.openOrdersLosingPlacement === 1 ? '' : 's'} that cannot be placed` : null,
-    ].filter(Boolean).join(' and ');
-    throw new AppError('conflict', 'activation_needs_acknowledgement', `Activating v${row.version} would leave ${what} compared with the active plan. Review the activation check and send { "acknowledge": true } to activate anyway.`, check);
+      check.openOrdersLosingPlacement
+        ? `${check.openOrdersLosingPlacement} open order${check.openOrdersLosingPlacement === 1 ? '' : 's'} that cannot be placed`
+        : null,
+    ]
+      .filter(Boolean)
+      .join(' and ');
+    throw new AppError(
+      'conflict',
+      'activation_needs_acknowledgement',
+      `Activating v${row.version} would leave ${what} compared with the active plan. Review the activation check and send { "acknowledge": true } to activate anyway.`,
+      check,
+    );
   }
   const now = nowIso();
   await db.transaction(async (trx) => {
@@ -146,8 +164,17 @@ export async function activatePlan(db: Knex, siteId: number, planId: number, use
     const retired = await repo.retireActive(trx, siteId, now);
     await repo.setActive(trx, planId, now);
     await audit(trx, {
-      siteId, userId, action: row.state === 'retired' ? 'floor_plan.reactivated' : 'floor_plan.activated', subject: `v${row.version}`,
-      detail: { planId, retired, acknowledged: check.needsAcknowledgement, skusLosingBin: check.skusLosingBin, openOrdersLosingPlacement: check.openOrdersLosingPlacement },
+      siteId,
+      userId,
+      action: row.state === 'retired' ? 'floor_plan.reactivated' : 'floor_plan.activated',
+      subject: `v${row.version}`,
+      detail: {
+        planId,
+        retired,
+        acknowledged: check.needsAcknowledgement,
+        skusLosingBin: check.skusLosingBin,
+        openOrdersLosingPlacement: check.openOrdersLosingPlacement,
+      },
     });
   });
   return getPlanDetail(db, siteId, planId);
@@ -155,7 +182,8 @@ export async function activatePlan(db: Knex, siteId: number, planId: number, use
 
 export async function renamePlan(db: Knex, siteId: number, planId: number, name: string, userId: number): Promise<FloorPlanDetail> {
   const row = await mustPlan(db, siteId, planId);
-  if (row.state === 'retired' || (await repo.isPlanInUse(db, planId))) throw new AppError('conflict', 'plan_read_only', 'Retired plans and plans used by waves cannot be changed');
+  if (row.state === 'retired' || (await repo.isPlanInUse(db, planId)))
+    throw new AppError('conflict', 'plan_read_only', 'Retired plans and plans used by waves cannot be changed');
   await repo.renamePlan(db, planId, name);
   await audit(db, { siteId, userId, action: 'floor_plan.renamed', subject: `v${row.version}`, detail: { planId, name } });
   return getPlanDetail(db, siteId, planId);
@@ -188,7 +216,13 @@ interface SaveMeta {
  * yield to the event loop between them, then arrays, version number and state in one transaction.
  * On any failure the half-saved plan is deleted, so nothing of it remains.
  */
-export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry, built: BuildOutput, onProgress?: (fraction: number) => void): Promise<number> {
+export async function saveBuiltPlan(
+  db: Knex,
+  meta: SaveMeta,
+  plan: PlanGeometry,
+  built: BuildOutput,
+  onProgress?: (fraction: number) => void,
+): Promise<number> {
   // Saves run one at a time, so any plan still 'building' now was left by a stopped server.
   await repo.purgeUnfinishedPlans(db);
   const planId = await repo.insertBuildingPlan(
@@ -221,7 +255,13 @@ export async function saveBuiltPlan(db: Knex, meta: SaveMeta, plan: PlanGeometry
       await repo.replaceGraph(trx, planId, 0, built.graph, built.index);
       version = await repo.nextVersion(trx, meta.siteId);
       await repo.setPlanDraft(trx, planId, version);
-      await audit(trx, { siteId: meta.siteId, userId: meta.userId, action: 'floor_plan.draft_saved', subject: `v${version}`, detail: { planId, source: meta.source, bins: built.stats.bins } });
+      await audit(trx, {
+        siteId: meta.siteId,
+        userId: meta.userId,
+        action: 'floor_plan.draft_saved',
+        subject: `v${version}`,
+        detail: { planId, source: meta.source, bins: built.stats.bins },
+      });
     });
     onProgress?.(1);
     return planId;
@@ -257,11 +297,20 @@ export function startUpload(deps: Deps, input: { siteId: number; userId: number;
   return startJob(deps, { kind: 'upload', ...rest, bytes: Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString('base64') });
 }
 
-async function runUpload(db: Knex, input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string }, control: JobControl): Promise<JobOutcome> {
+async function runUpload(
+  db: Knex,
+  input: { siteId: number; userId: number; bytes: Uint8Array; filename: string; name?: string },
+  control: JobControl,
+): Promise<JobOutcome> {
   control.progress('parsing', 0);
   const check = await checkFloorPlanFile(input.bytes, input.filename, { onProgress: (p) => control.progress(p.phase, p.fraction) });
   if (!check.ok || !check.plan) {
-    return { status: 'invalid', errors: check.errors, warnings: check.warnings, message: `${check.errors.length} problem${check.errors.length === 1 ? '' : 's'} found; nothing was saved` };
+    return {
+      status: 'invalid',
+      errors: check.errors,
+      warnings: check.warnings,
+      message: `${check.errors.length} problem${check.errors.length === 1 ? '' : 's'} found; nothing was saved`,
+    };
   }
   const plan = check.plan;
   const built = await buildWithProgress(control, { kind: 'geometry', plan: packPlan(plan), closures: [], budgetMs: BUILD_BUDGET_MS });
@@ -294,7 +343,11 @@ export function startGenerate(deps: Deps, input: { siteId: number; userId: numbe
   return startJob(deps, { kind: 'generate', ...input });
 }
 
-async function runGenerate(db: Knex, input: { siteId: number; userId: number; name: string; params: GeneratePlanParams }, control: JobControl): Promise<JobOutcome> {
+async function runGenerate(
+  db: Knex,
+  input: { siteId: number; userId: number; name: string; params: GeneratePlanParams },
+  control: JobControl,
+): Promise<JobOutcome> {
   const built = await buildWithProgress(control, { kind: 'generate', params: engineParams(input.params), closures: [], budgetMs: BUILD_BUDGET_MS });
   control.progress('saving', 0);
   const planId = await saveBuiltPlan(
@@ -350,19 +403,29 @@ function withPlanLock<T>(db: Knex, planId: number, work: () => Promise<T>): Prom
 function checkClosureTarget(plan: PlanGeometry, c: CloseSegment): void {
   if (c.kind === 'aisle') {
     const aisle = plan.aisles.find((a) => a.code === c.code);
-    if (!aisle) throw new AppError('validation', 'validation_failed', `Aisle ${c.code} is not on this plan`, [{ field: 'code', message: `aisle ${c.code} is not on this plan` }]);
+    if (!aisle)
+      throw new AppError('validation', 'validation_failed', `Aisle ${c.code} is not on this plan`, [
+        { field: 'code', message: `aisle ${c.code} is not on this plan` },
+      ]);
     const lo = Math.min(aisle.yStart, aisle.yEnd);
     const hi = Math.max(aisle.yStart, aisle.yEnd);
     if (c.toM <= lo || c.fromM >= hi) {
-      throw new AppError('validation', 'validation_failed', `Aisle ${c.code} runs from ${lo} m to ${hi} m; the closed range must overlap it`, [{ field: 'fromM', message: `outside ${lo}–${hi} m` }]);
+      throw new AppError('validation', 'validation_failed', `Aisle ${c.code} runs from ${lo} m to ${hi} m; the closed range must overlap it`, [
+        { field: 'fromM', message: `outside ${lo}–${hi} m` },
+      ]);
     }
   } else {
     const cross = plan.crossAisles.find((a) => a.code === c.code);
-    if (!cross) throw new AppError('validation', 'validation_failed', `Cross aisle ${c.code} is not on this plan`, [{ field: 'code', message: `cross aisle ${c.code} is not on this plan` }]);
+    if (!cross)
+      throw new AppError('validation', 'validation_failed', `Cross aisle ${c.code} is not on this plan`, [
+        { field: 'code', message: `cross aisle ${c.code} is not on this plan` },
+      ]);
     const lo = Math.min(cross.xStart, cross.xEnd);
     const hi = Math.max(cross.xStart, cross.xEnd);
     if (c.toM <= lo || c.fromM >= hi) {
-      throw new AppError('validation', 'validation_failed', `Cross aisle ${c.code} runs from ${lo} m to ${hi} m; the closed range must overlap it`, [{ field: 'fromM', message: `outside ${lo}–${hi} m` }]);
+      throw new AppError('validation', 'validation_failed', `Cross aisle ${c.code} runs from ${lo} m to ${hi} m; the closed range must overlap it`, [
+        { field: 'fromM', message: `outside ${lo}–${hi} m` },
+      ]);
     }
   }
 }
@@ -439,9 +502,17 @@ export async function closeSegment(db: Knex, siteId: number, planId: number, bod
     if (covering) {
       const now = unreachableBinCodes(loaded.geometry, loaded.graph);
       const by = covering.createdBy ? ` by ${covering.createdBy.name}` : '';
-      return closureResult(db, siteId, planId, { before: now, after: now }, {
-        outcome: 'already_closed', closureId: covering.id, what: `${stretchText(covering)} is already closed (closed${by}); nothing was changed.`,
-      });
+      return closureResult(
+        db,
+        siteId,
+        planId,
+        { before: now, after: now },
+        {
+          outcome: 'already_closed',
+          closureId: covering.id,
+          what: `${stretchText(covering)} is already closed (closed${by}); nothing was changed.`,
+        },
+      );
     }
     const overlapping = same.filter((c) => c.fromM < body.toM - tol && c.toM > body.fromM + tol);
     const keep = overlapping[0];
@@ -449,30 +520,51 @@ export async function closeSegment(db: Knex, siteId: number, planId: number, bod
       const merged = overlapping.slice(1);
       const fromM = Math.min(body.fromM, ...overlapping.map((c) => c.fromM));
       const toM = Math.max(body.toM, ...overlapping.map((c) => c.toM));
-      const closures = loaded.closureRows
-        .filter((c) => !merged.includes(c))
-        .map((c) => repo.toEngineClosure(c.id === keep.id ? { ...c, fromM, toM } : c));
+      const closures = loaded.closureRows.filter((c) => !merged.includes(c)).map((c) => repo.toEngineClosure(c.id === keep.id ? { ...c, fromM, toM } : c));
       const r = await rebuildWithClosures(db, siteId, planId, closures, async (trx) => {
         await repo.setClosureRange(trx, planId, keep.id, fromM, toM);
         for (const c of merged) await repo.reopenClosure(trx, planId, c.id, userId, nowIso());
         await audit(trx, {
-          siteId, userId, action: 'floor_plan.segment_extended', subject: `${body.kind} ${body.code}`,
-          detail: { planId, closureId: keep.id, wasFromM: keep.fromM, wasToM: keep.toM, fromM, toM, mergedClosureIds: merged.map((c) => c.id), reason: body.reason ?? null },
+          siteId,
+          userId,
+          action: 'floor_plan.segment_extended',
+          subject: `${body.kind} ${body.code}`,
+          detail: {
+            planId,
+            closureId: keep.id,
+            wasFromM: keep.fromM,
+            wasToM: keep.toM,
+            fromM,
+            toM,
+            mergedClosureIds: merged.map((c) => c.id),
+            reason: body.reason ?? null,
+          },
         });
       });
       await rerouteOpenTrips(db, planId, loaded, userId);
       const was = overlapping.map((c) => `${metresText(c.fromM)}–${metresText(c.toM)}`).join(', ');
       return closureResult(db, siteId, planId, r, {
-        outcome: 'extended', closureId: keep.id,
+        outcome: 'extended',
+        closureId: keep.id,
         what: `${stretchText({ ...body, fromM, toM })}: closed; it overlapped the open closure${overlapping.length === 1 ? '' : 's'} at ${was}, now one closure.`,
       });
     }
     const closures = [...loaded.closures, { kind: body.kind, code: body.code, from: body.fromM, to: body.toM }];
     let closureId = 0;
     const r = await rebuildWithClosures(db, siteId, planId, closures, async (trx) => {
-      const id = await repo.insertClosure(trx, { planId, kind: body.kind, code: body.code, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null, userId }, nowIso());
+      const id = await repo.insertClosure(
+        trx,
+        { planId, kind: body.kind, code: body.code, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null, userId },
+        nowIso(),
+      );
       closureId = id;
-      await audit(trx, { siteId, userId, action: 'floor_plan.segment_closed', subject: `${body.kind} ${body.code}`, detail: { planId, closureId: id, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null } });
+      await audit(trx, {
+        siteId,
+        userId,
+        action: 'floor_plan.segment_closed',
+        subject: `${body.kind} ${body.code}`,
+        detail: { planId, closureId: id, fromM: body.fromM, toM: body.toM, reason: body.reason ?? null },
+      });
     });
     // Trips being picked on this plan walk the changed graph from where their pickers are.
     await rerouteOpenTrips(db, planId, loaded, userId);

@@ -12,8 +12,7 @@ import { isActive, type JobRecord } from '../workers/jobs';
 export const FLOOR_PLAN_BUILD_JOB = 'floor-plan-build';
 
 export type JobOutcome =
-  | { status: 'done'; planId: number; warnings: RowIssue[] }
-  | { status: 'invalid'; errors: RowIssue[]; warnings: RowIssue[]; message: string };
+  { status: 'done'; planId: number; warnings: RowIssue[] } | { status: 'invalid'; errors: RowIssue[]; warnings: RowIssue[]; message: string };
 
 export interface JobControl {
   progress(phase: JobPhase, fraction: number): void;
@@ -65,16 +64,18 @@ export function watchJob(deps: Deps, siteId: number, id: string, onUpdate: (job:
   let ended = false;
   let reading: Promise<unknown> = Promise.resolve();
   const check = () => {
-    reading = reading.then(async () => {
-      if (ended) return;
-      const j = await getJob(deps, siteId, id);
-      if (!j || ended) return;
-      if (j.finishedAt) {
-        ended = true;
-        stop();
-        onEnd(j);
-      } else onUpdate(j);
-    }).catch(() => undefined);
+    reading = reading
+      .then(async () => {
+        if (ended) return;
+        const j = await getJob(deps, siteId, id);
+        if (!j || ended) return;
+        if (j.finishedAt) {
+          ended = true;
+          stop();
+          onEnd(j);
+        } else onUpdate(j);
+      })
+      .catch(() => undefined);
   };
   const stop = deps.jobs.watch(id, check);
   // A change made before the watch began is read once now.

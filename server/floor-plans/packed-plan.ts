@@ -39,7 +39,16 @@ export function packPlan(plan: PlanGeometry): PackedPlan {
     binSide[i] = b.side === 'R' ? 1 : 0;
     binLevel[i] = b.level;
   }
-  return { aisles: plan.aisles, crossAisles: plan.crossAisles, depots: plan.depots, binText: JSON.stringify([codes, aisles, zones]), binY, binBay, binSide, binLevel };
+  return {
+    aisles: plan.aisles,
+    crossAisles: plan.crossAisles,
+    depots: plan.depots,
+    binText: JSON.stringify([codes, aisles, zones]),
+    binY,
+    binBay,
+    binSide,
+    binLevel,
+  };
 }
 
 /** O(bins). */
@@ -48,7 +57,15 @@ export function unpackPlan(p: PackedPlan): PlanGeometry {
   const bins: PlanBin[] = new Array<PlanBin>(codes.length);
   for (let i = 0; i < codes.length; i++) {
     const bay = p.binBay[i]!;
-    bins[i] = { code: codes[i]!, aisle: aisles[i]!, y: p.binY[i]!, bay: Number.isNaN(bay) ? null : bay, side: p.binSide[i] ? 'R' : 'L', level: p.binLevel[i]!, zone: zones[i] ?? null };
+    bins[i] = {
+      code: codes[i]!,
+      aisle: aisles[i]!,
+      y: p.binY[i]!,
+      bay: Number.isNaN(bay) ? null : bay,
+      side: p.binSide[i] ? 'R' : 'L',
+      level: p.binLevel[i]!,
+      zone: zones[i] ?? null,
+    };
   }
   return { aisles: p.aisles, crossAisles: p.crossAisles, depots: p.depots, bins };
 }

@@ -9,7 +9,9 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     if (err instanceof AppError) {
       const retry = (err.details as { retryAfterSeconds?: unknown } | undefined)?.retryAfterSeconds;
       if (err.kind === 'rate_limited' && typeof retry === 'number') res.setHeader('Retry-After', String(retry));
-      res.status(STATUS_OF_KIND[err.kind]).json({ error: { code: err.code, message: err.message, ...(err.details === undefined ? {} : { details: err.details }) } });
+      res
+        .status(STATUS_OF_KIND[err.kind])
+        .json({ error: { code: err.code, message: err.message, ...(err.details === undefined ? {} : { details: err.details }) } });
       return;
     }
     const e = err as { type?: string; status?: number; message?: string };

@@ -1,16 +1,7 @@
 import type { FieldIssue } from '../../shared/common';
 
 /** What went wrong, independent of HTTP; the error handler maps each kind to a status. */
-export type ErrorKind =
-  | 'validation'
-  | 'unauthenticated'
-  | 'forbidden'
-  | 'not_found'
-  | 'conflict'
-  | 'unprocessable'
-  | 'too_large'
-  | 'rate_limited'
-  | 'internal';
+export type ErrorKind = 'validation' | 'unauthenticated' | 'forbidden' | 'not_found' | 'conflict' | 'unprocessable' | 'too_large' | 'rate_limited' | 'internal';
 
 export const STATUS_OF_KIND: Record<ErrorKind, number> = {
   validation: 400,
@@ -38,5 +29,4 @@ export class AppError extends Error {
 }
 
 export const notFound = (what: string): AppError => new AppError('not_found', 'not_found', `${what} not found`);
-export const invalid = (message: string, issues: FieldIssue[]): AppError =>
-  new AppError('validation', 'validation_failed', message, issues);
+export const invalid = (message: string, issues: FieldIssue[]): AppError => new AppError('validation', 'validation_failed', message, issues);

@@ -17,7 +17,9 @@ export interface EventStream {
  */
 export function requireEventStream(req: Request): void {
   if (!(req.get('accept') ?? '').includes('text/event-stream')) {
-    throw new AppError('validation', 'event_stream_only', 'Open this with an EventSource (Accept: text/event-stream)', [{ field: 'Accept', message: 'must accept text/event-stream' }]);
+    throw new AppError('validation', 'event_stream_only', 'Open this with an EventSource (Accept: text/event-stream)', [
+      { field: 'Accept', message: 'must accept text/event-stream' },
+    ]);
   }
 }
 

@@ -62,8 +62,11 @@ function runMulter(req: Request, res: Response): Promise<void> {
       if (err instanceof multer.MulterError) {
         const tooLarge = err.code === 'LIMIT_FILE_SIZE';
         return reject(
-          new AppError(tooLarge ? 'too_large' : 'validation', tooLarge ? 'file_too_large' : 'bad_upload',
-            tooLarge ? `File is larger than ${UPLOAD_MAX_BYTES / 1024 / 1024} MiB` : `Upload refused: ${err.message} (send one file in the field "file")`),
+          new AppError(
+            tooLarge ? 'too_large' : 'validation',
+            tooLarge ? 'file_too_large' : 'bad_upload',
+            tooLarge ? `File is larger than ${UPLOAD_MAX_BYTES / 1024 / 1024} MiB` : `Upload refused: ${err.message} (send one file in the field "file")`,
+          ),
         );
       }
       reject(err as Error);

@@ -22,7 +22,9 @@ export class DbRateLimitStore implements Store {
   }
 
   async get(key: string): Promise<ClientRateLimitInfo | undefined> {
-    const row = await this.db('rate_limits').where({ key: this.prefix + key }).first<{ hits: number; reset_at: number } | undefined>();
+    const row = await this.db('rate_limits')
+      .where({ key: this.prefix + key })
+      .first<{ hits: number; reset_at: number } | undefined>();
     if (!row || Number(row.reset_at) <= this.now()) return undefined;
     return { totalHits: row.hits, resetTime: new Date(Number(row.reset_at)) };
   }
@@ -42,11 +44,16 @@ export class DbRateLimitStore implements Store {
   }
 
   async decrement(key: string): Promise<void> {
-    await this.db('rate_limits').where({ key: this.prefix + key }).andWhere('hits', '>', 0).decrement('hits', 1);
+    await this.db('rate_limits')
+      .where({ key: this.prefix + key })
+      .andWhere('hits', '>', 0)
+      .decrement('hits', 1);
   }
 
   async resetKey(key: string): Promise<void> {
-    await this.db('rate_limits').where({ key: this.prefix + key }).delete();
+    await this.db('rate_limits')
+      .where({ key: this.prefix + key })
+      .delete();
   }
 
   /** Drops windows that ended (called now and then; a stale row is also reset by the next hit). */

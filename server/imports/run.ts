@@ -44,12 +44,7 @@ export type JobOutcome<R> = { ok: true; result: R } | { ok: false; issue: RowIss
  * `limits.workerHeapMb` and `limits.timeoutMs`. A timeout, an out-of-memory stop or a fatal error in
  * that process becomes a file issue (nothing is saved); an error the job itself throws is a bug and rejects.
  */
-export async function runImportJob<R, P>(
-  moduleUrl: URL,
-  data: unknown,
-  limits: ImportLimits,
-  onProgress?: (p: P) => void,
-): Promise<JobOutcome<R>> {
+export async function runImportJob<R, P>(moduleUrl: URL, data: unknown, limits: ImportLimits, onProgress?: (p: P) => void): Promise<JobOutcome<R>> {
   try {
     const result = await runInWorker<R, P>(moduleUrl, data, {
       timeoutMs: limits.timeoutMs,
@@ -59,10 +54,16 @@ export async function runImportJob<R, P>(
     return { ok: true, result };
   } catch (e) {
     if (e instanceof WorkerTimeoutError) {
-      return { ok: false, issue: fileIssue(`reading the file took longer than ${Math.round(limits.timeoutMs / 1000)} s and was stopped; split it into smaller files`) };
+      return {
+        ok: false,
+        issue: fileIssue(`reading the file took longer than ${Math.round(limits.timeoutMs / 1000)} s and was stopped; split it into smaller files`),
+      };
     }
     if (e instanceof WorkerOutOfMemoryError) {
-      return { ok: false, issue: fileIssue(`reading the file needed more than ${limits.workerHeapMb} MiB of memory and was stopped; split it into smaller files`) };
+      return {
+        ok: false,
+        issue: fileIssue(`reading the file needed more than ${limits.workerHeapMb} MiB of memory and was stopped; split it into smaller files`),
+      };
     }
     if (e instanceof WorkerCrashError) {
       return { ok: false, issue: fileIssue(`reading the file ${e.message}; nothing was saved — check the file, or split it into smaller files`) };
@@ -92,6 +93,11 @@ export async function readSpreadsheetFile(
 ): Promise<SpreadsheetRead> {
   const refused = preflight(bytes, filename, limits);
   if (refused) return { ok: false, kind: null, sheets: spec.sheets.map((s) => emptySheet(s.name)), issues: [refused] };
-  const out = await runImportJob<SpreadsheetRead, number>(new URL('./read-worker.ts', import.meta.url), { bytes, filename, spec, limits } satisfies ReadJob, limits, onProgress);
+  const out = await runImportJob<SpreadsheetRead, number>(
+    new URL('./read-worker.ts', import.meta.url),
+    { bytes, filename, spec, limits } satisfies ReadJob,
+    limits,
+    onProgress,
+  );
   return out.ok ? out.result : { ok: false, kind: null, sheets: spec.sheets.map((s) => emptySheet(s.name)), issues: [out.issue] };
 }

@@ -197,7 +197,9 @@ function readSheet(ws: XLSX.WorkSheet, sheetName: string, spec: SheetSpec, limit
   const sheetIssue = (message: string, row: number | null = null, column: string | null = null, value: string | null = null) =>
     issues.push({ sheet: sheetName, row, column, value, message });
   if (overflow) {
-    sheetIssue(`cell ${overflow} lies past column ${XLSX.utils.encode_col(limits.maxColumns - 1)}; only the first ${limits.maxColumns} columns are read — remove the values there`);
+    sheetIssue(
+      `cell ${overflow} lies past column ${XLSX.utils.encode_col(limits.maxColumns - 1)}; only the first ${limits.maxColumns} columns are read — remove the values there`,
+    );
   }
   if (lastRow > limits.maxRowsPerSheet) {
     sheetIssue(`the sheet has more than ${limits.maxRowsPerSheet} data rows; split it into several files`);
@@ -229,7 +231,12 @@ function readSheet(ws: XLSX.WorkSheet, sheetName: string, spec: SheetSpec, limit
     if (text === '') continue;
     const cell = XLSX.utils.encode_cell({ r: 0, c });
     if (!known.has(key)) {
-      sheetIssue(`unknown column "${clip(text)}" in cell ${cell}; the columns of ${spec.name} are ${spec.columns.map((s) => s.name).join(', ')}`, 1, clip(text), clip(text));
+      sheetIssue(
+        `unknown column "${clip(text)}" in cell ${cell}; the columns of ${spec.name} are ${spec.columns.map((s) => s.name).join(', ')}`,
+        1,
+        clip(text),
+        clip(text),
+      );
       continue;
     }
     if (seen.has(key)) {

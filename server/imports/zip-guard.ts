@@ -24,9 +24,7 @@ export interface ZipEntry {
   localHeaderOffset: number;
 }
 
-export type ZipInspection =
-  | { ok: true; entries: ZipEntry[]; uncompressedBytes: number }
-  | { ok: false; message: string };
+export type ZipInspection = { ok: true; entries: ZipEntry[]; uncompressedBytes: number } | { ok: false; message: string };
 
 /** True when the bytes start like a ZIP archive (local file header signature "PK\3\4"). */
 export function looksLikeZip(bytes: Uint8Array): boolean {
@@ -39,7 +37,10 @@ export function looksLikeZip(bytes: Uint8Array): boolean {
  * more entries than allowed, or declares more unpacked bytes or a higher ratio than allowed.
  * O(entries); never inflates anything.
  */
-export function inspectZip(bytes: Uint8Array, limits: Pick<ImportLimits, 'maxZipEntries' | 'maxUncompressedBytes' | 'maxCompressionRatio' | 'ratioFloorBytes'>): ZipInspection {
+export function inspectZip(
+  bytes: Uint8Array,
+  limits: Pick<ImportLimits, 'maxZipEntries' | 'maxUncompressedBytes' | 'maxCompressionRatio' | 'ratioFloorBytes'>,
+): ZipInspection {
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const fail = (message: string): ZipInspection => ({ ok: false, message });
 
@@ -92,7 +93,9 @@ export function inspectZip(bytes: Uint8Array, limits: Pick<ImportLimits, 'maxZip
     if (method === 0 && compressedSize !== uncompressedSize) return fail(`archive entry ${name} is stored but its sizes differ`);
     if (localHeaderOffset + LOCAL_MIN + compressedSize > cdOffset) return fail(`archive entry ${name} lies outside the file`);
     if (uncompressedSize >= limits.ratioFloorBytes && uncompressedSize / Math.max(compressedSize, 1) > limits.maxCompressionRatio) {
-      return fail(`archive entry ${name} unpacks ${Math.round(uncompressedSize / Math.max(compressedSize, 1))} times its packed size; at most ${limits.maxCompressionRatio} is accepted`);
+      return fail(
+        `archive entry ${name} unpacks ${Math.round(uncompressedSize / Math.max(compressedSize, 1))} times its packed size; at most ${limits.maxCompressionRatio} is accepted`,
+      );
     }
     total += uncompressedSize;
     totalPacked += compressedSize;

@@ -20,7 +20,10 @@ export const sha256 = (s: string): string => createHash('sha256').update(s).dige
 /** The site of a live (not revoked, not expired) token, or null. Tokens are stored only as SHA-256 hashes. */
 export async function findActiveToken(db: Knex, token: string): Promise<{ id: number; siteId: number } | null> {
   if (token.length < 20 || token.length > 200) return null;
-  const row = await db<DbIntegrationToken>('integration_tokens').where({ token_hash: sha256(token) }).whereNull('revoked_at').first();
+  const row = await db<DbIntegrationToken>('integration_tokens')
+    .where({ token_hash: sha256(token) })
+    .whereNull('revoked_at')
+    .first();
   if (!row) return null;
   if (row.expires_at && new Date(row.expires_at).getTime() <= Date.now()) return null;
   await db('integration_tokens').where({ id: row.id }).update({ last_used_at: new Date().toISOString() });
@@ -30,7 +33,8 @@ export async function findActiveToken(db: Knex, token: string): Promise<{ id: nu
 /** A token row with the name of who created it, as the token list shows it. */
 export type ListedToken = DbIntegrationToken & { created_by_name: string | null };
 
-const listed = (db: Q) => db('integration_tokens as t').leftJoin('users as u', 'u.id', 't.created_by').select<ListedToken[]>('t.*', 'u.name as created_by_name');
+const listed = (db: Q) =>
+  db('integration_tokens as t').leftJoin('users as u', 'u.id', 't.created_by').select<ListedToken[]>('t.*', 'u.name as created_by_name');
 
 export async function listTokens(db: Q, siteId: number): Promise<ListedToken[]> {
   return listed(db).where('t.site_id', siteId).orderBy('t.id', 'desc');

@@ -8,17 +8,26 @@ import { getOutboxAttachment, getOutboxMessage, listOutbox } from './mailer';
 
 export const mailRoutes = [
   defineRoute({
-    method: 'get', path: '/api/mail/outbox', access: ['admin'], summary: 'Mail outbox, newest first',
+    method: 'get',
+    path: '/api/mail/outbox',
+    access: ['admin'],
+    summary: 'Mail outbox, newest first',
     response: z.array(OutboxMessage),
     handler: ({ deps }) => listOutbox(deps.db),
   }),
   defineRoute({
-    method: 'get', path: '/api/mail/outbox/:id', access: ['admin'], summary: 'One outbox message',
+    method: 'get',
+    path: '/api/mail/outbox/:id',
+    access: ['admin'],
+    summary: 'One outbox message',
     response: OutboxMessage,
     handler: async ({ deps, params }) => (await getOutboxMessage(deps.db, pathId(params.id, 'Message'))) ?? Promise.reject(notFound('Message')),
   }),
   defineRoute({
-    method: 'get', path: '/api/mail/outbox/:id/attachments/:index', access: ['admin'], summary: 'Download an attachment',
+    method: 'get',
+    path: '/api/mail/outbox/:id/attachments/:index',
+    access: ['admin'],
+    summary: 'Download an attachment',
     handler: async ({ deps, params, res }) => {
       const a = await getOutboxAttachment(deps.db, pathId(params.id, 'Message'), pathId(params.index, 'Attachment', 0));
       if (!a) throw notFound('Attachment');

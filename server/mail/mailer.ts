@@ -71,7 +71,8 @@ export interface MailerOptions {
  * server runs every minute; after the last try the message shows as failed in the outbox.
  */
 export function createMailer(db: Knex, options: MailerOptions): Mailer {
-  const transport: Transport = options.transport ?? (options.smtpUrl ? nodemailer.createTransport(options.smtpUrl) : nodemailer.createTransport({ jsonTransport: true }));
+  const transport: Transport =
+    options.transport ?? (options.smtpUrl ? nodemailer.createTransport(options.smtpUrl) : nodemailer.createTransport({ jsonTransport: true }));
   const delivers = Boolean(options.transport ?? options.smtpUrl);
   const delays = options.retryDelaysMs ?? MAIL_RETRY_DELAYS_MS;
 
@@ -93,13 +94,15 @@ export function createMailer(db: Knex, options: MailerOptions): Mailer {
     } catch (err) {
       const delay = delays[attempts - 1];
       const status = delay === undefined ? 'failed' : 'retrying';
-      await db('mail_outbox').where({ id: row.id }).update({
-        status,
-        attempts,
-        error: (err as Error).message.slice(0, 500),
-        last_attempt_at: now.toISOString(),
-        next_attempt_at: delay === undefined ? null : new Date(now.getTime() + delay).toISOString(),
-      });
+      await db('mail_outbox')
+        .where({ id: row.id })
+        .update({
+          status,
+          attempts,
+          error: (err as Error).message.slice(0, 500),
+          last_attempt_at: now.toISOString(),
+          next_attempt_at: delay === undefined ? null : new Date(now.getTime() + delay).toISOString(),
+        });
       return status;
     }
   }
@@ -107,18 +110,21 @@ export function createMailer(db: Knex, options: MailerOptions): Mailer {
   return {
     async send(m) {
       const attachments = (m.attachments ?? []).map((a) => ({ filename: a.filename, contentType: a.contentType, base64: a.content.toString('base64') }));
-      const [{ id }] = await db('mail_outbox').insert({
-        site_id: m.siteId ?? null,
-        to: m.to,
-        subject: m.subject,
-        text: m.text,
-        html: m.html ?? null,
-        attachments: JSON.stringify(attachments),
-        status: 'stored',
-        created_at: new Date().toISOString(),
-        link_token_hash: m.link?.tokenHash ?? null,
-        link_expires_at: m.link?.expiresAt ?? null,
-      }, 'id');
+      const [{ id }] = await db('mail_outbox').insert(
+        {
+          site_id: m.siteId ?? null,
+          to: m.to,
+          subject: m.subject,
+          text: m.text,
+          html: m.html ?? null,
+          attachments: JSON.stringify(attachments),
+          status: 'stored',
+          created_at: new Date().toISOString(),
+          link_token_hash: m.link?.tokenHash ?? null,
+          link_expires_at: m.link?.expiresAt ?? null,
+        },
+        'id',
+      );
       await attempt((await db<DbOutboxRow>('mail_outbox').where({ id: id! }).first())!, new Date());
       return id!;
     },
@@ -152,16 +158,22 @@ export async function closeOutboxLinks(db: Knex, tokenHashes: string[], why: 'us
   if (tokenHashes.length === 0) return;
   const rows = await db<DbOutboxRow>('mail_outbox').whereIn('link_token_hash', tokenHashes).whereNull('link_closed_at');
   for (const r of rows) {
-    await db('mail_outbox').where({ id: r.id }).update({
-      text: maskTokenLinks(r.text, why),
-      html: r.html === null ? null : maskTokenLinks(r.html, why),
-      link_closed_at: new Date().toISOString(),
-    });
+    await db('mail_outbox')
+      .where({ id: r.id })
+      .update({
+        text: maskTokenLinks(r.text, why),
+        html: r.html === null ? null : maskTokenLinks(r.html, why),
+        link_closed_at: new Date().toISOString(),
+      });
   }
 }
 
 async function closeExpiredLinks(db: Knex): Promise<void> {
-  const expired = await db<DbOutboxRow>('mail_outbox').whereNotNull('link_token_hash').whereNull('link_closed_at').where('link_expires_at', '<', new Date().toISOString()).pluck('link_token_hash');
+  const expired = await db<DbOutboxRow>('mail_outbox')
+    .whereNotNull('link_token_hash')
+    .whereNull('link_closed_at')
+    .where('link_expires_at', '<', new Date().toISOString())
+    .pluck('link_token_hash');
   await closeOutboxLinks(db, expired as string[], 'expired');
 }
 

@@ -10,7 +10,20 @@ import { saveOrders } from './orders.service';
 import { upsertSkus } from './orders.repository';
 import type { OrderRecord, SkuRecord } from './orders.validate';
 
-const GOODS = ['Tea tin', 'Stoneware mug', 'Enamel pan', 'Linen towel', 'Beeswax candle', 'Oak board', 'Glass jar', 'Wool throw', 'Copper kettle', 'Clay planter', 'Bamboo brush', 'Cotton apron'];
+const GOODS = [
+  'Tea tin',
+  'Stoneware mug',
+  'Enamel pan',
+  'Linen towel',
+  'Beeswax candle',
+  'Oak board',
+  'Glass jar',
+  'Wool throw',
+  'Copper kettle',
+  'Clay planter',
+  'Bamboo brush',
+  'Cotton apron',
+];
 const COLOURS = ['teal', 'amber', 'slate', 'sand', 'moss', 'plum'];
 
 export const DEMO_SKU_COUNT = 600;

@@ -31,12 +31,27 @@ export interface DbOrderRow {
 }
 
 const SORT_COLUMN: Record<OrdersQuery['sort'], string> = {
-  ref: 'ref', due: 'due', priority: 'priority', lines: 'lines', units: 'units', weightKg: 'weight_kg', createdAt: 'created_at',
+  ref: 'ref',
+  due: 'due',
+  priority: 'priority',
+  lines: 'lines',
+  units: 'units',
+  weightKg: 'weight_kg',
+  createdAt: 'created_at',
 };
 
 export const toOrderSummary = (o: DbOrderRow): OrderSummary => ({
-  id: o.id, ref: o.ref, status: o.status, due: o.due, priority: o.priority, lines: o.lines, units: o.units,
-  weightKg: Math.round(o.weight_kg * 1000) / 1000, volumeL: Math.round(o.volume_l * 1000) / 1000, waveId: o.wave_id, createdAt: o.created_at,
+  id: o.id,
+  ref: o.ref,
+  status: o.status,
+  due: o.due,
+  priority: o.priority,
+  lines: o.lines,
+  units: o.units,
+  weightKg: Math.round(o.weight_kg * 1000) / 1000,
+  volumeL: Math.round(o.volume_l * 1000) / 1000,
+  waveId: o.wave_id,
+  createdAt: o.created_at,
 });
 
 export async function skuMap(db: Q, siteId: number): Promise<Map<string, DbSkuRow>> {
@@ -49,7 +64,13 @@ export async function upsertSkus(trx: Knex.Transaction, siteId: number, skus: Sk
   const now = new Date().toISOString();
   for (let i = 0; i < skus.length; i += 150) {
     const chunk = skus.slice(i, i + 150).map((s) => ({
-      site_id: siteId, sku: s.sku, description: s.description, bin: s.bin, unit_weight_kg: s.unitWeightKg, unit_volume_l: s.unitVolumeL, updated_at: now,
+      site_id: siteId,
+      sku: s.sku,
+      description: s.description,
+      bin: s.bin,
+      unit_weight_kg: s.unitWeightKg,
+      unit_volume_l: s.unitVolumeL,
+      updated_at: now,
     }));
     await trx('skus').insert(chunk).onConflict(['site_id', 'sku']).merge(['description', 'bin', 'unit_weight_kg', 'unit_volume_l', 'updated_at']);
   }
@@ -70,9 +91,19 @@ export function orderTotals(o: OrderRecord, skus: Map<string, DbSkuRow>) {
 }
 
 export async function insertOrder(trx: Knex.Transaction, siteId: number, o: OrderRecord, source: string, skus: Map<string, DbSkuRow>): Promise<number> {
-  const [{ id }] = await trx('orders').insert({
-    site_id: siteId, ref: o.ref, status: 'open', due: o.due, priority: o.priority, source, ...orderTotals(o, skus), created_at: new Date().toISOString(),
-  }, 'id');
+  const [{ id }] = await trx('orders').insert(
+    {
+      site_id: siteId,
+      ref: o.ref,
+      status: 'open',
+      due: o.due,
+      priority: o.priority,
+      source,
+      ...orderTotals(o, skus),
+      created_at: new Date().toISOString(),
+    },
+    'id',
+  );
   await trx('order_lines').insert(o.lines.map((l, i) => ({ order_id: id, line_no: i + 1, sku: l.sku, qty: l.qty })));
   return id!;
 }
@@ -80,13 +111,17 @@ export async function insertOrder(trx: Knex.Transaction, siteId: number, o: Orde
 export async function replaceOrderLines(trx: Knex.Transaction, orderId: number, o: OrderRecord, skus: Map<string, DbSkuRow>): Promise<void> {
   await trx('order_lines').where({ order_id: orderId }).delete();
   await trx('order_lines').insert(o.lines.map((l, i) => ({ order_id: orderId, line_no: i + 1, sku: l.sku, qty: l.qty })));
-  await trx('orders').where({ id: orderId }).update({ due: o.due, priority: o.priority, ...orderTotals(o, skus) });
+  await trx('orders')
+    .where({ id: orderId })
+    .update({ due: o.due, priority: o.priority, ...orderTotals(o, skus) });
 }
 
 export async function linesOf(db: Q, orderIds: number[]): Promise<Map<number, { line_no: number; sku: string; qty: number; id: number }[]>> {
   const out = new Map<number, { line_no: number; sku: string; qty: number; id: number }[]>();
   for (let i = 0; i < orderIds.length; i += 500) {
-    const rows = await db('order_lines').whereIn('order_id', orderIds.slice(i, i + 500)).orderBy(['order_id', 'line_no']);
+    const rows = await db('order_lines')
+      .whereIn('order_id', orderIds.slice(i, i + 500))
+      .orderBy(['order_id', 'line_no']);
     for (const r of rows as { id: number; order_id: number; line_no: number; sku: string; qty: number }[]) {
       const list = out.get(r.order_id) ?? [];
       list.push({ id: r.id, line_no: r.line_no, sku: r.sku, qty: r.qty });
@@ -123,10 +158,30 @@ export async function orderDetail(db: Q, siteId: number, id: number): Promise<Or
     .join('waves', 'waves.id', 'trips.wave_id')
     .where({ 'trip_orders.order_id': id, 'trips.site_id': siteId })
     .orderBy('trips.id', 'desc')
-    .select<{ trip_id: number; n: number; status: string; wave_id: number; wave_name: string; totes: string }[]>('trips.id as trip_id', 'trips.n', 'trips.status', 'trips.wave_id', 'waves.name as wave_name', 'trip_orders.totes');
+    .select<{ trip_id: number; n: number; status: string; wave_id: number; wave_name: string; totes: string }[]>(
+      'trips.id as trip_id',
+      'trips.n',
+      'trips.status',
+      'trips.wave_id',
+      'waves.name as wave_name',
+      'trip_orders.totes',
+    );
   return {
     ...toOrderSummary(o),
-    lineItems: lines.map((l) => ({ lineNo: l.line_no, sku: l.sku, description: skus.get(l.sku)?.description ?? '', bin: skus.get(l.sku)?.bin ?? null, qty: l.qty })),
-    trips: trips.map((t) => ({ tripId: t.trip_id, n: t.n, status: t.status, waveId: t.wave_id, waveName: t.wave_name, totes: JSON.parse(t.totes) as number[] })),
+    lineItems: lines.map((l) => ({
+      lineNo: l.line_no,
+      sku: l.sku,
+      description: skus.get(l.sku)?.description ?? '',
+      bin: skus.get(l.sku)?.bin ?? null,
+      qty: l.qty,
+    })),
+    trips: trips.map((t) => ({
+      tripId: t.trip_id,
+      n: t.n,
+      status: t.status,
+      waveId: t.wave_id,
+      waveName: t.wave_name,
+      totes: JSON.parse(t.totes) as number[],
+    })),
   };
 }

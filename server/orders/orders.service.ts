@@ -13,7 +13,14 @@ const empty = (errors: RowIssue[], warnings: RowIssue[] = []): ImportResult => (
 export type BinChecker = (bins: string[]) => Promise<Set<string>>;
 
 /** SKU master: all rows checked first; any error → nothing saved. Bins off the active plan are warnings. */
-export async function importSkus(db: Knex, siteId: number, userId: number | null, sheet: string, rows: InputRow[], missingBins: BinChecker): Promise<ImportResult> {
+export async function importSkus(
+  db: Knex,
+  siteId: number,
+  userId: number | null,
+  sheet: string,
+  rows: InputRow[],
+  missingBins: BinChecker,
+): Promise<ImportResult> {
   const { skus, errors } = validateSkuRows(sheet, rows);
   if (errors.length) return empty(errors);
   const missing = await missingBins(skus.map((s) => s.bin));
@@ -46,15 +53,27 @@ export interface LockedOrder {
  * is no longer open (in a released wave, picked, cancelled) is counted unchanged too (files), or,
  * with `refuseLocked`, refuses the whole batch with 409 naming the orders and their waves (push API).
  */
-export async function saveOrders(db: Knex, siteId: number, orders: OrderRecord[], source: string, options: { refuseLocked?: (order: OrderRecord) => string } = {}): Promise<Pick<ImportResult, 'created' | 'unchanged' | 'updated'>> {
+export async function saveOrders(
+  db: Knex,
+  siteId: number,
+  orders: OrderRecord[],
+  source: string,
+  options: { refuseLocked?: (order: OrderRecord) => string } = {},
+): Promise<Pick<ImportResult, 'created' | 'unchanged' | 'updated'>> {
   const skus = await skuMap(db, siteId);
   return db.transaction(async (trx) => {
     const refs = orders.map((o) => o.ref);
     const existing = new Map<string, DbOrderRow>();
     for (let i = 0; i < refs.length; i += 500) {
-      for (const r of await trx<DbOrderRow>('orders').where({ site_id: siteId }).whereIn('ref', refs.slice(i, i + 500))) existing.set(r.ref, r);
+      for (const r of await trx<DbOrderRow>('orders')
+        .where({ site_id: siteId })
+        .whereIn('ref', refs.slice(i, i + 500)))
+        existing.set(r.ref, r);
     }
-    const lines = await linesOf(trx, [...existing.values()].map((r) => r.id));
+    const lines = await linesOf(
+      trx,
+      [...existing.values()].map((r) => r.id),
+    );
     let created = 0;
     let unchanged = 0;
     let updated = 0;
@@ -89,11 +108,19 @@ export async function importOrderRows(db: Knex, siteId: number, userId: number |
   return { ok: true, errors: [], warnings: [], ...counts };
 }
 
-const STATUS_WORDS: Record<DbOrderRow['status'], string> = { open: 'open', planned: 'in a released wave', picking: 'being picked', done: 'picked', cancelled: 'cancelled' };
+const STATUS_WORDS: Record<DbOrderRow['status'], string> = {
+  open: 'open',
+  planned: 'in a released wave',
+  picking: 'being picked',
+  done: 'picked',
+  cancelled: 'cancelled',
+};
 
 async function lockedOrdersError(db: Knex, locked: LockedOrder[]): Promise<AppError> {
   const waveIds = [...new Set(locked.map((l) => l.waveId).filter((id): id is number => id !== null))];
-  const names = new Map<number, string>((await db('waves').whereIn('id', waveIds).select('id', 'name')).map((w: { id: number; name: string }) => [w.id, w.name]));
+  const names = new Map<number, string>(
+    (await db('waves').whereIn('id', waveIds).select('id', 'name')).map((w: { id: number; name: string }) => [w.id, w.name]),
+  );
   const details = locked.map((l) => {
     const wave = l.waveId === null ? null : (names.get(l.waveId) ?? null);
     const where = wave ? ` (wave "${wave}", id ${l.waveId})` : '';
@@ -129,7 +156,12 @@ export async function pushOrders(db: Knex, siteId: number, input: OrderInput[]):
     const ref = trimSpaces(o.order);
     const first = firstAt.get(ref);
     if (first === undefined) firstAt.set(ref, i);
-    else twice.push({ field: `orders.${i}.order`, order: ref, message: `order ${ref} appears more than once in this request (orders.${first} and orders.${i}); send each order once with all its lines` });
+    else
+      twice.push({
+        field: `orders.${i}.order`,
+        order: ref,
+        message: `order ${ref} appears more than once in this request (orders.${first} and orders.${i}); send each order once with all its lines`,
+      });
   });
   if (twice.length) throw new AppError('validation', 'duplicate_order', `Nothing was saved: ${twice[0]!.message}`, twice);
 
@@ -152,7 +184,12 @@ export async function pushOrders(db: Knex, siteId: number, input: OrderInput[]):
     });
     const code = errors.every((e) => /is not in the SKU master/.test(e.message)) ? 'unknown_sku' : 'orders_invalid';
     const first = details[0]!;
-    throw new AppError('unprocessable', code, `Nothing was saved: order ${first.order}, ${first.field}: ${first.message}${details.length > 1 ? ` (and ${details.length - 1} more problem${details.length === 2 ? '' : 's'})` : ''}`, details);
+    throw new AppError(
+      'unprocessable',
+      code,
+      `Nothing was saved: order ${first.order}, ${first.field}: ${first.message}${details.length > 1 ? ` (and ${details.length - 1} more problem${details.length === 2 ? '' : 's'})` : ''}`,
+      details,
+    );
   }
   const indexOf = new Map(input.map((o, i) => [trimSpaces(o.order), i]));
   const counts = await saveOrders(db, siteId, orders, 'api', { refuseLocked: (o) => `orders.${indexOf.get(o.ref) ?? 0}` });
@@ -173,7 +210,10 @@ export async function cancelOrder(db: Knex, siteId: number, userId: number, orde
     const o = await trx<DbOrderRow>('orders').where({ site_id: siteId, id: orderId }).first();
     if (!o) throw notFound('Order');
     if (o.status !== 'open') {
-      throw new AppError('conflict', 'order_not_open', `Order ${o.ref} ${NOT_OPEN[o.status] ?? `is ${o.status}`}; only open orders can be cancelled.`, { status: o.status, waveId: o.wave_id });
+      throw new AppError('conflict', 'order_not_open', `Order ${o.ref} ${NOT_OPEN[o.status] ?? `is ${o.status}`}; only open orders can be cancelled.`, {
+        status: o.status,
+        waveId: o.wave_id,
+      });
     }
     await trx('orders').where({ id: orderId }).update({ status: 'cancelled' });
     await audit(trx, { siteId, userId, action: 'order.cancelled', subject: o.ref, detail: { orderId, ...(reason ? { reason } : {}) } });

@@ -1,5 +1,15 @@
 import type { RowIssue } from '../../shared/imports';
-import { codeRule, MAX_LINE_QTY, MAX_UNIT_VOLUME_L, MAX_UNIT_WEIGHT_KG, textProblem, textRule, trimSpaces, visibleText, type TextRule } from '../../shared/input-rules';
+import {
+  codeRule,
+  MAX_LINE_QTY,
+  MAX_UNIT_VOLUME_L,
+  MAX_UNIT_WEIGHT_KG,
+  textProblem,
+  textRule,
+  trimSpaces,
+  visibleText,
+  type TextRule,
+} from '../../shared/input-rules';
 
 /** A data row as read from a sheet: its spreadsheet row number and its cells by expected column. */
 export interface InputRow {
@@ -122,9 +132,11 @@ export function validateOrderRows(sheet: string, rows: InputRow[], knownSku: (sk
     if (!sku) bad = issue('sku', 'SKU is empty');
     else if (skuProblem) bad = issue('sku', skuProblem);
     else if (!knownSku(sku)) bad = issue('sku', `SKU ${sku} is not in the SKU master; import it first`);
-    if (qty === null || !Number.isInteger(qty) || qty <= 0 || qty > MAX_LINE_QTY) bad = issue('qty', `quantity must be a whole number from 1 to ${MAX_LINE_QTY.toLocaleString('en')}`);
+    if (qty === null || !Number.isInteger(qty) || qty <= 0 || qty > MAX_LINE_QTY)
+      bad = issue('qty', `quantity must be a whole number from 1 to ${MAX_LINE_QTY.toLocaleString('en')}`);
     if (due === 'invalid') bad = issue('due', 'due must be an ISO 8601 date or date-time, e.g. 2026-12-03T14:00:00Z');
-    if (prioText !== '' && (priority === null || !Number.isInteger(priority) || priority < 1 || priority > 9)) bad = issue('priority', 'priority must be a whole number from 1 (most urgent) to 9');
+    if (prioText !== '' && (priority === null || !Number.isInteger(priority) || priority < 1 || priority > 9))
+      bad = issue('priority', 'priority must be a whole number from 1 (most urgent) to 9');
     if (bad) continue;
     const existing = byRef.get(ref);
     if (!existing) {

@@ -14,7 +14,11 @@ import * as repo from './picking.repository';
 
 export async function signedInPickers(db: Q, siteId: number, nowMs = Date.now()): Promise<SignedInPicker[]> {
   const rows = await repo.signedInPickerRows(db, siteId, Math.floor(nowMs / 1000) - SESSION_MAX_S);
-  const held = await repo.heldTripsOf(db, siteId, rows.map((r) => r.id));
+  const held = await repo.heldTripsOf(
+    db,
+    siteId,
+    rows.map((r) => r.id),
+  );
   return rows.map((r) => {
     const t = held.find((h) => h.picker_id === r.id);
     return { id: r.id, name: r.name, badge: r.badge, signedInAt: r.signed_in_at, tripId: t?.id ?? null, tripN: t?.n ?? null, waveId: t?.wave_id ?? null };
@@ -26,7 +30,10 @@ export async function autoAssignWave(db: Knex, actor: Actor, siteId: number, wav
   const waitingTrips = () => repo.waitingTripsOf(db, waveId);
   const trips = await waitingTrips();
   const free = (await signedInPickers(db, siteId)).filter((p) => p.tripId === null);
-  const freedAt = await repo.lastFreedAt(db, free.map((p) => p.id));
+  const freedAt = await repo.lastFreedAt(
+    db,
+    free.map((p) => p.id),
+  );
   free.sort((a, b) => (freedAt.get(a.id) ?? '').localeCompare(freedAt.get(b.id) ?? '') || a.id - b.id);
   const assigned: AutoAssignResult['assigned'] = [];
   for (let i = 0; i < Math.min(trips.length, free.length); i++) {
@@ -36,6 +43,10 @@ export async function autoAssignWave(db: Knex, actor: Actor, siteId: number, wav
   const waiting = (await waitingTrips()).length;
   let note: string | null = null;
   if (trips.length === 0) note = 'No trip of this wave is waiting for a picker.';
-  else if (waiting > 0) note = free.length === 0 ? 'No signed-in picker is free right now; trips wait until one finishes or signs in.' : `${waiting === 1 ? '1 trip' : `${waiting} trips`} still waiting: every signed-in picker has a trip.`;
+  else if (waiting > 0)
+    note =
+      free.length === 0
+        ? 'No signed-in picker is free right now; trips wait until one finishes or signs in.'
+        : `${waiting === 1 ? '1 trip' : `${waiting} trips`} still waiting: every signed-in picker has a trip.`;
   return { assigned, waiting, note };
 }

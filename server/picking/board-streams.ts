@@ -183,6 +183,10 @@ export class BoardStreams {
 }
 
 /** The app's hub over its database: main.ts and the test helpers put it in Deps. */
-export function createBoardStreams(db: Knex, logger: Pick<Logger, 'warn'>, options: Partial<Omit<BoardStreamsOptions, 'snapshot' | 'logger'>> = {}): BoardStreams {
+export function createBoardStreams(
+  db: Knex,
+  logger: Pick<Logger, 'warn'>,
+  options: Partial<Omit<BoardStreamsOptions, 'snapshot' | 'logger'>> = {},
+): BoardStreams {
   return new BoardStreams({ snapshot: (siteId) => boardSnapshot(db, siteId), logger, ...options });
 }

@@ -32,7 +32,10 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
   const speeds = settingsOf(site);
   const since = new Date(now - FINISHED_VISIBLE_MS).toISOString();
   const waves = await repo.boardWaveRows(db, siteId, since);
-  const { trips, stops, lines } = await repo.boardTripRows(db, waves.map((w) => w.id));
+  const { trips, stops, lines } = await repo.boardTripRows(
+    db,
+    waves.map((w) => w.id),
+  );
   const cutOff: BoardCutOffLine[] = [];
   const stopsByTrip = groupBy(stops, (s) => s.trip_id);
   const linesByTrip = groupBy(lines, (l) => l.trip_id);
@@ -42,41 +45,64 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
     const plan = await loadPlanIndex(db, w.plan_id);
     const dist = distanceOf(plan);
     const depot = depotNodeOf(plan, w);
-    const boardTrips: BoardTrip[] = trips.filter((t) => t.wave_id === w.id).map((t) => {
-      const ss = stopsByTrip.get(t.id) ?? [];
-      const ls = linesByTrip.get(t.id) ?? [];
-      const { done, open } = splitStops(ss);
-      const openLines = ls.filter((l) => l.status === 'open').length;
-      const closed = t.status === 'done' || t.status === 'cancelled';
-      const from = pickerNode(done, depot, walkedStopIds(ls));
-      // Stops a closure cut off are left out of the walk and listed for the supervisor.
-      const reach = closed ? open : open.filter((s) => canReach(dist, from, s.node, depot));
-      const cutStops = new Map(closed ? [] : open.filter((s) => !reach.includes(s)).map((s) => [s.id, s.n]));
-      const cutLines = ls.filter((l) => l.status === 'open' && cutStops.has(l.stop_id));
-      for (const l of cutLines) {
-        cutOff.push({ lineId: l.id, waveId: w.id, waveName: w.name, tripId: t.id, tripN: t.n, stopN: cutStops.get(l.stop_id)!, pickerName: t.picker_name, orderRef: l.order_ref, sku: l.sku, bin: l.bin, qty: l.qty });
-      }
-      const metres = closed ? 0 : finiteOrNull(remainingMetres(from, reach.map((s) => s.node), depot, dist)) ?? 0;
-      const end = t.finished_at ? Date.parse(t.finished_at) : now;
-      return {
-        id: t.id,
-        n: t.n,
-        status: t.status,
-        pickerId: t.picker_id,
-        pickerName: t.picker_name,
-        stops: ss.length,
-        stopsDone: done.length,
-        lines: ls.length,
-        linesDone: ls.length - openLines,
-        shorts: ls.filter((l) => l.status === 'short').length,
-        startedAt: t.started_at,
-        finishedAt: t.finished_at,
-        elapsedMinutes: t.started_at ? finiteOrNull((end - Date.parse(t.started_at)) / 60_000) : null,
-        remainingMinutes: closed ? 0 : (finiteOrNull(estimateMinutes(metres, openLines - cutLines.length, reach.length, speeds)) ?? 0),
-        cutOffLines: cutLines.length,
-        estMinutes: finiteOrNull(t.est_seconds / 60) ?? 0,
-      };
-    });
+    const boardTrips: BoardTrip[] = trips
+      .filter((t) => t.wave_id === w.id)
+      .map((t) => {
+        const ss = stopsByTrip.get(t.id) ?? [];
+        const ls = linesByTrip.get(t.id) ?? [];
+        const { done, open } = splitStops(ss);
+        const openLines = ls.filter((l) => l.status === 'open').length;
+        const closed = t.status === 'done' || t.status === 'cancelled';
+        const from = pickerNode(done, depot, walkedStopIds(ls));
+        // Stops a closure cut off are left out of the walk and listed for the supervisor.
+        const reach = closed ? open : open.filter((s) => canReach(dist, from, s.node, depot));
+        const cutStops = new Map(closed ? [] : open.filter((s) => !reach.includes(s)).map((s) => [s.id, s.n]));
+        const cutLines = ls.filter((l) => l.status === 'open' && cutStops.has(l.stop_id));
+        for (const l of cutLines) {
+          cutOff.push({
+            lineId: l.id,
+            waveId: w.id,
+            waveName: w.name,
+            tripId: t.id,
+            tripN: t.n,
+            stopN: cutStops.get(l.stop_id)!,
+            pickerName: t.picker_name,
+            orderRef: l.order_ref,
+            sku: l.sku,
+            bin: l.bin,
+            qty: l.qty,
+          });
+        }
+        const metres = closed
+          ? 0
+          : (finiteOrNull(
+              remainingMetres(
+                from,
+                reach.map((s) => s.node),
+                depot,
+                dist,
+              ),
+            ) ?? 0);
+        const end = t.finished_at ? Date.parse(t.finished_at) : now;
+        return {
+          id: t.id,
+          n: t.n,
+          status: t.status,
+          pickerId: t.picker_id,
+          pickerName: t.picker_name,
+          stops: ss.length,
+          stopsDone: done.length,
+          lines: ls.length,
+          linesDone: ls.length - openLines,
+          shorts: ls.filter((l) => l.status === 'short').length,
+          startedAt: t.started_at,
+          finishedAt: t.finished_at,
+          elapsedMinutes: t.started_at ? finiteOrNull((end - Date.parse(t.started_at)) / 60_000) : null,
+          remainingMinutes: closed ? 0 : (finiteOrNull(estimateMinutes(metres, openLines - cutLines.length, reach.length, speeds)) ?? 0),
+          cutOffLines: cutLines.length,
+          estMinutes: finiteOrNull(t.est_seconds / 60) ?? 0,
+        };
+      });
     const remaining = boardTrips.reduce((a, t) => a + t.remainingMinutes, 0);
     const pickers = new Set(boardTrips.filter((t) => (t.status === 'assigned' || t.status === 'picking') && t.pickerId !== null).map((t) => t.pickerId));
     const pickersCounted = Math.max(1, pickers.size);
@@ -122,21 +148,37 @@ export async function assignTrip(db: Knex, actor: Actor, siteId: number, tripId:
     const trip = await siteTrip(trx, siteId, tripId);
     if (!['released', 'assigned', 'picking'].includes(trip.status)) throw new AppError('conflict', 'trip_closed', `Trip ${trip.n} is ${trip.status}`);
     const picker = await repo.activeSitePicker(trx, siteId, pickerId);
-    if (!picker) throw new AppError('validation', 'validation_failed', 'Choose an active picker of this site', [{ field: 'pickerId', message: 'not an active picker of this site' }]);
+    if (!picker)
+      throw new AppError('validation', 'validation_failed', 'Choose an active picker of this site', [
+        { field: 'pickerId', message: 'not an active picker of this site' },
+      ]);
     if (trip.picker_id === pickerId) return;
     const busy = await repo.otherActiveTripOf(trx, siteId, pickerId, tripId);
-    if (busy) throw new AppError('conflict', 'picker_busy', `${picker.name} already has trip ${busy.n}; finish, cancel or reassign it first`, { tripId: busy.id });
+    if (busy)
+      throw new AppError('conflict', 'picker_busy', `${picker.name} already has trip ${busy.n}; finish, cancel or reassign it first`, { tripId: busy.id });
     const at = nowIso();
     await repo.reassignTripRow(trx, trip, pickerId, actor.id, at);
     await bumpRevision(trx, tripId);
-    await audit(trx, { siteId, userId: actor.id, action: trip.picker_id === null ? 'trip.assign' : 'trip.reassign', subject: `trip:${tripId}`, detail: { from: trip.picker_id, to: pickerId }, device: actor.device });
+    await audit(trx, {
+      siteId,
+      userId: actor.id,
+      action: trip.picker_id === null ? 'trip.assign' : 'trip.reassign',
+      subject: `trip:${tripId}`,
+      detail: { from: trip.picker_id, to: pickerId },
+      device: actor.device,
+    });
   });
   siteChanged(siteId);
   return tripId;
 }
 
 /** Cancels the open lines of a trip inside a transaction; their orders go back to open orders. */
-async function cancelRest(trx: Knex.Transaction, actor: Actor, trip: DbTripRow, reason: string | null): Promise<{ linesCancelled: number; ordersReopened: string[] }> {
+async function cancelRest(
+  trx: Knex.Transaction,
+  actor: Actor,
+  trip: DbTripRow,
+  reason: string | null,
+): Promise<{ linesCancelled: number; ordersReopened: string[] }> {
   const at = nowIso();
   const open = await repo.cancelOpenLines(trx, trip.id);
   // Orders with nothing left in the cart go back to open; the lines picked stay picked on this trip.
@@ -145,7 +187,14 @@ async function cancelRest(trx: Knex.Transaction, actor: Actor, trip: DbTripRow, 
   await repo.closeTripCancelled(trx, trip, walked, at);
   await bumpRevision(trx, trip.id);
   await repo.endOpenAssignments(trx, trip.id, at);
-  await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cancel', subject: `trip:${trip.id}`, detail: { reason, linesCancelled: open.length, ordersReopened: refs, picker: trip.picker_id }, device: actor.device });
+  await audit(trx, {
+    siteId: trip.site_id,
+    userId: actor.id,
+    action: 'trip.cancel',
+    subject: `trip:${trip.id}`,
+    detail: { reason, linesCancelled: open.length, ordersReopened: refs, picker: trip.picker_id },
+    device: actor.device,
+  });
   return { linesCancelled: open.length, ordersReopened: refs };
 }
 
@@ -165,12 +214,20 @@ export async function closeWave(db: Knex, mailer: Mailer, actor: Actor, siteId: 
   const out = await db.transaction(async (trx) => {
     const wave = await repo.getSiteWaveRow(trx, siteId, waveId);
     if (!wave) throw notFound('Wave');
-    if (wave.status === 'completed' || wave.status === 'cancelled') throw new AppError('conflict', 'wave_closed', `Wave ${wave.name} is already ${wave.status}`);
+    if (wave.status === 'completed' || wave.status === 'cancelled')
+      throw new AppError('conflict', 'wave_closed', `Wave ${wave.name} is already ${wave.status}`);
     const trips = await repo.unfinishedTripsOf(trx, waveId);
     let lines = 0;
     for (const t of trips) lines += (await cancelRest(trx, actor, t, reason ?? 'wave closed')).linesCancelled;
     await repo.completeWaveRow(trx, waveId, nowIso());
-    await audit(trx, { siteId, userId: actor.id, action: 'wave.close', subject: `wave:${waveId}`, detail: { reason, tripsCancelled: trips.length, linesCancelled: lines }, device: actor.device });
+    await audit(trx, {
+      siteId,
+      userId: actor.id,
+      action: 'wave.close',
+      subject: `wave:${waveId}`,
+      detail: { reason, tripsCancelled: trips.length, linesCancelled: lines },
+      device: actor.device,
+    });
     return { tripsCancelled: trips.length, linesCancelled: lines };
   });
   siteChanged(siteId);

@@ -89,7 +89,8 @@ export const ACTIVE_TRIP = ['assigned', 'picking'] as const;
 export const getTripRow = (db: Q, id: number): Promise<DbTripRow | undefined> => db<DbTripRow>('trips').where({ id }).first();
 export const getWaveRow = (db: Q, id: number): Promise<DbWaveRow | undefined> => db<DbWaveRow>('waves').where({ id }).first();
 /** A trip's stops in walking order (the printed number `n` never changes; the walking order may). */
-export const stopsOf = (db: Q, tripId: number): Promise<DbStopRow[]> => db<DbStopRow>('stops').where({ trip_id: tripId }).orderByRaw('COALESCE(walk_seq, n), n, id');
+export const stopsOf = (db: Q, tripId: number): Promise<DbStopRow[]> =>
+  db<DbStopRow>('stops').where({ trip_id: tripId }).orderByRaw('COALESCE(walk_seq, n), n, id');
 
 /** Where a stop sits in the walk. */
 export const walkOrder = (s: Pick<DbStopRow, 'walk_seq' | 'n'>): number => s.walk_seq ?? s.n;
@@ -103,7 +104,10 @@ export function binsOf(raw: string): string[] {
   } catch {
     // plain text below
   }
-  return raw.split(',').map((s) => s.trim()).filter(Boolean);
+  return raw
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
 }
 
 /** Open stops in walking order, done stops in the order they were finished. */
@@ -144,7 +148,11 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
   const wave = (await getWaveRow(db, trip.wave_id))!;
   const site = (await db('sites').where({ id: trip.site_id }).first<{ name: string; confirm_scan: 'bin' | 'sku' }>('name', 'confirm_scan'))!;
   const picker = trip.picker_id ? await db('users').where({ id: trip.picker_id }).first<{ name: string }>('name') : undefined;
-  const orders: { ref: string }[] = await db('trip_orders').join('orders', 'orders.id', 'trip_orders.order_id').where('trip_orders.trip_id', tripId).orderBy('orders.ref').select('orders.ref');
+  const orders: { ref: string }[] = await db('trip_orders')
+    .join('orders', 'orders.id', 'trip_orders.order_id')
+    .where('trip_orders.trip_id', tripId)
+    .orderBy('orders.ref')
+    .select('orders.ref');
   const [stops, lines] = await Promise.all([stopsOf(db, tripId), linesOf(db, tripId)]);
   const plan = await loadPlanIndex(db, wave.plan_id);
   const depotNode = depotNodeOf(plan, wave);
@@ -215,12 +223,25 @@ export async function loadPickTrip(db: Q, tripId: number): Promise<PickTrip | nu
 /** Raises a trip's revision: every write calls it, so the tablet's poll sees the change. */
 export async function bumpRevision(db: Q, tripId: number): Promise<number> {
   // One statement (RETURNING: SQLite ≥ 3.35 and PostgreSQL): this runs inside every confirmation.
-  const rows = (await db('trips').where({ id: tripId }).update({ revision: db.raw('revision + 1') }, ['revision'])) as { revision: number }[];
+  const rows = (await db('trips')
+    .where({ id: tripId })
+    .update({ revision: db.raw('revision + 1') }, ['revision'])) as { revision: number }[];
   return rows[0]!.revision;
 }
 
 export function lineView(l: DbLineRow) {
-  return { id: l.id, orderRef: l.order_ref, sku: l.sku, description: l.description, bin: l.bin, qty: l.qty, tote: l.tote, status: l.status, pickedQty: l.picked_qty, shortReason: l.short_reason };
+  return {
+    id: l.id,
+    orderRef: l.order_ref,
+    sku: l.sku,
+    description: l.description,
+    bin: l.bin,
+    qty: l.qty,
+    tote: l.tote,
+    status: l.status,
+    pickedQty: l.picked_qty,
+    shortReason: l.short_reason,
+  };
 }
 
 /* ---- The live board and the supervisor's actions on it ---- */
@@ -229,16 +250,25 @@ export function lineView(l: DbLineRow) {
 export async function boardWaveRows(db: Q, siteId: number, since: string): Promise<DbWaveRow[]> {
   return db<DbWaveRow>('waves')
     .where({ site_id: siteId })
-    .andWhere((q) => q.whereIn('status', ['released', 'picking']).orWhere((q2) => q2.whereIn('status', ['completed', 'cancelled']).andWhere('completed_at', '>=', since)))
+    .andWhere((q) =>
+      q.whereIn('status', ['released', 'picking']).orWhere((q2) => q2.whereIn('status', ['completed', 'cancelled']).andWhere('completed_at', '>=', since)),
+    )
     .orderBy('created_at');
 }
 
 export type BoardLineRow = Pick<DbLineRow, 'id' | 'trip_id' | 'stop_id' | 'status' | 'short_reason' | 'order_ref' | 'sku' | 'bin' | 'qty'>;
 
 /** The trips of these waves (with the picker's name), their stops and their lines. */
-export async function boardTripRows(db: Q, waveIds: number[]): Promise<{ trips: (DbTripRow & { picker_name: string | null })[]; stops: DbStopRow[]; lines: BoardLineRow[] }> {
+export async function boardTripRows(
+  db: Q,
+  waveIds: number[],
+): Promise<{ trips: (DbTripRow & { picker_name: string | null })[]; stops: DbStopRow[]; lines: BoardLineRow[] }> {
   const trips: (DbTripRow & { picker_name: string | null })[] = waveIds.length
-    ? await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').whereIn('trips.wave_id', waveIds).orderBy(['trips.wave_id', 'trips.n']).select('trips.*', 'users.name as picker_name')
+    ? await db('trips')
+        .leftJoin('users', 'users.id', 'trips.picker_id')
+        .whereIn('trips.wave_id', waveIds)
+        .orderBy(['trips.wave_id', 'trips.n'])
+        .select('trips.*', 'users.name as picker_name')
     : [];
   const tripIds = trips.map((t) => t.id);
   const stops: DbStopRow[] = tripIds.length ? await db<DbStopRow>('stops').whereIn('trip_id', tripIds) : [];
@@ -285,29 +315,51 @@ export async function sitePickersWithTrip(db: Q, siteId: number): Promise<{ id: 
     .where({ 'user_sites.site_id': siteId, 'users.role': 'picker', 'users.active': true })
     .orderBy('users.name')
     .select('users.id', 'users.name');
-  const busy = await db('trips').where({ site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNotNull('picker_id').select<{ id: number; picker_id: number }[]>('id', 'picker_id');
+  const busy = await db('trips')
+    .where({ site_id: siteId })
+    .whereIn('status', ['assigned', 'picking'])
+    .whereNotNull('picker_id')
+    .select<{ id: number; picker_id: number }[]>('id', 'picker_id');
   const busyBy = new Map(busy.map((b) => [b.picker_id, b.id]));
   return pickerRows.map((p) => ({ id: p.id, name: p.name, tripId: busyBy.get(p.id) ?? null }));
 }
 
-export const getSiteTripRow = (db: Q, siteId: number, tripId: number): Promise<DbTripRow | undefined> => db<DbTripRow>('trips').where({ id: tripId, site_id: siteId }).first();
-export const getSiteWaveRow = (db: Q, siteId: number, waveId: number): Promise<DbWaveRow | undefined> => db<DbWaveRow>('waves').where({ id: waveId, site_id: siteId }).first();
+export const getSiteTripRow = (db: Q, siteId: number, tripId: number): Promise<DbTripRow | undefined> =>
+  db<DbTripRow>('trips').where({ id: tripId, site_id: siteId }).first();
+export const getSiteWaveRow = (db: Q, siteId: number, waveId: number): Promise<DbWaveRow | undefined> =>
+  db<DbWaveRow>('waves').where({ id: waveId, site_id: siteId }).first();
 
 /** An active picker of the site, or undefined. */
 export async function activeSitePicker(db: Q, siteId: number, pickerId: number): Promise<{ id: number; name: string } | undefined> {
-  return db('users').join('user_sites', 'user_sites.user_id', 'users.id').where({ 'users.id': pickerId, 'users.role': 'picker', 'users.active': true, 'user_sites.site_id': siteId }).first<{ id: number; name: string } | undefined>('users.id', 'users.name');
+  return db('users')
+    .join('user_sites', 'user_sites.user_id', 'users.id')
+    .where({ 'users.id': pickerId, 'users.role': 'picker', 'users.active': true, 'user_sites.site_id': siteId })
+    .first<{ id: number; name: string } | undefined>('users.id', 'users.name');
 }
 
 /** Another trip of the site the picker holds (assigned or picking), if any. */
 export async function otherActiveTripOf(db: Q, siteId: number, pickerId: number, tripId: number): Promise<{ id: number; n: number } | undefined> {
-  return db('trips').where({ picker_id: pickerId, site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereNot({ id: tripId }).first<{ id: number; n: number } | undefined>('id', 'n');
+  return db('trips')
+    .where({ picker_id: pickerId, site_id: siteId })
+    .whereIn('status', ['assigned', 'picking'])
+    .whereNot({ id: tripId })
+    .first<{ id: number; n: number } | undefined>('id', 'n');
 }
 
 /** Gives the trip to `pickerId`: the former picker's assignment ends, a new one starts. */
-export async function reassignTripRow(db: Q, trip: Pick<DbTripRow, 'id' | 'picker_id' | 'started_at'>, pickerId: number, assignedBy: number, at: string): Promise<void> {
-  if (trip.picker_id !== null) await db('trip_assignments').where({ trip_id: trip.id, picker_id: trip.picker_id }).whereNull('ended_at').update({ ended_at: at });
+export async function reassignTripRow(
+  db: Q,
+  trip: Pick<DbTripRow, 'id' | 'picker_id' | 'started_at'>,
+  pickerId: number,
+  assignedBy: number,
+  at: string,
+): Promise<void> {
+  if (trip.picker_id !== null)
+    await db('trip_assignments').where({ trip_id: trip.id, picker_id: trip.picker_id }).whereNull('ended_at').update({ ended_at: at });
   await db('trip_assignments').insert({ trip_id: trip.id, picker_id: pickerId, assigned_by: assignedBy, assigned_at: at });
-  await db('trips').where({ id: trip.id }).update({ picker_id: pickerId, status: trip.started_at ? 'picking' : 'assigned', assigned_at: at });
+  await db('trips')
+    .where({ id: trip.id })
+    .update({ picker_id: pickerId, status: trip.started_at ? 'picking' : 'assigned', assigned_at: at });
 }
 
 /** Cancels the trip's open lines and returns them. */
@@ -327,21 +379,26 @@ export async function reopenOrders(db: Q, orderIds: number[]): Promise<string[]>
 
 /** Marks the trip cancelled with what was walked, and ends its open assignment. */
 export async function closeTripCancelled(db: Q, trip: Pick<DbTripRow, 'id' | 'finished_at'>, walked: number | null, at: string): Promise<void> {
-  await db('trips').where({ id: trip.id }).update({ status: 'cancelled', cancelled_at: at, finished_at: trip.finished_at ?? at, walked_metres: walked });
+  await db('trips')
+    .where({ id: trip.id })
+    .update({ status: 'cancelled', cancelled_at: at, finished_at: trip.finished_at ?? at, walked_metres: walked });
 }
 
 export async function endOpenAssignments(db: Q, tripId: number, at: string): Promise<void> {
   await db('trip_assignments').where({ trip_id: tripId }).whereNull('ended_at').update({ ended_at: at });
 }
 
-export const unfinishedTripsOf = (db: Q, waveId: number): Promise<DbTripRow[]> => db<DbTripRow>('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']);
+export const unfinishedTripsOf = (db: Q, waveId: number): Promise<DbTripRow[]> =>
+  db<DbTripRow>('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']);
 
 export async function completeWaveRow(db: Q, waveId: number, at: string): Promise<void> {
   await db('waves').where({ id: waveId }).update({ status: 'completed', completed_at: at });
 }
 
 export async function getSiteShort(db: Q, siteId: number, shortId: number): Promise<{ id: number; handled_at: string | null; line_id: number } | undefined> {
-  return db('pick_shorts').where({ id: shortId, site_id: siteId }).first<{ id: number; handled_at: string | null; line_id: number } | undefined>('id', 'handled_at', 'line_id');
+  return db('pick_shorts')
+    .where({ id: shortId, site_id: siteId })
+    .first<{ id: number; handled_at: string | null; line_id: number } | undefined>('id', 'handled_at', 'line_id');
 }
 
 export async function markShortHandled(db: Q, shortId: number, userId: number, at: string): Promise<void> {
@@ -352,7 +409,11 @@ export async function markShortHandled(db: Q, shortId: number, userId: number, a
 
 /** When the picker's latest ended assignment of this trip ended (reassigned away), if any. */
 export async function formerAssignmentEnd(db: Q, tripId: number, pickerId: number): Promise<string | null> {
-  const r = await db('trip_assignments').where({ trip_id: tripId, picker_id: pickerId }).whereNotNull('ended_at').orderBy('ended_at', 'desc').first<{ ended_at: string } | undefined>('ended_at');
+  const r = await db('trip_assignments')
+    .where({ trip_id: tripId, picker_id: pickerId })
+    .whereNotNull('ended_at')
+    .orderBy('ended_at', 'desc')
+    .first<{ ended_at: string } | undefined>('ended_at');
   return r?.ended_at ?? null;
 }
 
@@ -362,7 +423,12 @@ export const activeTripOf = (db: Q, pickerId: number, siteId: number): Promise<D
 
 /** Released trips of live waves at the site that nobody holds. */
 export async function releasedTripCount(db: Q, siteId: number): Promise<number> {
-  const r = await db('trips').join('waves', 'waves.id', 'trips.wave_id').where({ 'trips.site_id': siteId, 'trips.status': 'released' }).whereIn('waves.status', ['released', 'picking']).whereNull('trips.picker_id').count<{ n: number }[]>({ n: '*' });
+  const r = await db('trips')
+    .join('waves', 'waves.id', 'trips.wave_id')
+    .where({ 'trips.site_id': siteId, 'trips.status': 'released' })
+    .whereIn('waves.status', ['released', 'picking'])
+    .whereNull('trips.picker_id')
+    .count<{ n: number }[]>({ n: '*' });
   return Number(r[0]!.n);
 }
 
@@ -380,7 +446,10 @@ export async function nextReleasedTripId(db: Q, siteId: number): Promise<number 
 
 /** Claims a released trip nobody holds for the picker: one conditional UPDATE; false when another picker was first. */
 export async function claimTrip(db: Q, tripId: number, pickerId: number, at: string): Promise<boolean> {
-  const claimed = await db('trips').where({ id: tripId, status: 'released' }).whereNull('picker_id').update({ status: 'assigned', picker_id: pickerId, assigned_at: at });
+  const claimed = await db('trips')
+    .where({ id: tripId, status: 'released' })
+    .whereNull('picker_id')
+    .update({ status: 'assigned', picker_id: pickerId, assigned_at: at });
   if (claimed !== 1) return false;
   await db('trip_assignments').insert({ trip_id: tripId, picker_id: pickerId, assigned_by: pickerId, assigned_at: at });
   return true;
@@ -411,15 +480,21 @@ export async function markTripDone(db: Q, tripId: number, walked: number | null,
 }
 
 export async function storedRequest(db: Q, userId: number, key: string): Promise<{ request_hash: string; response: string } | undefined> {
-  return db('pick_requests').where({ user_id: userId, idem_key: key }).first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
+  return db('pick_requests')
+    .where({ user_id: userId, idem_key: key })
+    .first<{ request_hash: string; response: string } | undefined>('request_hash', 'response');
 }
 
-export async function storeRequest(db: Q, row: { user_id: number; idem_key: string; request_hash: string; trip_id: number; status: number; response: string; created_at: string }): Promise<void> {
+export async function storeRequest(
+  db: Q,
+  row: { user_id: number; idem_key: string; request_hash: string; trip_id: number; status: number; response: string; created_at: string },
+): Promise<void> {
   await db('pick_requests').insert(row);
 }
 
 export const getLineRow = (db: Q, lineId: number): Promise<DbLineRow | undefined> => db<DbLineRow>('pick_lines').where({ id: lineId }).first();
-export const getLineOfTrip = (db: Q, tripId: number, lineId: number): Promise<DbLineRow | undefined> => db<DbLineRow>('pick_lines').where({ id: lineId, trip_id: tripId }).first();
+export const getLineOfTrip = (db: Q, tripId: number, lineId: number): Promise<DbLineRow | undefined> =>
+  db<DbLineRow>('pick_lines').where({ id: lineId, trip_id: tripId }).first();
 
 export async function userNameOf(db: Q, userId: number): Promise<string | undefined> {
   return (await db('users').where({ id: userId }).first<{ name: string } | undefined>('name'))?.name;
@@ -438,14 +513,18 @@ export async function lastTabletPick(db: Q, tripId: number, lineId: number): Pro
 /** Open lines of the trip (of one stop when given). */
 export async function openLineCount(db: Q, tripId: number, stopId?: number): Promise<number> {
   // trip_id first: the (trip_id, stop_id) index serves this; stop_id alone would scan every line.
-  const open = await db('pick_lines').where({ trip_id: tripId, ...(stopId !== undefined && { stop_id: stopId }), status: 'open' }).count<{ n: number }[]>({ n: '*' });
+  const open = await db('pick_lines')
+    .where({ trip_id: tripId, ...(stopId !== undefined && { stop_id: stopId }), status: 'open' })
+    .count<{ n: number }[]>({ n: '*' });
   return Number(open[0]!.n);
 }
 
 /** Marks an open stop done, numbered after the trip's last done stop. */
 export async function markStopDone(db: Q, tripId: number, stopId: number, at: string): Promise<void> {
   const seq = await db('stops').where({ trip_id: tripId }).max<{ m: number | null }[]>({ m: 'done_seq' });
-  await db('stops').where({ id: stopId, status: 'open' }).update({ status: 'done', done_at: at, done_seq: (seq[0]!.m ?? 0) + 1 });
+  await db('stops')
+    .where({ id: stopId, status: 'open' })
+    .update({ status: 'done', done_at: at, done_seq: (seq[0]!.m ?? 0) + 1 });
 }
 
 export async function confirmScanOf(db: Q, siteId: number): Promise<'bin' | 'sku'> {
@@ -456,7 +535,20 @@ export async function settleOpenLine(db: Q, lineId: number, outcome: Record<stri
   await db('pick_lines').where({ id: lineId, status: 'open' }).update(outcome);
 }
 
-export async function insertShort(db: Q, row: { site_id: number; wave_id: number; trip_id: number; line_id: number; qty_ordered: number; qty_found: number; reason: string; reported_by: number; reported_at: string }): Promise<void> {
+export async function insertShort(
+  db: Q,
+  row: {
+    site_id: number;
+    wave_id: number;
+    trip_id: number;
+    line_id: number;
+    qty_ordered: number;
+    qty_found: number;
+    reason: string;
+    reported_by: number;
+    reported_at: string;
+  },
+): Promise<void> {
   await db('pick_shorts').insert(row);
 }
 
@@ -466,7 +558,9 @@ export async function markStopSkipped(db: Q, stopId: number, at: string): Promis
 
 /** The line goes back to open (its short report removed) and its stop with it. */
 export async function reopenLineRow(db: Q, line: Pick<DbLineRow, 'id' | 'stop_id'>): Promise<void> {
-  await db('pick_lines').where({ id: line.id }).update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
+  await db('pick_lines')
+    .where({ id: line.id })
+    .update({ status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
   await db('pick_shorts').where({ line_id: line.id }).del();
   await db('stops').where({ id: line.stop_id }).update({ status: 'open', done_at: null, done_seq: null });
 }
@@ -474,7 +568,11 @@ export async function reopenLineRow(db: Q, line: Pick<DbLineRow, 'id' | 'stop_id
 /* ---- Signed-in pickers and automatic assignment ---- */
 
 /** Active pickers of the site with a live session started after `sinceS` (Unix seconds), by name; the latest sign-in each. */
-export async function signedInPickerRows(db: Q, siteId: number, sinceS: number): Promise<{ id: number; name: string; badge: string | null; signed_in_at: string }[]> {
+export async function signedInPickerRows(
+  db: Q,
+  siteId: number,
+  sinceS: number,
+): Promise<{ id: number; name: string; badge: string | null; signed_in_at: string }[]> {
   return db('sessions')
     .join('users', 'users.id', 'sessions.user_id')
     .join('user_sites', 'user_sites.user_id', 'users.id')
@@ -489,12 +587,20 @@ export async function signedInPickerRows(db: Q, siteId: number, sinceS: number):
 
 /** The trips of the site these pickers hold (assigned or picking). */
 export async function heldTripsOf(db: Q, siteId: number, pickerIds: number[]): Promise<{ id: number; n: number; wave_id: number; picker_id: number }[]> {
-  return db('trips').where({ site_id: siteId }).whereIn('status', ['assigned', 'picking']).whereIn('picker_id', pickerIds).select('id', 'n', 'wave_id', 'picker_id');
+  return db('trips')
+    .where({ site_id: siteId })
+    .whereIn('status', ['assigned', 'picking'])
+    .whereIn('picker_id', pickerIds)
+    .select('id', 'n', 'wave_id', 'picker_id');
 }
 
 /** When each picker last finished or dropped a trip (ISO), '' when never. */
 export async function lastFreedAt(db: Q, pickerIds: number[]): Promise<Map<number, string>> {
-  const rows: { picker_id: number; at: string | null }[] = await db('trips').whereIn('picker_id', pickerIds).groupBy('picker_id').select('picker_id').max({ at: 'finished_at' });
+  const rows: { picker_id: number; at: string | null }[] = await db('trips')
+    .whereIn('picker_id', pickerIds)
+    .groupBy('picker_id')
+    .select('picker_id')
+    .max({ at: 'finished_at' });
   return new Map(rows.map((r) => [r.picker_id, r.at ?? '']));
 }
 

@@ -59,27 +59,42 @@ const siteBoard = '/api/sites/:siteId/board';
 
 export const pickingRoutes = [
   defineRoute({
-    method: 'get', path: '/api/sites/:siteId/picking/current', access: PICKER, summary: "The picker's trip at this site (null when none) and how many released trips wait",
+    method: 'get',
+    path: '/api/sites/:siteId/picking/current',
+    access: PICKER,
+    summary: "The picker's trip at this site (null when none) and how many released trips wait",
     response: CurrentTrip,
     handler: ({ deps, user, req, siteId }) => picking.currentTrip(deps.db, actorOf(user, req), siteId),
   }),
   defineRoute({
-    method: 'post', path: '/api/sites/:siteId/picking/next', access: PICKER, summary: 'Take the assigned trip, else the next released one (oldest due first); two pickers never get the same trip',
+    method: 'post',
+    path: '/api/sites/:siteId/picking/next',
+    access: PICKER,
+    summary: 'Take the assigned trip, else the next released one (oldest due first); two pickers never get the same trip',
     response: CurrentTrip,
     handler: ({ deps, user, req, siteId }) => picking.takeNextTrip(deps.db, actorOf(user, req), siteId),
   }),
   defineRoute({
-    method: 'get', path: trip, access: PICKER, summary: 'Your trip: numbered stops, lines, route (403 for another picker\'s trip)',
+    method: 'get',
+    path: trip,
+    access: PICKER,
+    summary: "Your trip: numbered stops, lines, route (403 for another picker's trip)",
     response: PickTrip,
     handler: ({ deps, user, req, params }) => picking.getPickTrip(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
   }),
   defineRoute({
-    method: 'get', path: `${trip}/status`, access: PICKER, summary: "The tablet's poll: status and revision of your trip (one row)",
+    method: 'get',
+    path: `${trip}/status`,
+    access: PICKER,
+    summary: "The tablet's poll: status and revision of your trip (one row)",
     response: TripPulse,
     handler: ({ deps, user, req, params }) => picking.tripPulse(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
   }),
   defineRoute({
-    method: 'get', path: `${trip}/plan`, access: PICKER, summary: "Geometry of your trip's floor plan, for the trip map",
+    method: 'get',
+    path: `${trip}/plan`,
+    access: PICKER,
+    summary: "Geometry of your trip's floor plan, for the trip map",
     response: TripPlan,
     handler: async ({ deps, user, req, params }) => {
       const t = await picking.readableTrip(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip'));
@@ -89,59 +104,111 @@ export const pickingRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: `${trip}/start`, access: PICKER, summary: 'Start the trip after the safety caution (a second call changes nothing)',
+    method: 'post',
+    path: `${trip}/start`,
+    access: PICKER,
+    summary: 'Start the trip after the safety caution (a second call changes nothing)',
     response: PickTrip,
     handler: ({ deps, user, req, params }) => picking.startTrip(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
   }),
   defineRoute({
-    method: 'post', path: `${trip}/cart-ready`, access: PICKER, body: CartReadyBody,
-    summary: 'Cart set-up before the first stop: every tote of the trip confirmed (scan of its label or tap); stored once with an audit entry, a second call changes nothing',
+    method: 'post',
+    path: `${trip}/cart-ready`,
+    access: PICKER,
+    body: CartReadyBody,
+    summary:
+      'Cart set-up before the first stop: every tote of the trip confirmed (scan of its label or tap); stored once with an audit entry, a second call changes nothing',
     response: PickTrip,
     handler: ({ deps, user, req, params, body }) => picking.cartReady(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip'), body),
   }),
   defineRoute({
-    method: 'post', path: `${trip}/lines/:lineId/confirm`, access: PICKER, body: ConfirmBody,
-    summary: 'Confirm a line (scan or tap). Idempotency-Key required: same key and body → stored answer; other body → 422; line done by someone → 409 with who and when; wrong scan → 422 wrong_scan',
+    method: 'post',
+    path: `${trip}/lines/:lineId/confirm`,
+    access: PICKER,
+    body: ConfirmBody,
+    summary:
+      'Confirm a line (scan or tap). Idempotency-Key required: same key and body → stored answer; other body → 422; line done by someone → 409 with who and when; wrong scan → 422 wrong_scan',
     response: LineAnswer,
-    handler: (ctx) => picking.confirmLine(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.lineId, 'Pick line'), ctx.body, keyed(ctx)),
+    handler: (ctx) =>
+      picking.confirmLine(
+        ctx.deps.db,
+        actorOf(ctx.user, ctx.req),
+        pathId(ctx.params.tripId, 'Trip'),
+        pathId(ctx.params.lineId, 'Pick line'),
+        ctx.body,
+        keyed(ctx),
+      ),
   }),
   defineRoute({
-    method: 'post', path: `${trip}/lines/:lineId/short`, access: PICKER, body: ShortBody,
+    method: 'post',
+    path: `${trip}/lines/:lineId/short`,
+    access: PICKER,
+    body: ShortBody,
     summary: 'Report a line short: quantity found and reason; the supervisor is alerted. Idempotency-Key required',
     response: LineAnswer,
-    handler: (ctx) => picking.shortLine(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.lineId, 'Pick line'), ctx.body, keyed(ctx)),
+    handler: (ctx) =>
+      picking.shortLine(
+        ctx.deps.db,
+        actorOf(ctx.user, ctx.req),
+        pathId(ctx.params.tripId, 'Trip'),
+        pathId(ctx.params.lineId, 'Pick line'),
+        ctx.body,
+        keyed(ctx),
+      ),
   }),
   defineRoute({
-    method: 'post', path: `${trip}/lines/:lineId/undo`, access: PICKER, body: UndoBody,
-    summary: 'Undo a line you confirmed or reported short in the last few seconds: it is open again (audited). Idempotency-Key required; 409 undo_expired after the window',
+    method: 'post',
+    path: `${trip}/lines/:lineId/undo`,
+    access: PICKER,
+    body: UndoBody,
+    summary:
+      'Undo a line you confirmed or reported short in the last few seconds: it is open again (audited). Idempotency-Key required; 409 undo_expired after the window',
     response: LineAnswer,
-    handler: (ctx) => picking.undoLine(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.lineId, 'Pick line'), keyed(ctx)),
+    handler: (ctx) =>
+      picking.undoLine(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.lineId, 'Pick line'), keyed(ctx)),
   }),
   defineRoute({
-    method: 'post', path: `${trip}/stops/:stopId/skip`, access: PICKER, body: SkipBody,
+    method: 'post',
+    path: `${trip}/stops/:stopId/skip`,
+    access: PICKER,
+    body: SkipBody,
     summary: 'Skip a stop for now: it moves to the end and the other open stops are re-sequenced. Idempotency-Key required',
     response: PickAnswer,
-    handler: (ctx) => picking.skipStop(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.stopId, 'Stop'), ctx.body, keyed(ctx)),
+    handler: (ctx) =>
+      picking.skipStop(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.stopId, 'Stop'), ctx.body, keyed(ctx)),
   }),
   defineRoute({
-    method: 'post', path: `${trip}/finish`, access: PICKER, body: FinishBody,
+    method: 'post',
+    path: `${trip}/finish`,
+    access: PICKER,
+    body: FinishBody,
     summary: 'Return to depot: the trip is done when no line is open (409 lines_open otherwise). Idempotency-Key required',
     response: TripResult,
     handler: (ctx) => picking.finishTrip(ctx.deps.db, ctx.deps.mailer, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), keyed(ctx)),
   }),
   defineRoute({
-    method: 'get', path: `${trip}/result`, access: PICKER, summary: 'Trip summary: lines, shorts, metres walked and planned, minutes',
+    method: 'get',
+    path: `${trip}/result`,
+    access: PICKER,
+    summary: 'Trip summary: lines, shorts, metres walked and planned, minutes',
     response: TripResult,
     handler: ({ deps, user, req, params }) => picking.getTripResult(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
   }),
 
   defineRoute({
-    method: 'get', path: siteBoard, access: SUPERVISE, summary: 'Live board snapshot: waves in progress, trips, forecasts, shorts needing attention',
+    method: 'get',
+    path: siteBoard,
+    access: SUPERVISE,
+    summary: 'Live board snapshot: waves in progress, trips, forecasts, shorts needing attention',
     response: Board,
     handler: ({ deps, siteId }) => board.boardSnapshot(deps.db, siteId),
   }),
   defineRoute({
-    method: 'get', path: `${siteBoard}/events`, access: SUPERVISE, summary: 'Live board as server-sent events: `board` with the whole snapshot after each change (one snapshot per site shared by all its streams); 429 too_many_board_streams beyond 5 open streams per person',
+    method: 'get',
+    path: `${siteBoard}/events`,
+    access: SUPERVISE,
+    summary:
+      'Live board as server-sent events: `board` with the whole snapshot after each change (one snapshot per site shared by all its streams); 429 too_many_board_streams beyond 5 open streams per person',
     handler: ({ req, res, deps, siteId, user }) => {
       // Only an event stream client may open the endless stream (EventSource always sends this).
       requireEventStream(req);
@@ -155,7 +222,11 @@ export const pickingRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: `${siteBoard}/trips/:tripId/assign`, access: SUPERVISE, body: AssignBody, summary: 'Assign or reassign a trip to a picker',
+    method: 'post',
+    path: `${siteBoard}/trips/:tripId/assign`,
+    access: SUPERVISE,
+    body: AssignBody,
+    summary: 'Assign or reassign a trip to a picker',
     response: Ok,
     handler: async ({ deps, user, req, siteId, params, body }) => {
       await board.assignTrip(deps.db, actorOf(user, req), siteId, pathId(params.tripId, 'Trip'), body.pickerId);
@@ -163,23 +234,40 @@ export const pickingRoutes = [
     },
   }),
   defineRoute({
-    method: 'post', path: `${siteBoard}/trips/:tripId/cancel`, access: SUPERVISE, body: CancelTripBody, summary: 'Cancel the rest of a trip: its open lines go back to open orders',
+    method: 'post',
+    path: `${siteBoard}/trips/:tripId/cancel`,
+    access: SUPERVISE,
+    body: CancelTripBody,
+    summary: 'Cancel the rest of a trip: its open lines go back to open orders',
     response: CancelResult,
-    handler: ({ deps, user, req, siteId, params, body }) => board.cancelTrip(deps.db, deps.mailer, actorOf(user, req), siteId, pathId(params.tripId, 'Trip'), body.reason ?? null),
+    handler: ({ deps, user, req, siteId, params, body }) =>
+      board.cancelTrip(deps.db, deps.mailer, actorOf(user, req), siteId, pathId(params.tripId, 'Trip'), body.reason ?? null),
   }),
   defineRoute({
-    method: 'post', path: `${siteBoard}/waves/:waveId/close`, access: SUPERVISE, body: CloseWaveBody, summary: 'Close a wave: trips not done are cancelled (open lines back to open orders); the report is mailed',
+    method: 'post',
+    path: `${siteBoard}/waves/:waveId/close`,
+    access: SUPERVISE,
+    body: CloseWaveBody,
+    summary: 'Close a wave: trips not done are cancelled (open lines back to open orders); the report is mailed',
     response: CloseWaveResult,
-    handler: ({ deps, user, req, siteId, params, body }) => board.closeWave(deps.db, deps.mailer, actorOf(user, req), siteId, pathId(params.waveId, 'Wave'), body.reason ?? null),
+    handler: ({ deps, user, req, siteId, params, body }) =>
+      board.closeWave(deps.db, deps.mailer, actorOf(user, req), siteId, pathId(params.waveId, 'Wave'), body.reason ?? null),
   }),
   defineRoute({
-    method: 'post', path: `${siteBoard}/lines/:lineId/reopen`, access: SUPERVISE, body: ReopenLineBody,
+    method: 'post',
+    path: `${siteBoard}/lines/:lineId/reopen`,
+    access: SUPERVISE,
+    body: ReopenLineBody,
     summary: 'Correct a recorded line of a trip still open (picked by mistake): it goes back to open for the picker, with the reason audited',
     response: LineAnswer,
-    handler: ({ deps, user, req, siteId, params, body }) => picking.correctLine(deps.db, actorOf(user, req), siteId, pathId(params.lineId, 'Pick line'), body.reason),
+    handler: ({ deps, user, req, siteId, params, body }) =>
+      picking.correctLine(deps.db, actorOf(user, req), siteId, pathId(params.lineId, 'Pick line'), body.reason),
   }),
   defineRoute({
-    method: 'post', path: `${siteBoard}/shorts/:shortId/handled`, access: SUPERVISE, summary: 'Mark a short as handled (it leaves the attention list)',
+    method: 'post',
+    path: `${siteBoard}/shorts/:shortId/handled`,
+    access: SUPERVISE,
+    summary: 'Mark a short as handled (it leaves the attention list)',
     response: Ok,
     handler: async ({ deps, user, req, siteId, params }) => {
       await board.handleShort(deps.db, actorOf(user, req), siteId, pathId(params.shortId, 'Short'));
@@ -187,7 +275,10 @@ export const pickingRoutes = [
     },
   }),
   defineRoute({
-    method: 'get', path: `${siteBoard}/waves/:waveId/report.xlsx`, access: SUPERVISE, summary: 'The wave report as xlsx (per trip planned and walked metres, lines, shorts, times)',
+    method: 'get',
+    path: `${siteBoard}/waves/:waveId/report.xlsx`,
+    access: SUPERVISE,
+    summary: 'The wave report as xlsx (per trip planned and walked metres, lines, shorts, times)',
     handler: async ({ deps, res, siteId, params }) => {
       const waveId = pathId(params.waveId, 'Wave');
       const wave = await getWaveRow(deps.db, waveId);

@@ -8,7 +8,17 @@ import type { Q } from '../db/knex';
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { Role } from '../../shared/common';
-import { UNDO_WINDOW_MS, type CartReadyBody, type ConfirmBody, type LineAnswer, type PickTrip, type ShortBody, type SkipBody, type TripPulse, type TripResult } from '../../shared/picking';
+import {
+  UNDO_WINDOW_MS,
+  type CartReadyBody,
+  type ConfirmBody,
+  type LineAnswer,
+  type PickTrip,
+  type ShortBody,
+  type SkipBody,
+  type TripPulse,
+  type TripResult,
+} from '../../shared/picking';
 import { audit } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
@@ -144,17 +154,33 @@ export async function cartReady(db: Knex, actor: Actor, tripId: number, body: Ca
   const changed = await db.transaction(async (trx) => {
     const trip = await readableTrip(trx, actor, tripId);
     if (trip.cart_ready_at) return false;
-    if (trip.status !== 'picking') throw new AppError('conflict', 'trip_not_started', trip.status === 'assigned' ? 'Start the trip (safety caution) before setting up the cart' : 'This trip is closed');
+    if (trip.status !== 'picking')
+      throw new AppError(
+        'conflict',
+        'trip_not_started',
+        trip.status === 'assigned' ? 'Start the trip (safety caution) before setting up the cart' : 'This trip is closed',
+      );
     const totes = await repo.totesOfTrip(trx, trip.id);
     const sent = [...new Set(body.totes.map((t) => t.tote))].sort((a, b) => a - b);
     const missing = totes.filter((t) => !sent.includes(t));
     const unknown = sent.filter((t) => !totes.includes(t));
     if (missing.length > 0 || unknown.length > 0 || sent.length !== body.totes.length) {
-      throw new AppError('validation', 'totes_mismatch', `Confirm each tote of this trip once (totes ${totes.join(', ')})`, { expected: totes, missing, unknown });
+      throw new AppError('validation', 'totes_mismatch', `Confirm each tote of this trip once (totes ${totes.join(', ')})`, {
+        expected: totes,
+        missing,
+        unknown,
+      });
     }
     await repo.setCartReady(trx, trip.id, nowIso());
     await bumpRevision(trx, trip.id);
-    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.cart_ready', subject: `trip:${trip.id}`, device: actor.device, detail: { totes: body.totes } });
+    await audit(trx, {
+      siteId: trip.site_id,
+      userId: actor.id,
+      action: 'trip.cart_ready',
+      subject: `trip:${trip.id}`,
+      device: actor.device,
+      detail: { totes: body.totes },
+    });
     return true;
   });
   const trip = (await loadPickTrip(db, tripId))!;
@@ -183,12 +209,19 @@ function canonical(v: unknown): string {
   if (Array.isArray(v)) return `[${v.map(canonical).join(',')}]`;
   if (v && typeof v === 'object') {
     const o = v as Record<string, unknown>;
-    return `{${Object.keys(o).filter((k) => o[k] !== undefined).sort().map((k) => `${JSON.stringify(k)}:${canonical(o[k])}`).join(',')}}`;
+    return `{${Object.keys(o)
+      .filter((k) => o[k] !== undefined)
+      .sort()
+      .map((k) => `${JSON.stringify(k)}:${canonical(o[k])}`)
+      .join(',')}}`;
   }
   return JSON.stringify(v ?? null);
 }
 
-export const requestHash = (r: KeyedRequest): string => createHash('sha256').update(`${r.method.toUpperCase()} ${r.path}\n${canonical(r.body)}`).digest('hex');
+export const requestHash = (r: KeyedRequest): string =>
+  createHash('sha256')
+    .update(`${r.method.toUpperCase()} ${r.path}\n${canonical(r.body)}`)
+    .digest('hex');
 
 interface WriteOutcome<T> {
   answer: T;
@@ -214,7 +247,9 @@ async function idempotent<T>(
   if (!req.key) {
     // Access first: another picker's trip is 403 whatever else is wrong with the request.
     await writableTrip(db, actor, tripId);
-    throw new AppError('validation', 'idempotency_key_required', 'Send an Idempotency-Key header with every picking request', [{ field: 'Idempotency-Key', message: 'required' }]);
+    throw new AppError('validation', 'idempotency_key_required', 'Send an Idempotency-Key header with every picking request', [
+      { field: 'Idempotency-Key', message: 'required' },
+    ]);
   }
   if (!/^[A-Za-z0-9_-]{8,64}$/.test(req.key)) {
     await writableTrip(db, actor, tripId);
@@ -243,7 +278,15 @@ async function idempotent<T>(
       }
     }
     const outcome = await run(trx, trip);
-    await repo.storeRequest(trx, { user_id: actor.id, idem_key: key, request_hash: hash, trip_id: tripId, status: 200, response: JSON.stringify(outcome.answer), created_at: nowIso() });
+    await repo.storeRequest(trx, {
+      user_id: actor.id,
+      idem_key: key,
+      request_hash: hash,
+      trip_id: tripId,
+      status: 200,
+      response: JSON.stringify(outcome.answer),
+      created_at: nowIso(),
+    });
     return { replay: false as const, ...outcome };
   });
   if (!out.replay) {
@@ -255,7 +298,9 @@ async function idempotent<T>(
 
 function assertOpenTrip(trip: DbTripRow): void {
   if (trip.status === 'done' || trip.status === 'cancelled') {
-    throw new AppError('conflict', 'trip_closed', trip.status === 'done' ? 'This trip is already finished' : 'This trip was cancelled by the supervisor', { status: trip.status });
+    throw new AppError('conflict', 'trip_closed', trip.status === 'done' ? 'This trip is already finished' : 'This trip was cancelled by the supervisor', {
+      status: trip.status,
+    });
   }
 }
 
@@ -269,7 +314,9 @@ export function pickTime(pickedAt: string | undefined, trip: Pick<DbTripRow, 'st
   const t = Date.parse(pickedAt);
   if (!Number.isFinite(t)) return new Date(now).toISOString();
   if (t > now + CLOCK_SKEW_MS) {
-    throw new AppError('validation', 'validation_failed', 'The tablet clock is ahead of the server; set its time and send again', [{ field: 'pickedAt', message: `more than ${CLOCK_SKEW_MS / 1000} s in the future` }]);
+    throw new AppError('validation', 'validation_failed', 'The tablet clock is ahead of the server; set its time and send again', [
+      { field: 'pickedAt', message: `more than ${CLOCK_SKEW_MS / 1000} s in the future` },
+    ]);
   }
   const floorAt = trip.started_at ?? trip.assigned_at;
   const lo = floorAt ? Date.parse(floorAt) : -Infinity;
@@ -284,7 +331,14 @@ async function lineOfTrip(trx: Q, trip: DbTripRow, lineId: number): Promise<DbLi
 
 async function assertLineOpen(trx: Q, line: DbLineRow): Promise<void> {
   if (line.status === 'open') return;
-  if (line.status === 'cancelled') throw new AppError('conflict', 'line_cancelled', 'This line was cancelled by the supervisor', { lineId: line.id, by: null, byId: null, at: null, status: line.status });
+  if (line.status === 'cancelled')
+    throw new AppError('conflict', 'line_cancelled', 'This line was cancelled by the supervisor', {
+      lineId: line.id,
+      by: null,
+      byId: null,
+      at: null,
+      status: line.status,
+    });
   const byName = line.confirmed_by ? await repo.userNameOf(trx, line.confirmed_by) : undefined;
   const who = byName ?? 'someone';
   throw new AppError('conflict', 'already_confirmed', `Already ${line.status === 'short' ? 'reported short' : 'confirmed'} by ${who} at ${line.confirmed_at}`, {
@@ -304,14 +358,22 @@ async function assertLineOpen(trx: Q, line: DbLineRow): Promise<void> {
 async function assertShown(trx: Q, trip: DbTripRow, line: DbLineRow, body: ConfirmBody): Promise<void> {
   const stop = { n: await repo.stopNumber(trx, line.stop_id) };
   if (body.stopN !== undefined && body.stopN !== stop.n) {
-    throw new AppError('conflict', 'line_not_shown', `This line is at stop ${stop.n}, not stop ${body.stopN} shown on the tablet; nothing was confirmed`, { lineId: line.id, stopN: stop.n, shownStopN: body.stopN });
+    throw new AppError('conflict', 'line_not_shown', `This line is at stop ${stop.n}, not stop ${body.stopN} shown on the tablet; nothing was confirmed`, {
+      lineId: line.id,
+      stopN: stop.n,
+      shownStopN: body.stopN,
+    });
   }
   if (body.via !== 'tap' || !body.pickedAt) return;
   const t = Date.parse(body.pickedAt);
   const last = await repo.lastTabletPick(trx, trip.id, line.id);
   const prev = last ? Date.parse(last) : NaN;
   if (Number.isFinite(prev) && Number.isFinite(t) && t >= prev && t - prev < TAP_GUARD_MS) {
-    throw new AppError('conflict', 'line_not_shown', 'A second tap came too soon after the last confirmation; nothing was confirmed', { lineId: line.id, stopN: stop.n, shownStopN: body.stopN ?? null });
+    throw new AppError('conflict', 'line_not_shown', 'A second tap came too soon after the last confirmation; nothing was confirmed', {
+      lineId: line.id,
+      stopN: stop.n,
+      shownStopN: body.stopN ?? null,
+    });
   }
 }
 
@@ -346,18 +408,35 @@ export async function confirmLine(db: Knex, actor: Actor, tripId: number, lineId
       const site = { confirm_scan: await repo.confirmScanOf(trx, trip.site_id) };
       const expected = expectedScan(line, site.confirm_scan);
       if (!body.scan || !sameCode(body.scan, expected)) {
-        throw new AppError('unprocessable', 'wrong_scan', `Expected ${site.confirm_scan === 'bin' ? 'bin' : 'SKU'} ${expected}, scanned ${body.scan ?? '(nothing)'}`, {
-          expected,
-          scanned: body.scan,
-          kind: site.confirm_scan,
-        });
+        throw new AppError(
+          'unprocessable',
+          'wrong_scan',
+          `Expected ${site.confirm_scan === 'bin' ? 'bin' : 'SKU'} ${expected}, scanned ${body.scan ?? '(nothing)'}`,
+          {
+            expected,
+            scanned: body.scan,
+            kind: site.confirm_scan,
+          },
+        );
       }
     }
     const at = pickTime(body.pickedAt, trip);
     await markStarted(trx, trip, at);
-    return settleLine(trx, actor, trip, line, { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.confirm', {
-      qty: line.qty, via: body.via, scan: body.scan, pickedAt: body.pickedAt ?? null, key: req.key,
-    });
+    return settleLine(
+      trx,
+      actor,
+      trip,
+      line,
+      { status: 'picked', picked_qty: line.qty, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null },
+      'pick.confirm',
+      {
+        qty: line.qty,
+        via: body.via,
+        scan: body.scan,
+        pickedAt: body.pickedAt ?? null,
+        key: req.key,
+      },
+    );
   });
 }
 
@@ -394,14 +473,46 @@ export async function shortLine(db: Knex, actor: Actor, tripId: number, lineId: 
     const line = await lineOfTrip(trx, trip, lineId);
     await assertLineOpen(trx, line);
     if (body.qtyFound >= line.qty) {
-      throw invalid(`Found ${body.qtyFound} of ${line.qty}: that is not short; confirm the line instead`, [{ field: 'qtyFound', message: `must be less than the ordered ${line.qty}` }]);
+      throw invalid(`Found ${body.qtyFound} of ${line.qty}: that is not short; confirm the line instead`, [
+        { field: 'qtyFound', message: `must be less than the ordered ${line.qty}` },
+      ]);
     }
     const at = pickTime(body.pickedAt, trip);
     await markStarted(trx, trip, at);
-    await repo.insertShort(trx, { site_id: trip.site_id, wave_id: trip.wave_id, trip_id: trip.id, line_id: line.id, qty_ordered: line.qty, qty_found: body.qtyFound, reason: body.reason, reported_by: actor.id, reported_at: at });
-    return settleLine(trx, actor, trip, line, { status: 'short', picked_qty: body.qtyFound, short_reason: body.reason, confirmed_by: actor.id, confirmed_at: at, received_at: nowIso(), tablet_at: body.pickedAt ?? null }, 'pick.short', {
-      ordered: line.qty, found: body.qtyFound, reason: body.reason, pickedAt: body.pickedAt ?? null, key: req.key,
+    await repo.insertShort(trx, {
+      site_id: trip.site_id,
+      wave_id: trip.wave_id,
+      trip_id: trip.id,
+      line_id: line.id,
+      qty_ordered: line.qty,
+      qty_found: body.qtyFound,
+      reason: body.reason,
+      reported_by: actor.id,
+      reported_at: at,
     });
+    return settleLine(
+      trx,
+      actor,
+      trip,
+      line,
+      {
+        status: 'short',
+        picked_qty: body.qtyFound,
+        short_reason: body.reason,
+        confirmed_by: actor.id,
+        confirmed_at: at,
+        received_at: nowIso(),
+        tablet_at: body.pickedAt ?? null,
+      },
+      'pick.short',
+      {
+        ordered: line.qty,
+        found: body.qtyFound,
+        reason: body.reason,
+        pickedAt: body.pickedAt ?? null,
+        key: req.key,
+      },
+    );
   });
 }
 
@@ -467,11 +578,23 @@ export async function undoLine(db: Knex, actor: Actor, tripId: number, lineId: n
     }
     const received = line.received_at ? Date.parse(line.received_at) : NaN;
     if (!(now - received <= UNDO_WINDOW_MS)) {
-      throw new AppError('conflict', 'undo_expired', `Undo is possible for ${UNDO_WINDOW_MS / 1000} s after a confirmation; ask your supervisor to correct the line`, { lineId });
+      throw new AppError(
+        'conflict',
+        'undo_expired',
+        `Undo is possible for ${UNDO_WINDOW_MS / 1000} s after a confirmation; ask your supervisor to correct the line`,
+        { lineId },
+      );
     }
     const was = { status: line.status, pickedQty: line.picked_qty, reason: line.short_reason, at: line.confirmed_at };
     await reopenLine(trx, line);
-    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'pick.undo', subject: `line:${line.id}`, detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, was, key: req.key }, device: actor.device });
+    await audit(trx, {
+      siteId: trip.site_id,
+      userId: actor.id,
+      action: 'pick.undo',
+      subject: `line:${line.id}`,
+      detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, was, key: req.key },
+      device: actor.device,
+    });
     return { answer: await lineAnswer(trx, trip, line, 'open'), siteId: trip.site_id };
   });
 }
@@ -488,10 +611,18 @@ export async function correctLine(db: Knex, actor: Actor, siteId: number, lineId
     if (trip.status === 'done' || trip.status === 'cancelled') {
       throw new AppError('conflict', 'trip_closed', `Trip ${trip.n} is ${trip.status}: its lines can no longer be reopened`, { status: trip.status });
     }
-    if (line.status !== 'picked' && line.status !== 'short') throw new AppError('conflict', 'line_not_recorded', `This line is ${line.status}: there is nothing to correct`, { status: line.status });
+    if (line.status !== 'picked' && line.status !== 'short')
+      throw new AppError('conflict', 'line_not_recorded', `This line is ${line.status}: there is nothing to correct`, { status: line.status });
     const was = { status: line.status, pickedQty: line.picked_qty, reason: line.short_reason, by: line.confirmed_by, at: line.confirmed_at };
     await reopenLine(trx, line);
-    await audit(trx, { siteId, userId: actor.id, action: 'pick.correct', subject: `line:${line.id}`, detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, was, reason }, device: actor.device });
+    await audit(trx, {
+      siteId,
+      userId: actor.id,
+      action: 'pick.correct',
+      subject: `line:${line.id}`,
+      detail: { tripId: trip.id, stopId: line.stop_id, sku: line.sku, bin: line.bin, was, reason },
+      device: actor.device,
+    });
     return lineAnswer(trx, trip, line, 'open');
   });
   siteChanged(siteId);
@@ -534,18 +665,33 @@ export async function getTripResult(db: Q, actor: Actor, tripId: number): Promis
 
 /** "Return to depot": every line must be picked, short or cancelled; the trip is done. */
 export async function finishTrip(db: Knex, mailer: Mailer, actor: Actor, tripId: number, req: KeyedRequest): Promise<TripResult> {
-  return idempotent(db, actor, tripId, req, undefined, async (trx, trip) => {
-    if (trip.picker_id !== actor.id) throw notYourTrip();
-    assertOpenTrip(trip);
-    const n = await repo.openLineCount(trx, trip.id);
-    if (n > 0) throw new AppError('conflict', 'lines_open', `${n} line${n === 1 ? '' : 's'} still to pick or report short`, { open: n });
-    await markStarted(trx, trip);
-    // Null when not measurable (a closure cut off a stop already picked): the trip still finishes.
-    const walked = await walkedMetres(trx, trip);
-    const at = nowIso();
-    await repo.markTripDone(trx, trip.id, walked, at);
-    await bumpRevision(trx, trip.id);
-    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.finish', subject: `trip:${trip.id}`, detail: { walkedMetres: walked }, device: actor.device });
-    return { answer: await tripResult(trx, trip.id), siteId: trip.site_id, closedTripWave: trip.wave_id };
-  }, mailer);
+  return idempotent(
+    db,
+    actor,
+    tripId,
+    req,
+    undefined,
+    async (trx, trip) => {
+      if (trip.picker_id !== actor.id) throw notYourTrip();
+      assertOpenTrip(trip);
+      const n = await repo.openLineCount(trx, trip.id);
+      if (n > 0) throw new AppError('conflict', 'lines_open', `${n} line${n === 1 ? '' : 's'} still to pick or report short`, { open: n });
+      await markStarted(trx, trip);
+      // Null when not measurable (a closure cut off a stop already picked): the trip still finishes.
+      const walked = await walkedMetres(trx, trip);
+      const at = nowIso();
+      await repo.markTripDone(trx, trip.id, walked, at);
+      await bumpRevision(trx, trip.id);
+      await audit(trx, {
+        siteId: trip.site_id,
+        userId: actor.id,
+        action: 'trip.finish',
+        subject: `trip:${trip.id}`,
+        detail: { walkedMetres: walked },
+        device: actor.device,
+      });
+      return { answer: await tripResult(trx, trip.id), siteId: trip.site_id, closedTripWave: trip.wave_id };
+    },
+    mailer,
+  );
 }

@@ -50,7 +50,11 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
   const wave = (await getWaveRow(db, waveId))!;
   const zone = await siteTimeZone(db, wave.site_id);
   const at = (iso: string | null) => formatInZone(iso, zone);
-  const trips: (DbTripRow & { picker_name: string | null })[] = await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').where('trips.wave_id', waveId).orderBy('trips.n').select('trips.*', 'users.name as picker_name');
+  const trips: (DbTripRow & { picker_name: string | null })[] = await db('trips')
+    .leftJoin('users', 'users.id', 'trips.picker_id')
+    .where('trips.wave_id', waveId)
+    .orderBy('trips.n')
+    .select('trips.*', 'users.name as picker_name');
   const rows: WaveReportRow[] = [];
   for (const t of trips) {
     const lines = await linesOf(db, t.id);
@@ -85,30 +89,121 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
     walkedMetres: sum((r) => r.walkedMetres),
   };
 
-  const shorts: { order_ref: string; sku: string; bin: string; qty_ordered: number; qty_found: number; reason: ShortReason; reported_at: string; name: string | null; n: number }[] = await db('pick_shorts')
+  const shorts: {
+    order_ref: string;
+    sku: string;
+    bin: string;
+    qty_ordered: number;
+    qty_found: number;
+    reason: ShortReason;
+    reported_at: string;
+    name: string | null;
+    n: number;
+  }[] = await db('pick_shorts')
     .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
     .join('trips', 'trips.id', 'pick_shorts.trip_id')
     .leftJoin('users', 'users.id', 'pick_shorts.reported_by')
     .where('pick_shorts.wave_id', waveId)
     .orderBy('pick_shorts.reported_at')
-    .select('pick_lines.order_ref', 'pick_lines.sku', 'pick_lines.bin', 'pick_shorts.qty_ordered', 'pick_shorts.qty_found', 'pick_shorts.reason', 'pick_shorts.reported_at', 'users.name', 'trips.n');
+    .select(
+      'pick_lines.order_ref',
+      'pick_lines.sku',
+      'pick_lines.bin',
+      'pick_shorts.qty_ordered',
+      'pick_shorts.qty_found',
+      'pick_shorts.reason',
+      'pick_shorts.reported_at',
+      'users.name',
+      'trips.n',
+    );
 
   const wb = XLSX.utils.book_new();
-  const tripSheet = XLSX.utils.aoa_to_sheet(neutraliseCells([
-    ['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', `started (${zone})`, `finished (${zone})`],
-    ...rows.map((r) => [r.trip, r.picker ?? '', r.status, r.stops, r.stopsDone, r.lines, r.picked, r.shorts, r.cancelled, cell(r.plannedMetres), cell(r.walkedMetres), cell(r.estMinutes), cell(r.minutes), at(r.startedAt), at(r.finishedAt)]),
-    ['total', '', '', sum((r) => r.stops), sum((r) => r.stopsDone), summary.lines, summary.picked, summary.shorts, summary.cancelled, cell(summary.plannedMetres), cell(summary.walkedMetres), cell(sum((r) => r.estMinutes)), '', '', ''],
-  ]));
+  const tripSheet = XLSX.utils.aoa_to_sheet(
+    neutraliseCells([
+      [
+        'trip',
+        'picker',
+        'status',
+        'stops',
+        'stops done',
+        'lines',
+        'picked',
+        'short',
+        'cancelled',
+        'planned m',
+        'walked m',
+        'estimated min',
+        'actual min',
+        `started (${zone})`,
+        `finished (${zone})`,
+      ],
+      ...rows.map((r) => [
+        r.trip,
+        r.picker ?? '',
+        r.status,
+        r.stops,
+        r.stopsDone,
+        r.lines,
+        r.picked,
+        r.shorts,
+        r.cancelled,
+        cell(r.plannedMetres),
+        cell(r.walkedMetres),
+        cell(r.estMinutes),
+        cell(r.minutes),
+        at(r.startedAt),
+        at(r.finishedAt),
+      ]),
+      [
+        'total',
+        '',
+        '',
+        sum((r) => r.stops),
+        sum((r) => r.stopsDone),
+        summary.lines,
+        summary.picked,
+        summary.shorts,
+        summary.cancelled,
+        cell(summary.plannedMetres),
+        cell(summary.walkedMetres),
+        cell(sum((r) => r.estMinutes)),
+        '',
+        '',
+        '',
+      ],
+    ]),
+  );
   XLSX.utils.book_append_sheet(wb, tripSheet, 'trips');
-  const shortSheet = XLSX.utils.aoa_to_sheet(neutraliseCells([
-    ['trip', 'order', 'sku', 'bin', 'ordered', 'found', 'reason', 'reported by', `reported (${zone})`],
-    ...shorts.map((s) => [s.n, s.order_ref, s.sku, s.bin, s.qty_ordered, s.qty_found, SHORT_REASON_LABELS[s.reason] ?? s.reason, s.name ?? '', at(s.reported_at)]),
-  ]));
+  const shortSheet = XLSX.utils.aoa_to_sheet(
+    neutraliseCells([
+      ['trip', 'order', 'sku', 'bin', 'ordered', 'found', 'reason', 'reported by', `reported (${zone})`],
+      ...shorts.map((s) => [
+        s.n,
+        s.order_ref,
+        s.sku,
+        s.bin,
+        s.qty_ordered,
+        s.qty_found,
+        SHORT_REASON_LABELS[s.reason] ?? s.reason,
+        s.name ?? '',
+        at(s.reported_at),
+      ]),
+    ]),
+  );
   XLSX.utils.book_append_sheet(wb, shortSheet, 'shorts');
   const xlsx = XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
 
-  const firstStart = rows.map((r) => r.startedAt).filter((x): x is string => !!x).sort()[0] ?? null;
-  const lastFinish = rows.map((r) => r.finishedAt).filter((x): x is string => !!x).sort().at(-1) ?? null;
+  const firstStart =
+    rows
+      .map((r) => r.startedAt)
+      .filter((x): x is string => !!x)
+      .sort()[0] ?? null;
+  const lastFinish =
+    rows
+      .map((r) => r.finishedAt)
+      .filter((x): x is string => !!x)
+      .sort()
+      .at(-1) ?? null;
   const safeName = wave.name.replace(/[^A-Za-z0-9-]+/g, '-').replace(/^-|-$/g, '') || `wave-${wave.id}`;
   const text = [
     `Wave ${wave.name} is ${wave.status === 'completed' ? 'complete' : wave.status}.`,
@@ -118,7 +213,10 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
     ...(firstStart ? [`Picking: first trip started ${at(firstStart)}, last trip finished ${lastFinish ? at(lastFinish) : '(not yet)'} (${zone}).`] : []),
     '',
     'Per trip:',
-    ...rows.map((r) => `  Trip ${r.trip}${r.picker ? ` (${r.picker})` : ''}: ${r.status}, ${r.lines} lines, ${r.shorts} short, planned ${words(r.plannedMetres, 'm', 'not known')}, walked ${words(r.walkedMetres, 'm', 'not measurable')}, ${words(r.minutes, 'min', 'not timed')}`),
+    ...rows.map(
+      (r) =>
+        `  Trip ${r.trip}${r.picker ? ` (${r.picker})` : ''}: ${r.status}, ${r.lines} lines, ${r.shorts} short, planned ${words(r.plannedMetres, 'm', 'not known')}, walked ${words(r.walkedMetres, 'm', 'not measurable')}, ${words(r.minutes, 'min', 'not timed')}`,
+    ),
     '',
     'The attached workbook has one row per trip and one per short.',
     `Times are in the site's time zone, ${zone}.`,

@@ -26,21 +26,33 @@ import {
 import { resequenceFree, type Distance } from './route-math';
 
 /** True when a walk joins `from` to the stop and the stop back to the depot. */
-export const canReach = (dist: Distance, from: number, node: number, depot: number): boolean => Number.isFinite(dist(from, node)) && Number.isFinite(dist(node, depot));
+export const canReach = (dist: Distance, from: number, node: number, depot: number): boolean =>
+  Number.isFinite(dist(from, node)) && Number.isFinite(dist(node, depot));
 
 /**
  * Order of the open stops: reachable ones not skipped re-sequenced as an open walk from `from` to the
  * first skipped stop (or the depot), then the skipped ones in skip order (`lastSkipped` last on a tie),
  * then the cut-off ones in their former order.
  */
-export function orderRemaining(open: readonly DbStopRow[], from: number, depot: number, dist: Distance, lastSkipped: number | null = null): { walk: DbStopRow[]; cut: DbStopRow[] } {
+export function orderRemaining(
+  open: readonly DbStopRow[],
+  from: number,
+  depot: number,
+  dist: Distance,
+  lastSkipped: number | null = null,
+): { walk: DbStopRow[]; cut: DbStopRow[] } {
   const reach = open.filter((s) => canReach(dist, from, s.node, depot));
   const cut = open.filter((s) => !canReach(dist, from, s.node, depot)).sort((a, b) => walkOrder(a) - walkOrder(b) || a.n - b.n);
   const tail = reach
     .filter((s) => s.skipped_at !== null)
     .sort((a, b) => a.skipped_at!.localeCompare(b.skipped_at!) || (a.id === lastSkipped ? 1 : b.id === lastSkipped ? -1 : a.n - b.n));
   const free = reach.filter((s) => s.skipped_at === null);
-  const order = resequenceFree(free.map((s) => s.node), from, tail.length ? tail[0]!.node : depot, dist);
+  const order = resequenceFree(
+    free.map((s) => s.node),
+    from,
+    tail.length ? tail[0]!.node : depot,
+    dist,
+  );
   return { walk: [...order.map((i) => free[i]!), ...tail], cut };
 }
 
@@ -82,7 +94,11 @@ export interface RerouteOutcome {
 export async function rerouteOpenTrips(db: Knex, planId: number, before: LoadedPlan, userId: number | null): Promise<RerouteOutcome[]> {
   const plan = await loadPlanIndex(db, planId);
   if (plan === before) return [];
-  const trips: { id: number }[] = await db('trips').join('waves', 'waves.id', 'trips.wave_id').where('waves.plan_id', planId).whereIn('trips.status', ['released', 'assigned', 'picking']).select('trips.id');
+  const trips: { id: number }[] = await db('trips')
+    .join('waves', 'waves.id', 'trips.wave_id')
+    .where('waves.plan_id', planId)
+    .whereIn('trips.status', ['released', 'assigned', 'picking'])
+    .select('trips.id');
   const out: RerouteOutcome[] = [];
   const sites = new Set<number>();
   for (const { id } of trips) {
@@ -108,7 +124,14 @@ export async function rerouteOpenTrips(db: Knex, planId: number, before: LoadedP
           userId,
           action: 'trip.reroute',
           subject: `trip:${id}`,
-          detail: { planId, closureVersion: plan.closureVersion, from, orderBefore: open.map((s) => s.n), orderAfter: walk.map((s) => s.n), cutOffStops: cut.map((s) => s.n) },
+          detail: {
+            planId,
+            closureVersion: plan.closureVersion,
+            from,
+            orderBefore: open.map((s) => s.n),
+            orderAfter: walk.map((s) => s.n),
+            cutOffStops: cut.map((s) => s.n),
+          },
         });
         sites.add(trip.site_id);
         return { tripId: id, cutOffStops: cut.map((s) => s.n) };

@@ -14,5 +14,11 @@ export async function walkedMetres(db: Q, trip: DbTripRow): Promise<number | nul
   const plan = await loadPlanIndex(db, wave.plan_id);
   const walked = walkedStopIds(await linesOf(db, trip.id));
   const { done } = splitStops(await stopsOf(db, trip.id));
-  return finiteOrNull(closedWalkMetres(depotNodeOf(plan, wave), done.filter((s) => walked.has(s.id)).map((s) => s.node), distanceOf(plan)));
+  return finiteOrNull(
+    closedWalkMetres(
+      depotNodeOf(plan, wave),
+      done.filter((s) => walked.has(s.id)).map((s) => s.node),
+      distanceOf(plan),
+    ),
+  );
 }

@@ -10,12 +10,14 @@ import { buildWaveReport } from './report';
 import { siteChanged } from './events';
 import { getWaveRow } from './picking.repository';
 
-
 /** Marks the wave completed when no trip remains open; mails the report. Returns the addresses mailed. */
 export async function afterTripClosed(db: Knex, mailer: Mailer, waveId: number): Promise<string[]> {
   const open = await db('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']).count<{ n: number }[]>({ n: '*' });
   if (Number(open[0]!.n) > 0) return [];
-  const changed = await db('waves').where({ id: waveId }).whereIn('status', ['released', 'picking']).update({ status: 'completed', completed_at: new Date().toISOString() });
+  const changed = await db('waves')
+    .where({ id: waveId })
+    .whereIn('status', ['released', 'picking'])
+    .update({ status: 'completed', completed_at: new Date().toISOString() });
   const wave = await getWaveRow(db, waveId);
   if (wave && changed) siteChanged(wave.site_id);
   return mailWaveReport(db, mailer, waveId);

@@ -45,8 +45,12 @@ export async function pruneNow(db: Knex, opts: { now?: Date; userId?: number | n
       .where('created_at', '<', cutoff(now, s.outboxDays))
       .update({ text: '', html: null, attachments: '[]', pruned_at: now.toISOString() });
     const inviteCut = cutoff(now, s.invitesDays);
-    const invites = await trx('invites').where((q) => q.where('accepted_at', '<', inviteCut).orWhere('expires_at', '<', inviteCut)).delete();
-    const passwordResets = await trx('password_resets').where((q) => q.where('used_at', '<', inviteCut).orWhere('expires_at', '<', inviteCut)).delete();
+    const invites = await trx('invites')
+      .where((q) => q.where('accepted_at', '<', inviteCut).orWhere('expires_at', '<', inviteCut))
+      .delete();
+    const passwordResets = await trx('password_resets')
+      .where((q) => q.where('used_at', '<', inviteCut).orWhere('expires_at', '<', inviteCut))
+      .delete();
     const auditEntries = await trx('audit_log').where('at', '<', cutoff(now, s.auditDays)).delete();
     const c: PruneCounts = { idempotencyAnswers, outboxBodies, invites, passwordResets, auditEntries };
     await audit(trx, { userId: opts.userId ?? null, action: 'retention.pruned', detail: { ...c, settings: s } });
@@ -56,11 +60,23 @@ export async function pruneNow(db: Knex, opts: { now?: Date; userId?: number | n
 }
 
 export async function retentionState(db: Knex): Promise<RetentionState> {
-  const last = await db('audit_log').where({ action: 'retention.pruned' }).orderBy('id', 'desc').first<{ at: string; detail: string | null } | undefined>('at', 'detail');
+  const last = await db('audit_log')
+    .where({ action: 'retention.pruned' })
+    .orderBy('id', 'desc')
+    .first<{ at: string; detail: string | null } | undefined>('at', 'detail');
   let lastRun: RetentionState['lastRun'] = null;
   if (last?.detail) {
     const d = JSON.parse(last.detail) as PruneCounts;
-    lastRun = { at: last.at, counts: { idempotencyAnswers: d.idempotencyAnswers, outboxBodies: d.outboxBodies, invites: d.invites, passwordResets: d.passwordResets, auditEntries: d.auditEntries } };
+    lastRun = {
+      at: last.at,
+      counts: {
+        idempotencyAnswers: d.idempotencyAnswers,
+        outboxBodies: d.outboxBodies,
+        invites: d.invites,
+        passwordResets: d.passwordResets,
+        auditEntries: d.auditEntries,
+      },
+    };
   }
   return { settings: await getRetention(db), defaults: DEFAULT_RETENTION, lastRun };
 }

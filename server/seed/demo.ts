@@ -52,11 +52,19 @@ async function seedUnlocked(db: Knex, hasher: Hasher, extra: DemoSeeder[]): Prom
   const ids: Record<string, number> = {};
   const out: DemoSignIn[] = [];
   for (const u of DEMO_USERS) {
-    ids[u.role] = await insertUser(db, { name: u.name, email: u.email, badge: null, role: u.role, password_hash: passwordHash, pin_hash: null, created_at: now }, [siteId!]);
+    ids[u.role] = await insertUser(
+      db,
+      { name: u.name, email: u.email, badge: null, role: u.role, password_hash: passwordHash, pin_hash: null, created_at: now },
+      [siteId!],
+    );
     out.push({ role: u.role, name: u.name, signIn: u.email, secret: DEMO_PASSWORD });
   }
   for (const p of DEMO_PICKERS) {
-    ids[p.badge] = await insertUser(db, { name: p.name, email: null, badge: p.badge, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: now }, [siteId!]);
+    ids[p.badge] = await insertUser(
+      db,
+      { name: p.name, email: null, badge: p.badge, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: now },
+      [siteId!],
+    );
     out.push({ role: 'picker', name: p.name, signIn: `badge ${p.badge}`, secret: `PIN ${DEMO_PIN}` });
   }
   for (const seed of extra) await seed(db, siteId!, ids);

@@ -69,7 +69,11 @@ export async function siteCodeOf(db: Q, siteId: number): Promise<string | undefi
 /** Sites a user may work in: their own; admins see every site. */
 export async function listSitesOf(db: Q, userId: number, role: Role): Promise<DbSiteRow[]> {
   if (role === 'admin') return db<DbSiteRow>('sites').orderBy('name');
-  return db<DbSiteRow>('sites').join('user_sites', 'user_sites.site_id', 'sites.id').where('user_sites.user_id', userId).orderBy('sites.name').select('sites.*');
+  return db<DbSiteRow>('sites')
+    .join('user_sites', 'user_sites.site_id', 'sites.id')
+    .where('user_sites.user_id', userId)
+    .orderBy('sites.name')
+    .select('sites.*');
 }
 
 /**
@@ -125,7 +129,9 @@ export async function saveCartProfile(db: Q, siteId: number, cols: CartProfileCo
       const clash = await trx('cart_profiles').where({ site_id: siteId, name: cols.name }).first<{ id: number; archived: number | boolean } | undefined>();
       if (clash && !clash.archived) return null;
       if (clash) {
-        await trx('cart_profiles').where({ id: clash.id }).update({ ...cols, archived: false });
+        await trx('cart_profiles')
+          .where({ id: clash.id })
+          .update({ ...cols, archived: false });
         return clash.id;
       }
       const [row] = await trx('cart_profiles').insert({ site_id: siteId, ...cols, archived: false }, 'id');

@@ -23,7 +23,11 @@ export async function createSite(db: Q, userId: number, body: z.infer<typeof Cre
 
 export async function updateSite(db: Q, siteId: number, userId: number, body: z.infer<typeof UpdateSiteBody>): Promise<Site> {
   await mustSite(db, siteId);
-  await repo.updateSiteRow(db, siteId, { ...(body.name && { name: body.name }), ...(body.timezone && { timezone: body.timezone }), ...repo.settingsColumns(body.settings ?? {}) });
+  await repo.updateSiteRow(db, siteId, {
+    ...(body.name && { name: body.name }),
+    ...(body.timezone && { timezone: body.timezone }),
+    ...repo.settingsColumns(body.settings ?? {}),
+  });
   await audit(db, { siteId, userId, action: 'site.updated', detail: body });
   return mustSite(db, siteId);
 }

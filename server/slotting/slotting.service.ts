@@ -83,7 +83,11 @@ function summaryOf(r: Omit<DbSlottingRunRow, 'results' | 'inputs'> & { creator: 
 }
 
 /** A run left queued or running by a restart has nobody working on it: say so. */
-async function settleOrphan<T extends { id: number; site_id: number; status: string; error: string | null; finished_at: string | null; created_at: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
+async function settleOrphan<T extends { id: number; site_id: number; status: string; error: string | null; finished_at: string | null; created_at: string }>(
+  deps: Deps,
+  row: T,
+  job: JobRecord | null,
+): Promise<T> {
   // A row just saved may not have its job yet (the submit is a moment after the insert).
   if ((row.status === 'queued' || row.status === 'running') && !isActive(job) && Date.now() - Date.parse(row.created_at) > ORPHAN_AFTER_MS) {
     // The job may have ended a moment ago and be writing the row: read it again first.
@@ -123,7 +127,8 @@ export async function getRun(deps: Deps, siteId: number, id: number): Promise<Sl
 async function recordedHistory(db: Knex, siteId: number, from: string, to: string): Promise<HistoryOrder[]> {
   const start = Date.parse(`${from}T00:00:00Z`);
   const end = Date.parse(`${to}T00:00:00Z`) + DAY_MS;
-  if (!(end > start)) throw new AppError('validation', 'validation_failed', 'The history ends before it starts', [{ field: 'history.to', message: 'must not be before "from"' }]);
+  if (!(end > start))
+    throw new AppError('validation', 'validation_failed', 'The history ends before it starts', [{ field: 'history.to', message: 'must not be before "from"' }]);
   const lines = await recordedPickLines(db, siteId, new Date(start).toISOString(), new Date(end).toISOString());
   const byKey = new Map<string, HistoryOrder>();
   for (const l of lines) {
@@ -155,12 +160,20 @@ export async function createRun(deps: Deps, siteId: number, userId: number, body
     inputs.history.kind === 'recorded'
       ? await recordedHistory(deps.db, siteId, inputs.history.from, inputs.history.to)
       : await getHistory(deps.db, siteId, inputs.history.historyId);
-  if (history === null) throw new AppError('validation', 'validation_failed', 'Unknown order history', [{ field: 'history.historyId', message: 'upload the history first' }]);
+  if (history === null)
+    throw new AppError('validation', 'validation_failed', 'Unknown order history', [{ field: 'history.historyId', message: 'upload the history first' }]);
   if (history.length === 0) {
-    throw new AppError('unprocessable', 'empty_history', inputs.history.kind === 'recorded' ? 'No picks were recorded on this site between those dates; choose other dates or upload an order history' : 'The order history holds no orders');
+    throw new AppError(
+      'unprocessable',
+      'empty_history',
+      inputs.history.kind === 'recorded'
+        ? 'No picks were recorded on this site between those dates; choose other dates or upload an order history'
+        : 'The order history holds no orders',
+    );
   }
   const plan = await loadPlanIndex(deps.db, planId);
-  if (plan.siteId !== siteId) throw new AppError('validation', 'validation_failed', 'Unknown floor plan', [{ field: 'planId', message: 'not a plan of this site' }]);
+  if (plan.siteId !== siteId)
+    throw new AppError('validation', 'validation_failed', 'Unknown floor plan', [{ field: 'planId', message: 'not a plan of this site' }]);
   const site = (await getSiteRow(deps.db, siteId))!;
   const skus = await skuRowsOf(deps.db, siteId);
   if (skus.length === 0) throw new AppError('unprocessable', 'no_skus', 'This site has no SKU master yet; import it first');
@@ -181,8 +194,22 @@ export async function createRun(deps: Deps, siteId: number, userId: number, body
     walkingMps: site.walking_speed_mps,
     timeLimitMs: SEARCH_BUDGET_MS,
   };
-  const id = await insertRun(deps.db, { site_id: siteId, name: inputs.name, method: inputs.method, inputs: JSON.stringify(inputs), status: 'queued', created_by: userId, created_at: nowIso() });
-  await audit(deps.db, { siteId, userId, action: 'slotting.run', subject: `slotting run ${id}`, detail: { method: inputs.method, maxMoves: inputs.maxMoves, orders: history.length } });
+  const id = await insertRun(deps.db, {
+    site_id: siteId,
+    name: inputs.name,
+    method: inputs.method,
+    inputs: JSON.stringify(inputs),
+    status: 'queued',
+    created_by: userId,
+    created_at: nowIso(),
+  });
+  await audit(deps.db, {
+    siteId,
+    userId,
+    action: 'slotting.run',
+    subject: `slotting run ${id}`,
+    detail: { method: inputs.method, maxMoves: inputs.maxMoves, orders: history.length },
+  });
   const record = await deps.jobs.submit(SLOTTING_JOB, { siteId, runId: id, job } satisfies SlottingRunData, { siteId, key: runKey(id) });
   const row = (await getRunRow(deps.db, siteId, id))!;
   return summaryOf(row, liveOf(record));
@@ -233,16 +260,37 @@ export async function cancelRun(deps: Deps, siteId: number, id: number): Promise
  * Reads an uploaded order file as a history (the day of each order is the date of its `due` column,
  * UTC; orders without one count on the upload day). Every SKU must be in the site's SKU master.
  */
-export async function uploadHistory(deps: Deps, siteId: number, userId: number, file: { buffer: Uint8Array; originalname: string }): Promise<SlottingHistoryUpload> {
+export async function uploadHistory(
+  deps: Deps,
+  siteId: number,
+  userId: number,
+  file: { buffer: Uint8Array; originalname: string },
+): Promise<SlottingHistoryUpload> {
   const read = await readTableFile(file.buffer, file.originalname, 'orders');
   if ('issues' in read) throw new AppError('validation', 'file_unreadable', 'The order history cannot be read', read.issues.slice(0, 50));
   const known = new Set((await skuRowsOf(deps.db, siteId)).map((s) => s.sku));
   const checked = validateOrderRows('orders', read.rows, (sku) => known.has(sku));
-  if (checked.errors.length > 0) throw new AppError('validation', 'file_invalid', `The order history has ${checked.errors.length} problem(s); nothing was saved`, checked.errors.slice(0, 50));
+  if (checked.errors.length > 0)
+    throw new AppError(
+      'validation',
+      'file_invalid',
+      `The order history has ${checked.errors.length} problem(s); nothing was saved`,
+      checked.errors.slice(0, 50),
+    );
   if (checked.orders.length === 0) throw new AppError('validation', 'file_invalid', 'The order history holds no orders');
   const today = Math.floor(Date.now() / DAY_MS);
-  const orders: HistoryOrder[] = checked.orders.map((o) => ({ ref: o.ref, day: o.due === null ? today : Math.floor(Date.parse(o.due) / DAY_MS), lines: o.lines }));
-  const historyId = await insertHistory(deps.db, { site_id: siteId, file_name: file.originalname.slice(0, 200), orders, created_by: userId, created_at: nowIso() });
+  const orders: HistoryOrder[] = checked.orders.map((o) => ({
+    ref: o.ref,
+    day: o.due === null ? today : Math.floor(Date.parse(o.due) / DAY_MS),
+    lines: o.lines,
+  }));
+  const historyId = await insertHistory(deps.db, {
+    site_id: siteId,
+    file_name: file.originalname.slice(0, 200),
+    orders,
+    created_by: userId,
+    created_at: nowIso(),
+  });
   const days = [...new Set(orders.map((o) => o.day))].sort((a, b) => a - b);
   return {
     historyId,
@@ -267,18 +315,25 @@ export async function applyRun(deps: Deps, siteId: number, userId: number, id: n
   if (!run.results) throw new AppError('conflict', 'run_not_done', 'This run has no results yet');
   if (run.appliedAt) throw new AppError('conflict', 'already_applied', `This run's moves were applied on ${run.appliedAt}`);
   const planId = await activePlanId(deps.db, siteId);
-  if (planId !== run.results.planId) throw new AppError('conflict', 'plan_changed', 'Another floor plan was activated since this run; start a new run on the active plan');
+  if (planId !== run.results.planId)
+    throw new AppError('conflict', 'plan_changed', 'Another floor plan was activated since this run; start a new run on the active plan');
   const wanted = chosenSkus === null ? run.results.moves : run.results.moves.filter((m) => chosenSkus.includes(m.sku));
-  if (wanted.length === 0) throw new AppError('validation', 'validation_failed', 'Choose at least one move', [{ field: 'skus', message: 'no move of this run matches' }]);
+  if (wanted.length === 0)
+    throw new AppError('validation', 'validation_failed', 'Choose at least one move', [{ field: 'skus', message: 'no move of this run matches' }]);
 
   const moving = new Set(wanted.map((m) => m.sku));
   const busy = (await openWaveSkus(deps.db, siteId)).filter((r) => moving.has(r.sku));
   if (busy.length > 0) {
     const waves = [...new Set(busy.map((b) => b.wave))];
-    throw new AppError('conflict', 'open_waves', `Waves ${waves.join(', ')} still have open lines of ${busy.length} SKU(s) that would move; finish or close them first`, {
-      waves,
-      skus: [...new Set(busy.map((b) => b.sku))].slice(0, 100),
-    });
+    throw new AppError(
+      'conflict',
+      'open_waves',
+      `Waves ${waves.join(', ')} still have open lines of ${busy.length} SKU(s) that would move; finish or close them first`,
+      {
+        waves,
+        skus: [...new Set(busy.map((b) => b.sku))].slice(0, 100),
+      },
+    );
   }
 
   return deps.db.transaction(async (trx) => {

@@ -19,8 +19,34 @@ const sheetOf = (rows: (string | number)[][]) => XLSX.utils.aoa_to_sheet(neutral
 /** Sheet names are at most 31 characters and unique. */
 const sheetName = (base: string, variant: number): string => (variant === 0 ? base : `${base} what-if ${variant}`).slice(0, 31);
 
-export const ROUTING_HEADER = ['method', 'label', 'total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms', 'note'];
-export const BATCHING_HEADER = ['batching', 'label', 'trips', 'orders', 'lines', 'total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms'];
+export const ROUTING_HEADER = [
+  'method',
+  'label',
+  'total m',
+  'm per trip',
+  'm per line',
+  '% above best',
+  '% above lower bound',
+  'picker hours',
+  'picker hours per day',
+  'compute ms',
+  'note',
+];
+export const BATCHING_HEADER = [
+  'batching',
+  'label',
+  'trips',
+  'orders',
+  'lines',
+  'total m',
+  'm per trip',
+  'm per line',
+  '% above best',
+  '% above lower bound',
+  'picker hours',
+  'picker hours per day',
+  'compute ms',
+];
 
 /** `timeZone`: the site's IANA zone; the created time is written in it, and the zone named. */
 export function studyWorkbook(study: StudyDetail & { results: StudyResults }, timeZone = 'UTC'): Buffer {
@@ -53,13 +79,39 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }, ti
     const routing = [
       [`${v.label}`],
       ROUTING_HEADER,
-      ...v.routing.map((r) => [r.key, r.label, r1(r.metres), r1(r.metresPerTrip), r2(r.metresPerLine), r2(r.aboveBestPct), r2(r.aboveBoundPct), r2(r.hours), r2(r.hoursPerDay), r0(r.ms), r.reason ?? '']),
+      ...v.routing.map((r) => [
+        r.key,
+        r.label,
+        r1(r.metres),
+        r1(r.metresPerTrip),
+        r2(r.metresPerLine),
+        r2(r.aboveBestPct),
+        r2(r.aboveBoundPct),
+        r2(r.hours),
+        r2(r.hoursPerDay),
+        r0(r.ms),
+        r.reason ?? '',
+      ]),
     ];
     XLSX.utils.book_append_sheet(wb, sheetOf(routing), sheetName('routing', vi));
     const batching = [
       [`${v.label}`],
       BATCHING_HEADER,
-      ...v.batching.map((b) => [b.method, BATCHING_LABELS[b.method], b.trips, b.orders, b.lines, r1(b.metres), r1(b.metresPerTrip), r2(b.metresPerLine), r2(b.aboveBestPct), r2(b.aboveBoundPct), r2(b.hours), r2(b.hoursPerDay), r0(b.ms)]),
+      ...v.batching.map((b) => [
+        b.method,
+        BATCHING_LABELS[b.method],
+        b.trips,
+        b.orders,
+        b.lines,
+        r1(b.metres),
+        r1(b.metresPerTrip),
+        r2(b.metresPerLine),
+        r2(b.aboveBestPct),
+        r2(b.aboveBoundPct),
+        r2(b.hours),
+        r2(b.hoursPerDay),
+        r0(b.ms),
+      ]),
     ];
     XLSX.utils.book_append_sheet(wb, sheetOf(batching), sheetName('batching', vi));
     const keys = v.routing.map((r) => r.key);
@@ -74,14 +126,43 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }, ti
   if (res.whatIf.length) {
     const rows = [
       ['what-if', 'method', 'plan as it is m', 'what-if m', 'difference m', 'difference %', 'difference picker hours per day', 'note'],
-      ...res.whatIf.map((w) => [w.label, w.methodLabel, r1(w.baseMetres), r1(w.metres), r1(w.deltaMetres), r2(w.deltaPct), r2(w.deltaHoursPerDay), w.note ?? '']),
+      ...res.whatIf.map((w) => [
+        w.label,
+        w.methodLabel,
+        r1(w.baseMetres),
+        r1(w.metres),
+        r1(w.deltaMetres),
+        r2(w.deltaPct),
+        r2(w.deltaHoursPerDay),
+        w.note ?? '',
+      ]),
     ];
     XLSX.utils.book_append_sheet(wb, sheetOf(rows), 'what-if');
   }
   if (res.recorded) {
     const rows = [
-      ['wave id', 'wave', 'trips', 'confirmed trips', 'planned m', 'planned m (confirmed trips)', 'walked m as confirmed', 'walked % above planned', 'default method today m'],
-      ...res.recorded.map((w) => [w.waveId, w.name, w.trips, w.confirmedTrips, r1(w.plannedMetres), r1(w.plannedConfirmedMetres), r1(w.walkedMetres), r2(w.walkedAbovePlannedPct), r1(w.defaultMetres)]),
+      [
+        'wave id',
+        'wave',
+        'trips',
+        'confirmed trips',
+        'planned m',
+        'planned m (confirmed trips)',
+        'walked m as confirmed',
+        'walked % above planned',
+        'default method today m',
+      ],
+      ...res.recorded.map((w) => [
+        w.waveId,
+        w.name,
+        w.trips,
+        w.confirmedTrips,
+        r1(w.plannedMetres),
+        r1(w.plannedConfirmedMetres),
+        r1(w.walkedMetres),
+        r2(w.walkedAbovePlannedPct),
+        r1(w.defaultMetres),
+      ]),
     ];
     XLSX.utils.book_append_sheet(wb, sheetOf(rows), 'recorded waves');
   }

@@ -24,22 +24,53 @@ export async function insertStudy(db: Q, row: Omit<DbStudyRow, 'id' | 'results' 
 }
 
 export const getStudyRow = (db: Q, siteId: number, id: number): Promise<(DbStudyRow & { creator: string | null }) | undefined> =>
-  db<DbStudyRow>('studies').leftJoin('users', 'users.id', 'studies.created_by').where({ 'studies.site_id': siteId, 'studies.id': id }).first('studies.*', 'users.name as creator');
+  db<DbStudyRow>('studies')
+    .leftJoin('users', 'users.id', 'studies.created_by')
+    .where({ 'studies.site_id': siteId, 'studies.id': id })
+    .first('studies.*', 'users.name as creator');
 
 export const listStudyRows = (db: Q, siteId: number): Promise<(Omit<DbStudyRow, 'results' | 'inputs'> & { creator: string | null })[]> =>
-  db('studies').leftJoin('users', 'users.id', 'studies.created_by').where({ 'studies.site_id': siteId }).orderBy('studies.id', 'desc')
-    .select('studies.id', 'studies.site_id', 'studies.name', 'studies.kind', 'studies.seed', 'studies.status', 'studies.error', 'studies.rerun_of', 'studies.created_by', 'studies.created_at', 'studies.finished_at', 'users.name as creator');
+  db('studies')
+    .leftJoin('users', 'users.id', 'studies.created_by')
+    .where({ 'studies.site_id': siteId })
+    .orderBy('studies.id', 'desc')
+    .select(
+      'studies.id',
+      'studies.site_id',
+      'studies.name',
+      'studies.kind',
+      'studies.seed',
+      'studies.status',
+      'studies.error',
+      'studies.rerun_of',
+      'studies.created_by',
+      'studies.created_at',
+      'studies.finished_at',
+      'users.name as creator',
+    );
 
 export async function setStudyStatus(db: Q, id: number, patch: Partial<Pick<DbStudyRow, 'status' | 'results' | 'error' | 'finished_at'>>): Promise<void> {
   await db('studies').where({ id }).update(patch);
 }
 
 /** Summary of a row; `live` is the in-memory progress of a study still running. */
-export function toSummary(r: Omit<DbStudyRow, 'results' | 'inputs'> & { creator: string | null }, live?: { progress: number; phase: string | null }): StudySummary {
+export function toSummary(
+  r: Omit<DbStudyRow, 'results' | 'inputs'> & { creator: string | null },
+  live?: { progress: number; phase: string | null },
+): StudySummary {
   return {
-    id: r.id, name: r.name, kind: r.kind, status: r.status, seed: r.seed,
-    progress: r.status === 'done' ? 1 : (live?.progress ?? 0), phase: live?.phase ?? null,
-    createdBy: r.creator, createdAt: r.created_at, finishedAt: r.finished_at, rerunOf: r.rerun_of, error: r.error,
+    id: r.id,
+    name: r.name,
+    kind: r.kind,
+    status: r.status,
+    seed: r.seed,
+    progress: r.status === 'done' ? 1 : (live?.progress ?? 0),
+    phase: live?.phase ?? null,
+    createdBy: r.creator,
+    createdAt: r.created_at,
+    finishedAt: r.finished_at,
+    rerunOf: r.rerun_of,
+    error: r.error,
   };
 }
 
@@ -64,7 +95,10 @@ export interface DbRecordedWave {
 
 /** Released waves (not cancelled) by id, or created within [from, to] (dates, inclusive). */
 export function recordedWaves(db: Q, siteId: number, sel: { waveIds?: number[]; from?: string; to?: string }): Promise<DbRecordedWave[]> {
-  const q = db('waves').where({ site_id: siteId }).whereNot({ status: 'cancelled' }).orderBy('id')
+  const q = db('waves')
+    .where({ site_id: siteId })
+    .whereNot({ status: 'cancelled' })
+    .orderBy('id')
     .select('id', 'name', 'plan_id', 'depot_idx', 'cart_totes', 'cart_max_kg', 'cart_max_litres', 'created_at');
   if (sel.waveIds?.length) q.whereIn('id', sel.waveIds);
   if (sel.from) q.where('created_at', '>=', sel.from);
@@ -84,7 +118,10 @@ export interface DbRecordedTrip {
 }
 
 export const tripsOfWaves = (db: Q, waveIds: number[]): Promise<DbRecordedTrip[]> =>
-  db<DbRecordedTrip>('trips').whereIn('wave_id', waveIds).whereNot({ status: 'cancelled' }).orderBy(['wave_id', 'n'])
+  db<DbRecordedTrip>('trips')
+    .whereIn('wave_id', waveIds)
+    .whereNot({ status: 'cancelled' })
+    .orderBy(['wave_id', 'n'])
     .select('id', 'wave_id', 'n', 'status', 'planned_metres', 'walked_metres');
 
 export interface DbRecordedStop {

@@ -25,11 +25,33 @@ import {
   type StudySummary,
 } from '../../shared/studies';
 import type { PlanGeometry } from '../core/plan/types';
-import { applyChanges, buildPlan, StudyInputError, tripRoute, type BuiltPlan, type RecordedTrip, type StudyEngineInput, type StudyPlanInput, type StudyWave } from './study-engine';
+import {
+  applyChanges,
+  buildPlan,
+  StudyInputError,
+  tripRoute,
+  type BuiltPlan,
+  type RecordedTrip,
+  type StudyEngineInput,
+  type StudyPlanInput,
+  type StudyWave,
+} from './study-engine';
 import { generateStudyOrders } from './generate-orders';
 import type { StudyProgress } from './study.worker';
 import {
-  deleteStudyRow, getStudyRow, insertStudy, linesOfTrips, listStudyRows, orderFacts, recordedWaves, setStudyStatus, skuUnits, stopsOfTrips, toDetail, toSummary, tripsOfWaves,
+  deleteStudyRow,
+  getStudyRow,
+  insertStudy,
+  linesOfTrips,
+  listStudyRows,
+  orderFacts,
+  recordedWaves,
+  setStudyStatus,
+  skuUnits,
+  stopsOfTrips,
+  toDetail,
+  toSummary,
+  tripsOfWaves,
 } from './studies.repository';
 
 /** A queued or running row without a live job this long after it was saved was cut off. */
@@ -51,14 +73,19 @@ function binsOf(raw: string): string[] {
   } catch {
     // plain text below
   }
-  return raw.split(',').map((s) => s.trim()).filter(Boolean);
+  return raw
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
 }
 
 async function storedPlanInput(db: Knex, siteId: number, planId: number, depotIdx: number): Promise<StudyPlanInput> {
   const row = await getPlanRowById(db, planId);
-  if (!row || row.site_id !== siteId) throw new AppError('validation', 'validation_failed', 'Unknown floor plan', [{ field: 'work.plan.planId', message: 'no such plan on this site' }]);
+  if (!row || row.site_id !== siteId)
+    throw new AppError('validation', 'validation_failed', 'Unknown floor plan', [{ field: 'work.plan.planId', message: 'no such plan on this site' }]);
   const plan = await loadPlanIndex(db, planId);
-  if (depotIdx >= plan.geometry.depots.length) throw new AppError('validation', 'validation_failed', 'The plan has no such depot', [{ field: 'depot', message: 'no such depot' }]);
+  if (depotIdx >= plan.geometry.depots.length)
+    throw new AppError('validation', 'validation_failed', 'The plan has no such depot', [{ field: 'depot', message: 'no such depot' }]);
   return { geometry: plan.geometry, closures: plan.closures, depotIdx };
 }
 
@@ -82,15 +109,23 @@ async function recordedWork(db: Knex, siteId: number, inputs: StudyInputs): Prom
   if (inputs.work.kind !== 'recorded') throw new Error('not a recorded study');
   const sel = inputs.work;
   if (!sel.waveIds?.length && !sel.from && !sel.to) {
-    throw new AppError('validation', 'validation_failed', 'Choose waves by hand or a date range', [{ field: 'work.waveIds', message: 'choose waves or dates' }]);
+    throw new AppError('validation', 'validation_failed', 'Choose waves by hand or a date range', [
+      { field: 'work.waveIds', message: 'choose waves or dates' },
+    ]);
   }
   const rows = await recordedWaves(db, siteId, sel);
-  if (rows.length === 0) throw new AppError('validation', 'no_waves', 'No released waves match; choose other waves or dates', [{ field: 'work', message: 'no waves' }]);
+  if (rows.length === 0)
+    throw new AppError('validation', 'no_waves', 'No released waves match; choose other waves or dates', [{ field: 'work', message: 'no waves' }]);
   const plans = new Set(rows.map((w) => w.plan_id));
   if (plans.size > 1) {
-    throw new AppError('validation', 'mixed_plans', `These waves were planned on ${plans.size} different floor plans; a study compares waves of one plan`, [{ field: 'work', message: 'waves of several plans' }]);
+    throw new AppError('validation', 'mixed_plans', `These waves were planned on ${plans.size} different floor plans; a study compares waves of one plan`, [
+      { field: 'work', message: 'waves of several plans' },
+    ]);
   }
-  const trips = await tripsOfWaves(db, rows.map((w) => w.id));
+  const trips = await tripsOfWaves(
+    db,
+    rows.map((w) => w.id),
+  );
   const tripIds = trips.map((t) => t.id);
   const [stops, lines, units] = await Promise.all([stopsOfTrips(db, tripIds), linesOfTrips(db, tripIds), skuUnits(db, siteId)]);
   const unitOf = new Map(units.map((u) => [u.sku, u]));
@@ -170,8 +205,15 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
     }
   });
   return {
-    base, whatIfs: inputs.whatIfs, waves, tripsFrom: inputs.work.kind === 'recorded' ? 'recorded' : inputs.work.batching,
-    routing: inputs.routing, batching: inputs.batching, speeds, dayScale, seed: inputs.seed,
+    base,
+    whatIfs: inputs.whatIfs,
+    waves,
+    tripsFrom: inputs.work.kind === 'recorded' ? 'recorded' : inputs.work.batching,
+    routing: inputs.routing,
+    batching: inputs.batching,
+    speeds,
+    dayScale,
+    seed: inputs.seed,
   };
 }
 
@@ -241,8 +283,15 @@ export async function createStudy(deps: Deps, siteId: number, userId: number, bo
   // Prepared here to answer a bad request at once; the job prepares it again wherever it runs.
   await prepareWork(deps.db, siteId, inputs);
   const id = await insertStudy(deps.db, {
-    site_id: siteId, name: inputs.name, kind: inputs.work.kind, seed: inputs.seed, inputs: JSON.stringify(inputs), status: 'queued',
-    rerun_of: rerunOf, created_by: userId, created_at: nowIso(),
+    site_id: siteId,
+    name: inputs.name,
+    kind: inputs.work.kind,
+    seed: inputs.seed,
+    inputs: JSON.stringify(inputs),
+    status: 'queued',
+    rerun_of: rerunOf,
+    created_by: userId,
+    created_at: nowIso(),
   });
   await deps.jobs.submit(STUDY_JOB, { siteId, studyId: id } satisfies StudyJobData, { siteId, key: studyKey(id) });
   return (await getStudySummary(deps, siteId, id))!;
@@ -257,7 +306,11 @@ async function getStudySummary(deps: Deps, siteId: number, id: number): Promise<
  * A row still queued or running whose job has ended or is unknown was cut off (by a restart of the one
  * SQLite process; on PostgreSQL a dead instance's job is taken over by another and stays live).
  */
-async function settleOrphan<T extends { id: number; site_id: number; status: string; created_at: string }>(deps: Deps, row: T, job: JobRecord | null): Promise<T> {
+async function settleOrphan<T extends { id: number; site_id: number; status: string; created_at: string }>(
+  deps: Deps,
+  row: T,
+  job: JobRecord | null,
+): Promise<T> {
   // A row just saved may not have its job yet (the submit is a moment after the insert).
   if ((row.status === 'queued' || row.status === 'running') && !isActive(job) && Date.now() - Date.parse(row.created_at) > ORPHAN_AFTER_MS) {
     // The job may have ended a moment ago and be writing the row: read it again first.
@@ -361,7 +414,12 @@ async function doneStudy(db: Knex, siteId: number, id: number): Promise<StudyDet
 }
 
 /** The plan of one variant (geometry and closures) for the maps. */
-export async function studyPlan(db: Knex, siteId: number, id: number, variant: string): Promise<{ geometry: PlanGeometry; closures: { kind: 'aisle' | 'cross_aisle'; code: string; from: number; to: number }[] }> {
+export async function studyPlan(
+  db: Knex,
+  siteId: number,
+  id: number,
+  variant: string,
+): Promise<{ geometry: PlanGeometry; closures: { kind: 'aisle' | 'cross_aisle'; code: string; from: number; to: number }[] }> {
   const detail = await doneStudy(db, siteId, id);
   const plan = await variantPlan(db, siteId, detail, variant);
   return { geometry: plan.input.geometry, closures: plan.input.closures };

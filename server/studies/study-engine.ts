@@ -16,8 +16,16 @@ import type { DistanceMatrix } from '../core/matrix';
 import type { PlanClosure, PlanGeometry } from '../core/plan/types';
 import { isNotApplicable } from '../core/policy/types';
 import {
-  buildSiteModel, closedWalkMetres, routeTrip as routeOnModel, SiteModelError, slotOrders, slotReason, tripMatrixOf, walkPolyline,
-  type SiteModel, type TripRoute,
+  buildSiteModel,
+  closedWalkMetres,
+  routeTrip as routeOnModel,
+  SiteModelError,
+  slotOrders,
+  slotReason,
+  tripMatrixOf,
+  walkPolyline,
+  type SiteModel,
+  type TripRoute,
 } from '../core/site/index';
 import { HELD_KARP_MAX_POINTS, heldKarpBound, solveTour } from '../core/tour/index';
 import { estimateMinutes, type PlannerOrder, type SiteSpeeds } from '../waves/wave-planner';
@@ -122,19 +130,26 @@ export function applyChanges(base: StudyPlanInput, changes: readonly PlanChange[
   changes.forEach((c, j) => {
     if (c.kind === 'close_aisle') {
       const aisle = geometry.aisles.find((a) => a.code === c.aisle);
-      if (!aisle) throw new StudyInputError(`aisle ${c.aisle} is not on the plan (aisles ${geometry.aisles[0]?.code ?? ''}–${geometry.aisles.at(-1)?.code ?? ''})`, `changes.${j}.aisle`);
+      if (!aisle)
+        throw new StudyInputError(
+          `aisle ${c.aisle} is not on the plan (aisles ${geometry.aisles[0]?.code ?? ''}–${geometry.aisles.at(-1)?.code ?? ''})`,
+          `changes.${j}.aisle`,
+        );
       if (!(c.toM > c.fromM)) throw new StudyInputError(`the closed stretch of aisle ${c.aisle} must end after it starts`, `changes.${j}.toM`);
       closures.push({ kind: 'aisle', code: c.aisle, from: c.fromM, to: c.toM });
     } else if (c.kind === 'add_cross_aisle') {
-      if (!(c.yM > yMin && c.yM < yMax)) throw new StudyInputError(`a cross aisle at y = ${c.yM} m lies outside the aisles (y ${yMin}–${yMax} m)`, `changes.${j}.yM`);
+      if (!(c.yM > yMin && c.yM < yMax))
+        throw new StudyInputError(`a cross aisle at y = ${c.yM} m lies outside the aisles (y ${yMin}–${yMax} m)`, `changes.${j}.yM`);
       const there = geometry.crossAisles.find((x) => Math.abs(x.y - c.yM) < 0.5);
       if (there) throw new StudyInputError(`the plan already has a cross aisle at y = ${there.y} m; choose another place`, `changes.${j}.yM`);
       geometry.crossAisles.push({ code: `added-${++added}`, y: c.yM, xStart: xMin, xEnd: xMax });
     } else {
       const depot = geometry.depots[base.depotIdx];
       if (!depot) throw new StudyInputError('the plan has no depot to move', `changes.${j}`);
-      if (!(c.xM >= pxMin && c.xM <= pxMax)) throw new StudyInputError(`the depot at x = ${c.xM} m would lie outside the plan (x ${pxMin}–${pxMax} m)`, `changes.${j}.xM`);
-      if (!(c.yM >= pyMin && c.yM <= pyMax)) throw new StudyInputError(`the depot at y = ${c.yM} m would lie outside the plan (y ${pyMin}–${pyMax} m)`, `changes.${j}.yM`);
+      if (!(c.xM >= pxMin && c.xM <= pxMax))
+        throw new StudyInputError(`the depot at x = ${c.xM} m would lie outside the plan (x ${pxMin}–${pxMax} m)`, `changes.${j}.xM`);
+      if (!(c.yM >= pyMin && c.yM <= pyMax))
+        throw new StudyInputError(`the depot at y = ${c.yM} m would lie outside the plan (y ${pyMin}–${pyMax} m)`, `changes.${j}.yM`);
       geometry.depots[base.depotIdx] = { code: depot.code, x: c.xM, y: c.yM };
     }
   });
@@ -166,7 +181,12 @@ export type RouteAnswer = TripRoute;
  */
 export function routeTrip(plan: BuiltPlan, nodes: readonly number[], m: DistanceMatrix, key: RoutingMethodKey, seed: number): RouteAnswer {
   return routeOnModel(plan, nodes, key, {
-    matrix: m, seed, clock: stepClock, timeLimitMs: UNLIMITED_STEPS, deepTimeLimitMs: DEEP_STEPS, restartFromSShape: key === DEFAULT_ROUTING,
+    matrix: m,
+    seed,
+    clock: stepClock,
+    timeLimitMs: UNLIMITED_STEPS,
+    deepTimeLimitMs: DEEP_STEPS,
+    restartFromSShape: key === DEFAULT_ROUTING,
   });
 }
 
@@ -191,17 +211,30 @@ interface WorkTrip {
 }
 
 /** Trips of one wave by a batching method: distinct stop nodes (ascending) per batch. */
-function batchWave(plan: BuiltPlan, orders: Order[], cart: Cart, method: BatchingName, wave: number): { trips: WorkTrip[]; unplaced: { order: string; reason: string }[] } {
+function batchWave(
+  plan: BuiltPlan,
+  orders: Order[],
+  cart: Cart,
+  method: BatchingName,
+  wave: number,
+): { trips: WorkTrip[]; unplaced: { order: string; reason: string }[] } {
   const r = batchOrders({
-    orders, cart, method, depotNode: plan.depotNode, distance: plan.distance, clock: stepClock(), timeLimitMs: method === 'search' ? SEARCH_STEPS : UNLIMITED_STEPS,
+    orders,
+    cart,
+    method,
+    depotNode: plan.depotNode,
+    distance: plan.distance,
+    clock: stepClock(),
+    timeLimitMs: method === 'search' ? SEARCH_STEPS : UNLIMITED_STEPS,
   });
   const trips = r.batches.map((b) => {
     const nodes = new Set<number>();
     let lines = 0;
-    for (const i of b.orders) for (const l of orders[i]!.lines) {
-      nodes.add(l.node);
-      lines++;
-    }
+    for (const i of b.orders)
+      for (const l of orders[i]!.lines) {
+        nodes.add(l.node);
+        lines++;
+      }
     return { wave, orders: b.orders.length, lines, nodes: [...nodes].filter((v) => v !== plan.depotNode).sort((a, b2) => a - b2) };
   });
   return { trips, unplaced: r.unplaced.map((u) => ({ order: u.order, reason: u.reason })) };
@@ -286,9 +319,19 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       const hours = hoursOf(figures, input.speeds);
       const lines = trips.reduce((s, t) => s + t.lines, 0);
       batching.push({
-        method, label: BATCHING_LABELS[method], trips: trips.length, orders: trips.reduce((s, t) => s + t.orders, 0), lines, metres,
-        metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBestPct: 0,
-        aboveBoundPct: pct(metres, bound), hours, hoursPerDay: hours * input.dayScale, ms: performance.now() - tb,
+        method,
+        label: BATCHING_LABELS[method],
+        trips: trips.length,
+        orders: trips.reduce((s, t) => s + t.orders, 0),
+        lines,
+        metres,
+        metresPerTrip: trips.length ? metres / trips.length : 0,
+        metresPerLine: lines ? metres / lines : 0,
+        aboveBestPct: 0,
+        aboveBoundPct: pct(metres, bound),
+        hours,
+        hoursPerDay: hours * input.dayScale,
+        ms: performance.now() - tb,
       });
       tick(share / 2, `${v.label}: batching by ${BATCHING_LABELS[method]}, trips routed`);
     }
@@ -329,7 +372,9 @@ export function runStudy(input: StudyEngineInput): StudyResults {
               lines -= lost.length;
               unplaced.push({ order: ref, reason: slotReason('unreachable', lost[0]!.bin, lost[0]!.sku) });
             }
-            notes.push(`${v.label}: ${cutStops} stop(s) of trip ${ti + 1} of ${w.name} cannot be reached from the depot (cut off by a closed stretch) and were left out of its route`);
+            notes.push(
+              `${v.label}: ${cutStops} stop(s) of trip ${ti + 1} of ${w.name} cannot be reached from the depot (cut off by a closed stretch) and were left out of its route`,
+            );
           }
           work.push({ wave: wi + 1, orders: t.orders.length, lines: Math.max(0, lines), nodes: [...nodes].sort((a, b) => a - b) });
         });
@@ -361,49 +406,97 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       const lowerBound = tripBound(m, Math.min(...known));
       tripReasons.push(reasons);
       // The routing share was sized on orders (trips are not known before batching): spread it over the trips.
-      tick(tripCount / Math.max(1, work.length), `${v.label}: wave ${t.wave} of ${input.waves.length}, trip ${ti + 1} of ${work.length} routed by ${routingKeys.length} methods`);
+      tick(
+        tripCount / Math.max(1, work.length),
+        `${v.label}: wave ${t.wave} of ${input.waves.length}, trip ${ti + 1} of ${work.length} routed by ${routingKeys.length} methods`,
+      );
       return { n: ti + 1, wave: t.wave, orders: t.orders, lines: t.lines, nodes: t.nodes, lowerBound, metres, visits };
     });
     const lowerBound = trips.reduce((s, t) => s + t.lowerBound, 0);
     const lines = trips.reduce((s, t) => s + t.lines, 0);
-    const routing: RoutingRow[] = routingKeys.filter((k) => input.routing.includes(k) || k === DEFAULT_ROUTING).map((key) => {
-      const missing = trips.filter((t) => t.metres[key] === null);
-      const row: RoutingRow = {
-        key, label: ROUTING_LABELS[key], applicable: missing.length === 0 && trips.length > 0, reason: null, metres: null, metresPerTrip: null,
-        metresPerLine: null, aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null, ms: ms.get(key)!, solved: null,
-      };
-      if (key === 'exact' && missing.length && trips.length > 0) {
-        // Held–Karp on the trips it can solve; the others (too many stops) at their lower bound.
-        const per = trips.map((t) => t.metres[key] ?? t.lowerBound);
-        const metres = per.reduce((s, x) => s + x, 0);
-        const hours = hoursOf(trips.map((t, i) => ({ lines: t.lines, stops: t.nodes.length, metres: per[i]! })), input.speeds);
-        const solved = trips.length - missing.length;
-        return {
-          ...row, solved, metres, metresPerTrip: metres / trips.length, metresPerLine: lines ? metres / lines : 0, aboveBoundPct: pct(metres, lowerBound), hours, hoursPerDay: hours * input.dayScale,
-          reason: `solved ${solved} of ${trips.length} trips exactly; the other ${missing.length} (${tripReasons[missing[0]!.n - 1]![key] ?? 'too many stops'}) are counted at their lower bound, so this total is a lower bound too`,
+    const routing: RoutingRow[] = routingKeys
+      .filter((k) => input.routing.includes(k) || k === DEFAULT_ROUTING)
+      .map((key) => {
+        const missing = trips.filter((t) => t.metres[key] === null);
+        const row: RoutingRow = {
+          key,
+          label: ROUTING_LABELS[key],
+          applicable: missing.length === 0 && trips.length > 0,
+          reason: null,
+          metres: null,
+          metresPerTrip: null,
+          metresPerLine: null,
+          aboveBestPct: null,
+          aboveBoundPct: null,
+          hours: null,
+          hoursPerDay: null,
+          ms: ms.get(key)!,
+          solved: null,
         };
-      }
-      if (missing.length) {
-        const why = tripReasons[missing[0]!.n - 1]![key] ?? 'does not apply';
-        row.reason = missing.length === trips.length ? why : `${missing.length} of ${trips.length} trips: ${why}`;
-        return row;
-      }
-      const metres = trips.reduce((s, t) => s + t.metres[key]!, 0);
-      const hours = hoursOf(trips.map((t) => ({ lines: t.lines, stops: t.nodes.length, metres: t.metres[key]! })), input.speeds);
-      return { ...row, metres, metresPerTrip: trips.length ? metres / trips.length : 0, metresPerLine: lines ? metres / lines : 0, aboveBoundPct: pct(metres, lowerBound), hours, hoursPerDay: hours * input.dayScale };
-    });
+        if (key === 'exact' && missing.length && trips.length > 0) {
+          // Held–Karp on the trips it can solve; the others (too many stops) at their lower bound.
+          const per = trips.map((t) => t.metres[key] ?? t.lowerBound);
+          const metres = per.reduce((s, x) => s + x, 0);
+          const hours = hoursOf(
+            trips.map((t, i) => ({ lines: t.lines, stops: t.nodes.length, metres: per[i]! })),
+            input.speeds,
+          );
+          const solved = trips.length - missing.length;
+          return {
+            ...row,
+            solved,
+            metres,
+            metresPerTrip: metres / trips.length,
+            metresPerLine: lines ? metres / lines : 0,
+            aboveBoundPct: pct(metres, lowerBound),
+            hours,
+            hoursPerDay: hours * input.dayScale,
+            reason: `solved ${solved} of ${trips.length} trips exactly; the other ${missing.length} (${tripReasons[missing[0]!.n - 1]![key] ?? 'too many stops'}) are counted at their lower bound, so this total is a lower bound too`,
+          };
+        }
+        if (missing.length) {
+          const why = tripReasons[missing[0]!.n - 1]![key] ?? 'does not apply';
+          row.reason = missing.length === trips.length ? why : `${missing.length} of ${trips.length} trips: ${why}`;
+          return row;
+        }
+        const metres = trips.reduce((s, t) => s + t.metres[key]!, 0);
+        const hours = hoursOf(
+          trips.map((t) => ({ lines: t.lines, stops: t.nodes.length, metres: t.metres[key]! })),
+          input.speeds,
+        );
+        return {
+          ...row,
+          metres,
+          metresPerTrip: trips.length ? metres / trips.length : 0,
+          metresPerLine: lines ? metres / lines : 0,
+          aboveBoundPct: pct(metres, lowerBound),
+          hours,
+          hoursPerDay: hours * input.dayScale,
+        };
+      });
     // A partly solved exact row is a bound, not a route: it is not "the best".
     const best = Math.min(...routing.filter((r) => r.metres !== null && r.solved === null).map((r) => r.metres!));
     for (const r of routing) if (r.metres !== null) r.aboveBestPct = pct(r.metres, best);
 
     if (v.key === 'base' && input.tripsFrom === 'recorded') recorded = recordedRows(plan, input.waves, trips);
     variants.push({
-      key: v.key, label: v.label, changes: v.changes,
+      key: v.key,
+      label: v.label,
+      changes: v.changes,
       layout: {
-        aisles: planInput.geometry.aisles.length, crossAisles: planInput.geometry.crossAisles.length, bins: planInput.geometry.bins.length,
-        blocks: isNotApplicable(plan.layout) ? null : plan.layout.blocks, policyNote: isNotApplicable(plan.layout) ? plan.layout.reason : null,
+        aisles: planInput.geometry.aisles.length,
+        crossAisles: planInput.geometry.crossAisles.length,
+        bins: planInput.geometry.bins.length,
+        blocks: isNotApplicable(plan.layout) ? null : plan.layout.blocks,
+        policyNote: isNotApplicable(plan.layout) ? plan.layout.reason : null,
       },
-      depotNode: plan.depotNode, routing, batching, trips, unplaced: oncePerOrder(unplaced), lowerBound, lines,
+      depotNode: plan.depotNode,
+      routing,
+      batching,
+      trips,
+      unplaced: oncePerOrder(unplaced),
+      lowerBound,
+      lines,
     });
   }
 
@@ -429,29 +522,62 @@ function whatIfRows(variants: StudyVariant[]): WhatIfRow[] {
   const rows: WhatIfRow[] = [];
   for (const v of variants.slice(1)) {
     // Orders unreachable on one plan leave it with less work: a difference would not be like for like.
-    const unlike = (a: number, b: number) => (a === b ? null : `the plans carry different work (${b} lines here, ${a} on the plan as it is; ${v.unplaced.length} order(s) cannot be placed): compare metres per line instead`);
+    const unlike = (a: number, b: number) =>
+      a === b
+        ? null
+        : `the plans carry different work (${b} lines here, ${a} on the plan as it is; ${v.unplaced.length} order(s) cannot be placed): compare metres per line instead`;
     for (const r of v.routing) {
       const b = base.routing.find((x) => x.key === r.key);
       // A method that does not apply on either plan gives no difference: the row says why.
-      const why = r.metres === null && b && b.metres === null
-        ? `does not apply on either plan: ${r.reason ?? 'no route'}`
-        : r.metres === null ? `does not apply on the what-if: ${r.reason ?? 'no route'}`
-        : b && b.metres === null ? `does not apply on the plan as it is: ${b.reason ?? 'no route'}`
-          : r.solved !== null || (b && b.solved !== null) ? 'Held–Karp solved only part of the trips: a difference of lower bounds' : null;
+      const why =
+        r.metres === null && b && b.metres === null
+          ? `does not apply on either plan: ${r.reason ?? 'no route'}`
+          : r.metres === null
+            ? `does not apply on the what-if: ${r.reason ?? 'no route'}`
+            : b && b.metres === null
+              ? `does not apply on the plan as it is: ${b.reason ?? 'no route'}`
+              : r.solved !== null || (b && b.solved !== null)
+                ? 'Held–Karp solved only part of the trips: a difference of lower bounds'
+                : null;
       rows.push(diffRow(v, r.key, r.label, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, why ?? unlike(base.lines, v.lines)));
     }
     for (const r of v.batching) {
       const b = base.batching.find((x) => x.method === r.method);
-      rows.push(diffRow(v, `batching:${r.method}`, `${r.label} (routed by the default method)`, b?.metres ?? null, r.metres, b?.hoursPerDay ?? null, r.hoursPerDay, unlike(b?.lines ?? 0, r.lines)));
+      rows.push(
+        diffRow(
+          v,
+          `batching:${r.method}`,
+          `${r.label} (routed by the default method)`,
+          b?.metres ?? null,
+          r.metres,
+          b?.hoursPerDay ?? null,
+          r.hoursPerDay,
+          unlike(b?.lines ?? 0, r.lines),
+        ),
+      );
     }
   }
   return rows;
 }
 
-function diffRow(v: StudyVariant, method: string, methodLabel: string, baseMetres: number | null, metres: number | null, baseHours: number | null, hours: number | null, note: string | null): WhatIfRow {
+function diffRow(
+  v: StudyVariant,
+  method: string,
+  methodLabel: string,
+  baseMetres: number | null,
+  metres: number | null,
+  baseHours: number | null,
+  hours: number | null,
+  note: string | null,
+): WhatIfRow {
   const both = note === null && baseMetres !== null && metres !== null;
   return {
-    variant: v.key, label: v.label, method, methodLabel, baseMetres, metres,
+    variant: v.key,
+    label: v.label,
+    method,
+    methodLabel,
+    baseMetres,
+    metres,
     deltaMetres: both ? metres - baseMetres : null,
     deltaPct: both ? pct(metres, baseMetres) : null,
     deltaHoursPerDay: both && baseHours !== null && hours !== null ? hours - baseHours : null,
@@ -475,9 +601,14 @@ function recordedRows(plan: BuiltPlan, waves: readonly StudyWave[], trips: reado
     const mine = trips.filter((t) => t.wave === wi + 1);
     const defaults = mine.map((t) => t.metres[DEFAULT_ROUTING] ?? null);
     return {
-      waveId: w.id, name: w.name, trips: rec.length, confirmedTrips: confirmed,
-      plannedMetres: rec.reduce((s, t) => s + t.plannedMetres, 0), plannedConfirmedMetres: plannedConfirmed,
-      walkedMetres: confirmed ? walked : null, walkedAbovePlannedPct: confirmed && plannedConfirmed > 0 ? pct(walked, plannedConfirmed) : null,
+      waveId: w.id,
+      name: w.name,
+      trips: rec.length,
+      confirmedTrips: confirmed,
+      plannedMetres: rec.reduce((s, t) => s + t.plannedMetres, 0),
+      plannedConfirmedMetres: plannedConfirmed,
+      walkedMetres: confirmed ? walked : null,
+      walkedAbovePlannedPct: confirmed && plannedConfirmed > 0 ? pct(walked, plannedConfirmed) : null,
       defaultMetres: defaults.every((d) => d !== null) ? defaults.reduce<number>((s, d) => s + d!, 0) : null,
     };
   });
@@ -495,14 +626,22 @@ export function confirmedWalk(plan: BuiltPlan, confirmedBins: readonly string[][
 }
 
 /** Polyline and numbered stops of one trip by one method, for the side-by-side maps. */
-export function tripRoute(plan: BuiltPlan, trip: StudyTrip, key: RoutingMethodKey, seed: number): { points: { x: number; y: number }[]; stops: { n: number; x: number; y: number }[]; metres: number | null; reason: string | null } {
+export function tripRoute(
+  plan: BuiltPlan,
+  trip: StudyTrip,
+  key: RoutingMethodKey,
+  seed: number,
+): { points: { x: number; y: number }[]; stops: { n: number; x: number; y: number }[]; metres: number | null; reason: string | null } {
   const m = matrixOfTrip(plan, trip.nodes);
   const r = routeTrip(plan, trip.nodes, m, key, seed);
   if (r.length === null) return { points: [], stops: [], metres: null, reason: r.reason };
   const g = plan.graph;
   const stops = r.visits.map((k, i) => ({ n: i + 1, x: g.x[trip.nodes[k]!]!, y: g.y[trip.nodes[k]!]! }));
   if (r.path) return { points: r.path, stops, metres: r.length, reason: null };
-  const poly = walkPolyline(plan, r.visits.map((k) => trip.nodes[k]!));
+  const poly = walkPolyline(
+    plan,
+    r.visits.map((k) => trip.nodes[k]!),
+  );
   const points: { x: number; y: number }[] = [];
   for (let i = 0; i + 1 < poly.length; i += 2) points.push({ x: poly[i]!, y: poly[i + 1]! });
   return { points, stops, metres: r.length, reason: null };

@@ -18,7 +18,9 @@ export function buildOpenApi(routes: readonly AnyRoute[], version: string): unkn
       ...(params.length ? { parameters: params.map((name) => ({ name, in: 'path' as const, required: true, schema: { type: 'string' as const } })) } : {}),
       request: {
         ...(r.body && !r.upload ? { body: { content: { 'application/json': { schema: r.body } } } } : {}),
-        ...(r.upload ? { body: { content: { 'multipart/form-data': { schema: { type: 'object', properties: { file: { type: 'string', format: 'binary' } } } } } } } : {}),
+        ...(r.upload
+          ? { body: { content: { 'multipart/form-data': { schema: { type: 'object', properties: { file: { type: 'string', format: 'binary' } } } } } } }
+          : {}),
         ...(r.query ? { query: r.query as never } : {}),
       },
       responses: {

@@ -27,7 +27,9 @@ export async function findUserByEmail(db: Q, email: string): Promise<DbUserRow |
 
 /** Badge codes are stored normalised (upper-case, trimmed), so any spelling of the code finds its user. */
 export async function findUserByBadge(db: Q, badge: string): Promise<DbUserRow | undefined> {
-  return db<DbUserRow>('users').where({ badge: normaliseBadge(badge) }).first();
+  return db<DbUserRow>('users')
+    .where({ badge: normaliseBadge(badge) })
+    .first();
 }
 
 export async function findUserById(db: Q, id: number): Promise<DbUserRow | undefined> {

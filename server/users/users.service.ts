@@ -5,20 +5,36 @@ import { audit } from '../audit/audit';
 import { newToken } from '../auth/tokens';
 import type { Deps } from '../deps';
 import { AppError, notFound } from '../http/errors';
-import { bumpTokenVersion, findUserByBadge, findUserByEmail, findUserById, insertUser, setUserSites, siteIdsOf, toUserRow, updateUser } from './users.repository';
+import {
+  bumpTokenVersion,
+  findUserByBadge,
+  findUserByEmail,
+  findUserById,
+  insertUser,
+  setUserSites,
+  siteIdsOf,
+  toUserRow,
+  updateUser,
+} from './users.repository';
 
 const INVITE_TTL_MS = 72 * 60 * 60_000;
 
 async function checkSites(db: Knex, siteIds: number[]): Promise<void> {
   const found = await db('sites').whereIn('id', siteIds).pluck('id');
   const missing = siteIds.filter((id) => !found.includes(id));
-  if (missing.length) throw new AppError('validation', 'validation_failed', `Unknown site ${missing.join(', ')}`, [{ field: 'siteIds', message: 'unknown site' }]);
+  if (missing.length)
+    throw new AppError('validation', 'validation_failed', `Unknown site ${missing.join(', ')}`, [{ field: 'siteIds', message: 'unknown site' }]);
 }
 
 export async function listInvites(db: Knex): Promise<InviteRow[]> {
   const rows = await db('invites').orderBy('id', 'desc').limit(200);
   return rows.map((r: { id: number; email: string; role: InviteRow['role']; expires_at: string; accepted_at: string | null; created_at: string }) => ({
-    id: r.id, email: r.email, role: r.role, expiresAt: r.expires_at, acceptedAt: r.accepted_at, createdAt: r.created_at,
+    id: r.id,
+    email: r.email,
+    role: r.role,
+    expiresAt: r.expires_at,
+    acceptedAt: r.accepted_at,
+    createdAt: r.created_at,
   }));
 }
 
@@ -28,10 +44,18 @@ export async function inviteUser(deps: Deps, adminId: number, body: InviteBody):
   const { token, hash } = newToken();
   const now = Date.now();
   const expiresAt = new Date(now + INVITE_TTL_MS).toISOString();
-  const [{ id }] = await deps.db('invites').insert({
-    email: body.email, role: body.role, site_ids: JSON.stringify(body.siteIds), token_hash: hash,
-    expires_at: expiresAt, invited_by: adminId, created_at: new Date(now).toISOString(),
-  }, 'id');
+  const [{ id }] = await deps.db('invites').insert(
+    {
+      email: body.email,
+      role: body.role,
+      site_ids: JSON.stringify(body.siteIds),
+      token_hash: hash,
+      expires_at: expiresAt,
+      invited_by: adminId,
+      created_at: new Date(now).toISOString(),
+    },
+    'id',
+  );
   const link = `${deps.config.publicUrl}/accept-invite?token=${token}`;
   await deps.mailer.send({
     to: body.email,
@@ -45,9 +69,14 @@ export async function inviteUser(deps: Deps, adminId: number, body: InviteBody):
 
 export async function createPicker(deps: Deps, adminId: number, body: CreatePickerBody): Promise<UserRow> {
   await checkSites(deps.db, body.siteIds);
-  if (await findUserByBadge(deps.db, body.badge)) throw new AppError('conflict', 'badge_taken', `Badge ${body.badge} is already in use`, [{ field: 'badge', message: 'already in use' }]);
+  if (await findUserByBadge(deps.db, body.badge))
+    throw new AppError('conflict', 'badge_taken', `Badge ${body.badge} is already in use`, [{ field: 'badge', message: 'already in use' }]);
   const pinHash = await deps.hasher.hash(body.pin);
-  const id = await insertUser(deps.db, { name: body.name, email: null, badge: body.badge, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: new Date().toISOString() }, body.siteIds);
+  const id = await insertUser(
+    deps.db,
+    { name: body.name, email: null, badge: body.badge, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: new Date().toISOString() },
+    body.siteIds,
+  );
   await audit(deps.db, { userId: adminId, action: 'picker.created', subject: body.badge });
   return toUserRow((await findUserById(deps.db, id))!, body.siteIds);
 }
@@ -58,11 +87,21 @@ export async function updateUserAsAdmin(deps: Deps, adminId: number, id: number,
   if (id === adminId && (body.active === false || (body.role && body.role !== 'admin'))) {
     throw new AppError('conflict', 'self_lockout', 'You cannot deactivate yourself or remove your own admin role');
   }
-  if (body.role === 'picker' && !user.badge) throw new AppError('validation', 'validation_failed', 'A picker needs a badge; create pickers with badge and PIN', [{ field: 'role', message: 'needs a badge' }]);
-  if (body.role && body.role !== 'picker' && !user.email) throw new AppError('validation', 'validation_failed', 'This role signs in by e-mail; invite the person instead', [{ field: 'role', message: 'needs an e-mail' }]);
+  if (body.role === 'picker' && !user.badge)
+    throw new AppError('validation', 'validation_failed', 'A picker needs a badge; create pickers with badge and PIN', [
+      { field: 'role', message: 'needs a badge' },
+    ]);
+  if (body.role && body.role !== 'picker' && !user.email)
+    throw new AppError('validation', 'validation_failed', 'This role signs in by e-mail; invite the person instead', [
+      { field: 'role', message: 'needs an e-mail' },
+    ]);
   if (body.siteIds) await checkSites(deps.db, body.siteIds);
   await deps.db.transaction(async (trx) => {
-    await updateUser(trx, id, { ...(body.name && { name: body.name }), ...(body.role && { role: body.role }), ...(body.active !== undefined && { active: body.active ? 1 : 0 }) });
+    await updateUser(trx, id, {
+      ...(body.name && { name: body.name }),
+      ...(body.role && { role: body.role }),
+      ...(body.active !== undefined && { active: body.active ? 1 : 0 }),
+    });
     if (body.siteIds) await setUserSites(trx, id, body.siteIds);
     // Sessions end at once on deactivation or a role change.
     if (body.active === false || (body.role && body.role !== user.role)) await bumpTokenVersion(trx, id);

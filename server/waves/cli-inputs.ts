@@ -117,7 +117,11 @@ export async function readWaveInputs(files: WaveInputFiles, options: { depot?: s
   );
   const orders: Order[] = slotted.orders;
   // A bin not on the plan or off its walk graph is a bad line of the order; an unreachable one keeps its code.
-  const unplaced: Unplaced[] = slotted.unslotted.map((u) => ({ order: u.order, code: u.code === 'unreachable' ? 'unreachable' : 'bad_line', reason: u.reason }));
+  const unplaced: Unplaced[] = slotted.unslotted.map((u) => ({
+    order: u.order,
+    code: u.code === 'unreachable' ? 'unreachable' : 'bad_line',
+    reason: u.reason,
+  }));
   const layout = site.site.layout;
   return {
     ok: true,

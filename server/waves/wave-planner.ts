@@ -91,7 +91,21 @@ export function planWaveOnPlan(input: PlannerInput): PlannerOutput {
     const estMinutes = estimateMinutes(t.metres, lines, t.stops.length, input.speeds);
     estTotal += estMinutes;
     const stopXY = t.stops.flatMap((s) => [graph.x[s.node]!, graph.y[s.node]!]);
-    return { path: walkPolyline(model, t.stops.map((s) => s.node)), estMinutes, lines, stopXY };
+    return {
+      path: walkPolyline(
+        model,
+        t.stops.map((s) => s.node),
+      ),
+      estMinutes,
+      lines,
+      stopXY,
+    };
   });
-  return { result, trips, depot: [graph.x[depotNode]!, graph.y[depotNode]!], estMinutes: estTotal, unslotted: unslotted.map((u) => ({ order: u.order, reason: u.reason })) };
+  return {
+    result,
+    trips,
+    depot: [graph.x[depotNode]!, graph.y[depotNode]!],
+    estMinutes: estTotal,
+    unslotted: unslotted.map((u) => ({ order: u.order, reason: u.reason })),
+  };
 }

@@ -4,24 +4,57 @@ import type { Q } from '../db/knex';
 import type { DbOrderRow } from '../orders/orders.repository';
 
 export interface DbReleasedWaveRow {
-  id: number; site_id: number; plan_id: number; name: string; status: WaveSummary['status']; cart_name: string; batching: WaveSummary['batching'];
-  routing_method: WaveSummary['method']; routing_improve: WaveSummary['improve']; orders_count: number; lines_count: number; planned_metres: number;
-  lower_bound_metres: number; single_metres: number; s_shape_metres: number | null; est_seconds: number; notes: string; created_by: number | null;
-  created_at: string; completed_at: string | null; release_key: string; depot_idx: number;
+  id: number;
+  site_id: number;
+  plan_id: number;
+  name: string;
+  status: WaveSummary['status'];
+  cart_name: string;
+  batching: WaveSummary['batching'];
+  routing_method: WaveSummary['method'];
+  routing_improve: WaveSummary['improve'];
+  orders_count: number;
+  lines_count: number;
+  planned_metres: number;
+  lower_bound_metres: number;
+  single_metres: number;
+  s_shape_metres: number | null;
+  est_seconds: number;
+  notes: string;
+  created_by: number | null;
+  created_at: string;
+  completed_at: string | null;
+  release_key: string;
+  depot_idx: number;
 }
 
 /** A wave row with its plan version, creator's name and trip count, as the list shows it. */
 export type DbWaveListRow = DbReleasedWaveRow & { plan_version: number | null; creator: string | null; trips_count: number };
 
 export interface DbWaveTripRow {
-  id: number; wave_id: number; n: number; status: TripDetail['status']; picker_id: number | null; picker_name: string | null; planned_metres: number;
-  lower_bound_metres: number; est_seconds: number; totes: number; kg: number; litres: number;
+  id: number;
+  wave_id: number;
+  n: number;
+  status: TripDetail['status'];
+  picker_id: number | null;
+  picker_name: string | null;
+  planned_metres: number;
+  lower_bound_metres: number;
+  est_seconds: number;
+  totes: number;
+  kg: number;
+  litres: number;
 }
 
 /** The site's orders with these ids (read 500 at a time: SQLite's bound-parameter limit). */
 export async function ordersOfSite(db: Q, siteId: number, orderIds: number[]): Promise<DbOrderRow[]> {
   const rows: DbOrderRow[] = [];
-  for (let i = 0; i < orderIds.length; i += 500) rows.push(...(await db<DbOrderRow>('orders').where({ site_id: siteId }).whereIn('id', orderIds.slice(i, i + 500))));
+  for (let i = 0; i < orderIds.length; i += 500)
+    rows.push(
+      ...(await db<DbOrderRow>('orders')
+        .where({ site_id: siteId })
+        .whereIn('id', orderIds.slice(i, i + 500))),
+    );
   return rows;
 }
 
@@ -66,7 +99,12 @@ function waveQuery(db: Q, siteId: number) {
     .leftJoin('floor_plans', 'floor_plans.id', 'waves.plan_id')
     .leftJoin('users', 'users.id', 'waves.created_by')
     .where('waves.site_id', siteId)
-    .select('waves.*', 'floor_plans.version as plan_version', 'users.name as creator', db.raw('(select count(*) from trips where trips.wave_id = waves.id) as trips_count'));
+    .select(
+      'waves.*',
+      'floor_plans.version as plan_version',
+      'users.name as creator',
+      db.raw('(select count(*) from trips where trips.wave_id = waves.id) as trips_count'),
+    );
 }
 
 /** The site's latest 200 waves, newest first. */
@@ -82,11 +120,23 @@ export async function getWaveListRow(db: Q, siteId: number, waveId: number): Pro
 
 /** Trips matching `where`, by number, with the refs of their orders and their stop and line counts. */
 export async function tripRows(db: Q, where: Record<string, unknown>) {
-  const trips: DbWaveTripRow[] = await db('trips').leftJoin('users', 'users.id', 'trips.picker_id').where(where).orderBy('trips.n').select('trips.*', 'users.name as picker_name');
+  const trips: DbWaveTripRow[] = await db('trips')
+    .leftJoin('users', 'users.id', 'trips.picker_id')
+    .where(where)
+    .orderBy('trips.n')
+    .select('trips.*', 'users.name as picker_name');
   const ids = trips.map((t) => t.id);
-  const orders: { trip_id: number; ref: string }[] = ids.length ? await db('trip_orders').join('orders', 'orders.id', 'trip_orders.order_id').whereIn('trip_id', ids).select('trip_id', 'orders.ref') : [];
+  const orders: { trip_id: number; ref: string }[] = ids.length
+    ? await db('trip_orders').join('orders', 'orders.id', 'trip_orders.order_id').whereIn('trip_id', ids).select('trip_id', 'orders.ref')
+    : [];
   const counts: { trip_id: number; stops: number; lines: number }[] = ids.length
-    ? await db('trips').whereIn('trips.id', ids).select('trips.id as trip_id', db.raw('(select count(*) from stops where stops.trip_id = trips.id) as stops'), db.raw('(select count(*) from pick_lines where pick_lines.trip_id = trips.id) as lines'))
+    ? await db('trips')
+        .whereIn('trips.id', ids)
+        .select(
+          'trips.id as trip_id',
+          db.raw('(select count(*) from stops where stops.trip_id = trips.id) as stops'),
+          db.raw('(select count(*) from pick_lines where pick_lines.trip_id = trips.id) as lines'),
+        )
     : [];
   return { trips, orders, counts };
 }
@@ -96,10 +146,27 @@ export async function waveOfTrip(db: Q, tripId: number): Promise<DbReleasedWaveR
   return trip ? db<DbReleasedWaveRow>('waves').where({ id: trip.wave_id }).first() : undefined;
 }
 
-export interface DbPrintStopRow { id: number; n: number; x_m: number; y_m: number; bins: string; status: 'open' | 'done'; node: number }
+export interface DbPrintStopRow {
+  id: number;
+  n: number;
+  x_m: number;
+  y_m: number;
+  bins: string;
+  status: 'open' | 'done';
+  node: number;
+}
 export interface DbPrintLineRow {
-  id: number; stop_id: number; order_ref: string; sku: string; description: string; bin: string; qty: number; tote: number;
-  status: 'open' | 'picked' | 'short' | 'cancelled'; picked_qty: number | null; short_reason: string | null;
+  id: number;
+  stop_id: number;
+  order_ref: string;
+  sku: string;
+  description: string;
+  bin: string;
+  qty: number;
+  tote: number;
+  status: 'open' | 'picked' | 'short' | 'cancelled';
+  picked_qty: number | null;
+  short_reason: string | null;
 }
 
 /** A trip's stops by printed number and its pick lines, as the print view shows them. */
@@ -115,7 +182,11 @@ export async function waveOfSite(db: Q, siteId: number, waveId: number): Promise
 
 /** How many of the wave's lines were picked, shorted or cancelled (anything but open). */
 export async function recordedLineCount(db: Q, waveId: number): Promise<number> {
-  const picked = await db('pick_lines').join('trips', 'trips.id', 'pick_lines.trip_id').where('trips.wave_id', waveId).whereNot('pick_lines.status', 'open').count({ n: '*' });
+  const picked = await db('pick_lines')
+    .join('trips', 'trips.id', 'pick_lines.trip_id')
+    .where('trips.wave_id', waveId)
+    .whereNot('pick_lines.status', 'open')
+    .count({ n: '*' });
   return Number(picked[0]!.n);
 }
 
@@ -123,6 +194,8 @@ export async function recordedLineCount(db: Q, waveId: number): Promise<number> 
 export async function cancelWaveRows(db: Q, siteId: number, waveId: number): Promise<void> {
   await db('waves').where({ id: waveId }).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
   await db('trips').where({ wave_id: waveId }).update({ status: 'cancelled' });
-  await db('pick_lines').whereIn('trip_id', db('trips').where({ wave_id: waveId }).select('id')).update({ status: 'cancelled' });
+  await db('pick_lines')
+    .whereIn('trip_id', db('trips').where({ wave_id: waveId }).select('id'))
+    .update({ status: 'cancelled' });
   await db('orders').where({ wave_id: waveId, site_id: siteId }).update({ status: 'open', wave_id: null });
 }

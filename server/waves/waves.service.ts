@@ -29,13 +29,32 @@ const pairs = (flat: number[]): [number, number][] => {
 const PLAN_HEAP_MB = 1024;
 
 /** Loads the chosen open orders with their lines slotted from the SKU master. */
-async function plannerOrders(db: Q, siteId: number, orderIds: number[]): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
+async function plannerOrders(
+  db: Q,
+  siteId: number,
+  orderIds: number[],
+): Promise<{ orders: PlannerOrder[]; ids: Map<string, number>; unslotted: { order: string; reason: string }[] }> {
   const rows = await repo.ordersOfSite(db, siteId, orderIds);
   const missing = orderIds.filter((id) => !rows.some((r) => r.id === id));
-  if (missing.length) throw new AppError('validation', 'unknown_orders', `Orders not found on this site: ${missing.slice(0, 10).join(', ')}`, [{ field: 'orderIds', message: 'unknown order' }]);
+  if (missing.length)
+    throw new AppError('validation', 'unknown_orders', `Orders not found on this site: ${missing.slice(0, 10).join(', ')}`, [
+      { field: 'orderIds', message: 'unknown order' },
+    ]);
   const notOpen = rows.filter((r) => r.status !== 'open');
-  if (notOpen.length) throw new AppError('conflict', 'orders_not_open', `Orders no longer open: ${notOpen.slice(0, 10).map((r) => r.ref).join(', ')}`, { orders: notOpen.map((r) => r.ref) });
-  const lines = await linesOf(db, rows.map((r) => r.id));
+  if (notOpen.length)
+    throw new AppError(
+      'conflict',
+      'orders_not_open',
+      `Orders no longer open: ${notOpen
+        .slice(0, 10)
+        .map((r) => r.ref)
+        .join(', ')}`,
+      { orders: notOpen.map((r) => r.ref) },
+    );
+  const lines = await linesOf(
+    db,
+    rows.map((r) => r.id),
+  );
   const skus = await skuMap(db, siteId);
   const orders: PlannerOrder[] = [];
   const unslotted: { order: string; reason: string }[] = [];
@@ -49,14 +68,23 @@ async function plannerOrders(db: Q, siteId: number, orderIds: number[]): Promise
       continue;
     }
     orders.push({
-      ref: r.ref, due: r.due, priority: r.priority,
-      lines: ls.map((l) => { const s = skus.get(l.sku)!; return { sku: l.sku, qty: l.qty, bin: s.bin, unitKg: s.unit_weight_kg, unitLitres: s.unit_volume_l }; }),
+      ref: r.ref,
+      due: r.due,
+      priority: r.priority,
+      lines: ls.map((l) => {
+        const s = skus.get(l.sku)!;
+        return { sku: l.sku, qty: l.qty, bin: s.bin, unitKg: s.unit_weight_kg, unitLitres: s.unit_volume_l };
+      }),
     });
   }
   return { orders, ids, unslotted };
 }
 
-function toPreview(id: string, out: PlannerOutput, extra: { planId: number; planVersion: number; cart: WavePreview['cart']; body: WavePreviewBody; unslotted: { order: string; reason: string }[] }): WavePreview {
+function toPreview(
+  id: string,
+  out: PlannerOutput,
+  extra: { planId: number; planVersion: number; cart: WavePreview['cart']; body: WavePreviewBody; unslotted: { order: string; reason: string }[] },
+): WavePreview {
   const r = out.result;
   return {
     previewId: id,
@@ -69,7 +97,14 @@ function toPreview(id: string, out: PlannerOutput, extra: { planId: number; plan
     trips: r.trips.map((t, i) => ({
       n: t.n,
       orders: t.orders.map((o) => ({ ref: o.ref, totes: o.totes })),
-      stops: t.stops.map((s, k) => ({ n: s.n, node: s.node, x: round(out.trips[i]!.stopXY[2 * k]!, 2), y: round(out.trips[i]!.stopXY[2 * k + 1]!, 2), bins: s.bins, lines: s.lines.length })),
+      stops: t.stops.map((s, k) => ({
+        n: s.n,
+        node: s.node,
+        x: round(out.trips[i]!.stopXY[2 * k]!, 2),
+        y: round(out.trips[i]!.stopXY[2 * k + 1]!, 2),
+        bins: s.bins,
+        lines: s.lines.length,
+      })),
       lines: out.trips[i]!.lines,
       totes: t.totes,
       kg: round(t.kg, 2),
@@ -83,10 +118,18 @@ function toPreview(id: string, out: PlannerOutput, extra: { planId: number; plan
       depot: [round(out.depot[0], 2), round(out.depot[1], 2)],
     })),
     totals: {
-      trips: r.totals.trips, orders: r.totals.orders, lines: r.totals.lines, metres: round(r.totals.metres), lowerBound: round(r.totals.lowerBound),
-      aboveBoundPct: round(r.totals.aboveBoundPct, 2), singleMetres: round(r.totals.singleMetres), savingVsSinglePct: round(r.totals.savingVsSinglePct, 2),
-      sShapeMetres: r.totals.sShapeMetres === null ? null : round(r.totals.sShapeMetres), savingVsSShapePct: r.totals.savingVsSShapePct === null ? null : round(r.totals.savingVsSShapePct, 2),
-      sShapeNote: r.totals.sShapeNote, estMinutes: round(out.estMinutes),
+      trips: r.totals.trips,
+      orders: r.totals.orders,
+      lines: r.totals.lines,
+      metres: round(r.totals.metres),
+      lowerBound: round(r.totals.lowerBound),
+      aboveBoundPct: round(r.totals.aboveBoundPct, 2),
+      singleMetres: round(r.totals.singleMetres),
+      savingVsSinglePct: round(r.totals.savingVsSinglePct, 2),
+      sShapeMetres: r.totals.sShapeMetres === null ? null : round(r.totals.sShapeMetres),
+      savingVsSShapePct: r.totals.savingVsSShapePct === null ? null : round(r.totals.savingVsSShapePct, 2),
+      sShapeNote: r.totals.sShapeNote,
+      estMinutes: round(out.estMinutes),
     },
     unplaced: [...extra.unslotted, ...out.unslotted, ...r.unplaced.map((u) => ({ order: u.order, reason: u.reason }))],
     notes: r.notes,
@@ -106,7 +149,10 @@ export async function startPreview(deps: Deps, siteId: number, userId: number, b
   const cart = await getCartProfile(db, siteId, body.cartProfileId);
   if (!cart) throw new AppError('validation', 'validation_failed', 'Unknown cart profile', [{ field: 'cartProfileId', message: 'unknown cart profile' }]);
   const plan = await loadPlanIndex(db, planId);
-  if (body.depot >= plan.geometry.depots.length) throw new AppError('validation', 'validation_failed', `The plan has ${plan.geometry.depots.length} depot(s)`, [{ field: 'depot', message: 'no such depot' }]);
+  if (body.depot >= plan.geometry.depots.length)
+    throw new AppError('validation', 'validation_failed', `The plan has ${plan.geometry.depots.length} depot(s)`, [
+      { field: 'depot', message: 'no such depot' },
+    ]);
   await plannerOrders(db, siteId, body.orderIds);
   const data: PreviewJobData = { siteId, userId, planId, closureVersion: plan.closureVersion, cartProfileId: cart.id, body };
   return toWaveJob((await deps.jobs.submit(WAVE_PREVIEW_JOB, data, { siteId })) as JobRecord<PreviewOutcome>);
@@ -122,7 +168,8 @@ async function runPreview(deps: Deps, d: PreviewJobData, job: JobContext): Promi
   const plan = await loadPlanIndex(db, planId);
   const sets = await loadGraphSets(db, planId);
   if (!sets) throw new AppError('internal', 'plan_not_built', 'The active plan has no stored walk graph');
-  if (sets.closureVersion !== d.closureVersion) throw new AppError('conflict', 'plan_changed', 'The floor plan changed while the wave waited to be planned; plan it again');
+  if (sets.closureVersion !== d.closureVersion)
+    throw new AppError('conflict', 'plan_changed', 'The floor plan changed while the wave waited to be planned; plan it again');
   const { orders, ids, unslotted } = await plannerOrders(db, siteId, body.orderIds);
   const planRow = (await getPlanRowById(db, planId))!;
   const data: PlanJobData = {
@@ -130,8 +177,15 @@ async function runPreview(deps: Deps, d: PreviewJobData, job: JobContext): Promi
     graph: sets.graph,
     index: sets.index,
     input: {
-      orders, cart: { totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, batching: body.batching, method: body.method, improve: body.improve,
-      depotIdx: body.depot, speeds: settingsOf(site), timeLimitMs: 20_000, closures: plan.closures,
+      orders,
+      cart: { totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres },
+      batching: body.batching,
+      method: body.method,
+      improve: body.improve,
+      depotIdx: body.depot,
+      speeds: settingsOf(site),
+      timeLimitMs: 20_000,
+      closures: plan.closures,
     },
   };
   job.progress(0, 'planning');
@@ -141,7 +195,13 @@ async function runPreview(deps: Deps, d: PreviewJobData, job: JobContext): Promi
     signal: job.signal,
     onProgress: (f) => job.progress(Math.min(0.99, f)),
   });
-  const preview = toPreview(job.id, out, { planId, planVersion: planRow.version ?? 0, cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres }, body, unslotted });
+  const preview = toPreview(job.id, out, {
+    planId,
+    planVersion: planRow.version ?? 0,
+    cart: { id: cart.id, name: cart.name, totes: cart.totes, maxKg: cart.maxKg, maxLitres: cart.maxLitres },
+    body,
+    unslotted,
+  });
   return {
     preview,
     context: { siteId, planId, closureVersion: sets.closureVersion, userId: d.userId, depotIdx: body.depot, cartProfileId: cart.id },
@@ -197,19 +257,50 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
     }
     const t = preview.totals;
     const id = await repo.insertWave(trx, {
-      site_id: siteId, plan_id: ctx.planId, name: waveName, status: 'released', cart_name: preview.cart.name, cart_totes: preview.cart.totes,
-      cart_max_kg: preview.cart.maxKg, cart_max_litres: preview.cart.maxLitres, batching: preview.batching, routing_method: preview.method,
-      routing_improve: preview.improve, depot_idx: ctx.depotIdx, orders_count: t.orders, lines_count: t.lines, planned_metres: t.metres,
-      lower_bound_metres: t.lowerBound, single_metres: t.singleMetres, s_shape_metres: t.sShapeMetres, est_seconds: t.estMinutes * 60,
-      notes: JSON.stringify(preview.notes), release_key: releaseKey, created_by: userId, created_at: now,
+      site_id: siteId,
+      plan_id: ctx.planId,
+      name: waveName,
+      status: 'released',
+      cart_name: preview.cart.name,
+      cart_totes: preview.cart.totes,
+      cart_max_kg: preview.cart.maxKg,
+      cart_max_litres: preview.cart.maxLitres,
+      batching: preview.batching,
+      routing_method: preview.method,
+      routing_improve: preview.improve,
+      depot_idx: ctx.depotIdx,
+      orders_count: t.orders,
+      lines_count: t.lines,
+      planned_metres: t.metres,
+      lower_bound_metres: t.lowerBound,
+      single_metres: t.singleMetres,
+      s_shape_metres: t.sShapeMetres,
+      est_seconds: t.estMinutes * 60,
+      notes: JSON.stringify(preview.notes),
+      release_key: releaseKey,
+      created_by: userId,
+      created_at: now,
     });
     const lineRows = await linesOf(trx, orderIds);
     for (const trip of preview.trips) {
-      const dues = await repo.dueDatesOf(trx, trip.orders.map((o) => ctx.orderIds.get(o.ref)!));
+      const dues = await repo.dueDatesOf(
+        trx,
+        trip.orders.map((o) => ctx.orderIds.get(o.ref)!),
+      );
       const tripId = await repo.insertTrip(trx, {
-        wave_id: id, site_id: siteId, n: trip.n, status: 'released', planned_metres: trip.metres, lower_bound_metres: trip.lowerBound,
-        s_shape_metres: trip.sShapeMetres, est_seconds: trip.estMinutes * 60, totes: trip.totes, kg: trip.kg, litres: trip.litres,
-        depot_node: depotNode, due: dues[0] ?? null,
+        wave_id: id,
+        site_id: siteId,
+        n: trip.n,
+        status: 'released',
+        planned_metres: trip.metres,
+        lower_bound_metres: trip.lowerBound,
+        s_shape_metres: trip.sShapeMetres,
+        est_seconds: trip.estMinutes * 60,
+        totes: trip.totes,
+        kg: trip.kg,
+        litres: trip.litres,
+        depot_node: depotNode,
+        due: dues[0] ?? null,
       });
       const toteOf = new Map<string, number>();
       for (const o of trip.orders) {
@@ -227,15 +318,29 @@ export async function releaseWave(deps: Deps, siteId: number, userId: number, pr
             if (!sku || !s.bins.includes(sku.bin) || used.has(l.id)) continue;
             used.add(l.id);
             await repo.insertPickLine(trx, {
-              trip_id: tripId, stop_id: stopId, order_id: orderId, order_line_id: l.id, order_ref: o.ref, sku: l.sku, description: sku.description,
-              bin: sku.bin, qty: l.qty, tote: toteOf.get(o.ref)!,
+              trip_id: tripId,
+              stop_id: stopId,
+              order_id: orderId,
+              order_line_id: l.id,
+              order_ref: o.ref,
+              sku: l.sku,
+              description: sku.description,
+              bin: sku.bin,
+              qty: l.qty,
+              tote: toteOf.get(o.ref)!,
             });
           }
         }
       }
     }
     await repo.markOrdersPlanned(trx, orderIds, id);
-    await audit(trx, { siteId, userId, action: 'wave.released', subject: String(id), detail: { trips: preview.trips.length, orders: orderIds.length, previewId } });
+    await audit(trx, {
+      siteId,
+      userId,
+      action: 'wave.released',
+      subject: String(id),
+      detail: { trips: preview.trips.length, orders: orderIds.length, previewId },
+    });
     return id;
   });
 
@@ -254,7 +359,9 @@ async function mailReleaseSummary(deps: Deps, siteId: number, w: WaveDetail, spe
     `Planned walking: ${w.plannedMetres.toFixed(0)} m (≈ ${(w.plannedMetres / speed / 60).toFixed(0)} min at ${speed} m/s); estimated work ${w.estMinutes.toFixed(0)} min`,
     `One order per trip would walk ${w.singleMetres.toFixed(0)} m${w.sShapeMetres !== null ? `; S-shape routing ${w.sShapeMetres.toFixed(0)} m` : ''}.`,
     '',
-    ...w.tripList.map((t) => `Trip ${t.n}: ${t.orders.length} orders, ${t.stops} stops, ${t.lines} lines, ${t.plannedMetres.toFixed(0)} m, ≈ ${t.estMinutes.toFixed(0)} min`),
+    ...w.tripList.map(
+      (t) => `Trip ${t.n}: ${t.orders.length} orders, ${t.stops} stops, ${t.lines} lines, ${t.plannedMetres.toFixed(0)} m, ≈ ${t.estMinutes.toFixed(0)} min`,
+    ),
     '',
     'Routes are walking suggestions: site walkways, forklift traffic rules and lifting limits come first.',
   ];
@@ -262,10 +369,26 @@ async function mailReleaseSummary(deps: Deps, siteId: number, w: WaveDetail, spe
 }
 
 const toSummary = (w: repo.DbWaveListRow): WaveSummary => ({
-  id: w.id, name: w.name, status: w.status, planId: w.plan_id, planVersion: w.plan_version ?? 0, cartName: w.cart_name, batching: w.batching,
-  method: w.routing_method, improve: w.routing_improve, trips: w.trips_count, orders: w.orders_count, lines: w.lines_count,
-  plannedMetres: w.planned_metres, singleMetres: w.single_metres, sShapeMetres: w.s_shape_metres, lowerBoundMetres: w.lower_bound_metres,
-  estMinutes: Math.round(w.est_seconds / 6) / 10, createdAt: w.created_at, createdBy: w.creator, completedAt: w.completed_at,
+  id: w.id,
+  name: w.name,
+  status: w.status,
+  planId: w.plan_id,
+  planVersion: w.plan_version ?? 0,
+  cartName: w.cart_name,
+  batching: w.batching,
+  method: w.routing_method,
+  improve: w.routing_improve,
+  trips: w.trips_count,
+  orders: w.orders_count,
+  lines: w.lines_count,
+  plannedMetres: w.planned_metres,
+  singleMetres: w.single_metres,
+  sShapeMetres: w.s_shape_metres,
+  lowerBoundMetres: w.lower_bound_metres,
+  estMinutes: Math.round(w.est_seconds / 6) / 10,
+  createdAt: w.created_at,
+  createdBy: w.creator,
+  completedAt: w.completed_at,
 });
 
 export async function listWaves(db: Q, siteId: number, status?: WaveSummary['status']): Promise<WaveSummary[]> {
@@ -277,9 +400,20 @@ async function tripSummaries(db: Q, where: Record<string, unknown>) {
   return trips.map((t) => {
     const c = counts.find((x) => x.trip_id === t.id);
     return {
-      id: t.id, n: t.n, status: t.status, pickerId: t.picker_id, pickerName: t.picker_name, orders: orders.filter((o) => o.trip_id === t.id).map((o) => o.ref),
-      stops: Number(c?.stops ?? 0), lines: Number(c?.lines ?? 0), plannedMetres: t.planned_metres, lowerBoundMetres: t.lower_bound_metres,
-      estMinutes: Math.round(t.est_seconds / 6) / 10, totes: t.totes, kg: t.kg, litres: t.litres,
+      id: t.id,
+      n: t.n,
+      status: t.status,
+      pickerId: t.picker_id,
+      pickerName: t.picker_name,
+      orders: orders.filter((o) => o.trip_id === t.id).map((o) => o.ref),
+      stops: Number(c?.stops ?? 0),
+      lines: Number(c?.lines ?? 0),
+      plannedMetres: t.planned_metres,
+      lowerBoundMetres: t.lower_bound_metres,
+      estMinutes: Math.round(t.est_seconds / 6) / 10,
+      totes: t.totes,
+      kg: t.kg,
+      litres: t.litres,
     };
   });
 }
@@ -310,8 +444,26 @@ export async function tripDetail(db: Q, siteId: number, tripId: number): Promise
     depot: [plan.graph.x[depotNode]!, plan.graph.y[depotNode]!],
     path: poly ? pairs(Array.from(poly)) : [],
     stopList: stops.map((s) => ({
-      id: s.id, n: s.n, x: s.x_m, y: s.y_m, bins: JSON.parse(s.bins) as string[], status: s.status,
-      lines: lines.filter((l) => l.stop_id === s.id).map((l) => ({ id: l.id, orderRef: l.order_ref, sku: l.sku, description: l.description, bin: l.bin, qty: l.qty, tote: l.tote, status: l.status, pickedQty: l.picked_qty, shortReason: l.short_reason })),
+      id: s.id,
+      n: s.n,
+      x: s.x_m,
+      y: s.y_m,
+      bins: JSON.parse(s.bins) as string[],
+      status: s.status,
+      lines: lines
+        .filter((l) => l.stop_id === s.id)
+        .map((l) => ({
+          id: l.id,
+          orderRef: l.order_ref,
+          sku: l.sku,
+          description: l.description,
+          bin: l.bin,
+          qty: l.qty,
+          tote: l.tote,
+          status: l.status,
+          pickedQty: l.picked_qty,
+          shortReason: l.short_reason,
+        })),
     })),
   };
 }
@@ -321,8 +473,10 @@ export async function cancelWave(deps: Deps, siteId: number, userId: number, wav
   await deps.db.transaction(async (trx) => {
     const w = await repo.waveOfSite(trx, siteId, waveId);
     if (!w) throw notFound('Wave');
-    if (w.status !== 'released') throw new AppError('conflict', 'wave_started', 'Picking has started on this wave; cancel its trips from the live board instead');
-    if ((await repo.recordedLineCount(trx, waveId)) > 0) throw new AppError('conflict', 'wave_started', 'Lines of this wave are already picked; cancel its trips from the live board instead');
+    if (w.status !== 'released')
+      throw new AppError('conflict', 'wave_started', 'Picking has started on this wave; cancel its trips from the live board instead');
+    if ((await repo.recordedLineCount(trx, waveId)) > 0)
+      throw new AppError('conflict', 'wave_started', 'Lines of this wave are already picked; cancel its trips from the live board instead');
     await repo.cancelWaveRows(trx, siteId, waveId);
     await audit(trx, { siteId, userId, action: 'wave.cancelled', subject: String(waveId) });
   });

@@ -158,8 +158,18 @@ class LocalJobRunner implements JobRunner {
     if (!kind) throw new Error(`unknown job kind ${kindName}`);
     this.sweep();
     const record: JobRecord = {
-      id: randomUUID(), kind: kindName, siteId: options.siteId ?? null, key: options.key ?? null, state: 'queued', progress: 0, phase: 'queued',
-      result: null, error: null, createdAt: new Date().toISOString(), startedAt: null, finishedAt: null,
+      id: randomUUID(),
+      kind: kindName,
+      siteId: options.siteId ?? null,
+      key: options.key ?? null,
+      state: 'queued',
+      progress: 0,
+      phase: 'queued',
+      result: null,
+      error: null,
+      createdAt: new Date().toISOString(),
+      startedAt: null,
+      finishedAt: null,
     };
     const entry: LocalEntry = { record, data, abort: new AbortController(), lastEmit: 0 };
     this.entries.set(record.id, entry);

@@ -19,8 +19,20 @@ import type { EventHub } from '../events/hub';
 import { isJobStop } from './spawn';
 import { withAdvisoryLock } from '../db/dialect';
 import {
-  describeJobFailure, holdUnlessCancelled, isActive, testHoldMs, JOB_CANCEL, JOB_CHANGED, KEEP_FINISHED_MS, PROGRESS_EVERY_MS,
-  type JobContext, type JobKind, type JobRecord, type JobRunner, type JobState, type SubmitOptions,
+  describeJobFailure,
+  holdUnlessCancelled,
+  isActive,
+  testHoldMs,
+  JOB_CANCEL,
+  JOB_CHANGED,
+  KEEP_FINISHED_MS,
+  PROGRESS_EVERY_MS,
+  type JobContext,
+  type JobKind,
+  type JobRecord,
+  type JobRunner,
+  type JobState,
+  type SubmitOptions,
 } from './jobs';
 
 const BEAT_MS = 3_000;
@@ -32,9 +44,21 @@ const POLL_SECONDS = 2;
 const JOB_SENT = 'job.sent';
 
 interface Row {
-  id: string; kind: string; site_id: number | null; key: string | null; state: JobState; progress: number; phase: string | null;
-  result: string | null; error: string | null; instance: string | null; attempt: number; heartbeat_at: string | null;
-  created_at: string; started_at: string | null; finished_at: string | null;
+  id: string;
+  kind: string;
+  site_id: number | null;
+  key: string | null;
+  state: JobState;
+  progress: number;
+  phase: string | null;
+  result: string | null;
+  error: string | null;
+  instance: string | null;
+  attempt: number;
+  heartbeat_at: string | null;
+  created_at: string;
+  started_at: string | null;
+  finished_at: string | null;
 }
 
 const TABLE = 'background_jobs';
@@ -42,8 +66,18 @@ const now = () => new Date().toISOString();
 
 function toRecord<R>(r: Row): JobRecord<R> {
   return {
-    id: r.id, kind: r.kind, siteId: r.site_id === null ? null : Number(r.site_id), key: r.key, state: r.state, progress: Number(r.progress), phase: r.phase,
-    result: r.result === null ? null : (JSON.parse(r.result) as R), error: r.error, createdAt: r.created_at, startedAt: r.started_at, finishedAt: r.finished_at,
+    id: r.id,
+    kind: r.kind,
+    siteId: r.site_id === null ? null : Number(r.site_id),
+    key: r.key,
+    state: r.state,
+    progress: Number(r.progress),
+    phase: r.phase,
+    result: r.result === null ? null : (JSON.parse(r.result) as R),
+    error: r.error,
+    createdAt: r.created_at,
+    startedAt: r.started_at,
+    finishedAt: r.finished_at,
   };
 }
 
@@ -104,16 +138,21 @@ class PgJobRunner implements JobRunner {
     // tables, and two at once deadlock (seen here with four kinds defined together).
     const created = this.queues.then(() =>
       withAdvisoryLock(this.db, `pg-boss-queues:${this.o.bossSchema}`, async () => {
-        if (!(await this.boss.getQueue(k.name))) await this.boss.createQueue(k.name, { name: k.name, retryLimit: RETRY_LIMIT, retryDelay: 0, expireInSeconds: k.expireInSeconds });
+        if (!(await this.boss.getQueue(k.name)))
+          await this.boss.createQueue(k.name, { name: k.name, retryLimit: RETRY_LIMIT, retryDelay: 0, expireInSeconds: k.expireInSeconds });
       }),
     );
     this.queues = created.catch(() => undefined);
     const start = (async () => {
       await created;
       if (this.closed) return;
-      const workerId = await this.boss.work<{ data: unknown }>(k.name, { batchSize: 1, pollingIntervalSeconds: POLL_SECONDS, includeMetadata: true }, async ([job]) => {
-        if (job) await this.execute(job.name, job.id, job.data.data, job.retryCount);
-      });
+      const workerId = await this.boss.work<{ data: unknown }>(
+        k.name,
+        { batchSize: 1, pollingIntervalSeconds: POLL_SECONDS, includeMetadata: true },
+        async ([job]) => {
+          if (job) await this.execute(job.name, job.id, job.data.data, job.retryCount);
+        },
+      );
       this.workers.set(k.name, workerId);
     })();
     this.track(start.catch((err: unknown) => this.o.logger.error({ err, kind: k.name }, 'job queue worker did not start')));
@@ -141,7 +180,11 @@ class PgJobRunner implements JobRunner {
     const work = (async () => {
       // Taken only while queued (or running on an instance that died): a cancelled job is not started.
       const started = now();
-      const took = await this.update(id, { state: 'running', phase: 'starting', instance: this.instance, attempt, heartbeat_at: started, started_at: started }, ['queued', 'running']);
+      const took = await this.update(
+        id,
+        { state: 'running', phase: 'starting', instance: this.instance, attempt, heartbeat_at: started, started_at: started },
+        ['queued', 'running'],
+      );
       if (!took) return;
       this.o.events.publish(JOB_CHANGED, id);
       let last = 0;
@@ -155,7 +198,12 @@ class PgJobRunner implements JobRunner {
           if (t - last < PROGRESS_EVERY_MS && phase === undefined) return;
           last = t;
           const patch: Partial<Row> = { progress: Math.max(0, Math.min(1, fraction)), ...(phase !== undefined ? { phase } : {}) };
-          writing = writing.then(() => this.update(id, patch)).then(() => this.o.events.publish(JOB_CHANGED, id), () => undefined);
+          writing = writing
+            .then(() => this.update(id, patch))
+            .then(
+              () => this.o.events.publish(JOB_CHANGED, id),
+              () => undefined,
+            );
         },
       };
       let patch: Partial<Row>;
@@ -190,7 +238,10 @@ class PgJobRunner implements JobRunner {
 
   private async beat(): Promise<void> {
     if (this.running.size === 0) return;
-    await this.db<Row>(TABLE).whereIn('id', [...this.running.keys()]).where({ instance: this.instance, state: 'running' }).update({ heartbeat_at: now() });
+    await this.db<Row>(TABLE)
+      .whereIn('id', [...this.running.keys()])
+      .where({ instance: this.instance, state: 'running' })
+      .update({ heartbeat_at: now() });
   }
 
   /** Running jobs whose instance stopped beating go back to the queue (pg-boss retries them). */
@@ -200,7 +251,10 @@ class PgJobRunner implements JobRunner {
     for (const s of stale) {
       if (s.instance === this.instance && this.running.has(s.id)) continue;
       // One instance wins the row; only it hands the job back to pg-boss.
-      const n = await this.db<Row>(TABLE).where({ id: s.id, state: 'running', instance: s.instance }).andWhere('heartbeat_at', '<', cutoff).update({ state: 'queued', phase: 'queued', instance: null });
+      const n = await this.db<Row>(TABLE)
+        .where({ id: s.id, state: 'running', instance: s.instance })
+        .andWhere('heartbeat_at', '<', cutoff)
+        .update({ state: 'queued', phase: 'queued', instance: null });
       if (Number(n) === 0) continue;
       this.o.logger.warn({ job: s.id, kind: s.kind, instance: s.instance }, 'job taken over from a silent instance');
       await this.boss.fail(s.kind, s.id, { message: `instance ${s.instance} stopped beating` });
@@ -213,10 +267,26 @@ class PgJobRunner implements JobRunner {
     const kind = this.kinds.get(kindName);
     if (!kind) throw new Error(`unknown job kind ${kindName}`);
     await Promise.all(this.ready);
-    await this.db<Row>(TABLE).whereNotNull('finished_at').andWhere('finished_at', '<', new Date(Date.now() - KEEP_FINISHED_MS).toISOString()).delete();
+    await this.db<Row>(TABLE)
+      .whereNotNull('finished_at')
+      .andWhere('finished_at', '<', new Date(Date.now() - KEEP_FINISHED_MS).toISOString())
+      .delete();
     const row: Row = {
-      id: randomUUID(), kind: kindName, site_id: options.siteId ?? null, key: options.key ?? null, state: 'queued', progress: 0, phase: 'queued',
-      result: null, error: null, instance: null, attempt: 0, heartbeat_at: null, created_at: now(), started_at: null, finished_at: null,
+      id: randomUUID(),
+      kind: kindName,
+      site_id: options.siteId ?? null,
+      key: options.key ?? null,
+      state: 'queued',
+      progress: 0,
+      phase: 'queued',
+      result: null,
+      error: null,
+      instance: null,
+      attempt: 0,
+      heartbeat_at: null,
+      created_at: now(),
+      started_at: null,
+      finished_at: null,
     };
     await this.db(TABLE).insert(row);
     await this.boss.send(kindName, { data: data as object }, { id: row.id, retryLimit: RETRY_LIMIT, retryDelay: 0, expireInSeconds: kind.expireInSeconds });

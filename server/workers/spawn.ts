@@ -91,7 +91,10 @@ function formatMs(ms: number): string {
 
 /** The line of a fatal error report that names it, e.g. "Fatal JavaScript invalid size error 169220804". */
 function fatalLine(stderr: string): string | null {
-  const line = stderr.split('\n').map((l) => l.replace(/^#\s*/, '').trim()).find((l) => /fatal|error/i.test(l) && !/^FailureMessage/.test(l));
+  const line = stderr
+    .split('\n')
+    .map((l) => l.replace(/^#\s*/, '').trim())
+    .find((l) => /fatal|error/i.test(l) && !/^FailureMessage/.test(l));
   return line ? line.slice(0, 200) : null;
 }
 
@@ -228,13 +231,15 @@ export function runInWorker<R, P = unknown>(moduleUrl: URL, data: unknown, optio
     child.on('message', onMessage);
     child.on('error', (err) => finish(() => reject(err)));
     // 'close' rather than 'exit': stderr has been read to its end, so the cause is in hand.
-    child.on('close', (code, signal) => finish(() => {
-      const stderr = proc.stderr();
-      if (/heap out of memory|Allocation failed/i.test(stderr)) return reject(new WorkerOutOfMemoryError(heapMb));
-      const how = signal ? `signal ${signal}` : `exit code ${code}`;
-      const line = fatalLine(stderr);
-      reject(new WorkerCrashError(line ? `${line}; ${how}` : how));
-    }));
+    child.on('close', (code, signal) =>
+      finish(() => {
+        const stderr = proc.stderr();
+        if (/heap out of memory|Allocation failed/i.test(stderr)) return reject(new WorkerOutOfMemoryError(heapMb));
+        const how = signal ? `signal ${signal}` : `exit code ${code}`;
+        const line = fatalLine(stderr);
+        reject(new WorkerCrashError(line ? `${line}; ${how}` : how));
+      }),
+    );
     const crashTest = process.env.NODE_ENV === 'test' ? (process.env[CRASH_TEST_ENV] ?? null) : null;
     proc.ready.then(
       () => child.send({ data, crashTest } satisfies JobEnvelope<unknown>, (err) => err && finish(() => reject(err))),

@@ -4,11 +4,7 @@
  * one job, answers, and exits.
  */
 
-export type JobMessage<P, R> =
-  | { type: 'ready' }
-  | { type: 'progress'; progress: P }
-  | { type: 'result'; result: R }
-  | { type: 'error'; message: string };
+export type JobMessage<P, R> = { type: 'ready' } | { type: 'progress'; progress: P } | { type: 'result'; result: R } | { type: 'error'; message: string };
 
 /**
  * Test-only: the server passes `<job module file name>:<oom|offheap|abort>` from its environment variable

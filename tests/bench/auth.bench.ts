@@ -32,7 +32,11 @@ async function burst(t: TestApp): Promise<void> {
   t.deps.hasher = c.hasher;
   const answers = await Promise.all(
     Array.from({ length: 40 }, (_v, i) =>
-      request(t.app).post('/api/auth/badge-sign-in').set(csrf).send({ badge: 'P-1003', pin: i === 39 ? DEMO_PIN : String(100000 + i) }).then((r) => r),
+      request(t.app)
+        .post('/api/auth/badge-sign-in')
+        .set(csrf)
+        .send({ badge: 'P-1003', pin: i === 39 ? DEMO_PIN : String(100000 + i) })
+        .then((r) => r),
     ),
   );
   t.deps.hasher = real;
@@ -71,7 +75,10 @@ async function resetTimings(t: TestApp): Promise<void> {
   await settle?.settled();
   console.log('\nPOST /api/auth/reset-request, answer time over loopback (50 each, interleaved)');
   console.log('  address  | median   | p90      | max');
-  for (const [name, xs] of [['known', k], ['unknown', u]] as const) {
+  for (const [name, xs] of [
+    ['known', k],
+    ['unknown', u],
+  ] as const) {
     console.log(`  ${name.padEnd(8)} | ${ms(quantile(xs, 0.5)).padEnd(8)} | ${ms(quantile(xs, 0.9)).padEnd(8)} | ${ms(Math.max(...xs))}`);
   }
   console.log(`  median ratio known / unknown: ${(quantile(k, 0.5) / quantile(u, 0.5)).toFixed(2)}`);
@@ -83,7 +90,12 @@ async function sessionCheck(t: TestApp): Promise<void> {
   if (!(await db.schema.hasTable('sessions'))) return console.log('\n(no sessions table: session check not measured)');
   const userId = (await db('users').where({ role: 'picker' }).first<{ id: number }>('id'))!.id;
   const ids: string[] = [];
-  const rows = Array.from({ length: 20_000 }, (_v, i) => ({ id: `bench-${i}`, user_id: userId, auth_time: Math.floor(Date.now() / 1000), created_at: new Date().toISOString() }));
+  const rows = Array.from({ length: 20_000 }, (_v, i) => ({
+    id: `bench-${i}`,
+    user_id: userId,
+    auth_time: Math.floor(Date.now() / 1000),
+    created_at: new Date().toISOString(),
+  }));
   for (let i = 0; i < rows.length; i += 500) await db('sessions').insert(rows.slice(i, i + 500));
   for (let i = 0; i < 2000; i++) ids.push(`bench-${(i * 7919) % 20_000}`);
   const before = async () => {
@@ -91,7 +103,10 @@ async function sessionCheck(t: TestApp): Promise<void> {
     await db('user_sites').where({ user_id: userId }).select('site_id');
   };
   const after = async (sid: string) => {
-    await db('sessions').join('users', 'users.id', 'sessions.user_id').where('sessions.id', sid).first('sessions.user_id', 'sessions.revoked_at', 'users.name', 'users.role', 'users.active', 'users.token_version');
+    await db('sessions')
+      .join('users', 'users.id', 'sessions.user_id')
+      .where('sessions.id', sid)
+      .first('sessions.user_id', 'sessions.revoked_at', 'users.name', 'users.role', 'users.active', 'users.token_version');
     await db('user_sites').where({ user_id: userId }).select('site_id');
   };
   const round = async (f: (i: number) => Promise<void>) => {

@@ -31,7 +31,9 @@ async function measure(label: string, file: string): Promise<void> {
   if (!check.ok) throw new Error(`${label}: backup failed its check: ${check.problems.join('; ')}`);
   const src = statSync(file).size;
   runs.sort((a, b) => a - b);
-  console.log(`| ${label} | ${(src / MiB).toFixed(1)} MiB | ${(bytes / MiB).toFixed(1)} MiB | ${runs[1]!.toFixed(0)} ms (min ${runs[0]!.toFixed(0)}, max ${runs[2]!.toFixed(0)}) | ${verifyMs.toFixed(0)} ms | ${check.tables.floor_plan_bins ?? 0} bins, ${check.tables.pick_lines ?? 0} pick lines |`);
+  console.log(
+    `| ${label} | ${(src / MiB).toFixed(1)} MiB | ${(bytes / MiB).toFixed(1)} MiB | ${runs[1]!.toFixed(0)} ms (min ${runs[0]!.toFixed(0)}, max ${runs[2]!.toFixed(0)}) | ${verifyMs.toFixed(0)} ms | ${check.tables.floor_plan_bins ?? 0} bins, ${check.tables.pick_lines ?? 0} pick lines |`,
+  );
 }
 
 export async function run(): Promise<void> {

@@ -65,11 +65,41 @@ interface SearchScenario {
 
 /** Single-block and multi-block sites, 60–400 orders of 1–8 lines, carts of 4–16 totes (issue 14). */
 const SEARCH_SCENARIOS: SearchScenario[] = [
-  { name: 'single block, 10 aisles × 30 m, 60 orders × 1–4 lines, 8 totes', floor: { aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 15, levels: 3 }, orders: { orders: 60, minLines: 1, maxLines: 4 }, cart: { totes: 8, maxKg: 150, maxLitres: 400 }, seed: 11 },
-  { name: 'single block, 14 aisles × 36 m, 150 orders × 2–5 lines, 4 totes', floor: { aisles: 14, aisleLengthM: 36, aisleSpacingM: 3, baysPerAisle: 18, levels: 3 }, orders: { orders: 150, minLines: 2, maxLines: 5 }, cart: { totes: 4, maxKg: 80, maxLitres: 200 }, seed: 12 },
-  { name: 'single block, 16 aisles × 40 m, 200 orders × 1–8 lines, 12 totes', floor: { aisles: 16, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4 }, orders: { orders: 200, minLines: 1, maxLines: 8 }, cart: { totes: 12, maxKg: 220, maxLitres: 600 }, seed: 13 },
-  { name: 'multi-block, 20 aisles × 40 m, middle cross aisle, 300 orders × 3–7 lines, 8 totes', floor: { aisles: 20, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4, crossAisles: { middle: 1 } }, orders: { orders: 300, minLines: 3, maxLines: 7 }, cart: { totes: 8, maxKg: 150, maxLitres: 400 }, seed: 1 },
-  { name: 'multi-block, 24 aisles × 50 m, 2 middle cross aisles, 400 orders × 1–6 lines, 16 totes', floor: { aisles: 24, aisleLengthM: 50, aisleSpacingM: 3, baysPerAisle: 25, levels: 4, crossAisles: { middle: 2 } }, orders: { orders: 400, minLines: 1, maxLines: 6 }, cart: { totes: 16, maxKg: 300, maxLitres: 800 }, seed: 14 },
+  {
+    name: 'single block, 10 aisles × 30 m, 60 orders × 1–4 lines, 8 totes',
+    floor: { aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 15, levels: 3 },
+    orders: { orders: 60, minLines: 1, maxLines: 4 },
+    cart: { totes: 8, maxKg: 150, maxLitres: 400 },
+    seed: 11,
+  },
+  {
+    name: 'single block, 14 aisles × 36 m, 150 orders × 2–5 lines, 4 totes',
+    floor: { aisles: 14, aisleLengthM: 36, aisleSpacingM: 3, baysPerAisle: 18, levels: 3 },
+    orders: { orders: 150, minLines: 2, maxLines: 5 },
+    cart: { totes: 4, maxKg: 80, maxLitres: 200 },
+    seed: 12,
+  },
+  {
+    name: 'single block, 16 aisles × 40 m, 200 orders × 1–8 lines, 12 totes',
+    floor: { aisles: 16, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4 },
+    orders: { orders: 200, minLines: 1, maxLines: 8 },
+    cart: { totes: 12, maxKg: 220, maxLitres: 600 },
+    seed: 13,
+  },
+  {
+    name: 'multi-block, 20 aisles × 40 m, middle cross aisle, 300 orders × 3–7 lines, 8 totes',
+    floor: { aisles: 20, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4, crossAisles: { middle: 1 } },
+    orders: { orders: 300, minLines: 3, maxLines: 7 },
+    cart: { totes: 8, maxKg: 150, maxLitres: 400 },
+    seed: 1,
+  },
+  {
+    name: 'multi-block, 24 aisles × 50 m, 2 middle cross aisles, 400 orders × 1–6 lines, 16 totes',
+    floor: { aisles: 24, aisleLengthM: 50, aisleSpacingM: 3, baysPerAisle: 25, levels: 4, crossAisles: { middle: 2 } },
+    orders: { orders: 400, minLines: 1, maxLines: 6 },
+    cart: { totes: 16, maxKg: 300, maxLitres: 800 },
+    seed: 14,
+  },
 ];
 /** The wave builder's batching budget: 40 % of the default 8 s wave budget (server/core/batch/plan-wave.ts). */
 const DEFAULT_SEARCH_MS = 3200;
@@ -85,8 +115,14 @@ async function runSearch(): Promise<void> {
   const useCpu = process.env.BENCH_CLOCK === 'cpu';
   const clock: Clock | undefined = useCpu ? cpuClock : undefined;
   const budgets = [2000, DEFAULT_SEARCH_MS, 8000, ...(long ? [30000] : [])];
-  console.log(`### Batching: search against savings (walking with best + local per trip; budgets on ${useCpu ? 'process CPU time (BENCH_CLOCK=cpu)' : 'wall time'}; load average ${loadavg().map((v) => fmt(v, 2)).join(' ')} on 2 cores${long ? '' : '; BENCH_LONG=1 adds 30 s'})\n`);
-  console.log(`| site and wave | trips (savings) | savings m | ${budgets.map((b) => `search ${fmt(b / 1000, 1)} s${b === DEFAULT_SEARCH_MS ? ' (default)' : ''}`).join(' | ')} |`);
+  console.log(
+    `### Batching: search against savings (walking with best + local per trip; budgets on ${useCpu ? 'process CPU time (BENCH_CLOCK=cpu)' : 'wall time'}; load average ${loadavg()
+      .map((v) => fmt(v, 2))
+      .join(' ')} on 2 cores${long ? '' : '; BENCH_LONG=1 adds 30 s'})\n`,
+  );
+  console.log(
+    `| site and wave | trips (savings) | savings m | ${budgets.map((b) => `search ${fmt(b / 1000, 1)} s${b === DEFAULT_SEARCH_MS ? ' (default)' : ''}`).join(' | ')} |`,
+  );
   console.log(`|---|---:|---:|${budgets.map(() => '---:').join('|')}|`);
   const gains = budgets.map(() => [] as number[]);
   const profile: string[] = [];
@@ -99,17 +135,36 @@ async function runSearch(): Promise<void> {
     budgets.forEach((b, i) => {
       const stats = {} as SearchStats;
       const t0 = performance.now();
-      const r = batchOrders({ orders, cart: sc.cart, method: 'search', depotNode: floor.depotNode, distance: floor.distance, timeLimitMs: b, searchStats: stats, ...(clock ? { clock } : {}) });
+      const r = batchOrders({
+        orders,
+        cart: sc.cart,
+        method: 'search',
+        depotNode: floor.depotNode,
+        distance: floor.distance,
+        timeLimitMs: b,
+        searchStats: stats,
+        ...(clock ? { clock } : {}),
+      });
       const ms = performance.now() - t0;
       if (i === 0) {
         savingsM = stats.savingsWaveLength;
-        trips = batchOrders({ orders, cart: sc.cart, method: 'savings', depotNode: floor.depotNode, distance: floor.distance, timeLimitMs: b, ...(clock ? { clock } : {}) }).batches.length;
+        trips = batchOrders({
+          orders,
+          cart: sc.cart,
+          method: 'savings',
+          depotNode: floor.depotNode,
+          distance: floor.distance,
+          timeLimitMs: b,
+          ...(clock ? { clock } : {}),
+        }).batches.length;
       }
       const pct = (1 - stats.waveLength / stats.savingsWaveLength) * 100;
       gains[i]!.push(pct);
       if (b === DEFAULT_SEARCH_MS) {
         const lookups = stats.routed + stats.cacheHits;
-        profile.push(`| ${sc.name} | ${stats.kicks} | ${stats.quick} | ${stats.measured} | ${stats.routed} | ${fmt((100 * stats.cacheHits) / Math.max(1, lookups), 1)} % |`);
+        profile.push(
+          `| ${sc.name} | ${stats.kicks} | ${stats.quick} | ${stats.measured} | ${stats.routed} | ${fmt((100 * stats.cacheHits) / Math.max(1, lookups), 1)} % |`,
+        );
       }
       cells.push(`${fmt(stats.waveLength, 0)} (−${fmt(pct, 2)} %, ${r.batches.length} trips, ${fmt(ms / 1000, 1)} s wall)`);
     });
@@ -118,8 +173,12 @@ async function runSearch(): Promise<void> {
   const mean = (xs: number[]): number => xs.reduce((a, b) => a + b, 0) / xs.length;
   console.log(`| **mean less walking than savings** | | | ${gains.map((g) => `**${fmt(mean(g), 2)} %**`).join(' | ')} |`);
   const atDefault = mean(gains[budgets.indexOf(DEFAULT_SEARCH_MS)]!);
-  console.log(`\nGoal: at least ${SEARCH_GOAL_PCT} % less walking than savings on average at the default budget: ${fmt(atDefault, 2)} % → ${atDefault >= SEARCH_GOAL_PCT ? 'pass' : 'FAIL'}\n`);
-  console.log('Where the default budget goes: kicks, quick estimates (circuits changed in place and improved around the change), moves measured by the router, router calls (trip lengths not in the cache) and the cache hit rate by order set.\n');
+  console.log(
+    `\nGoal: at least ${SEARCH_GOAL_PCT} % less walking than savings on average at the default budget: ${fmt(atDefault, 2)} % → ${atDefault >= SEARCH_GOAL_PCT ? 'pass' : 'FAIL'}\n`,
+  );
+  console.log(
+    'Where the default budget goes: kicks, quick estimates (circuits changed in place and improved around the change), moves measured by the router, router calls (trip lengths not in the cache) and the cache hit rate by order set.\n',
+  );
   console.log('| site and wave | kicks | quick estimates | moves measured | router calls | cache hits |');
   console.log('|---|---:|---:|---:|---:|---:|');
   for (const row of profile) console.log(row);
@@ -130,16 +189,27 @@ async function runSearch(): Promise<void> {
   const floor = floorOf(big.floor);
   const policy = policyComparisonOf(floor.plan, floor.graph);
   const orders = generateOrders(floor, big.seed, big.orders);
-  console.log(`### Planning time with search: ${orders.length} orders, ${orders.reduce((n, o) => n + o.lines.length, 0)} lines, default wave budget (8 s), default routing, bounds and S-shape included; wall time\n`);
+  console.log(
+    `### Planning time with search: ${orders.length} orders, ${orders.reduce((n, o) => n + o.lines.length, 0)} lines, default wave budget (8 s), default routing, bounds and S-shape included; wall time\n`,
+  );
   console.log('| batching | trips | total m | batching ms | wave ms | CPU ms | target ≤ 8 s |');
   console.log('|---|---:|---:|---:|---:|---:|---|');
   for (const m of ['savings', 'search'] as BatchingMethod[]) {
     const c0 = process.cpuUsage();
     const t0 = performance.now();
-    const w = planWave({ orders, cart: big.cart, batching: m, depotNode: floor.depotNode, distance: floor.distance, ...(isNotApplicable(policy) ? {} : { policyLayout: policy }) });
+    const w = planWave({
+      orders,
+      cart: big.cart,
+      batching: m,
+      depotNode: floor.depotNode,
+      distance: floor.distance,
+      ...(isNotApplicable(policy) ? {} : { policyLayout: policy }),
+    });
     const ms = performance.now() - t0;
     const c = process.cpuUsage(c0);
-    console.log(`| ${m} | ${w.totals.trips} | ${fmt(w.totals.metres, 0)} | ${fmt(w.batching.ms, 0)} | ${fmt(ms, 0)} | ${fmt((c.user + c.system) / 1000, 0)} | ${ms <= PLAN_SEARCH_TARGET_MS ? 'pass' : 'FAIL'} |`);
+    console.log(
+      `| ${m} | ${w.totals.trips} | ${fmt(w.totals.metres, 0)} | ${fmt(w.batching.ms, 0)} | ${fmt(ms, 0)} | ${fmt((c.user + c.system) / 1000, 0)} | ${ms <= PLAN_SEARCH_TARGET_MS ? 'pass' : 'FAIL'} |`,
+    );
   }
   console.log('');
 }
@@ -165,7 +235,9 @@ export async function run(): Promise<void> {
         r.pct.push((1 - w.totals.metres / single) * 100);
       }
     }
-    console.log(`### ${s.name}: ${s.seeds.length} waves (seeds ${s.seeds.join(', ')}), ${fmt(lines / s.seeds.length, 0)} lines per wave, cart ${CART.totes} totes / ${CART.maxKg} kg / ${CART.maxLitres} L\n`);
+    console.log(
+      `### ${s.name}: ${s.seeds.length} waves (seeds ${s.seeds.join(', ')}), ${fmt(lines / s.seeds.length, 0)} lines per wave, cart ${CART.totes} totes / ${CART.maxKg} kg / ${CART.maxLitres} L\n`,
+    );
     console.log('| batching | mean total m | mean trips | saving vs single, mean (min–max) | vs FCFS, mean |');
     console.log('|---|---:|---:|---:|---:|');
     const fcfs = rows.get('fcfs')!.metres;
@@ -173,7 +245,9 @@ export async function run(): Promise<void> {
       const r = rows.get(m)!;
       const mean = (xs: number[]): number => xs.reduce((a, b) => a + b, 0) / xs.length;
       const vsFcfs = mean(r.metres.map((v, i) => (1 - v / fcfs[i]!) * 100));
-      console.log(`| ${m} | ${fmt(mean(r.metres), 0)} | ${fmt(mean(r.trips))} | ${fmt(mean(r.pct))} % (${fmt(Math.min(...r.pct))}–${fmt(Math.max(...r.pct))}) | ${fmt(vsFcfs)} % |`);
+      console.log(
+        `| ${m} | ${fmt(mean(r.metres), 0)} | ${fmt(mean(r.trips))} | ${fmt(mean(r.pct))} % (${fmt(Math.min(...r.pct))}–${fmt(Math.max(...r.pct))}) | ${fmt(vsFcfs)} % |`,
+      );
     }
     console.log('');
   }
@@ -184,7 +258,11 @@ export async function run(): Promise<void> {
   const policy = policyComparisonOf(floor.plan, floor.graph);
   const orders = generateOrders(floor, 1, big.orders);
   const lines = orders.reduce((n, o) => n + o.lines.length, 0);
-  console.log(`### Planning time: ${orders.length} orders, ${lines} lines, default routing (best + local), bounds and comparisons included; median of 3 runs; load average ${loadavg().map((v) => fmt(v, 2)).join(' ')} on 2 cores\n`);
+  console.log(
+    `### Planning time: ${orders.length} orders, ${lines} lines, default routing (best + local), bounds and comparisons included; median of 3 runs; load average ${loadavg()
+      .map((v) => fmt(v, 2))
+      .join(' ')} on 2 cores\n`,
+  );
   console.log('| batching | trips | total m | above bound | vs single | vs S-shape | batching ms | wave ms (median) | CPU ms (median) | target < 3 s |');
   console.log('|---|---:|---:|---:|---:|---:|---:|---:|---:|---|');
   for (const m of METHODS) {
@@ -194,7 +272,14 @@ export async function run(): Promise<void> {
     for (let k = 0; k < 3; k++) {
       const c0 = process.cpuUsage();
       const t0 = performance.now();
-      last = planWave({ orders, cart: CART, batching: m, depotNode: floor.depotNode, distance: floor.distance, ...(isNotApplicable(policy) ? {} : { policyLayout: policy }) });
+      last = planWave({
+        orders,
+        cart: CART,
+        batching: m,
+        depotNode: floor.depotNode,
+        distance: floor.distance,
+        ...(isNotApplicable(policy) ? {} : { policyLayout: policy }),
+      });
       times.push(performance.now() - t0);
       const c = process.cpuUsage(c0);
       cpu.push((c.user + c.system) / 1000);

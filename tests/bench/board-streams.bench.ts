@@ -50,14 +50,28 @@ async function prepare(file: string) {
   const emails: string[] = [];
   for (let i = 0; i < STREAMS; i++) {
     const email = `board-watcher-${i + 1}@bench.aislewright.test`;
-    await insertUser(db, { name: `Board watcher ${i + 1}`, email, badge: null, role: 'supervisor', password_hash: passwordHash, pin_hash: null, created_at: now }, [siteId]);
+    await insertUser(
+      db,
+      { name: `Board watcher ${i + 1}`, email, badge: null, role: 'supervisor', password_hash: passwordHash, pin_hash: null, created_at: now },
+      [siteId],
+    );
     emails.push(email);
   }
-  const picker = await insertUser(db, { name: 'Bench picker', email: null, badge: 'B-0001', role: 'picker', password_hash: null, pin_hash: pinHash, created_at: now }, [siteId]);
+  const picker = await insertUser(
+    db,
+    { name: 'Bench picker', email: null, badge: 'B-0001', role: 'picker', password_hash: null, pin_hash: pinHash, created_at: now },
+    [siteId],
+  );
   const planId = (await activePlanId(db, siteId))!;
   // A realistic board: one wave of 30 trips of 40 stops; the picker's (first) has 150 stops, 300 lines.
   const wave = await db.transaction((trx) =>
-    insertReleasedWave(trx, { siteId, planId, createdBy: supervisor, name: 'Bench wave', trips: [{ stops: 150, twoLineEvery: 1, pickerId: picker }, ...Array.from({ length: 29 }, () => ({ stops: 40, twoLineEvery: 2 }))] }),
+    insertReleasedWave(trx, {
+      siteId,
+      planId,
+      createdBy: supervisor,
+      name: 'Bench wave',
+      trips: [{ stops: 150, twoLineEvery: 1, pickerId: picker }, ...Array.from({ length: 29 }, () => ({ stops: 40, twoLineEvery: 2 }))],
+    }),
   );
   await db.destroy();
   return { siteId, emails, tripId: wave.tripIds[0]! };
@@ -138,7 +152,9 @@ export async function run(): Promise<void> {
     const picker = await signIn('/api/auth/badge-sign-in', { badge: 'B-0001', pin: DEMO_PIN });
     const watchers: string[] = [];
     for (const email of fx.emails) watchers.push(await signIn('/api/auth/sign-in', { email, password: DEMO_PASSWORD }));
-    const trip = (await (await fetch(`${BASE}/api/picking/trips/${fx.tripId}`, { headers: { cookie: picker } })).json()) as { stopList: { lines: { id: number }[] }[] };
+    const trip = (await (await fetch(`${BASE}/api/picking/trips/${fx.tripId}`, { headers: { cookie: picker } })).json()) as {
+      stopList: { lines: { id: number }[] }[];
+    };
     const lineIds = trip.stopList.flatMap((s) => s.lines.map((l) => l.id));
     if (lineIds.length < CONFIRMS * 4 + 5) throw new Error(`trip has ${lineIds.length} lines, need ${CONFIRMS * 4 + 5}`);
     let next = 0;
@@ -173,17 +189,23 @@ export async function run(): Promise<void> {
       return { cpuPerConfirm: cpu / CONFIRMS, wallPerConfirm: wall / CONFIRMS, events };
     };
     console.log(`${CONFIRMS} confirmations per run; server CPU from /proc (10 ms ticks); board of 1 wave × 30 trips`);
-    console.log(`${'streams'.padStart(8)} ${'CPU ms / confirmation'.padStart(22)} ${'wall ms / confirmation'.padStart(23)} ${'board events received'.padStart(22)}`);
+    console.log(
+      `${'streams'.padStart(8)} ${'CPU ms / confirmation'.padStart(22)} ${'wall ms / confirmation'.padStart(23)} ${'board events received'.padStart(22)}`,
+    );
     const rows: Record<number, number[]> = { 0: [], [STREAMS]: [] };
     for (const n of [0, STREAMS, 0, STREAMS]) {
       const r = await measure(n);
       rows[n]!.push(r.cpuPerConfirm);
-      console.log(`${String(n).padStart(8)} ${r.cpuPerConfirm.toFixed(1).padStart(22)} ${r.wallPerConfirm.toFixed(0).padStart(23)} ${String(r.events).padStart(22)}`);
+      console.log(
+        `${String(n).padStart(8)} ${r.cpuPerConfirm.toFixed(1).padStart(22)} ${r.wallPerConfirm.toFixed(0).padStart(23)} ${String(r.events).padStart(22)}`,
+      );
     }
     const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
     const base = mean(rows[0]!);
     const loaded = mean(rows[STREAMS]!);
-    console.log(`mean: ${base.toFixed(1)} ms with 0 streams, ${loaded.toFixed(1)} ms with ${STREAMS} (${(loaded / base).toFixed(1)}×; extra per stream ${((loaded - base) / STREAMS).toFixed(2)} ms)`);
+    console.log(
+      `mean: ${base.toFixed(1)} ms with 0 streams, ${loaded.toFixed(1)} ms with ${STREAMS} (${(loaded / base).toFixed(1)}×; extra per stream ${((loaded - base) / STREAMS).toFixed(2)} ms)`,
+    );
   } finally {
     if (server) server.kill();
     rmSync(dir, { recursive: true, force: true });

@@ -244,7 +244,9 @@ export async function run(): Promise<void> {
       return { bins: fm.bins, indexBuildMs: fm.map.stats().indexBuildMs };
     });
     mounts.sort((a, b) => a - b);
-    console.log(`bins: ${info.bins}; mount to first frame (main map + mini map, median of 3): ${fmt(mounts[1] ?? 0)} ms; index build: ${fmt(info.indexBuildMs)} ms`);
+    console.log(
+      `bins: ${info.bins}; mount to first frame (main map + mini map, median of 3): ${fmt(mounts[1] ?? 0)} ms; index build: ${fmt(info.indexBuildMs)} ms`,
+    );
     await page.screenshot({ path: '/tmp/floor-map-fit.png' });
     await page.locator('.trip-mini-map').screenshot({ path: '/tmp/floor-map-mini.png' });
 
@@ -272,11 +274,19 @@ export async function run(): Promise<void> {
     const real = await mousePan(page, 160);
     console.log('\nms as median / p95 / max. frames = requestAnimationFrame deltas; draw = time the map itself spent drawing');
     console.log('per frame (plan layer + route layer); vector = plan drawn as vectors during the gesture (else cached bitmap).');
-    console.log(`machine load average at start: ${loadavg().map((l) => l.toFixed(1)).join(' ')} on ${cpus().length} cores`);
-    console.log('| CPU | zoom | bins drawn | full redraw ms | pan frames | pan >20 ms | pan draw | pan vector | wheel frames | wheel >20 ms | wheel draw | wheel vector |');
+    console.log(
+      `machine load average at start: ${loadavg()
+        .map((l) => l.toFixed(1))
+        .join(' ')} on ${cpus().length} cores`,
+    );
+    console.log(
+      '| CPU | zoom | bins drawn | full redraw ms | pan frames | pan >20 ms | pan draw | pan vector | wheel frames | wheel >20 ms | wheel draw | wheel vector |',
+    );
     console.log('|---|---|---|---|---|---|---|---|---|---|---|---|');
     for (const r of rows) console.log(r);
-    console.log(`\npan at fit with Playwright's mouse (160 moves, 1× CPU): ${real.frames} frames, ${fmt(real.medianMs)} / ${fmt(real.p95Ms)} / ${fmt(real.maxMs)} ms`);
+    console.log(
+      `\npan at fit with Playwright's mouse (160 moves, 1× CPU): ${real.frames} frames, ${fmt(real.medianMs)} / ${fmt(real.p95Ms)} / ${fmt(real.maxMs)} ms`,
+    );
 
     // Pictures to look at: search hit with tooltip, dark palette.
     await page.fill('.floor-map__input', 'K-20-03-2');

@@ -37,7 +37,14 @@ export async function run(): Promise<void> {
   await timeCheck('template (again)', buildFloorPlanTemplate());
   const p20 = generateRectangularPlan({ aisles: 40, aisleLengthM: 60, aisleSpacingM: 3, baysPerAisle: 50, levels: 5 });
   await timeCheck('20k bins', floorPlanToWorkbook(p20));
-  const p50 = generateRectangularPlan({ aisles: 60, aisleLengthM: 80, aisleSpacingM: 3, baysPerAisle: 70, levels: 6, crossAisles: { front: true, back: true, middle: 1 } });
+  const p50 = generateRectangularPlan({
+    aisles: 60,
+    aisleLengthM: 80,
+    aisleSpacingM: 3,
+    baysPerAisle: 70,
+    levels: 6,
+    crossAisles: { front: true, back: true, middle: 1 },
+  });
   await timeCheck('50k bins', floorPlanToWorkbook(p50));
 
   const bomb = zipBombXlsx(60);

@@ -21,8 +21,14 @@ import { CSRF_HEADER, CSRF_VALUE } from '../../shared/common';
 const threeCrossAisles = { front: true, back: true, middle: 1 };
 const plans: { name: string; params: RectangularPlanParams | null }[] = [
   { name: 'template', params: null },
-  { name: '20k bins (40 aisles × 50 bays × 5 levels × 2 sides)', params: { aisles: 40, aisleLengthM: 70, aisleSpacingM: 3.2, baysPerAisle: 50, levels: 5, crossAisles: threeCrossAisles, depot: { at: 'front_left' } } },
-  { name: '50k bins (60 aisles × 105 bays × 4 levels × 2 sides)', params: { aisles: 60, aisleLengthM: 140, aisleSpacingM: 3.2, baysPerAisle: 105, levels: 4, crossAisles: threeCrossAisles, depot: { at: 'front_centre' } } },
+  {
+    name: '20k bins (40 aisles × 50 bays × 5 levels × 2 sides)',
+    params: { aisles: 40, aisleLengthM: 70, aisleSpacingM: 3.2, baysPerAisle: 50, levels: 5, crossAisles: threeCrossAisles, depot: { at: 'front_left' } },
+  },
+  {
+    name: '50k bins (60 aisles × 105 bays × 4 levels × 2 sides)',
+    params: { aisles: 60, aisleLengthM: 140, aisleSpacingM: 3.2, baysPerAisle: 105, levels: 4, crossAisles: threeCrossAisles, depot: { at: 'front_centre' } },
+  },
 ];
 
 const percentile = (xs: number[], p: number) => {
@@ -50,7 +56,9 @@ export async function run(): Promise<void> {
   });
   const cookie = signIn.headers.get('set-cookie')!.split(';')[0]!;
 
-  console.log('| workbook | file | upload → draft | check + build + save phases | stored graph + index | DB file after | health during build: n, median, p95, max | event-loop delay: p99, max |');
+  console.log(
+    '| workbook | file | upload → draft | check + build + save phases | stored graph + index | DB file after | health during build: n, median, p95, max | event-loop delay: p99, max |',
+  );
   console.log('|---|---|---|---|---|---|---|---|');
   // Baseline: the same probes for 3 s with no build, so the rows below compare against this machine's load.
   {
@@ -65,7 +73,9 @@ export async function run(): Promise<void> {
       await new Promise((r) => setTimeout(r, 25));
     }
     lag.disable();
-    console.log(`| (no build, 3 s idle) | | | | | | ${health.length}, ${percentile(health, 50).toFixed(1)} ms, ${percentile(health, 95).toFixed(1)} ms, ${Math.max(...health).toFixed(1)} ms | ${(lag.percentile(99) / 1e6).toFixed(0)} ms, ${(lag.max / 1e6).toFixed(0)} ms |`);
+    console.log(
+      `| (no build, 3 s idle) | | | | | | ${health.length}, ${percentile(health, 50).toFixed(1)} ms, ${percentile(health, 95).toFixed(1)} ms, ${Math.max(...health).toFixed(1)} ms | ${(lag.percentile(99) / 1e6).toFixed(0)} ms, ${(lag.max / 1e6).toFixed(0)} ms |`,
+    );
   }
   for (const p of plans) {
     const bytes = p.params ? floorPlanToWorkbook(generateRectangularPlan(p.params)) : buildFloorPlanTemplate();

@@ -72,29 +72,60 @@ async function prepare(file: string) {
   const now = new Date().toISOString();
   const pickerIds: number[] = [];
   for (let i = 0; i < TABLETS; i++) {
-    pickerIds.push(await insertUser(db, { name: `Load picker ${i + 1}`, email: null, badge: `L-${String(i + 1).padStart(4, '0')}`, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: now }, [siteId]));
+    pickerIds.push(
+      await insertUser(
+        db,
+        {
+          name: `Load picker ${i + 1}`,
+          email: null,
+          badge: `L-${String(i + 1).padStart(4, '0')}`,
+          role: 'picker',
+          password_hash: null,
+          pin_hash: pinHash,
+          created_at: now,
+        },
+        [siteId],
+      ),
+    );
   }
   // Enough open orders for the 300-order wave (the demo seeds fewer).
-  const skus: { sku: string; unit_weight_kg: number; unit_volume_l: number }[] = await db('skus').where({ site_id: siteId }).select('sku', 'unit_weight_kg', 'unit_volume_l');
+  const skus: { sku: string; unit_weight_kg: number; unit_volume_l: number }[] = await db('skus')
+    .where({ site_id: siteId })
+    .select('sku', 'unit_weight_kg', 'unit_volume_l');
   const open = Number((await db('orders').where({ site_id: siteId, status: 'open' }).count<{ n: number }[]>({ n: '*' }))[0]!.n);
   const rng = createRng(300);
   await db.transaction(async (trx) => {
     for (let i = 0; i < PLAN_ORDERS - open; i++) {
       const n = 1 + rng.int(4);
       const lines = Array.from({ length: n }, () => ({ s: skus[rng.int(skus.length)]!, qty: 1 + rng.int(3) }));
-      const [{ id }] = await trx('orders').insert({
-        site_id: siteId, ref: `LOAD-${i + 1}`, status: 'open', due: null, priority: null, source: 'load test', lines: n,
-        units: lines.reduce((a, l) => a + l.qty, 0), weight_kg: lines.reduce((a, l) => a + l.qty * l.s.unit_weight_kg, 0),
-        volume_l: lines.reduce((a, l) => a + l.qty * l.s.unit_volume_l, 0), created_at: now,
-      }, 'id');
+      const [{ id }] = await trx('orders').insert(
+        {
+          site_id: siteId,
+          ref: `LOAD-${i + 1}`,
+          status: 'open',
+          due: null,
+          priority: null,
+          source: 'load test',
+          lines: n,
+          units: lines.reduce((a, l) => a + l.qty, 0),
+          weight_kg: lines.reduce((a, l) => a + l.qty * l.s.unit_weight_kg, 0),
+          volume_l: lines.reduce((a, l) => a + l.qty * l.s.unit_volume_l, 0),
+          created_at: now,
+        },
+        'id',
+      );
       await trx('order_lines').insert(lines.map((l, k) => ({ order_id: id, line_no: k + 1, sku: l.s.sku, qty: l.qty })));
     }
   });
   const planId = (await activePlanId(db, siteId))!;
   // Two waves: one per phase, a 50-stop trip (75 lines) per tablet; phase two's trips are assigned later.
   const spec = (pickerId: number | null) => ({ stops: 50, twoLineEvery: 2, pickerId });
-  const waveA = await db.transaction((trx) => insertReleasedWave(trx, { siteId, planId, createdBy: supervisor, name: 'Load wave A', trips: pickerIds.map((p) => spec(p)) }));
-  const waveB = await db.transaction((trx) => insertReleasedWave(trx, { siteId, planId, createdBy: supervisor, name: 'Load wave B', trips: pickerIds.map(() => spec(null)), binOffset: 11 }));
+  const waveA = await db.transaction((trx) =>
+    insertReleasedWave(trx, { siteId, planId, createdBy: supervisor, name: 'Load wave A', trips: pickerIds.map((p) => spec(p)) }),
+  );
+  const waveB = await db.transaction((trx) =>
+    insertReleasedWave(trx, { siteId, planId, createdBy: supervisor, name: 'Load wave B', trips: pickerIds.map(() => spec(null)), binOffset: 11 }),
+  );
   await db.destroy();
   return { siteId, pickerIds, waveA, waveB };
 }
@@ -202,7 +233,13 @@ async function planLoop(cookie: string, siteId: number, stop: { done: boolean })
   const times: number[] = [];
   while (!stop.done) {
     const t0 = performance.now();
-    let job = (await (await fetch(`${BASE}/api/sites/${siteId}/wave-previews`, { method: 'POST', headers, body: JSON.stringify({ orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'savings', method: 'best', improve: 'local' }) })).json()) as { id: string; state: string };
+    let job = (await (
+      await fetch(`${BASE}/api/sites/${siteId}/wave-previews`, {
+        method: 'POST',
+        headers,
+        body: JSON.stringify({ orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'savings', method: 'best', improve: 'local' }),
+      })
+    ).json()) as { id: string; state: string };
     while (job.state === 'running') {
       await new Promise((r) => setTimeout(r, 500));
       job = (await (await fetch(`${BASE}/api/sites/${siteId}/wave-previews/${job.id}`, { headers })).json()) as typeof job;
@@ -219,15 +256,24 @@ function report(title: string, s: PhaseStats, target: number): boolean {
     return `${name.padEnd(14)} ${String(sorted.length).padStart(7)} ${percentile(sorted, 0.5).toFixed(1).padStart(8)} ${percentile(sorted, 0.95).toFixed(1).padStart(8)} ${percentile(sorted, 0.99).toFixed(1).padStart(8)} ${(sorted.at(-1) ?? NaN).toFixed(1).padStart(8)}`;
   };
   const all = [...s.confirm, ...s.poll];
-  const p99 = percentile([...all].sort((a, b) => a - b), 0.99);
+  const p99 = percentile(
+    [...all].sort((a, b) => a - b),
+    0.99,
+  );
   const errors = s.result.errors + s.result.timeouts + s.result.non2xx;
   console.log(`\n### ${title}`);
-  console.log(`${'requests'.padEnd(14)} ${'count'.padStart(7)} ${'p50 ms'.padStart(8)} ${'p95 ms'.padStart(8)} ${'p99 ms'.padStart(8)} ${'max ms'.padStart(8)}`);
+  console.log(
+    `${'requests'.padEnd(14)} ${'count'.padStart(7)} ${'p50 ms'.padStart(8)} ${'p95 ms'.padStart(8)} ${'p99 ms'.padStart(8)} ${'max ms'.padStart(8)}`,
+  );
   console.log(row('confirm', s.confirm));
   console.log(row('poll', s.poll));
   console.log(row('all', all));
-  console.log(`rate ${(all.length / s.result.duration).toFixed(1)} req/s over ${s.result.duration.toFixed(1)} s; statuses ${JSON.stringify(Object.fromEntries(s.statuses))}`);
-  console.log(`errors ${errors} (connection ${s.result.errors}, timeouts ${s.result.timeouts}, non-2xx ${s.result.non2xx}); worst per-tablet p99 by autocannon (corrected for coordinated omission) ${s.result.p99} ms`);
+  console.log(
+    `rate ${(all.length / s.result.duration).toFixed(1)} req/s over ${s.result.duration.toFixed(1)} s; statuses ${JSON.stringify(Object.fromEntries(s.statuses))}`,
+  );
+  console.log(
+    `errors ${errors} (connection ${s.result.errors}, timeouts ${s.result.timeouts}, non-2xx ${s.result.non2xx}); worst per-tablet p99 by autocannon (corrected for coordinated omission) ${s.result.p99} ms`,
+  );
   const ok = p99 <= target && errors === 0;
   console.log(`target p99 ≤ ${target} ms with 0 errors: ${ok ? 'met' : 'NOT met'} (p99 ${p99.toFixed(1)} ms)`);
   return ok;
@@ -261,7 +307,8 @@ async function main(): Promise<void> {
     const supervisor = await signIn('/api/auth/sign-in', { email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD });
     const cookies: string[] = [];
     const baseOf = (i: number) => BASES[i % INSTANCES]!;
-    for (let i = 0; i < TABLETS; i++) cookies.push(await signIn('/api/auth/badge-sign-in', { badge: `L-${String(i + 1).padStart(4, '0')}`, pin: DEMO_PIN }, baseOf(i)));
+    for (let i = 0; i < TABLETS; i++)
+      cookies.push(await signIn('/api/auth/badge-sign-in', { badge: `L-${String(i + 1).padStart(4, '0')}`, pin: DEMO_PIN }, baseOf(i)));
 
     const tabletsA = await Promise.all(cookies.map((c, i) => tabletFor(c, fx.waveA.tripIds[i]!, baseOf(i))));
     // Warm-up, not counted: a freshly started process compiles its code paths on the first requests,
@@ -279,7 +326,11 @@ async function main(): Promise<void> {
     await db('trips').where({ wave_id: fx.waveA.waveId }).update({ status: 'done', finished_at: new Date().toISOString() });
     await db.destroy();
     for (const [i, tripId] of fx.waveB.tripIds.entries()) {
-      const res = await fetch(`${BASE}/api/sites/${fx.siteId}/board/trips/${tripId}/assign`, { method: 'POST', headers: { cookie: supervisor, ...CSRF, 'content-type': 'application/json' }, body: JSON.stringify({ pickerId: fx.pickerIds[i] }) });
+      const res = await fetch(`${BASE}/api/sites/${fx.siteId}/board/trips/${tripId}/assign`, {
+        method: 'POST',
+        headers: { cookie: supervisor, ...CSRF, 'content-type': 'application/json' },
+        body: JSON.stringify({ pickerId: fx.pickerIds[i] }),
+      });
       if (!res.ok) throw new Error(`assign ${res.status} ${await res.text()}`);
     }
     const tabletsB = await Promise.all(cookies.map((c, i) => tabletFor(c, fx.waveB.tripIds[i]!, baseOf(i))));

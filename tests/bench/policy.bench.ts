@@ -74,7 +74,10 @@ function qualityTable(title: string, depotX: number, seed: number): void {
   micros.set('exact', timePerTrip(exactOf, trips));
   for (const [name, method] of methods) micros.set(name, timePerTrip(method, trips));
   let k = 0;
-  micros.set(DEFAULT_ROW, timePerTrip(() => solveTour(matrices[k++]!, { method: 'best', improve: 'local' }).length, trips));
+  micros.set(
+    DEFAULT_ROW,
+    timePerTrip(() => solveTour(matrices[k++]!, { method: 'best', improve: 'local' }).length, trips),
+  );
 
   console.log(`### ${title}`);
   console.log(
@@ -146,7 +149,9 @@ function speedTable(): void {
   console.log('### Ratliff–Rosenthal speed, 30 aisles × 50 stops');
   console.log('| measure | value |');
   console.log('|---|---|');
-  console.log(`| time per trip (median of 5 runs × 2,000 trips) | ${(1000 * times[2]!).toFixed(1)} µs (runs ${times.map((t) => (1000 * t).toFixed(1)).join(', ')} µs) |`);
+  console.log(
+    `| time per trip (median of 5 runs × 2,000 trips) | ${(1000 * times[2]!).toFixed(1)} µs (runs ${times.map((t) => (1000 * t).toFixed(1)).join(', ')} µs) |`,
+  );
   console.log(`(checksum ${sink.toFixed(0)})\n`);
 }
 

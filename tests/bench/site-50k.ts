@@ -21,8 +21,15 @@ export async function generateLargeSite(file: string): Promise<{ bins: number; p
   const siteId = (await db('sites').first<{ id: number }>('id'))!.id;
   const supervisor = (await db('users').where({ role: 'supervisor' }).first<{ id: number }>('id'))!.id;
   const planId = await seedPlan(db, siteId, supervisor, {
-    aisles: LARGE_SITE.aisles, aisleLengthM: 75, aisleSpacingM: 3.2, baysPerAisle: LARGE_SITE.baysPerAisle, levels: LARGE_SITE.levels,
-    bothSides: true, crossAisles: { front: true, back: true, middle: 1 }, crossAisleWidthM: 3, depot: 'front_centre',
+    aisles: LARGE_SITE.aisles,
+    aisleLengthM: 75,
+    aisleSpacingM: 3.2,
+    baysPerAisle: LARGE_SITE.baysPerAisle,
+    levels: LARGE_SITE.levels,
+    bothSides: true,
+    crossAisles: { front: true, back: true, middle: 1 },
+    crossAisleWidthM: 3,
+    depot: 'front_centre',
   });
   await db.destroy();
 
@@ -33,15 +40,24 @@ export async function generateLargeSite(file: string): Promise<{ bins: number; p
   const pickers = raw.prepare("SELECT id FROM users WHERE role = 'picker' ORDER BY id").pluck().all() as number[];
   const now = new Date().toISOString();
   const insert = raw.transaction(() => {
-    const wave = raw.prepare(`INSERT INTO waves (site_id, plan_id, name, status, cart_name, cart_totes, cart_max_kg, cart_max_litres, batching, routing_method, routing_improve, depot_idx, orders_count, lines_count, planned_metres, lower_bound_metres, single_metres, est_seconds, release_key, created_by, created_at)
-      VALUES (?, ?, 'Bench wave', 'released', 'Standard cart', 8, 150, 400, 'fcfs', 'best', 'local', 0, ?, ?, 0, 0, 0, 0, 'bench', ?, ?)`)
+    const wave = raw
+      .prepare(
+        `INSERT INTO waves (site_id, plan_id, name, status, cart_name, cart_totes, cart_max_kg, cart_max_litres, batching, routing_method, routing_improve, depot_idx, orders_count, lines_count, planned_metres, lower_bound_metres, single_metres, est_seconds, release_key, created_by, created_at)
+      VALUES (?, ?, 'Bench wave', 'released', 'Standard cart', 8, 150, 400, 'fcfs', 'best', 'local', 0, ?, ?, 0, 0, 0, 0, 'bench', ?, ?)`,
+      )
       .run(siteId, planId, LARGE_SITE.trips * 10, LARGE_SITE.trips * LARGE_SITE.stopsPerTrip * LARGE_SITE.linesPerStop, supervisor, now).lastInsertRowid;
-    const order = raw.prepare("INSERT INTO orders (site_id, ref, status, source, lines, units, weight_kg, volume_l, wave_id, created_at) VALUES (?, ?, 'planned', 'bench', 10, 20, 5, 10, ?, ?)");
+    const order = raw.prepare(
+      "INSERT INTO orders (site_id, ref, status, source, lines, units, weight_kg, volume_l, wave_id, created_at) VALUES (?, ?, 'planned', 'bench', 10, 20, 5, 10, ?, ?)",
+    );
     const line = raw.prepare('INSERT INTO order_lines (order_id, line_no, sku, qty) VALUES (?, ?, ?, ?)');
-    const trip = raw.prepare("INSERT INTO trips (wave_id, site_id, n, status, picker_id, planned_metres, lower_bound_metres, est_seconds, totes, kg, litres, depot_node) VALUES (?, ?, ?, 'picking', ?, 800, 760, 1800, 8, 40, 80, 0)");
+    const trip = raw.prepare(
+      "INSERT INTO trips (wave_id, site_id, n, status, picker_id, planned_metres, lower_bound_metres, est_seconds, totes, kg, litres, depot_node) VALUES (?, ?, ?, 'picking', ?, 800, 760, 1800, 8, 40, 80, 0)",
+    );
     const tripOrder = raw.prepare('INSERT INTO trip_orders (trip_id, order_id, totes) VALUES (?, ?, ?)');
-    const stop = raw.prepare("INSERT INTO stops (trip_id, n, node, x_m, y_m, bins, status) VALUES (?, ?, ?, ?, ?, ?, ?)");
-    const pick = raw.prepare('INSERT INTO pick_lines (trip_id, stop_id, order_id, order_line_id, order_ref, sku, description, bin, qty, tote, status, picked_qty, confirmed_by, confirmed_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)');
+    const stop = raw.prepare('INSERT INTO stops (trip_id, n, node, x_m, y_m, bins, status) VALUES (?, ?, ?, ?, ?, ?, ?)');
+    const pick = raw.prepare(
+      'INSERT INTO pick_lines (trip_id, stop_id, order_id, order_line_id, order_ref, sku, description, bin, qty, tote, status, picked_qty, confirmed_by, confirmed_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)',
+    );
     let b = 0;
     for (let t = 0; t < LARGE_SITE.trips; t++) {
       const picker = pickers[t % pickers.length]!;
@@ -64,7 +80,22 @@ export async function generateLargeSite(file: string): Promise<{ bins: number; p
           const sku = `SKU-${String((b * 7 + k) % 6000).padStart(5, '0')}`;
           const olId = line.run(o.id, lineNo, sku, 2).lastInsertRowid;
           o.lines.push(olId);
-          pick.run(tripId, stopId, o.id, olId, o.ref, sku, 'Bench item', code, 2, (s * 2 + k) % 10 + 1, done ? 'picked' : 'open', done ? 2 : null, done ? picker : null, done ? now : null);
+          pick.run(
+            tripId,
+            stopId,
+            o.id,
+            olId,
+            o.ref,
+            sku,
+            'Bench item',
+            code,
+            2,
+            ((s * 2 + k) % 10) + 1,
+            done ? 'picked' : 'open',
+            done ? 2 : null,
+            done ? picker : null,
+            done ? now : null,
+          );
         }
       }
     }

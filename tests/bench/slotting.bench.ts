@@ -21,11 +21,32 @@ interface Site {
 }
 
 const SITES: Site[] = [
-  { name: 'single block, 10 aisles', plan: { aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 15, levels: 3 }, skus: 600, days: 15, ordersPerDay: 60, maxLines: 4 },
-  { name: 'two blocks, 14 aisles', plan: { aisles: 14, aisleLengthM: 40, aisleSpacingM: 3.2, baysPerAisle: 20, levels: 3, crossAisles: { front: true, back: true, middle: 1 } }, skus: 900, days: 15, ordersPerDay: 60, maxLines: 6 },
+  {
+    name: 'single block, 10 aisles',
+    plan: { aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 15, levels: 3 },
+    skus: 600,
+    days: 15,
+    ordersPerDay: 60,
+    maxLines: 4,
+  },
+  {
+    name: 'two blocks, 14 aisles',
+    plan: { aisles: 14, aisleLengthM: 40, aisleSpacingM: 3.2, baysPerAisle: 20, levels: 3, crossAisles: { front: true, back: true, middle: 1 } },
+    skus: 900,
+    days: 15,
+    ordersPerDay: 60,
+    maxLines: 6,
+  },
 ];
 if (process.env.SLOTTING_BENCH_LONG) {
-  SITES.push({ name: 'three blocks, 24 aisles', plan: { aisles: 24, aisleLengthM: 60, aisleSpacingM: 3.2, baysPerAisle: 30, levels: 4, crossAisles: { front: true, back: true, middle: 2 } }, skus: 3000, days: 21, ordersPerDay: 150, maxLines: 8 });
+  SITES.push({
+    name: 'three blocks, 24 aisles',
+    plan: { aisles: 24, aisleLengthM: 60, aisleSpacingM: 3.2, baysPerAisle: 30, levels: 4, crossAisles: { front: true, back: true, middle: 2 } },
+    skus: 3000,
+    days: 21,
+    ordersPerDay: 150,
+    maxLines: 8,
+  });
 }
 
 const fmt = (m: number) => `${Math.round(m).toLocaleString('en-GB')} m`;
@@ -36,8 +57,17 @@ export async function run(): Promise<void> {
     const graph = buildWalkGraph(plan);
     const index = buildDistanceIndex(graph);
     const bins = slotBinsOf(plan, graph);
-    const scenario = generateSlottingScenario({ bins, skuCount: site.skus, days: site.days, ordersPerDay: site.ordersPerDay, maxLines: site.maxLines, rng: createRng(11) });
-    console.log(`### ${site.name}: ${bins.length} bins, ${scenario.skus.length} SKUs, ${site.days} days × ${site.ordersPerDay} orders (1–${site.maxLines} lines), 8-tote carts, savings batching`);
+    const scenario = generateSlottingScenario({
+      bins,
+      skuCount: site.skus,
+      days: site.days,
+      ordersPerDay: site.ordersPerDay,
+      maxLines: site.maxLines,
+      rng: createRng(11),
+    });
+    console.log(
+      `### ${site.name}: ${bins.length} bins, ${scenario.skus.length} SKUs, ${site.days} days × ${site.ordersPerDay} orders (1–${site.maxLines} lines), 8-tote carts, savings batching`,
+    );
     console.log('| method | moves | later days before | later days after | saving | vs popularity rule | time |');
     console.log('|---|---:|---:|---:|---:|---:|---:|');
     let rule = NaN;
@@ -59,7 +89,9 @@ export async function run(): Promise<void> {
         const t = r.figures.test;
         if (method === 'popularity' && budget === undefined) rule = t.metresAfter;
         const vsRule = ((t.metresAfter / rule - 1) * 100).toFixed(1);
-        console.log(`| ${method}${budget !== undefined ? ` (≤ ${budget} moves)` : ''} | ${r.moves.length} | ${fmt(t.metresBefore)} | ${fmt(t.metresAfter)} | ${t.savingPct.toFixed(1)} % | ${Number(vsRule) > 0 ? '+' : ''}${vsRule} % | ${(ms / 1000).toFixed(1)} s |`);
+        console.log(
+          `| ${method}${budget !== undefined ? ` (≤ ${budget} moves)` : ''} | ${r.moves.length} | ${fmt(t.metresBefore)} | ${fmt(t.metresAfter)} | ${t.savingPct.toFixed(1)} % | ${Number(vsRule) > 0 ? '+' : ''}${vsRule} % | ${(ms / 1000).toFixed(1)} s |`,
+        );
       }
     }
     console.log('');

@@ -17,13 +17,23 @@ export async function run(): Promise<void> {
   const params = { ...DEMO_PLAN_PARAMS, crossAisles: { ...DEMO_PLAN_PARAMS.crossAisles, middle: 0 } };
   const geometry = generateRectangularPlan(engineParams(params));
   const spec = { waves: 4, ordersPerWave: 40, linesMin: 1, linesMax: 5, skus: 600, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 3 };
-  const waves = generateStudyOrders(geometry.bins, spec, 20261202).map((orders, i) => ({ id: i + 1, name: `wave ${i + 1}`, orders, cart: { totes: 8, maxKg: 150, maxLitres: 400 } }));
+  const waves = generateStudyOrders(geometry.bins, spec, 20261202).map((orders, i) => ({
+    id: i + 1,
+    name: `wave ${i + 1}`,
+    orders,
+    cart: { totes: 8, maxKg: 150, maxLitres: 400 },
+  }));
   const t0 = performance.now();
   const r = runStudy({
     base: { geometry, closures: [], depotIdx: 0 },
     whatIfs: [{ label: 'Middle cross aisle added', changes: [{ kind: 'add_cross_aisle', yM: 24 }] }],
-    waves, tripsFrom: 'savings', routing: [...ROUTING_METHOD_KEYS], batching: ['single', 'fcfs', 'seed', 'savings'],
-    speeds: { walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 5 }, dayScale: 2, seed: 20261202,
+    waves,
+    tripsFrom: 'savings',
+    routing: [...ROUTING_METHOD_KEYS],
+    batching: ['single', 'fcfs', 'seed', 'savings'],
+    speeds: { walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 5 },
+    dayScale: 2,
+    seed: 20261202,
   });
   const ms = performance.now() - t0;
   console.log(`| plan | method | ms |\n|---|---|---|`);
@@ -38,5 +48,7 @@ export async function run(): Promise<void> {
       console.log(`| ${v.label} | ${row.key} | ${row.metres?.toFixed(1) ?? '—'} | ${row.hoursPerDay?.toFixed(2) ?? '—'} |`);
     }
   }
-  console.log(`\nwhole study: ${(ms / 1000).toFixed(1)} s for ${r.variants.map((v) => v.trips.length).join(' + ')} trips (target < ${TARGET_MS / 1000} s): ${ms < TARGET_MS ? 'met' : 'NOT met'}`);
+  console.log(
+    `\nwhole study: ${(ms / 1000).toFixed(1)} s for ${r.variants.map((v) => v.trips.length).join(' + ')} trips (target < ${TARGET_MS / 1000} s): ${ms < TARGET_MS ? 'met' : 'NOT met'}`,
+  );
 }

@@ -35,7 +35,11 @@ export async function run(): Promise<void> {
   };
   const clock: Clock = useCpu ? cpuClock : () => performance.now();
   const clockName = useCpu ? 'process CPU time (BENCH_CLOCK=cpu)' : 'wall time';
-  console.log(`load average ${loadavg().map((v) => f2(v)).join(' ')} on 2 cores; budgets on ${clockName}${long ? '' : '; BENCH_LONG=1 adds 5,000 points and the 5 s deep column'}\n`);
+  console.log(
+    `load average ${loadavg()
+      .map((v) => f2(v))
+      .join(' ')} on 2 cores; budgets on ${clockName}${long ? '' : '; BENCH_LONG=1 adds 5,000 points and the 5 s deep column'}\n`,
+  );
 
   // 1. Budgets: asked against taken (random uniform points, Euclidean).
   const ASKED = 1000;
@@ -75,7 +79,9 @@ export async function run(): Promise<void> {
     const deep = deepBudgets.map((b) => solveTour(matrix, { method: 'best', improve: 'deep', timeLimitMs: b, clock, seed: 1 }));
     const g = { n: matrix.n, local: 100 * (loc.length / opt - 1), deep: deep.map((r) => 100 * (r.length / opt - 1)) };
     gaps.set(name, g);
-    console.log(`| ${name} | ${matrix.n} | ${opt} | ${f2(g.local)} % | ${f0(loc.ms)} | ${g.deep.map((x, i) => `${f2(x)} % | ${f0(deep[i]!.ms)}`).join(' | ')} |`);
+    console.log(
+      `| ${name} | ${matrix.n} | ${opt} | ${f2(g.local)} % | ${f0(loc.ms)} | ${g.deep.map((x, i) => `${f2(x)} % | ${f0(deep[i]!.ms)}`).join(' | ')} |`,
+    );
   }
   const small = [...gaps.values()].filter((g) => g.n <= 724);
   const mid = [...gaps.values()].filter((g) => g.n >= 1000 && g.n <= 1300);

@@ -109,7 +109,9 @@ function singleBlockTrip(stops: number, seed: number): DistanceMatrix {
 
 export async function run(): Promise<void> {
   const started = performance.now();
-  const load = loadavg().map((x) => x.toFixed(1)).join(' / ');
+  const load = loadavg()
+    .map((x) => x.toFixed(1))
+    .join(' / ');
   console.log(`machine: ${availableParallelism()} cores, load average ${load} (1 / 5 / 15 min) at start; ms are wall time\n`);
   const instances = NAMES.map((n) => loadTsp(n));
   const results = new Map<string, Row[]>();
@@ -226,11 +228,7 @@ export async function run(): Promise<void> {
           `${f2(mean(sbExcess))} % (worst ${f2(sbWorst)} %)`,
           pf(mean(sbExcess) <= 0.5),
         ],
-        [
-          '100-stop trip, default method: < 20 ms (median of 30 random trips)',
-          `${f2(median(t100))} ms (max ${f2(Math.max(...t100))})`,
-          pf(median(t100) < 20),
-        ],
+        ['100-stop trip, default method: < 20 ms (median of 30 random trips)', `${f2(median(t100))} ms (max ${f2(Math.max(...t100))})`, pf(median(t100) < 20)],
         ['1,000 trips of 30 stops, default method: < 2 s', `${f1(tBatch)} ms wall, ${f1(cpuBatch)} ms CPU (Σ length ${f1(sum30)})`, pf(tBatch < 2000)],
         [
           `deep (${overshoots.length} runs of ${DEEP_MS} ms) never more than 5 ms over its budget`,
@@ -274,7 +272,16 @@ export async function run(): Promise<void> {
   cmp.push(['average', '', '', '', '', f2(mean(ratios.defLen)), mean(ratios.defMs).toPrecision(2), f2(mean(ratios.deepLen))]);
   console.log(
     table(
-      ['instance', 'salesman.js length', 'SA ms', 'default (best + local)', 'ms', 'length ratio (default / SA)', 'time ratio (default / SA)', `length ratio (best + deep ${DEEP_MS / 1000} s / SA)`],
+      [
+        'instance',
+        'salesman.js length',
+        'SA ms',
+        'default (best + local)',
+        'ms',
+        'length ratio (default / SA)',
+        'time ratio (default / SA)',
+        `length ratio (best + deep ${DEEP_MS / 1000} s / SA)`,
+      ],
       cmp,
     ),
   );

@@ -31,7 +31,10 @@ describe('decideAccess', () => {
   });
   it('moves a signed-in user off the sign-in page to next, or home', () => {
     expect(decideAccess(page('/sign-in', { public: true, guestOnly: true }), 'engineer')).toEqual({ kind: 'redirect', to: '/studies' });
-    expect(decideAccess(page('/sign-in?next=/waves', { public: true, guestOnly: true }, { next: '/waves' }), 'supervisor')).toEqual({ kind: 'redirect', to: '/waves' });
+    expect(decideAccess(page('/sign-in?next=/waves', { public: true, guestOnly: true }, { next: '/waves' }), 'supervisor')).toEqual({
+      kind: 'redirect',
+      to: '/waves',
+    });
   });
   it('sends each role from / to its own home', () => {
     for (const role of ROLES) expect(decideAccess(page('/', { roleHome: true }), role)).toEqual({ kind: 'redirect', to: ROLE_HOME[role] });
@@ -80,7 +83,11 @@ describe('route table', () => {
     }
     expect(menuFor('picker').map((e) => e.label)).toEqual(['My trip']);
     expect(menuFor('admin').map((e) => e.label)).toEqual(expect.arrayContaining(['Users', 'Sites & settings', 'Mail outbox']));
-    for (const role of ['supervisor', 'engineer', 'picker'] as const) expect(menuFor(role).some((e) => e.group === 'Admin'), role).toBe(false);
+    for (const role of ['supervisor', 'engineer', 'picker'] as const)
+      expect(
+        menuFor(role).some((e) => e.group === 'Admin'),
+        role,
+      ).toBe(false);
     expect(menuFor('supervisor').map((e) => e.label)).toEqual(expect.arrayContaining(['Floor plans', 'Orders', 'Waves', 'Live board']));
     expect(menuFor('engineer').map((e) => e.label)).toEqual(expect.arrayContaining(['Studies']));
   });

@@ -10,7 +10,15 @@ describe('useFormSubmit', () => {
     const sent: unknown[] = [];
     let release!: () => void;
     const form = { email: 'not-an-address' };
-    const f = useFormSubmit({ schema: Body, value: () => form, send: (body) => new Promise<void>((r) => { sent.push(body); release = r; }) });
+    const f = useFormSubmit({
+      schema: Body,
+      value: () => form,
+      send: (body) =>
+        new Promise<void>((r) => {
+          sent.push(body);
+          release = r;
+        }),
+    });
     expect(await f.submit()).toBe(false);
     expect(sent).toEqual([]);
     expect(f.errors.fields.email).toBeTruthy();

@@ -8,8 +8,9 @@ import { Ok } from '@shared/common';
 const me = { id: 1, name: 'Avery', email: 'a@example.test', role: 'admin', badge: null, sites: [], sessionEndsAt: '2026-01-01T10:00:00Z' };
 
 function setup(status: number, body: unknown) {
-  const fetch = vi.fn(async (_input: RequestInfo | URL, _init?: RequestInit) =>
-    new Response(body === undefined ? '' : JSON.stringify(body), { status, headers: { 'content-type': 'application/json' } }),
+  const fetch = vi.fn(
+    async (_input: RequestInfo | URL, _init?: RequestInit) =>
+      new Response(body === undefined ? '' : JSON.stringify(body), { status, headers: { 'content-type': 'application/json' } }),
   );
   const onUnauthenticated = vi.fn();
   return { fetch, onUnauthenticated, http: createHttp({ fetch, onUnauthenticated }) };
@@ -103,8 +104,11 @@ describe('errorFromAnswer (the one decoder behind createHttp, uploads and the pi
   });
 
   it('gives the picker queue the same error as createHttp for the same answer', async () => {
-    const answer = () => new Response(JSON.stringify({ error: { code: 'line_not_shown', message: 'Not the line on screen' } }), { status: 409, statusText: 'Conflict' });
-    const viaHttp = await createHttp({ fetch: async () => answer(), onUnauthenticated: () => {} })('POST', '/x', z.object({})).catch((e: unknown) => e as ApiError);
+    const answer = () =>
+      new Response(JSON.stringify({ error: { code: 'line_not_shown', message: 'Not the line on screen' } }), { status: 409, statusText: 'Conflict' });
+    const viaHttp = await createHttp({ fetch: async () => answer(), onUnauthenticated: () => {} })('POST', '/x', z.object({})).catch(
+      (e: unknown) => e as ApiError,
+    );
     const viaQueue = await sendAction({ kind: 'undo', tripId: 1, lineId: 2, body: {} }, 'key-123456789', 'tablet-1', async () => answer());
     expect(viaQueue.ok).toBe(false);
     const queued = (viaQueue as { ok: false; error: ApiError }).error;

@@ -15,7 +15,10 @@ describe('contrast', () => {
 
 describe('picker palette', () => {
   // Picker screens need 7:1 (WCAG 2.1 SC 1.4.6, enhanced contrast).
-  for (const [mode, p] of [['light', LIGHT], ['dark', DARK]] as const) {
+  for (const [mode, p] of [
+    ['light', LIGHT],
+    ['dark', DARK],
+  ] as const) {
     it(`holds 7:1 for text, buttons and the caution in ${mode} mode`, () => {
       expect(contrast(p.text1, p.body)).toBeGreaterThanOrEqual(7);
       expect(contrast(p.text1, p.surface)).toBeGreaterThanOrEqual(7);

@@ -39,7 +39,11 @@ describe('usePolledRun', () => {
 
   it('reads again every interval while the run is queued or running, and stops once it is done', async () => {
     vi.useFakeTimers();
-    const { reads, state, wrapper } = mountPolling([{ id: 1, status: 'queued' }, { id: 1, status: 'running' }, { id: 1, status: 'done' }]);
+    const { reads, state, wrapper } = mountPolling([
+      { id: 1, status: 'queued' },
+      { id: 1, status: 'running' },
+      { id: 1, status: 'done' },
+    ]);
     await flush();
     expect(reads).toHaveLength(1);
     expect(state().status.value).toBe('done');
@@ -70,7 +74,10 @@ describe('usePolledRun', () => {
 
   it('shows a failed read as an error and stops', async () => {
     vi.useFakeTimers();
-    const { reads, state, wrapper } = mountPolling([{ id: 1, status: 'running' }, { id: 1, status: 'failed' }]);
+    const { reads, state, wrapper } = mountPolling([
+      { id: 1, status: 'running' },
+      { id: 1, status: 'failed' },
+    ]);
     await flush();
     await vi.advanceTimersByTimeAsync(500);
     expect(state().status.value).toBe('error');

@@ -24,7 +24,11 @@ const RULES: { api: string; use: RegExp; guard: RegExp | null }[] = [
 ];
 
 /** Source with comments taken out, so a comment naming an API is not a use of it. */
-const code = (src: string) => src.replace(/\/\*[\s\S]*?\*\//g, '').replace(/(^|[^:'"`])\/\/.*$/gm, '$1').replace(/<!--[\s\S]*?-->/g, '');
+const code = (src: string) =>
+  src
+    .replace(/\/\*[\s\S]*?\*\//g, '')
+    .replace(/(^|[^:'"`])\/\/.*$/gm, '$1')
+    .replace(/<!--[\s\S]*?-->/g, '');
 
 function unguardedUses(src: string): string[] {
   const c = code(src);

@@ -7,7 +7,15 @@ import { NDialogProvider, NMessageProvider } from 'naive-ui';
 import { createAppRouter, handleSessionExpired, installGuards } from '@client/router';
 import { useSessionStore } from '@client/stores/session';
 
-const admin = { id: 1, name: 'Avery Admin', email: 'admin@example.test', role: 'admin', badge: null, sites: [{ id: 1, code: 'S1', name: 'Site one' }], sessionEndsAt: '2026-01-01T10:00:00Z' };
+const admin = {
+  id: 1,
+  name: 'Avery Admin',
+  email: 'admin@example.test',
+  role: 'admin',
+  badge: null,
+  sites: [{ id: 1, code: 'S1', name: 'Site one' }],
+  sessionEndsAt: '2026-01-01T10:00:00Z',
+};
 
 type Reply = { status: number; body: unknown };
 const json = ({ status, body }: Reply) => new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json' } });

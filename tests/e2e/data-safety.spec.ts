@@ -61,7 +61,10 @@ test('an admin backs up now, creates and revokes an integration token, and finds
   await expect(table.getByText('integration-token.created')).toHaveCount(0);
   await expect(table.getByText('integration-token.revoked')).toBeVisible();
   await expect(page.getByText('1 entries')).toBeVisible();
-  await expect(page.getByRole('link', { name: 'Export CSV' })).toHaveAttribute('href', /\/api\/audit-log\/export\?action=integration-token\.revoked&format=csv/);
+  await expect(page.getByRole('link', { name: 'Export CSV' })).toHaveAttribute(
+    'href',
+    /\/api\/audit-log\/export\?action=integration-token\.revoked&format=csv/,
+  );
   const csv = page.waitForEvent('download');
   await page.getByRole('link', { name: 'Export CSV' }).click();
   expect((await csv).suggestedFilename()).toMatch(/^audit-log-all-\d{4}-\d{2}-\d{2}\.csv$/);

@@ -32,11 +32,14 @@ async function uploadTemplate(page: Page): Promise<string> {
   const href = await page.getByTestId('template-link').getAttribute('href');
   const template = await page.request.get(href!);
   expect(template.ok()).toBe(true);
-  await page.getByTestId('plan-upload').locator('input[type=file]').setInputFiles({
-    name: 'aislewright-floor-plan-template.xlsx',
-    mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
-    buffer: await template.body(),
-  });
+  await page
+    .getByTestId('plan-upload')
+    .locator('input[type=file]')
+    .setInputFiles({
+      name: 'aislewright-floor-plan-template.xlsx',
+      mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+      buffer: await template.body(),
+    });
   // A clean file becomes a draft and the plan page opens with its map.
   await expect(page).toHaveURL(/\/floor-plans\/\d+$/, { timeout: 60_000 });
   await expect(page.getByTestId('plan-state')).toHaveText(/Draft/);
@@ -78,11 +81,14 @@ test('a workbook with errors shows the error table and saves nothing', async ({ 
   const rows = page.getByTestId('plan-table').locator('tbody tr');
   await expect(rows.first()).toBeVisible();
   const before = await rows.count();
-  await page.getByTestId('plan-upload').locator('input[type=file]').setInputFiles({
-    name: 'broken.xlsx',
-    mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
-    buffer: Buffer.from('not a workbook at all'),
-  });
+  await page
+    .getByTestId('plan-upload')
+    .locator('input[type=file]')
+    .setInputFiles({
+      name: 'broken.xlsx',
+      mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+      buffer: Buffer.from('not a workbook at all'),
+    });
   await expect(page.getByTestId('error-table')).toBeVisible({ timeout: 60_000 });
   await expect(page.getByText(/nothing was saved/).first()).toBeVisible();
   await expect(page.getByTestId('errors-xlsx')).toHaveAttribute('href', /\/errors\?format=xlsx$/);

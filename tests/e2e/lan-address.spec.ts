@@ -19,7 +19,14 @@ test.use({
   launchOptions: {
     executablePath: CHROMIUM,
     args: [
-      '--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync',
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
       '--host-resolver-rules=MAP floor.test 127.0.0.1',
     ],
   },
@@ -30,16 +37,27 @@ test.use({
  * floor.test does not exist, while the page resolves it through Chromium's mapping.
  */
 async function api<T>(page: Page, method: 'GET' | 'POST', path: string, body?: unknown): Promise<{ status: number; body: T }> {
-  return page.evaluate(async ({ method, path, body, csrf }) => {
-    const res = await fetch(path, { method, headers: { 'content-type': 'application/json', ...csrf }, ...(body === undefined ? {} : { body: JSON.stringify(body) }) });
-    return { status: res.status, body: await res.json() };
-  }, { method, path, body, csrf: CSRF });
+  return page.evaluate(
+    async ({ method, path, body, csrf }) => {
+      const res = await fetch(path, {
+        method,
+        headers: { 'content-type': 'application/json', ...csrf },
+        ...(body === undefined ? {} : { body: JSON.stringify(body) }),
+      });
+      return { status: res.status, body: await res.json() };
+    },
+    { method, path, body, csrf: CSRF },
+  );
 }
 
 /** The guard that keeps this test honest: the page really is an insecure context without randomUUID. */
 async function expectInsecureContext(page: Page): Promise<void> {
   expect(new URL(page.url()).host).toBe(`floor.test:${PORT}`);
-  const ctx = await page.evaluate(() => ({ secure: window.isSecureContext, randomUUID: typeof (crypto as { randomUUID?: unknown }).randomUUID, serviceWorker: 'serviceWorker' in navigator }));
+  const ctx = await page.evaluate(() => ({
+    secure: window.isSecureContext,
+    randomUUID: typeof (crypto as { randomUUID?: unknown }).randomUUID,
+    serviceWorker: 'serviceWorker' in navigator,
+  }));
   expect(ctx).toEqual({ secure: false, randomUUID: 'undefined', serviceWorker: false });
 }
 
@@ -109,7 +127,12 @@ test('on http://floor.test a supervisor plans and releases a wave, and a picker 
 
   // The server holds the pick, made on the LAN address.
   const detail = (await api<{ stopList: { lines: { bin: string; status: string }[] }[] }>(page, 'GET', `/api/sites/${siteId}/trips/${trip.id}`)).body;
-  expect(detail.stopList.flatMap((s) => s.lines).filter((l) => l.status === 'picked').map((l) => l.bin)).toEqual([bin]);
+  expect(
+    detail.stopList
+      .flatMap((s) => s.lines)
+      .filter((l) => l.status === 'picked')
+      .map((l) => l.bin),
+  ).toEqual([bin]);
   await tablet.close();
   expect(errors).toEqual([]);
   // Leave the demo picker free for the browser tests after this one (they share one server).

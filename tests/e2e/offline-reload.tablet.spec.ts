@@ -19,7 +19,16 @@ const CSRF = { 'x-aislewright': '1' };
 const HTTP_PORT = Number(process.env.E2E_PORT ?? 3310);
 const HTTPS_PORT = Number(process.env.E2E_HTTPS_PORT ?? HTTP_PORT + 1);
 const HOST = 'floor.test';
-const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+const ARGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
 
 let dir = '';
 let server: ChildProcess | null = null;
@@ -42,13 +51,24 @@ test.beforeAll(async () => {
   mkdirSync(join(dir, 'db'));
   const { cert, key } = makeCertificates(dir);
   server = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
-    env: { ...process.env, PORT: String(HTTPS_PORT), DATABASE_FILE: dbFile(), LOG_LEVEL: 'warn', TLS_CERT_FILE: cert, TLS_KEY_FILE: key, PUBLIC_URL: httpsBase },
+    env: {
+      ...process.env,
+      PORT: String(HTTPS_PORT),
+      DATABASE_FILE: dbFile(),
+      LOG_LEVEL: 'warn',
+      TLS_CERT_FILE: cert,
+      TLS_KEY_FILE: key,
+      PUBLIC_URL: httpsBase,
+    },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
   const probe = await request.newContext({ ignoreHTTPSErrors: true });
   let up = false;
   for (let i = 0; i < 120 && !up; i++) {
-    up = await probe.get(`https://localhost:${HTTPS_PORT}/api/health`).then((r) => r.ok(), () => false);
+    up = await probe.get(`https://localhost:${HTTPS_PORT}/api/health`).then(
+      (r) => r.ok(),
+      () => false,
+    );
     if (!up) await new Promise((r) => setTimeout(r, 500));
   }
   await probe.dispose();
@@ -77,13 +97,19 @@ async function releaseTrip(api: APIRequestContext, pickerName: string): Promise<
   const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
   const site = sites[0]!;
   const orders = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
-  let job = (await (await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds: orders.rows.slice(0, 4).map((o) => o.id), cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })).json()) as { id: string; state: string };
+  let job = (await (
+    await api.post(`/api/sites/${site.id}/wave-previews`, {
+      data: { orderIds: orders.rows.slice(0, 4).map((o) => o.id), cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' },
+    })
+  ).json()) as { id: string; state: string };
   for (let i = 0; i < 300 && job.state === 'running'; i++) {
     await new Promise((r) => setTimeout(r, 200));
     job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
   }
   expect(job.state).toBe('done');
-  const released = await api.post(`/api/sites/${site.id}/waves`, { data: { previewId: job.id, releaseKey: `offline-${job.id}`, name: `Offline reload wave ${Date.now()}` } });
+  const released = await api.post(`/api/sites/${site.id}/waves`, {
+    data: { previewId: job.id, releaseKey: `offline-${job.id}`, name: `Offline reload wave ${Date.now()}` },
+  });
   expect(released.status()).toBe(201);
   const wave = (await released.json()) as { tripList: { id: number; lines: number }[] };
   const trip = [...wave.tripList].sort((a, b) => b.lines - a.lines)[0]!;

@@ -9,20 +9,23 @@ import { supervisorApi } from './harness/session';
 
 const PICKER = { badge: 'P-1001', pin: '246810', name: 'Pat Picker' };
 
-
 /** Releases a wave of six open orders and gives its longest trip to the picker. */
 async function releaseTrip(api: APIRequestContext): Promise<{ tripId: number; lines: number; stops: number }> {
   const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
   const site = sites[0]!;
   const page = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=6`)).json()) as { rows: { id: number }[] };
   const orderIds = page.rows.slice(0, 6).map((o) => o.id);
-  let job = (await (await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })).json()) as { id: string; state: string };
+  let job = (await (
+    await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })
+  ).json()) as { id: string; state: string };
   for (let i = 0; i < 300 && job.state === 'running'; i++) {
     await new Promise((r) => setTimeout(r, 200));
     job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
   }
   expect(job.state).toBe('done');
-  const released = await api.post(`/api/sites/${site.id}/waves`, { data: { previewId: job.id, releaseKey: `taps-${job.id}`, name: `Tap test wave ${Date.now()}` } });
+  const released = await api.post(`/api/sites/${site.id}/waves`, {
+    data: { previewId: job.id, releaseKey: `taps-${job.id}`, name: `Tap test wave ${Date.now()}` },
+  });
   expect(released.status()).toBe(201);
   const wave = (await released.json()) as { tripList: { id: number; lines: number; stops: number }[] };
   const trip = [...wave.tripList].sort((a, b) => b.stops - a.stops)[0]!;

@@ -10,7 +10,6 @@ import { supervisorApi } from './harness/session';
 
 const PICKER = { badge: 'P-1003', pin: '246810', name: 'Kai Picker' };
 
-
 /** Releases a wave of four open orders (first come, first served) and gives its longest trip to the picker. */
 async function releaseTrip(api: APIRequestContext): Promise<{ siteId: number; tripId: number; lines: number; waveName: string }> {
   const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
@@ -18,7 +17,9 @@ async function releaseTrip(api: APIRequestContext): Promise<{ siteId: number; tr
   const page = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
   const orderIds = page.rows.slice(0, 4).map((o) => o.id);
   expect(orderIds).toHaveLength(4);
-  let job = (await (await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })).json()) as { id: string; state: string };
+  let job = (await (
+    await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })
+  ).json()) as { id: string; state: string };
   for (let i = 0; i < 300 && job.state === 'running'; i++) {
     await new Promise((r) => setTimeout(r, 200));
     job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
@@ -94,7 +95,9 @@ test('a picker picks a whole trip through a network drop; nothing is lost or dou
     const cdb = new Database(`test-results/e2e-db-${new URL(baseURL!).port}/aislewright.sqlite`, { readonly: true, fileMustExist: true });
     try {
       expect((cdb.prepare('SELECT cart_ready_at FROM trips WHERE id = ?').get(tripId) as { cart_ready_at: string | null }).cart_ready_at).not.toBeNull();
-      const entries = cdb.prepare("SELECT detail FROM audit_log WHERE action = 'trip.cart_ready' AND subject = ?").all(`trip:${tripId}`) as { detail: string }[];
+      const entries = cdb.prepare("SELECT detail FROM audit_log WHERE action = 'trip.cart_ready' AND subject = ?").all(`trip:${tripId}`) as {
+        detail: string;
+      }[];
       expect(entries).toHaveLength(1);
       const totes = (JSON.parse(entries[0]!.detail) as { totes: { tote: number; via: string }[] }).totes;
       expect(totes).toHaveLength(toteCount);
@@ -167,7 +170,13 @@ test('a picker picks a whole trip through a network drop; nothing is lost or dou
     expect(rows).toHaveLength(lines);
     expect(rows.filter((r) => r.status === 'picked')).toHaveLength(lines - 1);
     expect(rows.filter((r) => r.status === 'short')).toHaveLength(1);
-    const audits = db.prepare("SELECT subject, COUNT(*) AS n FROM audit_log WHERE action IN ('pick.confirm', 'pick.short') AND subject IN (" + rows.map(() => '?').join(',') + ') GROUP BY subject').all(...rows.map((r) => `line:${r.id}`)) as { subject: string; n: number }[];
+    const audits = db
+      .prepare(
+        "SELECT subject, COUNT(*) AS n FROM audit_log WHERE action IN ('pick.confirm', 'pick.short') AND subject IN (" +
+          rows.map(() => '?').join(',') +
+          ') GROUP BY subject',
+      )
+      .all(...rows.map((r) => `line:${r.id}`)) as { subject: string; n: number }[];
     expect(audits).toHaveLength(lines);
     for (const a of audits) expect(a.n, a.subject).toBe(1);
     const trip = db.prepare('SELECT status FROM trips WHERE id = ?').get(tripId) as { status: string };

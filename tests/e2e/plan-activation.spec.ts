@@ -51,7 +51,11 @@ async function setUpSite(baseURL: string): Promise<{ siteId: number; twoAisles: 
   const skuFile = { name: 'skus.csv', mimeType: 'text/csv', buffer: csv([['sku', 'description', 'bin', 'unit_weight_kg', 'unit_volume_l'], ...skuRows]) };
   const s = await api.post(`/api/sites/${site.id}/skus/import`, { multipart: { file: skuFile } });
   expect(s.status(), await s.text()).toBe(200);
-  const orderFile = { name: 'orders.csv', mimeType: 'text/csv', buffer: csv([['order', 'sku', 'qty'], ...skuRows.map((r, i) => [`PA-${1000 + i}`, r[0]!, 1])]) };
+  const orderFile = {
+    name: 'orders.csv',
+    mimeType: 'text/csv',
+    buffer: csv([['order', 'sku', 'qty'], ...skuRows.map((r, i) => [`PA-${1000 + i}`, r[0]!, 1])]),
+  };
   const o = await api.post(`/api/sites/${site.id}/orders/import`, { multipart: { file: orderFile } });
   expect(o.status(), await o.text()).toBe(200);
   const oneAisle = await generate(api, site.id, 'One aisle', 1);
@@ -107,7 +111,10 @@ test('activating a plan that drops bins needs an acknowledgement, and the retire
   await expect(page.getByTestId('activate-dialog').getByTestId('check-ok')).toContainText('Nothing is lost');
   await expect(page.getByTestId('activate-dialog').getByTestId('check-skus')).toContainText(`0 of ${skus} SKUs`);
   await page.screenshot({ path: test.info().outputPath('rollback-dialog.png') });
-  await page.getByTestId('activate-dialog').getByRole('button', { name: /^Activate v\d+$/ }).click();
+  await page
+    .getByTestId('activate-dialog')
+    .getByRole('button', { name: /^Activate v\d+$/ })
+    .click();
   await expect(page.getByTestId('plan-state')).toHaveText(/Active/);
   await page.getByRole('button', { name: 'All versions' }).click();
   const rows = page.getByTestId('plan-table').locator('tbody tr');

@@ -51,7 +51,11 @@ test('an engineer runs slotting on an uploaded history, a supervisor applies its
   await expect(page.getByText('No runs yet')).toBeVisible();
   await page.getByRole('textbox').first().fill('Browser test slotting');
   const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.getByRole('button', { name: 'Choose the file' }).click()]);
-  await chooser.setFiles({ name: 'history.xlsx', mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', buffer: historyWorkbook(skus) });
+  await chooser.setFiles({
+    name: 'history.xlsx',
+    mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+    buffer: historyWorkbook(skus),
+  });
   await expect(page.getByText(/orders, .* lines over 9 days/)).toBeVisible();
   await page.getByRole('button', { name: 'Start the run' }).click();
   await expect(page).toHaveURL(/\/slotting\/\d+$/);

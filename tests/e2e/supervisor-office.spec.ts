@@ -80,7 +80,13 @@ test('supervisor sees who is signed in and assigns waiting trips to the free pic
   const job = await (
     await page.request.post(`/api/sites/${siteId}/wave-previews`, {
       headers: { 'x-aislewright': '1' },
-      data: { orderIds: open.rows.map((o: { id: number }) => o.id), cartProfileId: site.cartProfiles[0].id, batching: 'single', method: 'best', improve: 'local' },
+      data: {
+        orderIds: open.rows.map((o: { id: number }) => o.id),
+        cartProfileId: site.cartProfiles[0].id,
+        batching: 'single',
+        method: 'best',
+        improve: 'local',
+      },
     })
   ).json();
   let state = job;
@@ -88,7 +94,10 @@ test('supervisor sees who is signed in and assigns waiting trips to the free pic
     await page.waitForTimeout(200);
     state = await (await page.request.get(`/api/sites/${siteId}/wave-previews/${job.id}`)).json();
   }
-  const released = await page.request.post(`/api/sites/${siteId}/waves`, { headers: { 'x-aislewright': '1' }, data: { previewId: job.id, releaseKey: `e2e-${job.id}` } });
+  const released = await page.request.post(`/api/sites/${siteId}/waves`, {
+    headers: { 'x-aislewright': '1' },
+    data: { previewId: job.id, releaseKey: `e2e-${job.id}` },
+  });
   expect(released.status()).toBe(201);
   const wave = await released.json();
 
@@ -104,6 +113,9 @@ test('supervisor sees who is signed in and assigns waiting trips to the free pic
   await page.screenshot({ path: 'test-results/supervisor-assign.png' });
   for (const tablet of tablets) await tablet.close();
   // Leave the demo pickers free for the browser tests after this one (they share one server).
-  const closed = await page.request.post(`/api/sites/${siteId}/board/waves/${wave.id}/close`, { headers: { 'x-aislewright': '1' }, data: { reason: 'browser test done' } });
+  const closed = await page.request.post(`/api/sites/${siteId}/board/waves/${wave.id}/close`, {
+    headers: { 'x-aislewright': '1' },
+    data: { reason: 'browser test done' },
+  });
   expect(closed.status(), await closed.text()).toBe(200);
 });

@@ -72,7 +72,10 @@ export async function makeDeps(file = ':memory:'): Promise<Deps> {
   const events = createLocalHub();
   const schema = schemas.get(db);
   // On PostgreSQL the jobs go through pg-boss, in a schema beside the test file's own.
-  const jobs: JobRunner = schema && testDatabaseUrl ? await createPgJobRunner({ db, url: testDatabaseUrl, bossSchema: `${schema}_boss`, events, logger }) : createLocalJobRunner(events, logger);
+  const jobs: JobRunner =
+    schema && testDatabaseUrl
+      ? await createPgJobRunner({ db, url: testDatabaseUrl, bossSchema: `${schema}_boss`, events, logger })
+      : createLocalJobRunner(events, logger);
   return {
     config: loadConfig({ DATABASE_FILE: file, PUBLIC_URL: 'http://aislewright.test', LOG_LEVEL: 'silent' }),
     db,
@@ -111,9 +114,16 @@ export async function makeTestApp(options: { seeders?: DemoSeeder[] } = {}): Pro
     picker: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[0].badge, pin: DEMO_PIN }),
     picker2: await signIn('/api/auth/badge-sign-in', { badge: DEMO_PICKERS[1].badge, pin: DEMO_PIN }),
   };
-  return { app, deps, as, anon: request.agent(app), siteId, close: async () => {
-    deps.boardStreams.close();
-    await deps.jobs.close();
-    return dropTestDb(deps.db);
-  } };
+  return {
+    app,
+    deps,
+    as,
+    anon: request.agent(app),
+    siteId,
+    close: async () => {
+      deps.boardStreams.close();
+      await deps.jobs.close();
+      return dropTestDb(deps.db);
+    },
+  };
 }

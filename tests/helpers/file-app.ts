@@ -25,9 +25,16 @@ export async function fileDeps(file: string, seed = true): Promise<Deps> {
 
 export async function signIn(app: Express, role: 'admin' | 'supervisor' | 'engineer' | 'picker' | 'picker2'): Promise<Agent> {
   const agent = request.agent(app);
-  const res = role === 'picker' || role === 'picker2'
-    ? await agent.post('/api/auth/badge-sign-in').set(csrf).send({ badge: DEMO_PICKERS[role === 'picker' ? 0 : 1].badge, pin: DEMO_PIN })
-    : await agent.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS.find((u) => u.role === role)!.email, password: DEMO_PASSWORD });
+  const res =
+    role === 'picker' || role === 'picker2'
+      ? await agent
+          .post('/api/auth/badge-sign-in')
+          .set(csrf)
+          .send({ badge: DEMO_PICKERS[role === 'picker' ? 0 : 1].badge, pin: DEMO_PIN })
+      : await agent
+          .post('/api/auth/sign-in')
+          .set(csrf)
+          .send({ email: DEMO_USERS.find((u) => u.role === role)!.email, password: DEMO_PASSWORD });
   if (res.status !== 200) throw new Error(`sign-in as ${role} failed: ${res.status} ${JSON.stringify(res.body)}`);
   return agent;
 }

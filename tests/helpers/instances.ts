@@ -10,9 +10,7 @@ export function randomPoints(n: number, seed: number, side = 1000): [number, num
 }
 
 export function euclidean(points: readonly (readonly [number, number])[]): DistanceMatrix {
-  return matrixFromFunction(points.length, (i, j) =>
-    Math.hypot(points[i]![0] - points[j]![0], points[i]![1] - points[j]![1]),
-  );
+  return matrixFromFunction(points.length, (i, j) => Math.hypot(points[i]![0] - points[j]![0], points[i]![1] - points[j]![1]));
 }
 
 export function randomEuclidean(n: number, seed: number, side = 1000): DistanceMatrix {

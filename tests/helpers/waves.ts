@@ -25,9 +25,16 @@ export async function awaitPreview(t: TestApp, jobId: string): Promise<WaveJob> 
 export async function previewWave(t: TestApp, options: { orders?: number; batching?: string; method?: string; improve?: string } = {}): Promise<WaveJob> {
   const orderIds = await openOrderIds(t, options.orders ?? 12);
   const cartProfileId = (await t.deps.db('cart_profiles').where({ site_id: t.siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
-  const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/wave-previews`).set(csrf).send({
-    orderIds, cartProfileId, batching: options.batching ?? 'savings', method: options.method ?? 'best', improve: options.improve ?? 'local',
-  });
+  const res = await t.as.supervisor
+    .post(`/api/sites/${t.siteId}/wave-previews`)
+    .set(csrf)
+    .send({
+      orderIds,
+      cartProfileId,
+      batching: options.batching ?? 'savings',
+      method: options.method ?? 'best',
+      improve: options.improve ?? 'local',
+    });
   expect(res.status, JSON.stringify(res.body)).toBe(202);
   return awaitPreview(t, res.body.id);
 }
@@ -36,7 +43,10 @@ export async function previewWave(t: TestApp, options: { orders?: number; batchi
 export async function releaseDemoWave(t: TestApp, options: { orders?: number; batching?: string } = {}): Promise<WaveDetail> {
   const job = await previewWave(t, options);
   expect(job.state, JSON.stringify(job.error)).toBe('done');
-  const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/waves`).set(csrf).send({ previewId: job.id, releaseKey: `key-${job.id}` });
+  const res = await t.as.supervisor
+    .post(`/api/sites/${t.siteId}/waves`)
+    .set(csrf)
+    .send({ previewId: job.id, releaseKey: `key-${job.id}` });
   expect(res.status, JSON.stringify(res.body)).toBe(201);
   return res.body as WaveDetail;
 }

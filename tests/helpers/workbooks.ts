@@ -118,7 +118,10 @@ function sheetXml(s: RawSheet): string {
     const cell = typeof v === 'number' ? `<c r="${ref}"><v>${v}</v></c>` : `<c r="${ref}" t="inlineStr"><is><t>${esc(v)}</t></is></c>`;
     byRow.set(r, [...(byRow.get(r) ?? []), cell]);
   }
-  const rows = [...byRow.entries()].sort((a, b) => a[0] - b[0]).map(([r, cs]) => `<row r="${r}">${cs.join('')}</row>`).join('');
+  const rows = [...byRow.entries()]
+    .sort((a, b) => a[0] - b[0])
+    .map(([r, cs]) => `<row r="${r}">${cs.join('')}</row>`)
+    .join('');
   return `<?xml version="1.0" encoding="UTF-8" standalone="yes"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main">${s.dimension ? `<dimension ref="${s.dimension}"/>` : ''}<sheetData>${rows}${s.padding ?? ''}</sheetData></worksheet>`;
 }
 

@@ -84,7 +84,9 @@ describe('every route as every role', () => {
         if (want === 'allowed') {
           // Allowed means the access layer let it through: whatever the handler then answers
           // (400 for the empty body, 404 for the made-up id) is not 401 'unauthenticated' or 403.
-          expect(res.status === 403 || code === 'unauthenticated' || code === 'integration_token_required', `${res.status} ${JSON.stringify(res.body)}`).toBe(false);
+          expect(res.status === 403 || code === 'unauthenticated' || code === 'integration_token_required', `${res.status} ${JSON.stringify(res.body)}`).toBe(
+            false,
+          );
         } else {
           expect(res.status, JSON.stringify(res.body)).toBe(want);
         }

@@ -44,7 +44,12 @@ describe('who is signed in, and assigning waiting trips to free pickers', () => 
 
     // Now both hold a trip: the list says which, and a second call assigns nobody.
     const list = await t.as.supervisor.get(`/api/sites/${t.siteId}/pickers/signed-in`);
-    expect(list.body.filter((p: { tripN: number | null }) => p.tripN !== null).map((p: { tripN: number }) => p.tripN).sort()).toEqual([1, 2]);
+    expect(
+      list.body
+        .filter((p: { tripN: number | null }) => p.tripN !== null)
+        .map((p: { tripN: number }) => p.tripN)
+        .sort(),
+    ).toEqual([1, 2]);
     const again = await t.as.supervisor.post(`/api/sites/${t.siteId}/waves/${wave.id}/auto-assign`).set(csrf).send({});
     expect(again.body.assigned).toHaveLength(0);
     expect(again.body.note).toMatch(/No signed-in picker is free/);

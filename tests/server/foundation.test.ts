@@ -66,7 +66,11 @@ describe('sign-in', () => {
     const noHeader = await t.anon.post('/api/auth/sign-in').send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD });
     expect(noHeader.status).toBe(403);
     expect(noHeader.body.error.code).toBe('csrf_failed');
-    const crossOrigin = await t.anon.post('/api/auth/sign-in').set(csrf).set('Origin', 'https://evil.example').send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD });
+    const crossOrigin = await t.anon
+      .post('/api/auth/sign-in')
+      .set(csrf)
+      .set('Origin', 'https://evil.example')
+      .send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD });
     expect(crossOrigin.status).toBe(403);
   });
 
@@ -80,7 +84,11 @@ describe('sign-in', () => {
   });
 
   it('refuses a token signed with alg none or another secret', async () => {
-    const forged = jwt.sign({ ver: 0, auth: Math.floor(Date.now() / 1000) }, 'another-secret-another-secret-another-secret', { subject: '1', issuer: 'aislewright', audience: 'aislewright-app' });
+    const forged = jwt.sign({ ver: 0, auth: Math.floor(Date.now() / 1000) }, 'another-secret-another-secret-another-secret', {
+      subject: '1',
+      issuer: 'aislewright',
+      audience: 'aislewright-app',
+    });
     const res = await request(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${forged}`);
     expect(res.status).toBe(401);
     const none = `${Buffer.from('{"alg":"none","typ":"JWT"}').toString('base64url')}.${Buffer.from(JSON.stringify({ sub: '1', ver: 0, auth: 1, iss: 'aislewright', aud: 'aislewright-app' })).toString('base64url')}.`;
@@ -89,7 +97,13 @@ describe('sign-in', () => {
 
   it('ends a session past the shift limit even if the token is fresh', async () => {
     const old = Math.floor(Date.now() / 1000) - SESSION_MAX_S - 60;
-    const token = jwt.sign({ ver: 0, auth: old }, t.deps.jwtSecret, { algorithm: 'HS256', subject: '1', issuer: 'aislewright', audience: 'aislewright-app', expiresIn: 900 });
+    const token = jwt.sign({ ver: 0, auth: old }, t.deps.jwtSecret, {
+      algorithm: 'HS256',
+      subject: '1',
+      issuer: 'aislewright',
+      audience: 'aislewright-app',
+      expiresIn: 900,
+    });
     expect((await request(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${token}`)).status).toBe(401);
   });
 
@@ -105,7 +119,10 @@ describe('sign-in', () => {
 
 describe('admin: users', () => {
   it('invites by e-mail with a single-use link that sets up the account', async () => {
-    const inv = await t.as.admin.post('/api/users/invites').set(csrf).send({ email: 'new.super@demo.aislewright.test', role: 'supervisor', siteIds: [t.siteId] });
+    const inv = await t.as.admin
+      .post('/api/users/invites')
+      .set(csrf)
+      .send({ email: 'new.super@demo.aislewright.test', role: 'supervisor', siteIds: [t.siteId] });
     expect(inv.status).toBe(201);
     const mail = (await t.as.admin.get('/api/mail/outbox')).body.find((m: { to: string }) => m.to === 'new.super@demo.aislewright.test');
     const token = linkToken(mail.text, '/accept-invite')!;
@@ -126,7 +143,10 @@ describe('admin: users', () => {
   });
 
   it('deactivating a user ends their sessions at once', async () => {
-    await t.as.admin.post('/api/users/pickers').set(csrf).send({ name: 'Temp Picker', badge: 'P-2001', pin: '135790', siteIds: [t.siteId] });
+    await t.as.admin
+      .post('/api/users/pickers')
+      .set(csrf)
+      .send({ name: 'Temp Picker', badge: 'P-2001', pin: '135790', siteIds: [t.siteId] });
     const agent = request.agent(t.app);
     await agent.post('/api/auth/badge-sign-in').set(csrf).send({ badge: 'P-2001', pin: '135790' });
     expect((await agent.get('/api/auth/me')).status).toBe(200);
@@ -148,10 +168,16 @@ describe('admin: users', () => {
   it('changes only the sites of a user (regression: an empty field update answered 500)', async () => {
     const other = await t.as.admin.post('/api/sites').set(csrf).send({ code: 'SITES2', name: 'Second site' });
     const id = (await t.as.admin.get('/api/users')).body.find((u: { badge: string }) => u.badge === 'P-1002').id;
-    const res = await t.as.admin.patch(`/api/users/${id}`).set(csrf).send({ siteIds: [t.siteId, other.body.id] });
+    const res = await t.as.admin
+      .patch(`/api/users/${id}`)
+      .set(csrf)
+      .send({ siteIds: [t.siteId, other.body.id] });
     expect(res.status).toBe(200);
     expect(res.body.siteIds).toEqual([t.siteId, other.body.id]);
-    await t.as.admin.patch(`/api/users/${id}`).set(csrf).send({ siteIds: [t.siteId] });
+    await t.as.admin
+      .patch(`/api/users/${id}`)
+      .set(csrf)
+      .send({ siteIds: [t.siteId] });
   });
 
   it('will not let an admin lock themselves out', async () => {
@@ -167,7 +193,9 @@ describe('passwords', () => {
     await t.anon.post('/api/auth/reset-request').set(csrf).send({ email: 'engineer@demo.aislewright.test' });
     // The mail goes out after the answer.
     await t.deps.background.settled();
-    const mail = (await t.as.admin.get('/api/mail/outbox')).body.find((m: { to: string; subject: string }) => m.to === 'engineer@demo.aislewright.test' && /Reset/.test(m.subject));
+    const mail = (await t.as.admin.get('/api/mail/outbox')).body.find(
+      (m: { to: string; subject: string }) => m.to === 'engineer@demo.aislewright.test' && /Reset/.test(m.subject),
+    );
     const token = linkToken(mail.text, '/reset-password')!;
     expect((await t.anon.post('/api/auth/reset').set(csrf).send({ token, newPassword: 'short' })).status).toBe(400);
     expect((await t.anon.post('/api/auth/reset').set(csrf).send({ token, newPassword: 'a-brand-new-password' })).status).toBe(200);
@@ -175,7 +203,9 @@ describe('passwords', () => {
     // The engineer's existing session ended with the reset.
     expect((await t.as.engineer.get('/api/auth/me')).status).toBe(401);
     const agent = request.agent(t.app);
-    expect((await agent.post('/api/auth/sign-in').set(csrf).send({ email: 'engineer@demo.aislewright.test', password: 'a-brand-new-password' })).status).toBe(200);
+    expect((await agent.post('/api/auth/sign-in').set(csrf).send({ email: 'engineer@demo.aislewright.test', password: 'a-brand-new-password' })).status).toBe(
+      200,
+    );
     t.as.engineer = agent;
   });
 
@@ -193,9 +223,19 @@ describe('sites', () => {
   it('keeps settings with their defaults and edits cart profiles', async () => {
     const site = (await t.as.admin.get(`/api/sites/${t.siteId}`)).body;
     expect(site.settings).toEqual({ walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 5, confirmScan: 'bin' });
-    const patched = await t.as.admin.patch(`/api/sites/${t.siteId}`).set(csrf).send({ settings: { walkingSpeedMps: 1.2 } });
+    const patched = await t.as.admin
+      .patch(`/api/sites/${t.siteId}`)
+      .set(csrf)
+      .send({ settings: { walkingSpeedMps: 1.2 } });
     expect(patched.body.settings.walkingSpeedMps).toBe(1.2);
-    expect((await t.as.admin.patch(`/api/sites/${t.siteId}`).set(csrf).send({ settings: { walkingSpeedMps: -1 } })).status).toBe(400);
+    expect(
+      (
+        await t.as.admin
+          .patch(`/api/sites/${t.siteId}`)
+          .set(csrf)
+          .send({ settings: { walkingSpeedMps: -1 } })
+      ).status,
+    ).toBe(400);
     const cart = await t.as.admin.post(`/api/sites/${t.siteId}/cart-profiles`).set(csrf).send({ name: 'Wide cart', totes: 12, maxKg: 200, maxLitres: 600 });
     expect(cart.status).toBe(201);
     expect((await t.as.admin.delete(`/api/sites/${t.siteId}/cart-profiles/${cart.body.id}`).set(csrf)).status).toBe(200);

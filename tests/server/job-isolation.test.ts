@@ -84,7 +84,10 @@ describe('a job that dies hard', () => {
     const planId = (await t.deps.db('floor_plans').where({ site_id: t.siteId, state: 'active' }).first<{ id: number }>('id'))!.id;
     const before = await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans/${planId}`);
     process.env[CRASH_TEST_ENV] = 'build.worker.ts:abort';
-    const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/floor-plans/${planId}/closures`).set(csrf).send({ kind: 'aisle', code: 'B', fromM: 5, toM: 6 });
+    const res = await t.as.supervisor
+      .post(`/api/sites/${t.siteId}/floor-plans/${planId}/closures`)
+      .set(csrf)
+      .send({ kind: 'aisle', code: 'B', fromM: 5, toM: 6 });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('build_stopped');
     expect(res.body.error.message).toMatch(/^Building the walk graph and distances stopped with a fatal error/);
@@ -104,7 +107,6 @@ describe('a job that dies hard', () => {
     expect(Number((await t.deps.db('skus').count({ n: '*' }))[0]!.n)).toBe(skus);
     await expectServing();
   }, 120_000);
-
 
   it('stops a job whose typed arrays (outside the V8 heap) outgrow its memory allowance', async () => {
     process.env[CRASH_TEST_ENV] = 'read-worker.ts:offheap';

@@ -36,7 +36,14 @@ describe('SKU master file', () => {
   });
 
   it('names a missing column', async () => {
-    const res = await upload('skus/import', book('skus', [['sku', 'bin'], ['S-1', 'A-01-01-1']]), 'skus.xlsx');
+    const res = await upload(
+      'skus/import',
+      book('skus', [
+        ['sku', 'bin'],
+        ['S-1', 'A-01-01-1'],
+      ]),
+      'skus.xlsx',
+    );
     expect(res.body.ok).toBe(false);
     expect(res.body.errors.map((e: { column: string }) => e.column)).toEqual(expect.arrayContaining(['unit_weight_kg', 'unit_volume_l']));
   });

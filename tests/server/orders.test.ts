@@ -27,7 +27,19 @@ const push = (body: object, siteId = t.siteId, bearer = token) =>
 
 describe('orders pushed by the host system', () => {
   it('creates orders with totals from the SKU master', async () => {
-    const res = await push({ orders: [{ order: 'SO-1', due: '2026-12-03T14:00:00Z', priority: 2, lines: [{ sku: 'SKU-RED', qty: 2 }, { sku: 'SKU-BLUE', qty: 1 }] }] });
+    const res = await push({
+      orders: [
+        {
+          order: 'SO-1',
+          due: '2026-12-03T14:00:00Z',
+          priority: 2,
+          lines: [
+            { sku: 'SKU-RED', qty: 2 },
+            { sku: 'SKU-BLUE', qty: 1 },
+          ],
+        },
+      ],
+    });
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ ok: true, created: 1, unchanged: 0 });
     const page = await t.as.supervisor.get(`/api/sites/${t.siteId}/orders`);
@@ -52,10 +64,17 @@ describe('orders pushed by the host system', () => {
 
   it('refuses unknown SKUs with 422 naming the order and field, and saves nothing', async () => {
     const before = await t.deps.db('orders').count({ n: '*' });
-    const res = await push({ orders: [{ order: 'SO-3', lines: [{ sku: 'SKU-RED', qty: 1 }] }, { order: 'SO-4', lines: [{ sku: 'NOPE', qty: 1 }] }] });
+    const res = await push({
+      orders: [
+        { order: 'SO-3', lines: [{ sku: 'SKU-RED', qty: 1 }] },
+        { order: 'SO-4', lines: [{ sku: 'NOPE', qty: 1 }] },
+      ],
+    });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('unknown_sku');
-    expect(res.body.error.details).toEqual([{ order: 'SO-4', field: 'orders.1.lines.0.sku', value: 'NOPE', message: 'SKU NOPE is not in the SKU master; import it first' }]);
+    expect(res.body.error.details).toEqual([
+      { order: 'SO-4', field: 'orders.1.lines.0.sku', value: 'NOPE', message: 'SKU NOPE is not in the SKU master; import it first' },
+    ]);
     expect(await t.deps.db('orders').count({ n: '*' })).toEqual(before);
   });
 

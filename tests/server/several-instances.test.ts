@@ -63,7 +63,10 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
     // A wave planned and released on instance A.
     const orderIds = await db('orders').where({ site_id: siteId, status: 'open' }).orderBy('id').limit(8).pluck('id');
     const cartProfileId = (await db('cart_profiles').where({ site_id: siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
-    const started = await supervisorA.post(`/api/sites/${siteId}/wave-previews`).set(csrf).send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
+    const started = await supervisorA
+      .post(`/api/sites/${siteId}/wave-previews`)
+      .set(csrf)
+      .send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
     expect(started.status, JSON.stringify(started.body)).toBe(202);
     let job = started.body;
     for (let i = 0; i < 600 && job.state === 'running'; i++) {
@@ -71,7 +74,10 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
       job = (await supervisorA.get(`/api/sites/${siteId}/wave-previews/${job.id}`)).body;
     }
     expect(job.state, JSON.stringify(job.error)).toBe('done');
-    const released = await supervisorA.post(`/api/sites/${siteId}/waves`).set(csrf).send({ previewId: job.id, releaseKey: `two-instances-${job.id}` });
+    const released = await supervisorA
+      .post(`/api/sites/${siteId}/waves`)
+      .set(csrf)
+      .send({ previewId: job.id, releaseKey: `two-instances-${job.id}` });
     expect(released.status, JSON.stringify(released.body)).toBe(201);
 
     // The picker works on instance A.
@@ -153,7 +159,10 @@ describe.skipIf(!testDatabaseUrl)('a wave preview whose instance dies on one Pos
     expect((await supervisorA.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
     const orderIds = await db('orders').where({ site_id: siteId, status: 'open' }).orderBy('id').limit(8).pluck('id');
     const cartProfileId = (await db('cart_profiles').where({ site_id: siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
-    const started = await supervisorA.post(`/api/sites/${siteId}/wave-previews`).set(csrf).send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
+    const started = await supervisorA
+      .post(`/api/sites/${siteId}/wave-previews`)
+      .set(csrf)
+      .send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
     expect(started.status, JSON.stringify(started.body)).toBe(202);
     const jobId: string = started.body.id;
 
@@ -191,7 +200,10 @@ describe.skipIf(!testDatabaseUrl)('a wave preview whose instance dies on one Pos
     console.log(`preview finished on the survivor ${Date.now() - killedAt} ms after its first instance was killed`);
 
     // And the preview taken over is released like any other.
-    const released = await supervisor.post(`/api/sites/${siteId}/waves`).set(csrf).send({ previewId: jobId, releaseKey: `take-over-${jobId}` });
+    const released = await supervisor
+      .post(`/api/sites/${siteId}/waves`)
+      .set(csrf)
+      .send({ previewId: jobId, releaseKey: `take-over-${jobId}` });
     expect(released.status, JSON.stringify(released.body)).toBe(201);
     expect(released.body.orders).toBe(orderIds.length);
   }, 180_000);

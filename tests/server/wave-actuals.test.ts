@@ -23,8 +23,12 @@ describe('GET /api/sites/:siteId/waves/:id/actuals', () => {
     }
   });
 
-  it('answers the wave report\'s shorts once a line is short', async () => {
-    const line = await t.deps.db('pick_lines').join('trips', 'trips.id', 'pick_lines.trip_id').where('trips.wave_id', wave.id).first<{ id: number; trip_id: number }>('pick_lines.id', 'pick_lines.trip_id');
+  it("answers the wave report's shorts once a line is short", async () => {
+    const line = await t.deps
+      .db('pick_lines')
+      .join('trips', 'trips.id', 'pick_lines.trip_id')
+      .where('trips.wave_id', wave.id)
+      .first<{ id: number; trip_id: number }>('pick_lines.id', 'pick_lines.trip_id');
     await t.deps.db('pick_lines').where({ id: line!.id }).update({ status: 'short', picked_qty: 0, short_reason: 'empty' });
     const n = (await t.deps.db('trips').where({ id: line!.trip_id }).first<{ n: number }>('n'))!.n;
     const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/waves/${wave.id}/actuals`);

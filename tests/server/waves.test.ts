@@ -45,7 +45,10 @@ describe('wave preview', () => {
     const line = (await t.deps.db('order_lines').where({ order_id: id }).first())!;
     await t.deps.db('order_lines').where({ id: line.id }).update({ qty: 5000 });
     const cartProfileId = (await t.deps.db('cart_profiles').where({ site_id: t.siteId }).first<{ id: number }>('id'))!.id;
-    const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/wave-previews`).set(csrf).send({ orderIds: [id], cartProfileId });
+    const res = await t.as.supervisor
+      .post(`/api/sites/${t.siteId}/wave-previews`)
+      .set(csrf)
+      .send({ orderIds: [id], cartProfileId });
     const { awaitPreview } = await import('../helpers/waves');
     const job = await awaitPreview(t, res.body.id);
     expect(job.preview!.trips).toHaveLength(0);
@@ -55,8 +58,22 @@ describe('wave preview', () => {
 
   it('refuses orders that are not open, and pickers', async () => {
     const cartProfileId = (await t.deps.db('cart_profiles').where({ site_id: t.siteId }).first<{ id: number }>('id'))!.id;
-    expect((await t.as.picker.post(`/api/sites/${t.siteId}/wave-previews`).set(csrf).send({ orderIds: [1], cartProfileId })).status).toBe(403);
-    expect((await t.as.supervisor.post(`/api/sites/${t.siteId}/wave-previews`).set(csrf).send({ orderIds: [999999], cartProfileId })).status).toBe(400);
+    expect(
+      (
+        await t.as.picker
+          .post(`/api/sites/${t.siteId}/wave-previews`)
+          .set(csrf)
+          .send({ orderIds: [1], cartProfileId })
+      ).status,
+    ).toBe(403);
+    expect(
+      (
+        await t.as.supervisor
+          .post(`/api/sites/${t.siteId}/wave-previews`)
+          .set(csrf)
+          .send({ orderIds: [999999], cartProfileId })
+      ).status,
+    ).toBe(400);
   });
 });
 
@@ -79,7 +96,13 @@ describe('release', () => {
     expect(new Set(statuses)).toEqual(new Set(['planned']));
     // Every order line is on exactly one pick line.
     const lines = await t.deps.db('order_lines').join('orders', 'orders.id', 'order_lines.order_id').whereIn('orders.ref', refs).pluck('order_lines.id');
-    const picks = await t.deps.db('pick_lines').whereIn('trip_id', wave.tripList.map((x: { id: number }) => x.id)).pluck('order_line_id');
+    const picks = await t.deps
+      .db('pick_lines')
+      .whereIn(
+        'trip_id',
+        wave.tripList.map((x: { id: number }) => x.id),
+      )
+      .pluck('order_line_id');
     expect([...picks].sort()).toEqual([...lines].sort());
     const trip = (await t.as.supervisor.get(`/api/sites/${t.siteId}/trips/${wave.tripList[0].id}`)).body;
     expect(trip.stopList.map((s: { n: number }) => s.n)).toEqual(trip.stopList.map((_s: unknown, i: number) => i + 1));
@@ -93,15 +116,30 @@ describe('release', () => {
   it('refuses a second release of orders already taken by another wave', async () => {
     const first = await previewWave(t, { orders: 5 });
     const second = await previewWave(t, { orders: 5 });
-    expect((await t.as.supervisor.post(`/api/sites/${t.siteId}/waves`).set(csrf).send({ previewId: first.id, releaseKey: `k1-${first.id}` })).status).toBe(201);
-    const clash = await t.as.supervisor.post(`/api/sites/${t.siteId}/waves`).set(csrf).send({ previewId: second.id, releaseKey: `k2-${second.id}` });
+    expect(
+      (
+        await t.as.supervisor
+          .post(`/api/sites/${t.siteId}/waves`)
+          .set(csrf)
+          .send({ previewId: first.id, releaseKey: `k1-${first.id}` })
+      ).status,
+    ).toBe(201);
+    const clash = await t.as.supervisor
+      .post(`/api/sites/${t.siteId}/waves`)
+      .set(csrf)
+      .send({ previewId: second.id, releaseKey: `k2-${second.id}` });
     expect(clash.status).toBe(409);
     expect(clash.body.error.code).toBe('orders_not_open');
   });
 
   it('cancelling an untouched wave returns its orders to the open pool', async () => {
     const job = await previewWave(t, { orders: 4 });
-    const wave = (await t.as.supervisor.post(`/api/sites/${t.siteId}/waves`).set(csrf).send({ previewId: job.id, releaseKey: `c-${job.id}` })).body;
+    const wave = (
+      await t.as.supervisor
+        .post(`/api/sites/${t.siteId}/waves`)
+        .set(csrf)
+        .send({ previewId: job.id, releaseKey: `c-${job.id}` })
+    ).body;
     const cancelled = await t.as.supervisor.post(`/api/sites/${t.siteId}/waves/${wave.id}/cancel`).set(csrf);
     expect(cancelled.body.status).toBe('cancelled');
     const refs = job.preview!.trips.flatMap((tr) => tr.orders.map((o) => o.ref));

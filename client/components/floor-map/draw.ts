@@ -132,7 +132,9 @@ export function drawStaticScene(
       ctx.fillStyle = p.binFill;
       for (let k = 0; k < found.count; k++) {
         const s = found.out[k] as number;
-        ctx.fillRect(...screenRect(vp, { minX: sr[s * 4] as number, minY: sr[s * 4 + 1] as number, maxX: sr[s * 4 + 2] as number, maxY: sr[s * 4 + 3] as number }));
+        ctx.fillRect(
+          ...screenRect(vp, { minX: sr[s * 4] as number, minY: sr[s * 4 + 1] as number, maxX: sr[s * 4 + 2] as number, maxY: sr[s * 4 + 3] as number }),
+        );
         binsDrawn += index.slotBinCount[s] as number;
       }
     } else {
@@ -274,7 +276,12 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
     lastRight = sx + w / 2;
     const lo = Math.min(a.yStart, a.yEnd);
     const hi = Math.max(a.yStart, a.yEnd);
-    const ends: (readonly [number, number])[] = g.compact ? [[hi, 1]] : [[lo, -1], [hi, 1]];
+    const ends: (readonly [number, number])[] = g.compact
+      ? [[hi, 1]]
+      : [
+          [lo, -1],
+          [hi, 1],
+        ];
     for (const [yEnd, away] of ends) {
       const sy = vp.oy + (vp.flipY ? -yEnd : yEnd) * vp.scale;
       const dir = (vp.flipY ? -away : away) * (px * 0.9 + 2);
@@ -386,7 +393,15 @@ function outlineBin(ctx: CanvasRenderingContext2D, vp: Viewport, index: PlanInde
  * Zoomed in, the codes at the aisle ends are off screen: repeat each visible aisle's code along the
  * top edge, and each cross aisle's at the left edge, so the picker always knows where they look.
  */
-export function drawStickyLabels(ctx: CanvasRenderingContext2D, plan: PlanGeometry, p: MapPalette, vp: Viewport, width: number, height: number, topInset: number): void {
+export function drawStickyLabels(
+  ctx: CanvasRenderingContext2D,
+  plan: PlanGeometry,
+  p: MapPalette,
+  vp: Viewport,
+  width: number,
+  height: number,
+  topInset: number,
+): void {
   const px = 12;
   const topY = topInset + px;
   ctx.textBaseline = 'middle';

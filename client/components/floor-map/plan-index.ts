@@ -110,11 +110,7 @@ export function buildPlanIndex(plan: PlanGeometry, options: IndexOptions = DEFAU
     const d = drafts[i] as Draft;
     bins[i] = d.bin;
     const s = slotY.length - 1;
-    const same =
-      s >= 0 &&
-      slotAisle[s] === d.aisle &&
-      slotSideArr[s] === d.side &&
-      Math.abs(d.y - (slotY[s] as number)) <= POSITION_TOLERANCE_M;
+    const same = s >= 0 && slotAisle[s] === d.aisle && slotSideArr[s] === d.side && Math.abs(d.y - (slotY[s] as number)) <= POSITION_TOLERANCE_M;
     if (same) {
       binSlot[i] = s;
       binLevelRank[i] = slotCountArr[s] as number;

@@ -64,6 +64,9 @@ export function stopState(n: number, route: FloorMapRoute): StopState {
  * A map route from the API's shape: the walked path as [x, y] pairs and the numbered stops, as every
  * trip, preview and tablet answer carries them (metres).
  */
-export function routeFromTrip(path: readonly (readonly [number, number])[], stops: readonly { n: number; x: number; y: number; bins: string[] }[]): FloorMapRoute {
+export function routeFromTrip(
+  path: readonly (readonly [number, number])[],
+  stops: readonly { n: number; x: number; y: number; bins: string[] }[],
+): FloorMapRoute {
   return { points: path.map(([x, y]) => ({ x, y })), stops: stops.map((s) => ({ n: s.n, x: s.x, y: s.y, bins: s.bins })) };
 }

@@ -94,13 +94,7 @@ export function panBy(vp: Viewport, dx: number, dy: number): Viewport {
  * Zooms by `factor` keeping the world point under screen (px, py) fixed, the way wheel zoom to
  * the pointer should feel. The scale is clamped to `limits`; the fixed point holds after clamping.
  */
-export function zoomAt(
-  vp: Viewport,
-  factor: number,
-  px: number,
-  py: number,
-  limits: ScaleLimits = DEFAULT_SCALE_LIMITS,
-): Viewport {
+export function zoomAt(vp: Viewport, factor: number, px: number, py: number, limits: ScaleLimits = DEFAULT_SCALE_LIMITS): Viewport {
   const scale = clamp(vp.scale * factor, limits.min, limits.max);
   const k = scale / vp.scale;
   return { scale, ox: px - (px - vp.ox) * k, oy: py - (py - vp.oy) * k, flipY: vp.flipY };
@@ -117,14 +111,7 @@ export function wheelFactor(deltaY: number, deltaMode = 0): number {
  * viewport that keeps the world point under the start midpoint under the current midpoint,
  * scaled by the change in pointer distance.
  */
-export function pinchViewport(
-  start: Viewport,
-  a0: MapPoint,
-  b0: MapPoint,
-  a1: MapPoint,
-  b1: MapPoint,
-  limits: ScaleLimits = DEFAULT_SCALE_LIMITS,
-): Viewport {
+export function pinchViewport(start: Viewport, a0: MapPoint, b0: MapPoint, a1: MapPoint, b1: MapPoint, limits: ScaleLimits = DEFAULT_SCALE_LIMITS): Viewport {
   const d0 = Math.hypot(b0.x - a0.x, b0.y - a0.y);
   const d1 = Math.hypot(b1.x - a1.x, b1.y - a1.y);
   const factor = d0 > 0 ? d1 / d0 : 1;

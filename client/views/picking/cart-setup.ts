@@ -9,10 +9,11 @@ export interface CartTote {
 /** Each tote of the trip with its order(s), by tote number (the printed pick list's "Tote 1 = …"). */
 export function cartTotes(trip: Pick<PickTrip, 'stopList'>): CartTote[] {
   const byTote = new Map<number, Set<string>>();
-  for (const s of trip.stopList) for (const l of s.lines) {
-    if (!byTote.has(l.tote)) byTote.set(l.tote, new Set());
-    byTote.get(l.tote)!.add(l.orderRef);
-  }
+  for (const s of trip.stopList)
+    for (const l of s.lines) {
+      if (!byTote.has(l.tote)) byTote.set(l.tote, new Set());
+      byTote.get(l.tote)!.add(l.orderRef);
+    }
   return [...byTote].sort((a, b) => a[0] - b[0]).map(([tote, orders]) => ({ tote, orders: [...orders].sort() }));
 }
 

@@ -44,7 +44,8 @@ const cutOffStops = (t: PickTrip): number[] => t.stopList.filter((s) => s.cutOff
 /** What the picker is told when a closure change re-routed the trip. */
 export function routeNotice(t: PickTrip): Notice {
   const cut = cutOffStops(t);
-  if (cut.length === 0) return { tone: 'info', text: 'A stretch of aisle was closed or reopened: your route has changed. Follow the new order on the stop list and map.' };
+  if (cut.length === 0)
+    return { tone: 'info', text: 'A stretch of aisle was closed or reopened: your route has changed. Follow the new order on the stop list and map.' };
   const one = cut.length === 1;
   return {
     tone: 'problem',

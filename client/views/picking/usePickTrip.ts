@@ -209,7 +209,10 @@ export function usePickTrip() {
   }
 
   /** Runs one call to the server with `busy` set; a failure becomes a problem notice. */
-  async function withBusy(call: () => Promise<void>, failed: (e: unknown) => void = (e) => (notice.value = { tone: 'problem', text: describeError(e) })): Promise<void> {
+  async function withBusy(
+    call: () => Promise<void>,
+    failed: (e: unknown) => void = (e) => (notice.value = { tone: 'problem', text: describeError(e) }),
+  ): Promise<void> {
     if (busy.value) return;
     busy.value = true;
     try {
@@ -379,5 +382,33 @@ export function usePickTrip() {
   });
 
   // Read by PickTripView; every piece of the trip a screen needs, and the actions it calls.
-  return { phase, trip, pending, plan, result, released, online, busy, notice, lastDone, guarded, progress, currentStop, currentLine, currentIndex, openStops, waitingFinish, takeNext, startTrip, cartReady, confirmLine, confirmDown, undoLast, cannotReach, reportShort, skipStop, returnToDepot };
+  return {
+    phase,
+    trip,
+    pending,
+    plan,
+    result,
+    released,
+    online,
+    busy,
+    notice,
+    lastDone,
+    guarded,
+    progress,
+    currentStop,
+    currentLine,
+    currentIndex,
+    openStops,
+    waitingFinish,
+    takeNext,
+    startTrip,
+    cartReady,
+    confirmLine,
+    confirmDown,
+    undoLast,
+    cannotReach,
+    reportShort,
+    skipStop,
+    returnToDepot,
+  };
 }

@@ -17,12 +17,18 @@ export function totalDistanceOption(v: StudyVariant): Record<string, unknown> {
     grid: { left: 290, right: 40, top: 40, bottom: 30 },
     tooltip: { trigger: 'axis', axisPointer: { type: 'shadow' }, valueFormatter: (x: number) => `${x.toFixed(1)} m` },
     xAxis: { type: 'value', name: 'm', axisLabel: { formatter: '{value} m' } },
-    yAxis: { type: 'category', inverse: true, data: rows.map((r) => (r.key === DEFAULT_ROUTING ? `${r.label} (default)` : r.solved !== null ? `${r.label} (partly solved: lower bound)` : r.label)) },
-    series: [{
-      type: 'bar',
-      data: rows.map((r) => ({ value: Math.round(r.metres! * 10) / 10, itemStyle: { color: r.key === DEFAULT_ROUTING ? '#B86E00' : '#0E5E63' } })),
-      label: { show: true, position: 'right', formatter: (p: { value: number }) => `${p.value.toLocaleString('en-US')} m` },
-    }],
+    yAxis: {
+      type: 'category',
+      inverse: true,
+      data: rows.map((r) => (r.key === DEFAULT_ROUTING ? `${r.label} (default)` : r.solved !== null ? `${r.label} (partly solved: lower bound)` : r.label)),
+    },
+    series: [
+      {
+        type: 'bar',
+        data: rows.map((r) => ({ value: Math.round(r.metres! * 10) / 10, itemStyle: { color: r.key === DEFAULT_ROUTING ? '#B86E00' : '#0E5E63' } })),
+        label: { show: true, position: 'right', formatter: (p: { value: number }) => `${p.value.toLocaleString('en-US')} m` },
+      },
+    ],
     animation: false,
   };
 }
@@ -33,7 +39,10 @@ export function stopsScatterOption(v: StudyVariant): Record<string, unknown> {
     title: { text: `Distance against stops per trip — ${v.label}`, left: 0, textStyle: { fontSize: 14 } },
     grid: { left: 60, right: 30, top: 70, bottom: 50 },
     legend: { top: 28, data: keys.map((k) => v.routing.find((r) => r.key === k)!.label) },
-    tooltip: { trigger: 'item', formatter: (p: { seriesName: string; value: [number, number, number] }) => `${p.seriesName}<br/>trip ${p.value[2]}: ${p.value[0]} stops, ${p.value[1]} m` },
+    tooltip: {
+      trigger: 'item',
+      formatter: (p: { seriesName: string; value: [number, number, number] }) => `${p.seriesName}<br/>trip ${p.value[2]}: ${p.value[0]} stops, ${p.value[1]} m`,
+    },
     xAxis: { type: 'value', name: 'stops per trip', nameLocation: 'middle', nameGap: 30, minInterval: 1 },
     yAxis: { type: 'value', name: 'metres per trip', axisLabel: { formatter: '{value} m' } },
     series: keys.map((k, i) => ({

@@ -20,7 +20,21 @@ import { issueLine, readNamed } from './files';
 import { InputError, parseFlags, parseTimeLimit } from './trip-input';
 import { parseCart } from './waves';
 
-const FLAGS = ['plan', 'skus', 'history', 'max-moves', 'method', 'out', 'cart', 'depot', 'pin-zone', 'heavy-kg', 'heavy-max-level', 'learn-share', 'time-limit-ms'];
+const FLAGS = [
+  'plan',
+  'skus',
+  'history',
+  'max-moves',
+  'method',
+  'out',
+  'cart',
+  'depot',
+  'pin-zone',
+  'heavy-kg',
+  'heavy-max-level',
+  'learn-share',
+  'time-limit-ms',
+];
 const USAGE = `usage: aislewright slotting --plan PLAN.xlsx --skus SKUS.xlsx --history ORDERS.xlsx [--max-moves N] [--method ${SLOTTING_METHODS.join('|')}] --out NEW-SKUS.xlsx
   [--cart totes=8,kg=150,litres=400] [--depot CODE] [--pin-zone ZONE[,ZONE…]] [--heavy-kg KG --heavy-max-level LEVEL] [--learn-share 0.67] [--time-limit-ms N]`;
 
@@ -31,7 +45,8 @@ function positiveNumber(flags: Map<string, string>, name: string, whole: boolean
   const v = flags.get(name);
   if (v === undefined) return undefined;
   const n = Number(v);
-  if (!Number.isFinite(n) || n < 0 || (whole && !Number.isInteger(n))) throw new InputError(`--${name} must be a ${whole ? 'whole ' : ''}number ≥ 0, got '${v}'`);
+  if (!Number.isFinite(n) || n < 0 || (whole && !Number.isInteger(n)))
+    throw new InputError(`--${name} must be a ${whole ? 'whole ' : ''}number ≥ 0, got '${v}'`);
   return n;
 }
 
@@ -64,11 +79,21 @@ export async function run(args: string[], io: CliIo): Promise<number> {
     const read = await readTableFile(history.bytes, history.name, 'orders');
     if ('issues' in read) throw new InputError(`the history file cannot be read: ${issueLine(read.issues[0]!)}`);
     const checked = validateOrderRows('orders', read.rows, (sku) => site.skus.has(sku));
-    if (checked.errors.length > 0) throw new InputError(`the history file has ${checked.errors.length} problem(s), first: ${issueLine(checked.errors[0]!)}; nothing was written`);
+    if (checked.errors.length > 0)
+      throw new InputError(`the history file has ${checked.errors.length} problem(s), first: ${issueLine(checked.errors[0]!)}; nothing was written`);
     if (checked.orders.length === 0) throw new InputError('the history file holds no orders');
-    const orders: HistoryOrder[] = checked.orders.map((o) => ({ ref: o.ref, day: o.due === null ? 0 : Math.floor(Date.parse(o.due) / DAY_MS), lines: o.lines }));
+    const orders: HistoryOrder[] = checked.orders.map((o) => ({
+      ref: o.ref,
+      day: o.due === null ? 0 : Math.floor(Date.parse(o.due) / DAY_MS),
+      lines: o.lines,
+    }));
 
-    const zones = new Set((flags.get('pin-zone') ?? '').split(',').map((z) => z.trim()).filter(Boolean));
+    const zones = new Set(
+      (flags.get('pin-zone') ?? '')
+        .split(',')
+        .map((z) => z.trim())
+        .filter(Boolean),
+    );
     const pinned = new Set(site.plan.bins.filter((b) => b.zone !== null && zones.has(b.zone)).map((b) => b.code));
     const result = planSlotting({
       bins: slotBinsOf(site.plan, site.graph, pinned),
@@ -90,7 +115,14 @@ export async function run(args: string[], io: CliIo): Promise<number> {
       throw new InputError(`--out ${out}: ${(e as Error).message}`);
     }
     const f = result.figures;
-    const period = (p: typeof f.test) => ({ days: p.days, orders: p.orders, metresBefore: round(p.metresBefore), metresAfter: round(p.metresAfter), savingPct: round(p.savingPct), pickerHoursPerDay: round(p.pickerHoursPerDay, 2) });
+    const period = (p: typeof f.test) => ({
+      days: p.days,
+      orders: p.orders,
+      metresBefore: round(p.metresBefore),
+      metresAfter: round(p.metresAfter),
+      savingPct: round(p.savingPct),
+      pickerHoursPerDay: round(p.pickerHoursPerDay, 2),
+    });
     io.out(
       JSON.stringify(
         {
@@ -101,7 +133,13 @@ export async function run(args: string[], io: CliIo): Promise<number> {
           savingPct: round(f.whole.savingPct),
           learn: period(f.learn),
           test: period(f.test),
-          moves: result.moves.map((m) => ({ sku: m.sku, fromBin: m.fromBin, toBin: m.toBin, picksPerDay: round(m.picksPerDay, 2), estSavingMPerDay: round(m.estSavingMPerDay) })),
+          moves: result.moves.map((m) => ({
+            sku: m.sku,
+            fromBin: m.fromBin,
+            toBin: m.toBin,
+            picksPerDay: round(m.picksPerDay, 2),
+            estSavingMPerDay: round(m.estSavingMPerDay),
+          })),
           notes: result.notes,
           out,
           ms: Math.round(result.ms),

@@ -82,11 +82,13 @@ export async function run(args: string[], io: CliIo): Promise<number> {
     const flags = parseFlags(rest, ['plan', 'skus', 'orders', 'cart', 'batching', 'routing', 'improve', 'depot', 'time-limit-ms']);
     for (const f of ['plan', 'skus', 'orders', 'cart', 'batching']) if (!flags.has(f)) throw new InputError(`--${f} is required`);
     const batching = flags.get('batching')!;
-    if (!(BATCHING_METHODS as readonly string[]).includes(batching)) throw new InputError(`unknown batching '${batching}' (expected ${BATCHING_METHODS.join(', ')})`);
+    if (!(BATCHING_METHODS as readonly string[]).includes(batching))
+      throw new InputError(`unknown batching '${batching}' (expected ${BATCHING_METHODS.join(', ')})`);
     const method = flags.get('routing') ?? 'best';
     if (!(TOUR_METHODS as readonly string[]).includes(method)) throw new InputError(`unknown routing '${method}' (expected ${TOUR_METHODS.join(', ')})`);
     const improve = flags.get('improve') ?? 'local';
-    if (!(IMPROVE_MODES as readonly string[]).includes(improve)) throw new InputError(`unknown improve mode '${improve}' (expected ${IMPROVE_MODES.join(', ')})`);
+    if (!(IMPROVE_MODES as readonly string[]).includes(improve))
+      throw new InputError(`unknown improve mode '${improve}' (expected ${IMPROVE_MODES.join(', ')})`);
     const cart = parseCart(flags.get('cart')!);
     const timeLimitMs = parseTimeLimit(flags.get('time-limit-ms'));
 

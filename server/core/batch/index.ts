@@ -91,7 +91,11 @@ export function batchOrders(opts: BatchOrdersOptions): BatchOrdersResult {
     return r;
   };
   const { needs, unplaced } = prepareOrders(opts.orders, opts.cart, reachable);
-  const table = new NodeTable(depotNode, needs.flatMap((nd) => [...nd.nodes]), distance);
+  const table = new NodeTable(
+    depotNode,
+    needs.flatMap((nd) => [...nd.nodes]),
+    distance,
+  );
   const stops = needs.map((nd) => Int32Array.from(nd.nodes, (v) => table.localOf(v)).sort());
   const report = opts.progress ?? (() => {});
   let last = -1;
@@ -122,5 +126,12 @@ export function batchOrders(opts: BatchOrdersOptions): BatchOrdersResult {
             ? batchSavings(ctx)
             : batchSearch(ctx, createRng(opts.seed ?? 1), opts.searchStats);
   ctx.progress(1);
-  return { batches: toBatches(ctx, loads), unplaced, table, needs, budgetExpired: (opts.method === 'seed' || opts.method === 'savings') && budget.expired(), ms: clock() - t0 };
+  return {
+    batches: toBatches(ctx, loads),
+    unplaced,
+    table,
+    needs,
+    budgetExpired: (opts.method === 'seed' || opts.method === 'savings') && budget.expired(),
+    ms: clock() - t0,
+  };
 }

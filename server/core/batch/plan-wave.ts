@@ -201,7 +201,12 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
   const comparisonImprove: ImproveMode = improve === 'deep' ? 'local' : improve;
   if (comparisonImprove !== improve && opts.batching !== 'single') notes.push('the one-order-per-trip figure is routed with local improvement, not deep');
   let fallbacks = 0;
-  const route = (stops: Int32Array, m: TourMethod, imp: ImproveMode, limit: number): { order: number[]; length: number; method: TourMethod; improve: ImproveMode; matrix: DistanceMatrix } => {
+  const route = (
+    stops: Int32Array,
+    m: TourMethod,
+    imp: ImproveMode,
+    limit: number,
+  ): { order: number[]; length: number; method: TourMethod; improve: ImproveMode; matrix: DistanceMatrix } => {
     const matrix = subMatrix(table, stops);
     if (m === 'exact' && matrix.n > HELD_KARP_MAX_POINTS) {
       fallbacks++;
@@ -268,7 +273,8 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
     report(0.45 + (0.55 * (t + 1)) / batches.length);
   }
   if (fromSShape > 0) notes.push(`${fromSShape} trip(s) came out shorter when local search restarted from the S-shape order`);
-  if (fallbacks > 0) notes.push(`${fallbacks} circuit(s) could not use ${method} (over ${HELD_KARP_MAX_POINTS - 1} stops or out of time) and used best + local`);
+  if (fallbacks > 0)
+    notes.push(`${fallbacks} circuit(s) could not use ${method} (over ${HELD_KARP_MAX_POINTS - 1} stops or out of time) and used best + local`);
   if (opts.batching === 'single') singleMetres = trips.reduce((s, t) => s + t.metres, 0);
 
   const metres = trips.reduce((s, t) => s + t.metres, 0);

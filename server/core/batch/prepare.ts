@@ -23,7 +23,10 @@ export function totesNeeded(litres: number, cart: Cart): number {
 /** Throws RangeError unless the cart has a positive whole number of totes and positive finite limits. */
 export function checkCart(cart: Cart): void {
   if (!Number.isInteger(cart.totes) || cart.totes < 1) throw new RangeError(`a cart needs a positive whole number of totes, got ${cart.totes}`);
-  for (const [name, v] of [['maxKg', cart.maxKg], ['maxLitres', cart.maxLitres]] as const) {
+  for (const [name, v] of [
+    ['maxKg', cart.maxKg],
+    ['maxLitres', cart.maxLitres],
+  ] as const) {
     if (!(v > 0) || !Number.isFinite(v)) throw new RangeError(`cart ${name} must be a positive number, got ${v}`);
   }
 }

@@ -37,11 +37,7 @@ export interface PlanProblem {
  * bins are not listed one by one (the depot errors name the cause). Errors first, in entity order,
  * then warnings ('aisle_no_bins', 'aisles_too_close'). Returns [] for a sound plan. O(V + E + B + A).
  */
-export function diagnosePlan(
-  plan: PlanGeometry,
-  graph: WalkGraph,
-  closures: readonly PlanClosure[] = [],
-): PlanProblem[] {
+export function diagnosePlan(plan: PlanGeometry, graph: WalkGraph, closures: readonly PlanClosure[] = []): PlanProblem[] {
   const errors: PlanProblem[] = [];
   const warnings: PlanProblem[] = [];
   const { aisles, crossAisles, bins, depots } = plan;
@@ -84,7 +80,13 @@ export function diagnosePlan(
   let reference = -1;
   for (let d = 0; d < depots.length; d++) {
     if (graph.depotLink[d]! < 0) {
-      errors.push({ severity: 'error', code: 'depot_unlinked', entity: 'depot', index: d, message: `depot ${depots[d]!.code} is farther than the link limit from every aisle and cross aisle` });
+      errors.push({
+        severity: 'error',
+        code: 'depot_unlinked',
+        entity: 'depot',
+        index: d,
+        message: `depot ${depots[d]!.code} is farther than the link limit from every aisle and cross aisle`,
+      });
     } else if (reference < 0) {
       reference = d;
     }
@@ -93,7 +95,13 @@ export function diagnosePlan(
   if (seen) {
     for (let d = 0; d < depots.length; d++) {
       if (graph.depotLink[d]! >= 0 && !seen[graph.depotNode[d]!]) {
-        errors.push({ severity: 'error', code: 'depot_unreachable', entity: 'depot', index: d, message: `depot ${depots[d]!.code} cannot be reached from depot ${depots[reference]!.code}` });
+        errors.push({
+          severity: 'error',
+          code: 'depot_unreachable',
+          entity: 'depot',
+          index: d,
+          message: `depot ${depots[d]!.code} cannot be reached from depot ${depots[reference]!.code}`,
+        });
       }
     }
   }
@@ -111,7 +119,13 @@ export function diagnosePlan(
         message: unknown ? `bin ${bin.code}: aisle ${bin.aisle} does not exist` : `bin ${bin.code}: y ${bin.y} m lies outside aisle ${bin.aisle}`,
       });
     } else if (seen && !seen[node]) {
-      errors.push({ severity: 'error', code: 'bin_unreachable', entity: 'bin', index: b, message: `bin ${bin.code} cannot be reached from depot ${depots[reference]!.code}` });
+      errors.push({
+        severity: 'error',
+        code: 'bin_unreachable',
+        entity: 'bin',
+        index: b,
+        message: `bin ${bin.code} cannot be reached from depot ${depots[reference]!.code}`,
+      });
     }
   }
 
@@ -119,7 +133,13 @@ export function diagnosePlan(
   closures.forEach((cl, i) => {
     const known = cl.kind === 'aisle' ? aisleByCode.has(cl.code) : crossCodes.has(cl.code);
     if (!known) {
-      errors.push({ severity: 'error', code: 'closure_unknown', entity: 'closure', index: i, message: `closure names unknown ${cl.kind === 'aisle' ? 'aisle' : 'cross aisle'} ${cl.code}` });
+      errors.push({
+        severity: 'error',
+        code: 'closure_unknown',
+        entity: 'closure',
+        index: i,
+        message: `closure names unknown ${cl.kind === 'aisle' ? 'aisle' : 'cross aisle'} ${cl.code}`,
+      });
     }
   });
 

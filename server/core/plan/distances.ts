@@ -279,12 +279,7 @@ function descend(graph: WalkGraph, index: DistanceIndex, a: number, b: number): 
  * each leg's shortest path, back to the first node when `closed`. Null when some leg has no path.
  * Pass the graph's `index` for O(path) legs instead of one Dijkstra per leg.
  */
-export function circuitPolyline(
-  graph: WalkGraph,
-  circuit: ArrayLike<number>,
-  closed = true,
-  index?: DistanceIndex,
-): Float64Array | null {
+export function circuitPolyline(graph: WalkGraph, circuit: ArrayLike<number>, closed = true, index?: DistanceIndex): Float64Array | null {
   const k = circuit.length;
   if (k === 0) return new Float64Array(0);
   const pts: number[] = [graph.x[circuit[0]!]!, graph.y[circuit[0]!]!];

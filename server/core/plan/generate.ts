@@ -55,11 +55,18 @@ export function generateRectangularPlan(params: RectangularPlanParams): PlanGeom
   const middle = params.crossAisles?.middle ?? 0;
   const width = params.crossAisleWidthM ?? 3;
   const setback = params.depotSetbackM ?? 2;
-  for (const [name, v] of [['aisles', nA], ['baysPerAisle', nB], ['levels', nL]] as const) {
+  for (const [name, v] of [
+    ['aisles', nA],
+    ['baysPerAisle', nB],
+    ['levels', nL],
+  ] as const) {
     if (!Number.isInteger(v) || v < 1) throw new RangeError(`${name} must be a positive integer, got ${v}`);
   }
   if (!Number.isInteger(middle) || middle < 0) throw new RangeError(`middle cross aisles must be a non-negative integer, got ${middle}`);
-  for (const [name, v] of [['aisleLengthM', L], ['aisleSpacingM', s]] as const) {
+  for (const [name, v] of [
+    ['aisleLengthM', L],
+    ['aisleSpacingM', s],
+  ] as const) {
     if (!(v > 0) || !Number.isFinite(v)) throw new RangeError(`${name} must be a positive number of metres, got ${v}`);
   }
   if (!(width >= 0) || !(setback >= 0)) throw new RangeError('cross-aisle width and depot setback must be ≥ 0 m');

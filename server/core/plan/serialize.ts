@@ -33,12 +33,25 @@ const INDEX_FORMAT = 'aislewright.distance-index';
 const VERSION = 1;
 
 const GRAPH_ARRAYS = {
-  x: 'f64', y: 'f64', kind: 'u8', aisle: 'i32', crossAisle: 'i32', offsets: 'i32', targets: 'i32',
-  lengths: 'f64', binNode: 'i32', depotNode: 'i32', depotLink: 'i32',
+  x: 'f64',
+  y: 'f64',
+  kind: 'u8',
+  aisle: 'i32',
+  crossAisle: 'i32',
+  offsets: 'i32',
+  targets: 'i32',
+  lengths: 'f64',
+  binNode: 'i32',
+  depotNode: 'i32',
+  depotLink: 'i32',
 } as const satisfies Record<string, ArrayType>;
 
 const INDEX_ARRAYS = {
-  hubNode: 'i32', hubDist: 'f64', anchorHub: 'i32', anchorDist: 'f64', chain: 'i32',
+  hubNode: 'i32',
+  hubDist: 'f64',
+  anchorHub: 'i32',
+  anchorDist: 'f64',
+  chain: 'i32',
 } as const satisfies Record<string, ArrayType>;
 
 /** Serialises a walk graph. O(1) apart from the header; blobs share the graph's memory. */
@@ -74,12 +87,7 @@ export function deserializeDistanceIndex(data: { json: string; blobs: Record<str
   return { nodeCount, hubCount, ...ix };
 }
 
-function pack(
-  format: string,
-  scalars: Record<string, number>,
-  spec: Record<string, ArrayType>,
-  source: Record<string, Typed>,
-): SerializedArrays {
+function pack(format: string, scalars: Record<string, number>, spec: Record<string, ArrayType>, source: Record<string, Typed>): SerializedArrays {
   const header: Header = { format, version: VERSION, littleEndian: LITTLE_ENDIAN, scalars, arrays: {} };
   const blobs: Record<string, Uint8Array> = {};
   let byteLength = 0;

@@ -46,8 +46,7 @@ interface LineEntry {
   ref: number;
 }
 
-const byPosThenType = (a: LineEntry, b: LineEntry): number =>
-  a.pos - b.pos || a.type - b.type || a.ref - b.ref;
+const byPosThenType = (a: LineEntry, b: LineEntry): number => a.pos - b.pos || a.type - b.type || a.ref - b.ref;
 
 /**
  * Builds the walk graph of a checked plan. Closures cut every edge whose stretch overlaps a closed

@@ -79,12 +79,7 @@ function pickCell(walk: Walk, x: number, prep: PreparedStops, cell: readonly num
  * In a single block this is Hall's traversal policy: every pick aisle traversed, the rightmost one
  * entered and left from the front when the number of pick aisles is odd.
  */
-export function sShape(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  options: PolicyOptions = {},
-): PolicyResult {
+export function sShape(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], options: PolicyOptions = {}): PolicyResult {
   return runPolicy('s-shape', false, sShapeBody, layout, depotX, stops, options);
 }
 
@@ -99,10 +94,12 @@ const sShapeBody: Body = (layout, _depotX, prep, walk) => {
 
   let left = -1;
   let far = -1;
-  for (let a = 0; a < n; a++) for (let b = 0; b < B; b++) if (has(a, b)) {
-    if (left < 0) left = a;
-    if (b > far) far = b;
-  }
+  for (let a = 0; a < n; a++)
+    for (let b = 0; b < B; b++)
+      if (has(a, b)) {
+        if (left < 0) left = a;
+        if (b > far) far = b;
+      }
 
   walk.to(X[left]!, 0);
   for (let b = 0; b < far; b++) {
@@ -179,12 +176,7 @@ function returnVisit(walk: Walk, layout: BlockLayout, prep: PreparedStops, a: nu
  * Return policy (Hall 1993), single block: every pick aisle is entered from the front cross aisle up to
  * its deepest stop and left the same way, aisles from left to right.
  */
-export function returnPolicy(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  options: PolicyOptions = {},
-): PolicyResult {
+export function returnPolicy(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], options: PolicyOptions = {}): PolicyResult {
   return runPolicy('return', true, returnBody, layout, depotX, stops, options);
 }
 
@@ -243,12 +235,7 @@ function twoSidedBody(split: (prep: PreparedStops, cell: readonly number[], L: n
  * a stop exactly at the middle counts as front) are taken from the front, the others from the back; the
  * leftmost and rightmost pick aisles are traversed (see `twoSidedBody`).
  */
-export function midpoint(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  options: PolicyOptions = {},
-): PolicyResult {
+export function midpoint(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], options: PolicyOptions = {}): PolicyResult {
   return runPolicy('midpoint', true, midpointBody, layout, depotX, stops, options);
 }
 
@@ -264,12 +251,7 @@ const midpointBody = twoSidedBody((prep, cell, L) => {
  * front, stops after it from the back. Ties go to the gap nearest the front (so more is taken from the
  * back). Leftmost and rightmost pick aisles are traversed (see `twoSidedBody`).
  */
-export function largestGap(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  options: PolicyOptions = {},
-): PolicyResult {
+export function largestGap(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], options: PolicyOptions = {}): PolicyResult {
   return runPolicy('largest-gap', true, largestGapBody, layout, depotX, stops, options);
 }
 
@@ -295,12 +277,7 @@ const largestGapBody = twoSidedBody((prep, cell, L) => {
  * ending there after the rightmost pick aisle. Both S-shape and return are among its choices, so it is
  * never longer than either. Ties keep the first option found (return before traverse).
  */
-export function combined(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  options: PolicyOptions = {},
-): PolicyResult {
+export function combined(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], options: PolicyOptions = {}): PolicyResult {
   return runPolicy('combined', true, combinedBody, layout, depotX, stops, options);
 }
 

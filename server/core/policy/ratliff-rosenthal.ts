@@ -114,14 +114,7 @@ export interface RatliffRosenthalOptions {
 const SAME_X_M = 1e-9;
 
 /** One column: its points, which stops sit at each, and the cost of every configuration (∞ = not allowed). */
-function buildColumn(
-  x: number,
-  virtual: boolean,
-  stopIdx: readonly number[],
-  depotHere: boolean,
-  depth: Float64Array,
-  L: number,
-): Column {
+function buildColumn(x: number, virtual: boolean, stopIdx: readonly number[], depotHere: boolean, depth: Float64Array, L: number): Column {
   const need: number[] = depotHere ? [0] : [];
   for (let k = 0; k < stopIdx.length; k++) need.push(depth[stopIdx[k]!]!);
   // Stops at depth 0 or L coincide with a_j or b_j; the others get one point per distinct depth.
@@ -176,12 +169,7 @@ function buildColumn(
  * not fit the layout. Ties between equally short tours go to the first found (configurations and
  * transitions in the order listed above, aisles left to right).
  */
-export function ratliffRosenthal(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  options: RatliffRosenthalOptions = {},
-): PolicyResult {
+export function ratliffRosenthal(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], options: RatliffRosenthalOptions = {}): PolicyResult {
   const clock = options.clock ?? defaultClock;
   const t0 = clock();
   const bad = checkLayout('ratliff-rosenthal', true, layout, depotX);

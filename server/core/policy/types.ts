@@ -14,14 +14,7 @@ export interface PathPoint {
   y: number;
 }
 
-export const POLICY_NAMES = [
-  's-shape',
-  'return',
-  'midpoint',
-  'largest-gap',
-  'combined',
-  'ratliff-rosenthal',
-] as const;
+export const POLICY_NAMES = ['s-shape', 'return', 'midpoint', 'largest-gap', 'combined', 'ratliff-rosenthal'] as const;
 export type PolicyName = (typeof POLICY_NAMES)[number];
 
 export interface PolicyRoute {

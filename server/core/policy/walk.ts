@@ -90,12 +90,7 @@ export class Walk {
 }
 
 /** Common layout checks of every policy; null when the layout is fine. */
-export function checkLayout(
-  method: PolicyName,
-  singleBlockOnly: boolean,
-  layout: BlockLayout,
-  depotX: number,
-): NotApplicable | null {
+export function checkLayout(method: PolicyName, singleBlockOnly: boolean, layout: BlockLayout, depotX: number): NotApplicable | null {
   if (!Number.isFinite(depotX)) return { reason: `depot x must be a finite number of metres, got ${depotX}` };
   if (singleBlockOnly && layout.blocks !== 1) {
     return {
@@ -104,4 +99,3 @@ export function checkLayout(
   }
   return null;
 }
-

@@ -97,7 +97,13 @@ export function routeTrip(model: SiteModel, stops: readonly number[], method: Ro
   }
   const limit = options.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS;
   const clock = options.clock ?? (() => defaultClock);
-  const r = solveTour(m, { method: construction, improve, clock: clock(), timeLimitMs: improve === 'deep' ? (options.deepTimeLimitMs ?? limit) : limit, seed: options.seed ?? 1 });
+  const r = solveTour(m, {
+    method: construction,
+    improve,
+    clock: clock(),
+    timeLimitMs: improve === 'deep' ? (options.deepTimeLimitMs ?? limit) : limit,
+    seed: options.seed ?? 1,
+  });
   if (options.restartFromSShape && !isNotApplicable(model.layout)) {
     const s = routeTrip(model, stops, 's-shape');
     const better = s.length !== null ? improveFromVisits(m, r.length, s.visits) : null;

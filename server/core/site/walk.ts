@@ -64,7 +64,9 @@ export function resequenceFree(free: readonly number[], from: number, to: number
   if (path[0] === 1 && path[path.length - 1] === 2) return path.slice(1, -1).map((p) => p - 3);
   // Greedy fallback: nearest neighbor over `from` (point 0) and the free stops (points 1..k).
   const open = matrixFromFunction(k + 1, (i, j) => distance(i === 0 ? from : free[i - 1]!, free[j - 1]!));
-  return nearestNeighbor(open, 0).slice(1).map((p) => p - 1);
+  return nearestNeighbor(open, 0)
+    .slice(1)
+    .map((p) => p - 1);
 }
 
 /**

@@ -52,7 +52,10 @@ export function generateSlottingScenario(p: SlottingScenarioParams): SlottingSce
   const { rng } = p;
   const usable = p.bins.filter((b) => b.node >= 0);
   const n = Math.min(p.skuCount, usable.length);
-  const binPick = shuffle(usable.map((_, i) => i), rng);
+  const binPick = shuffle(
+    usable.map((_, i) => i),
+    rng,
+  );
   const heavyShare = p.heavyShare ?? 0.1;
   const skus: SlotSku[] = Array.from({ length: n }, (_, i) => {
     const heavy = rng.next() < heavyShare;
@@ -63,7 +66,10 @@ export function generateSlottingScenario(p: SlottingScenarioParams): SlottingSce
       unitLitres: Math.round((0.2 + rng.next() * 8) * 10) / 10,
     };
   });
-  const byRank = shuffle(skus.map((_, i) => i), rng);
+  const byRank = shuffle(
+    skus.map((_, i) => i),
+    rng,
+  );
   const history: HistoryOrder[] = [];
   for (let d = 0; d < p.days; d++) {
     for (let k = 0; k < p.ordersPerDay; k++) {

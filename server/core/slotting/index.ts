@@ -262,10 +262,11 @@ function buildModel(opts: SlottingOptions, learn: readonly HistoryOrder[], notes
 
   const learnPicks = new Float64Array(skus.length);
   const allPicks = new Float64Array(skus.length);
-  for (const o of opts.history) for (const l of o.lines) {
-    const i = skuIndex.get(l.sku);
-    if (i !== undefined) allPicks[i]!++;
-  }
+  for (const o of opts.history)
+    for (const l of o.lines) {
+      const i = skuIndex.get(l.sku);
+      if (i !== undefined) allPicks[i]!++;
+    }
   const orderSkus: Int32Array[] = [];
   const ordersOf: number[][] = skus.map(() => []);
   // The last third of the learning days (when there are three or more) checks the search's moves:
@@ -291,7 +292,22 @@ function buildModel(opts: SlottingOptions, learn: readonly HistoryOrder[], notes
     .map((_, i) => i)
     .filter((i) => binFree[i])
     .sort((a, b) => binDepot[a]! - binDepot[b]! || bins[a]!.level - bins[b]!.level || (bins[a]!.code < bins[b]!.code ? -1 : 1));
-  return { bins, skus, binDepot, binFree, skuFree, heavy, learnPicks, allPicks, ordersOf, orderSkus, checkOrder: Uint8Array.from(check), skuIndex, weightRule: opts.weightRule, binOrder };
+  return {
+    bins,
+    skus,
+    binDepot,
+    binFree,
+    skuFree,
+    heavy,
+    learnPicks,
+    allPicks,
+    ordersOf,
+    orderSkus,
+    checkOrder: Uint8Array.from(check),
+    skuIndex,
+    weightRule: opts.weightRule,
+    binOrder,
+  };
 }
 
 function initialSlots(model: Model, notes: string[]): Slots {
@@ -328,8 +344,7 @@ function rankedSlots(model: Model, today: Slots, method: 'popularity' | 'cube-pe
   model.skus.forEach((_, s) => {
     if (model.skuFree[s] && model.learnPicks[s]! > 0) movable.push(s);
   });
-  const key = (s: number): number =>
-    method === 'popularity' ? -model.learnPicks[s]! : Math.max(model.skus[s]!.unitLitres, 1e-9) / model.learnPicks[s]!;
+  const key = (s: number): number => (method === 'popularity' ? -model.learnPicks[s]! : Math.max(model.skus[s]!.unitLitres, 1e-9) / model.learnPicks[s]!);
   movable.sort((a, b) => key(a) - key(b) || a - b);
   // Free every bin the movable SKUs hold, then fill bins nearest first.
   for (const s of movable) {
@@ -564,7 +579,10 @@ function improveBySearch(
   const partnersOf = (s: number): number[] => {
     const count = new Map<number, number>();
     for (const k of model.ordersOf[s]!) for (const t of model.orderSkus[k]!) if (t !== s) count.set(t, (count.get(t) ?? 0) + 1);
-    return [...count.entries()].sort((a, b) => b[1] - a[1] || a[0] - b[0]).slice(0, 4).map(([t]) => t);
+    return [...count.entries()]
+      .sort((a, b) => b[1] - a[1] || a[0] - b[0])
+      .slice(0, 4)
+      .map(([t]) => t);
   };
   const t0 = clock();
   for (let pass = 0; pass < 20 && clock() < deadline; pass++) {

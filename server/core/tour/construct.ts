@@ -97,7 +97,11 @@ export const GREEDY_NEIGHBORS = 16;
  */
 export function sortedEdges(m: DistanceMatrix, depot: number, budget?: Budget, neighbors?: Neighbors): number[] {
   const n = m.n;
-  if (n <= 3) return canonicalize(Array.from({ length: n }, (_, i) => i), depot);
+  if (n <= 3)
+    return canonicalize(
+      Array.from({ length: n }, (_, i) => i),
+      depot,
+    );
   const d = m.d;
   let ea: Uint32Array;
   let eb: Uint32Array;
@@ -147,7 +151,8 @@ export function sortedEdges(m: DistanceMatrix, depot: number, budget?: Budget, n
   const idx = new Uint32Array(count);
   for (let k = 0; k < count; k++) idx[k] = k;
   // All pairs are generated in (first end, second end) order, so there the index breaks ties.
-  const sorted = n <= SORTED_EDGES_ALL_PAIRS_MAX ? idx.sort((x, y) => w[x]! - w[y]! || x - y) : idx.sort((x, y) => w[x]! - w[y]! || ea[x]! - ea[y]! || eb[x]! - eb[y]!);
+  const sorted =
+    n <= SORTED_EDGES_ALL_PAIRS_MAX ? idx.sort((x, y) => w[x]! - w[y]! || x - y) : idx.sort((x, y) => w[x]! - w[y]! || ea[x]! - ea[y]! || eb[x]! - eb[y]!);
 
   const parent = new Int32Array(n);
   for (let i = 0; i < n; i++) parent[i] = i;

@@ -43,13 +43,7 @@ const DEEP_FULL_SCAN_MAX_POINTS = 300;
  * budget; each kick costs O(segment) plus a local repair and, when rejected, its undo.
  * Returns the circuit from an arbitrary point (the caller rotates it to the depot).
  */
-export function improveDeep(
-  m: DistanceMatrix,
-  order: ArrayLike<number>,
-  budget: Budget,
-  rng: Rng,
-  neighbors?: Neighbors,
-): number[] {
+export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget: Budget, rng: Rng, neighbors?: Neighbors): number[] {
   const n = m.n;
   if (budget.deadline === Infinity) throw new RangeError('deep improvement needs a finite timeLimitMs');
   if (n < 4) return Array.from(order);

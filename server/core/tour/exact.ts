@@ -33,9 +33,7 @@ export function heldKarp(m: DistanceMatrix, depot = 0, opts: BudgetOptions = {})
   const n = m.n;
   if (n === 0) throw new RangeError('Held–Karp needs at least one point (the depot)');
   if (n > HELD_KARP_MAX_POINTS) {
-    throw new RangeError(
-      `Held–Karp is limited to ${HELD_KARP_MAX_POINTS - 1} stops plus the depot; this trip has ${n - 1} stops`,
-    );
+    throw new RangeError(`Held–Karp is limited to ${HELD_KARP_MAX_POINTS - 1} stops plus the depot; this trip has ${n - 1} stops`);
   }
   if (!Number.isInteger(depot) || depot < 0 || depot >= n) {
     throw new RangeError(`depot ${depot} is out of range 0..${n - 1}`);

@@ -21,13 +21,7 @@ export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 export type { TourResult } from './exact';
 export { TimeLimitError } from './budget';
 
-export const TOUR_METHODS = [
-  'nearest-neighbor',
-  'repeated-nearest-neighbor',
-  'sorted-edges',
-  'exact',
-  'best',
-] as const;
+export const TOUR_METHODS = ['nearest-neighbor', 'repeated-nearest-neighbor', 'sorted-edges', 'exact', 'best'] as const;
 export type TourMethod = (typeof TOUR_METHODS)[number];
 
 export const IMPROVE_MODES = ['none', 'local', 'deep'] as const;
@@ -172,9 +166,7 @@ export function heldKarpBound(m: DistanceMatrix, opts: HeldKarpBoundOptions = {}
   const limit = opts.timeLimitMs ?? DEFAULT_TIME_LIMIT_MS;
   const budget = budgetOf({ timeLimitMs: limit, clock });
   // A tenth of the budget (at most) buys a good upper bound, which sets sensible step sizes.
-  const upperBound =
-    opts.upperBound ??
-    solveTour(m, { method: 'best', improve: 'local', depot, clock, timeLimitMs: Math.min(limit / 10, 100) }).length;
+  const upperBound = opts.upperBound ?? solveTour(m, { method: 'best', improve: 'local', depot, clock, timeLimitMs: Math.min(limit / 10, 100) }).length;
   const r = oneTreeBound(m, upperBound, budget, depot);
   return { lowerBound: r.lowerBound, upperBound, iterations: r.iterations, tight: r.tight, ms: clock() - t0 };
 }

@@ -149,11 +149,7 @@ export interface LocalSearch {
   readonly neighbors: Neighbors;
 }
 
-export function createLocalSearch(
-  m: DistanceMatrix,
-  moves: LocalMoves = BOTH,
-  neighbors = neighborLists(m, neighborsFor(m.n)),
-): LocalSearch {
+export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, neighbors = neighborLists(m, neighborsFor(m.n))): LocalSearch {
   const n = m.n;
   const d = m.d;
   const K = neighbors.k;
@@ -631,13 +627,7 @@ export function createLocalSearch(
  * expires first, the circuit reached so far is returned (never longer than the input).
  * Returns the circuit in tour order from an arbitrary point; `canonicalize` rotates it to the depot.
  */
-export function improveLocal(
-  m: DistanceMatrix,
-  order: ArrayLike<number>,
-  budget?: Budget,
-  moves: LocalMoves = BOTH,
-  neighbors?: Neighbors,
-): number[] {
+export function improveLocal(m: DistanceMatrix, order: ArrayLike<number>, budget?: Budget, moves: LocalMoves = BOTH, neighbors?: Neighbors): number[] {
   if (m.n < 4) return Array.from(order);
   const ls = createLocalSearch(m, moves, neighbors);
   ls.load(order);

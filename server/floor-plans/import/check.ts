@@ -53,7 +53,10 @@ export function checkFloorPlanRead(read: SpreadsheetRead, options: CheckOptions)
   const fromCsv = read.kind === 'csv';
   if (fromCsv && !options.layout) {
     issues.error({
-      sheet: FILE_SHEET, row: null, column: null, value: null,
+      sheet: FILE_SHEET,
+      row: null,
+      column: null,
+      value: null,
       message: 'a CSV file carries only the bins; check it against an existing floor plan, or upload the whole workbook (see the template)',
     });
     return finish(issues, EMPTY_STATS, null);
@@ -94,14 +97,26 @@ export function checkFloorPlanRead(read: SpreadsheetRead, options: CheckOptions)
   const binCodes = new Set(bins.map((b) => b.item.code));
   for (const d of depots) {
     if (binCodes.has(d.item.code)) {
-      issues.error({ sheet: 'depots', row: d.row, column: 'depot', value: d.item.code, message: `depot code ${d.item.code} is also a bin code; give the depot its own code` });
+      issues.error({
+        sheet: 'depots',
+        row: d.row,
+        column: 'depot',
+        value: d.item.code,
+        message: `depot code ${d.item.code} is also a bin code; give the depot its own code`,
+      });
       layoutClean = false;
     }
   }
   const depotSheet = sheet('depots');
   const noDepotReported = !fromCsv && depotSheet.usable && depotSheet.rows.length === 0;
   if (noDepotReported) {
-    issues.error({ sheet: 'depots', row: null, column: 'depot', value: null, message: 'the plan has no depot; add a row to depots for the point where every trip starts and ends' });
+    issues.error({
+      sheet: 'depots',
+      row: null,
+      column: 'depot',
+      value: null,
+      message: 'the plan has no depot; add a row to depots for the point where every trip starts and ends',
+    });
   }
 
   const plan: PlanGeometry = {
@@ -182,7 +197,13 @@ function checkAisles(sheet: SheetData, issues: IssueCollector, bayLength: Map<st
     const bay = bayRaw === null ? null : take(issues, 'aisles', r, 'bay_length_m', readPositive(bayRaw, 'bay_length_m'));
     let ordered = true;
     if (y0 !== undefined && y1 !== undefined && !(y1 > y0)) {
-      issues.error({ sheet: 'aisles', row: r.row, column: 'y_end_m', value: displayValue(c.y_end_m ?? null), message: `y_end_m (${y1} m) must be greater than y_start_m (${y0} m)` });
+      issues.error({
+        sheet: 'aisles',
+        row: r.row,
+        column: 'y_end_m',
+        value: displayValue(c.y_end_m ?? null),
+        message: `y_end_m (${y1} m) must be greater than y_start_m (${y0} m)`,
+      });
       ordered = false;
     }
     if (!unique || x === undefined || y0 === undefined || y1 === undefined || bay === undefined || !ordered) continue;
@@ -206,7 +227,13 @@ function checkCrossAisles(sheet: SheetData, issues: IssueCollector): Located<Pla
     const x1 = take(issues, S, r, 'x_end_m', readNumber(c.x_end_m ?? null, 'x_end_m'));
     let ordered = true;
     if (x0 !== undefined && x1 !== undefined && !(x1 > x0)) {
-      issues.error({ sheet: S, row: r.row, column: 'x_end_m', value: displayValue(c.x_end_m ?? null), message: `x_end_m (${x1} m) must be greater than x_start_m (${x0} m)` });
+      issues.error({
+        sheet: S,
+        row: r.row,
+        column: 'x_end_m',
+        value: displayValue(c.x_end_m ?? null),
+        message: `x_end_m (${x1} m) must be greater than x_start_m (${x0} m)`,
+      });
       ordered = false;
     }
     if (!unique || y === undefined || x0 === undefined || x1 === undefined || !ordered) continue;
@@ -275,11 +302,23 @@ function checkBins(
     if (yRaw !== null && bayRaw !== null) {
       issues.error({ sheet: S, row: r.row, column: 'bay', value: displayValue(bayRaw), message: 'give either y_m or bay for a bin, not both' });
     } else if (yRaw === null && bayRaw === null) {
-      issues.error({ sheet: S, row: r.row, column: sheet.columns.includes('y_m') ? 'y_m' : 'bay', value: null, message: 'give the bin a position: y_m (metres along the aisle) or bay (bay number)' });
+      issues.error({
+        sheet: S,
+        row: r.row,
+        column: sheet.columns.includes('y_m') ? 'y_m' : 'bay',
+        value: null,
+        message: 'give the bin a position: y_m (metres along the aisle) or bay (bay number)',
+      });
     } else if (yRaw !== null) {
       y = take(issues, S, r, 'y_m', readNumber(yRaw, 'y_m'));
       if (y !== undefined && aisle && (y < aisle.yStart - tol || y > aisle.yEnd + tol)) {
-        issues.error({ sheet: S, row: r.row, column: 'y_m', value: displayValue(yRaw), message: `y_m ${y} m lies outside aisle ${aisle.code}, which runs from ${aisle.yStart} m to ${aisle.yEnd} m` });
+        issues.error({
+          sheet: S,
+          row: r.row,
+          column: 'y_m',
+          value: displayValue(yRaw),
+          message: `y_m ${y} m lies outside aisle ${aisle.code}, which runs from ${aisle.yStart} m to ${aisle.yEnd} m`,
+        });
         y = undefined;
       }
     } else {
@@ -287,12 +326,24 @@ function checkBins(
       if (b !== undefined && aisle) {
         const len = bayLength.get(aisle.code) ?? null;
         if (len === null) {
-          issues.error({ sheet: S, row: r.row, column: 'bay', value: displayValue(bayRaw), message: `aisle ${aisle.code} has no bay_length_m, so bay ${b} cannot be placed; fill bay_length_m in aisles or give y_m` });
+          issues.error({
+            sheet: S,
+            row: r.row,
+            column: 'bay',
+            value: displayValue(bayRaw),
+            message: `aisle ${aisle.code} has no bay_length_m, so bay ${b} cannot be placed; fill bay_length_m in aisles or give y_m`,
+          });
         } else {
           // The centre of bay b, counted from the aisle's y_start_m end.
           const centre = aisle.yStart + (b - 0.5) * len;
           if (centre > aisle.yEnd + tol) {
-            issues.error({ sheet: S, row: r.row, column: 'bay', value: displayValue(bayRaw), message: `bay ${b} centres at ${round(centre)} m, past the end of aisle ${aisle.code} (${aisle.yEnd} m)` });
+            issues.error({
+              sheet: S,
+              row: r.row,
+              column: 'bay',
+              value: displayValue(bayRaw),
+              message: `bay ${b} centres at ${round(centre)} m, past the end of aisle ${aisle.code} (${aisle.yEnd} m)`,
+            });
           } else {
             y = centre;
             bay = b;
@@ -346,7 +397,13 @@ function mapProblem(
       return { sheet: 'depots', row: rows.depots[p.index]!.row, column: 'depot', value: d.code, message };
     }
     default:
-      return { sheet: p.code === 'no_depot' ? 'depots' : FILE_SHEET, row: null, column: null, value: null, message: p.code === 'no_depot' ? 'the plan has no depot; add a row to depots' : p.message };
+      return {
+        sheet: p.code === 'no_depot' ? 'depots' : FILE_SHEET,
+        row: null,
+        column: null,
+        value: null,
+        message: p.code === 'no_depot' ? 'the plan has no depot; add a row to depots' : p.message,
+      };
   }
 }
 

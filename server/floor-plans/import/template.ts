@@ -25,12 +25,16 @@ const INSTRUCTIONS: string[][] = [
   [''],
   ['cross_aisles — one row per cross aisle (the walkways that join the aisles)'],
   ['  cross_aisle: its code. y_m: where its centre line lies. x_start_m, x_end_m: where it begins and ends; x_end_m greater than x_start_m.'],
-  ['  Every aisle must meet at least one cross aisle: a cross aisle meets an aisle when its y_m lies within the aisle and the aisle x_m within the cross aisle.'],
+  [
+    '  Every aisle must meet at least one cross aisle: a cross aisle meets an aisle when its y_m lies within the aisle and the aisle x_m within the cross aisle.',
+  ],
   [''],
   ['bins — one row per storage location'],
   ['  bin: the bin code, for example A-03-02-1. Each code once, and different from every depot code.'],
   ['  aisle: the code of the aisle the picker stands in to reach the bin.'],
-  ['  y_m or bay: fill exactly one. y_m is the position along the aisle; bay is the bay number counted from the y_start_m end (bay 1 is centred half a bay length from it).'],
+  [
+    '  y_m or bay: fill exactly one. y_m is the position along the aisle; bay is the bay number counted from the y_start_m end (bay 1 is centred half a bay length from it).',
+  ],
   ['  side: L or R, the side of the aisle the bin is on. level: the shelf level, a whole number (0 or 1 for the floor, as your site counts).'],
   ['  zone (optional): any short label, for example cold or bulk.'],
   [''],
@@ -38,7 +42,9 @@ const INSTRUCTIONS: string[][] = [
   [`  depot: its code. x_m, y_m: its position, within ${DEPOT_LINK_MAX_M} m of an aisle or cross aisle. At least one depot.`],
   [''],
   ['Codes must not start with = + - or @, so they stay plain text in every program that opens them.'],
-  [`Other sheets (such as this one) are ignored. At most ${DEFAULT_IMPORT_LIMITS.maxRowsPerSheet.toLocaleString('en')} rows a sheet; a file of at most ${DEFAULT_IMPORT_LIMITS.maxFileBytes / 1024 / 1024} MiB.`],
+  [
+    `Other sheets (such as this one) are ignored. At most ${DEFAULT_IMPORT_LIMITS.maxRowsPerSheet.toLocaleString('en')} rows a sheet; a file of at most ${DEFAULT_IMPORT_LIMITS.maxFileBytes / 1024 / 1024} MiB.`,
+  ],
   [''],
   ['The example rows describe an invented warehouse of three aisles. Replace them with your own.'],
 ];
@@ -49,7 +55,15 @@ function exampleRows(): Record<string, Cell[][]> {
     for (let bay = 1; bay <= 4; bay++) {
       for (const side of ['L', 'R'] as const) {
         for (let level = 1; level <= (aisle === 'A' ? 2 : 1); level++) {
-          bins.push([`${aisle}-${String(bay).padStart(2, '0')}-${String(level).padStart(2, '0')}-${side === 'L' ? 1 : 2}`, aisle, null, bay, side, level, 'fast']);
+          bins.push([
+            `${aisle}-${String(bay).padStart(2, '0')}-${String(level).padStart(2, '0')}-${side === 'L' ? 1 : 2}`,
+            aisle,
+            null,
+            bay,
+            side,
+            level,
+            'fast',
+          ]);
         }
       }
     }

@@ -87,7 +87,20 @@ describe('drawOverlayScene', () => {
     const vp = fitViewport({ minX: -5, minY: -5, maxX: 10, maxY: 25 }, 400, 300, true);
     drawOverlayScene(
       ctx,
-      { plan, compact: false, topInset: 0, route, walked, remaining, stopStates: route.stops.map((s) => stopState(s.n, route)), stopLabels: 'all', index, highlighted: [], focused: -1, hovered: -1 },
+      {
+        plan,
+        compact: false,
+        topInset: 0,
+        route,
+        walked,
+        remaining,
+        stopStates: route.stops.map((s) => stopState(s.n, route)),
+        stopLabels: 'all',
+        index,
+        highlighted: [],
+        focused: -1,
+        hovered: -1,
+      },
       LIGHT_PALETTE,
       vp,
       400,

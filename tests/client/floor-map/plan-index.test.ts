@@ -40,10 +40,7 @@ describe('buildPlanIndex', () => {
       const bin = index.bins[i]!;
       const x = aisleX.get(bin.aisle)!;
       const r = binRect(index, i);
-      const beside =
-        bin.side === 'L'
-          ? r.maxX <= x - 1.5 + eps && r.minX >= x - 2.5 - eps
-          : r.minX >= x + 1.5 - eps && r.maxX <= x + 2.5 + eps;
+      const beside = bin.side === 'L' ? r.maxX <= x - 1.5 + eps && r.minX >= x - 2.5 - eps : r.minX >= x + 1.5 - eps && r.maxX <= x + 2.5 + eps;
       if (!beside || !(r.minY < bin.y && r.maxY > bin.y)) wrong.push(bin.code);
     }
     expect(wrong).toEqual([]);

@@ -40,17 +40,67 @@ describe('refusalNotice', () => {
   });
 
   it('says "Not saved" with the message for any other refusal', () => {
-    expect(refusalNotice(new ApiError('validation_failed', 'Quantity found is too big', 400))).toEqual({ tone: 'problem', text: 'Not saved: Quantity found is too big' });
+    expect(refusalNotice(new ApiError('validation_failed', 'Quantity found is too big', 400))).toEqual({
+      tone: 'problem',
+      text: 'Not saved: Quantity found is too big',
+    });
   });
 });
 
-const line = (id: number, status: 'open' | 'picked') => ({ id, orderRef: 'WEB-1', sku: `SKU-${id}`, description: 'Hinge', bin: `A-0${id}`, qty: 1, tote: 1, status, pickedQty: null, shortReason: null });
+const line = (id: number, status: 'open' | 'picked') => ({
+  id,
+  orderRef: 'WEB-1',
+  sku: `SKU-${id}`,
+  description: 'Hinge',
+  bin: `A-0${id}`,
+  qty: 1,
+  tote: 1,
+  status,
+  pickedQty: null,
+  shortReason: null,
+});
 function trip(cut: number[], routeChangedAt: string | null, id = 9): PickTrip {
   return {
-    id, n: 1, status: 'picking', pickerId: 4, pickerName: 'Pat', orders: ['WEB-1'], stops: 3, lines: 3, plannedMetres: 100, lowerBoundMetres: 95, estMinutes: 5,
-    totes: 1, kg: 1, litres: 1, waveId: 1, waveName: 'W', planId: 1, siteName: 'S', siteId: 1, path: [], depot: [0, 0], depotCode: 'D1', confirmScan: 'bin',
-    startedAt: null, finishedAt: null, cartReadyAt: null, currentStopId: 1, revision: 3, routeChangedAt,
-    stopList: [1, 2, 3].map((n) => ({ id: n, n, x: 0, y: n, bins: [`A-0${n}`], status: 'open' as const, skipped: false, cutOff: cut.includes(n), lines: [line(n, 'open')] })),
+    id,
+    n: 1,
+    status: 'picking',
+    pickerId: 4,
+    pickerName: 'Pat',
+    orders: ['WEB-1'],
+    stops: 3,
+    lines: 3,
+    plannedMetres: 100,
+    lowerBoundMetres: 95,
+    estMinutes: 5,
+    totes: 1,
+    kg: 1,
+    litres: 1,
+    waveId: 1,
+    waveName: 'W',
+    planId: 1,
+    siteName: 'S',
+    siteId: 1,
+    path: [],
+    depot: [0, 0],
+    depotCode: 'D1',
+    confirmScan: 'bin',
+    startedAt: null,
+    finishedAt: null,
+    cartReadyAt: null,
+    currentStopId: 1,
+    revision: 3,
+    routeChangedAt,
+    stopList: [1, 2, 3].map((n) => ({
+      id: n,
+      n,
+      x: 0,
+      y: n,
+      bins: [`A-0${n}`],
+      status: 'open' as const,
+      skipped: false,
+      cutOff: cut.includes(n),
+      lines: [line(n, 'open')],
+    })),
   };
 }
 
@@ -62,7 +112,10 @@ describe('routeNotice', () => {
   });
 
   it('says only that the route changed when no stop is cut off', () => {
-    expect(routeNotice(trip([], 'x'))).toEqual({ tone: 'info', text: 'A stretch of aisle was closed or reopened: your route has changed. Follow the new order on the stop list and map.' });
+    expect(routeNotice(trip([], 'x'))).toEqual({
+      tone: 'info',
+      text: 'A stretch of aisle was closed or reopened: your route has changed. Follow the new order on the stop list and map.',
+    });
   });
 });
 

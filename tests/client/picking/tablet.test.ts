@@ -14,12 +14,49 @@ vi.mock('idb-keyval', () => ({
 }));
 const { PickQueue, isRetryable, newIdempotencyKey } = await import('@client/views/picking/offline-queue');
 
-const line = (id: number, bin: string) => ({ id, orderRef: 'WEB-1', sku: `SKU-${id}`, description: 'Brass hinge', bin, qty: 2, tote: 1, status: 'open' as const, pickedQty: null, shortReason: null });
+const line = (id: number, bin: string) => ({
+  id,
+  orderRef: 'WEB-1',
+  sku: `SKU-${id}`,
+  description: 'Brass hinge',
+  bin,
+  qty: 2,
+  tote: 1,
+  status: 'open' as const,
+  pickedQty: null,
+  shortReason: null,
+});
 function trip(): PickTrip {
   return {
-    id: 9, n: 1, status: 'picking', pickerId: 4, pickerName: 'Pat', orders: ['WEB-1'], stops: 3, lines: 4, plannedMetres: 100, lowerBoundMetres: 95, estMinutes: 5,
-    totes: 1, kg: 1, litres: 1, waveId: 1, waveName: 'W', planId: 1, siteName: 'S', siteId: 1, path: [], depot: [0, 0], depotCode: 'D1', confirmScan: 'bin',
-    startedAt: null, finishedAt: null, cartReadyAt: null, currentStopId: 1, revision: 3, routeChangedAt: null,
+    id: 9,
+    n: 1,
+    status: 'picking',
+    pickerId: 4,
+    pickerName: 'Pat',
+    orders: ['WEB-1'],
+    stops: 3,
+    lines: 4,
+    plannedMetres: 100,
+    lowerBoundMetres: 95,
+    estMinutes: 5,
+    totes: 1,
+    kg: 1,
+    litres: 1,
+    waveId: 1,
+    waveName: 'W',
+    planId: 1,
+    siteName: 'S',
+    siteId: 1,
+    path: [],
+    depot: [0, 0],
+    depotCode: 'D1',
+    confirmScan: 'bin',
+    startedAt: null,
+    finishedAt: null,
+    cartReadyAt: null,
+    currentStopId: 1,
+    revision: 3,
+    routeChangedAt: null,
     stopList: [
       { id: 1, n: 1, x: 0, y: 0, bins: ['A-01'], status: 'open', skipped: false, cutOff: false, lines: [line(11, 'A-01'), line(12, 'A-01')] },
       { id: 2, n: 2, x: 0, y: 5, bins: ['A-02'], status: 'open', skipped: false, cutOff: false, lines: [line(21, 'A-02')] },
@@ -44,7 +81,11 @@ describe('applyPending', () => {
 
   it('puts a stop skipped offline at the end until the server re-sequences, keeping its printed number', () => {
     const view = applyPending(trip(), [queued({ kind: 'skip', tripId: 9, stopId: 1, body: { pickedAt: at } })]);
-    expect(view.stopList.map((s) => [s.id, s.n, s.skipped])).toEqual([[2, 2, false], [3, 3, false], [1, 1, true]]);
+    expect(view.stopList.map((s) => [s.id, s.n, s.skipped])).toEqual([
+      [2, 2, false],
+      [3, 3, false],
+      [1, 1, true],
+    ]);
     expect(view.currentStopId).toBe(2);
   });
 
@@ -76,7 +117,13 @@ describe('mergeLineAnswer', () => {
   });
 
   it('takes the line, the stop status and the higher revision from the answer', () => {
-    const merged = mergeLineAnswer(trip(), { tripId: 9, tripStatus: 'picking', revision: 7, line: { ...line(21, 'A-02'), status: 'picked', pickedQty: 2 }, stop: { id: 2, status: 'done' } });
+    const merged = mergeLineAnswer(trip(), {
+      tripId: 9,
+      tripStatus: 'picking',
+      revision: 7,
+      line: { ...line(21, 'A-02'), status: 'picked', pickedQty: 2 },
+      stop: { id: 2, status: 'done' },
+    });
     expect(merged.stopList[1]!.status).toBe('done');
     expect(merged.stopList[1]!.lines[0]!.status).toBe('picked');
     expect(merged.revision).toBe(7);
@@ -87,7 +134,13 @@ describe('mergeLineAnswer', () => {
 describe('supersedes', () => {
   it('keeps a confirmation answered after a trip read left the server when the read comes back late', () => {
     const read = trip();
-    const held = mergeLineAnswer(trip(), { tripId: 9, tripStatus: 'picking', revision: 4, line: { ...line(11, 'A-01'), status: 'picked', pickedQty: 2 }, stop: { id: 1, status: 'open' } });
+    const held = mergeLineAnswer(trip(), {
+      tripId: 9,
+      tripStatus: 'picking',
+      revision: 4,
+      line: { ...line(11, 'A-01'), status: 'picked', pickedQty: 2 },
+      stop: { id: 1, status: 'open' },
+    });
     expect(supersedes(read, held)).toBe(false);
     expect(progressOf(held).linesDone).toBe(1);
     expect(supersedes({ ...read, revision: 4 }, held)).toBe(true);
@@ -111,7 +164,16 @@ describe('the offline queue', () => {
     store.clear();
     const seen: { pendingHasIt: boolean; storedHasIt: boolean }[] = [];
     const q = new PickQueue(
-      async () => ({ ok: true, answer: { tripId: 9, tripStatus: 'picking', revision: 4, line: { ...line(11, 'A-01'), status: 'picked', pickedQty: 2 }, stop: { id: 1, status: 'open' } } }),
+      async () => ({
+        ok: true,
+        answer: {
+          tripId: 9,
+          tripStatus: 'picking',
+          revision: 4,
+          line: { ...line(11, 'A-01'), status: 'picked', pickedQty: 2 },
+          stop: { id: 1, status: 'open' },
+        },
+      }),
       {
         answered: (item) =>
           seen.push({
@@ -138,7 +200,10 @@ describe('the offline queue', () => {
       async (action, key) => {
         sent.push(key);
         if (!up) return { ok: false, error: { status: 0, code: 'network' } as never };
-        return { ok: true, answer: { tripId: 9, tripStatus: 'picking', revision: 1, line: line((action as { lineId: number }).lineId, 'A'), stop: { id: 1, status: 'open' } } };
+        return {
+          ok: true,
+          answer: { tripId: 9, tripStatus: 'picking', revision: 1, line: line((action as { lineId: number }).lineId, 'A'), stop: { id: 1, status: 'open' } },
+        };
       },
       { answered: (_i, a) => answered.push((a as { line: { id: number } }).line.id), refused: () => undefined, reachability: () => undefined },
     );
@@ -148,7 +213,11 @@ describe('the offline queue', () => {
     await q.flush();
     expect(q.pending).toHaveLength(2);
     // Kept on the device: a reload finds both.
-    const reloaded = new PickQueue(async () => ({ ok: false, error: { status: 0 } as never }), { answered: () => undefined, refused: () => undefined, reachability: () => undefined });
+    const reloaded = new PickQueue(async () => ({ ok: false, error: { status: 0 } as never }), {
+      answered: () => undefined,
+      refused: () => undefined,
+      reachability: () => undefined,
+    });
     expect((await reloaded.load()).map((i) => i.key)).toEqual([a.key, b.key]);
     up = true;
     await q.flush();
@@ -170,14 +239,23 @@ describe('the offline queue', () => {
 
 describe('sendAction', () => {
   it('sends the key, the device and the CSRF header, and reports a dropped network as status 0', async () => {
-    const fetchFn = vi.fn(async () => new Response(JSON.stringify({ error: { code: 'already_confirmed', message: 'x', details: { by: 'Robin' } } }), { status: 409 }));
-    const out = await sendAction({ kind: 'confirm', tripId: 9, lineId: 11, body: { via: 'tap', scan: null, pickedAt: at } }, 'key-123456789', 'tablet-1', fetchFn as unknown as typeof fetch);
+    const fetchFn = vi.fn(
+      async () => new Response(JSON.stringify({ error: { code: 'already_confirmed', message: 'x', details: { by: 'Robin' } } }), { status: 409 }),
+    );
+    const out = await sendAction(
+      { kind: 'confirm', tripId: 9, lineId: 11, body: { via: 'tap', scan: null, pickedAt: at } },
+      'key-123456789',
+      'tablet-1',
+      fetchFn as unknown as typeof fetch,
+    );
     const init = (fetchFn.mock.calls[0] as unknown as [string, RequestInit])[1];
     expect((fetchFn.mock.calls[0] as unknown as [string])[0]).toBe('/api/picking/trips/9/lines/11/confirm');
     expect(init.headers).toMatchObject({ 'idempotency-key': 'key-123456789', 'x-aislewright-device': 'tablet-1', 'x-aislewright': '1' });
     expect(out.ok).toBe(false);
     if (!out.ok) expect([out.error.status, out.error.code]).toEqual([409, 'already_confirmed']);
-    const offline = await sendAction({ kind: 'finish', tripId: 9, body: {} }, 'key-123456789', 'tablet-1', (async () => { throw new TypeError('Failed to fetch'); }) as unknown as typeof fetch);
+    const offline = await sendAction({ kind: 'finish', tripId: 9, body: {} }, 'key-123456789', 'tablet-1', (async () => {
+      throw new TypeError('Failed to fetch');
+    }) as unknown as typeof fetch);
     expect(!offline.ok && offline.error.status).toBe(0);
   });
 });
@@ -199,11 +277,27 @@ describe('wrong-scan colours', () => {
 
 describe('cart set-up (issue 16)', () => {
   it('lists each tote with its orders by tote number, as the printed pick list does', () => {
-    const t = { stopList: [
-      { lines: [{ tote: 2, orderRef: 'WEB-2' }, { tote: 1, orderRef: 'WEB-1' }] },
-      { lines: [{ tote: 2, orderRef: 'WEB-2' }, { tote: 10, orderRef: 'WEB-9' }] },
-    ] } as unknown as PickTrip;
-    expect(cartTotes(t)).toEqual([{ tote: 1, orders: ['WEB-1'] }, { tote: 2, orders: ['WEB-2'] }, { tote: 10, orders: ['WEB-9'] }]);
+    const t = {
+      stopList: [
+        {
+          lines: [
+            { tote: 2, orderRef: 'WEB-2' },
+            { tote: 1, orderRef: 'WEB-1' },
+          ],
+        },
+        {
+          lines: [
+            { tote: 2, orderRef: 'WEB-2' },
+            { tote: 10, orderRef: 'WEB-9' },
+          ],
+        },
+      ],
+    } as unknown as PickTrip;
+    expect(cartTotes(t)).toEqual([
+      { tote: 1, orders: ['WEB-1'] },
+      { tote: 2, orders: ['WEB-2'] },
+      { tote: 10, orders: ['WEB-9'] },
+    ]);
   });
 
   it('reads a tote number from the label forms scanners send, and nothing else', () => {
@@ -213,7 +307,8 @@ describe('cart set-up (issue 16)', () => {
 
   it('asks for the set-up only on a started trip with no confirmation stored and no line worked', () => {
     const line = (status: string) => ({ tote: 1, orderRef: 'W', status });
-    const trip = (over: object) => ({ status: 'picking', cartReadyAt: null, stopList: [{ lines: [line('open'), line('open')] }], ...over }) as unknown as PickTrip;
+    const trip = (over: object) =>
+      ({ status: 'picking', cartReadyAt: null, stopList: [{ lines: [line('open'), line('open')] }], ...over }) as unknown as PickTrip;
     expect(needsCartSetup(trip({}))).toBe(true);
     expect(needsCartSetup(trip({ cartReadyAt: '2026-12-05T02:00:00Z' }))).toBe(false);
     expect(needsCartSetup(trip({ status: 'assigned' }))).toBe(false);

@@ -18,7 +18,14 @@ export function ordersArb(floor: Floor, maxOrders: number, dueEvery3 = false): f
   return fc.array(fc.array(lineArb, { minLength: 1, maxLength: 5 }), { minLength: 0, maxLength: maxOrders }).map((list): Order[] =>
     list.map((lines, i) => ({
       ref: `P${i}`,
-      lines: lines.map((l, k) => ({ sku: `S${l.bin}-${k}`, qty: l.qty, node: floor.graph.binNode[l.bin]!, bin: floor.plan.bins[l.bin]!.code, unitKg: l.unitKg, unitLitres: l.unitLitres })),
+      lines: lines.map((l, k) => ({
+        sku: `S${l.bin}-${k}`,
+        qty: l.qty,
+        node: floor.graph.binNode[l.bin]!,
+        bin: floor.plan.bins[l.bin]!.code,
+        unitKg: l.unitKg,
+        unitLitres: l.unitLitres,
+      })),
       ...(dueEvery3 && i % 3 === 0 ? { due: 1000 - i } : {}),
     })),
   );

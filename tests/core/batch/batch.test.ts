@@ -43,7 +43,14 @@ describe('batchOrders: orders no cart can carry', () => {
     const unreachable = (a: number, b: number): number => (a === 999 || b === 999 ? Infinity : line(a, b));
     const r = batchOrders({ orders, cart: cart(4, 50, 80), method: 'savings', depotNode: 0, distance: unreachable });
     const codes = Object.fromEntries(r.unplaced.map((u) => [u.order, u.code]));
-    expect(codes).toEqual({ HEAVY: 'too_heavy', BULKY: 'too_voluminous', EMPTY: 'no_lines', 'ZERO-QTY': 'bad_line', FAR: 'unreachable', 'OK-1': 'duplicate_ref' });
+    expect(codes).toEqual({
+      HEAVY: 'too_heavy',
+      BULKY: 'too_voluminous',
+      EMPTY: 'no_lines',
+      'ZERO-QTY': 'bad_line',
+      FAR: 'unreachable',
+      'OK-1': 'duplicate_ref',
+    });
     expect(r.unplaced.find((u) => u.order === 'HEAVY')!.reason).toMatch(/60 kg.*50 kg/);
     expect(r.unplaced.find((u) => u.order === 'BULKY')!.reason).toMatch(/90 L.*80 L/);
     expect(r.unplaced.find((u) => u.order === 'FAR')!.reason).toMatch(/B999/);
@@ -102,16 +109,26 @@ describe('Clarke–Wright savings', () => {
     // s(x50, x52) = 100 is the largest; then only x10 + x12 (s = 20) can still pair on a 2-tote cart:
     // 2·12 + 2·52 = 128 m.
     const savings = run(orders, cart(2), 'savings');
-    expect(refs(savings, orders)).toEqual([['x10', 'x12'], ['x50', 'x52']]);
+    expect(refs(savings, orders)).toEqual([
+      ['x10', 'x12'],
+      ['x50', 'x52'],
+    ]);
     // FCFS pairs them in arrival order: 2·50 + 2·52 = 204 m.
-    expect(refs(run(orders, cart(2), 'fcfs'), orders)).toEqual([['x10', 'x50'], ['x12', 'x52']]);
+    expect(refs(run(orders, cart(2), 'fcfs'), orders)).toEqual([
+      ['x10', 'x50'],
+      ['x12', 'x52'],
+    ]);
   });
 
   it('never merges past the cart, whatever the saving', () => {
     const orders = [order('a', [40], {}, 30), order('b', [41], {}, 30), order('c', [42], {}, 30)];
     const r = run(orders, cart(8, 70), 'savings');
     expect(r.batches.every((b) => b.kg <= 70)).toBe(true);
-    expect(refs(r, orders).map((b) => b.length).sort()).toEqual([1, 2]);
+    expect(
+      refs(r, orders)
+        .map((b) => b.length)
+        .sort(),
+    ).toEqual([1, 2]);
   });
 });
 

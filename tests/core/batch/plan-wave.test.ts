@@ -73,7 +73,10 @@ describe('planWave', () => {
       expect(t.sShapeMetres).not.toBeNull();
       expect(t.sShapeMetres!).toBeGreaterThanOrEqual(t.lowerBound - 1e-6);
     }
-    expect(wave.totals.sShapeMetres).toBeCloseTo(wave.trips.reduce((s, t) => s + t.sShapeMetres!, 0), 6);
+    expect(wave.totals.sShapeMetres).toBeCloseTo(
+      wave.trips.reduce((s, t) => s + t.sShapeMetres!, 0),
+      6,
+    );
     expect(wave.totals.savingVsSShapePct).toBeGreaterThan(0);
     const without = planWave(base());
     expect(without.totals.sShapeMetres).toBeNull();
@@ -102,7 +105,12 @@ describe('planWave', () => {
     const lines = bins.slice(0, 3).map(({ b }, k) => ({ sku: `S${k}`, qty: 1, node, bin: b.code, unitKg: 1, unitLitres: 1 }));
     const wave = planWave(base({ orders: [{ ref: 'BAY', lines }] }));
     expect(wave.trips[0]!.stops).toHaveLength(1);
-    expect(wave.trips[0]!.stops[0]!.bins).toEqual(bins.slice(0, 3).map(({ b }) => b.code).sort());
+    expect(wave.trips[0]!.stops[0]!.bins).toEqual(
+      bins
+        .slice(0, 3)
+        .map(({ b }) => b.code)
+        .sort(),
+    );
     expect(wave.trips[0]!.stops[0]!.lines).toHaveLength(3);
   });
 

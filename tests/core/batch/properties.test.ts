@@ -28,7 +28,14 @@ describe('planWave properties (random orders and carts)', () => {
   it('leaves out exactly the orders heavier or bulkier than the cart', () => {
     fc.assert(
       fc.property(ordersArb, cartArb, methodArb, (orders, cart, batching) => {
-        const wave = planWave({ orders, cart, batching, depotNode: floor.depotNode, distance: floor.distance, routing: { method: 'nearest-neighbor', improve: 'none' } });
+        const wave = planWave({
+          orders,
+          cart,
+          batching,
+          depotNode: floor.depotNode,
+          distance: floor.distance,
+          routing: { method: 'nearest-neighbor', improve: 'none' },
+        });
         const expected = orders
           .filter((o) => {
             const kg = o.lines.reduce((s, l) => s + l.qty * l.unitKg, 0);
@@ -46,13 +53,17 @@ describe('planWave properties (random orders and carts)', () => {
   it('never walks more with savings than with one order per trip on the same orders', () => {
     fc.assert(
       // At most 3 totes of 5 lines: every trip has ≤ 15 stops, so exact routing applies to all of them.
-      fc.property(ordersArb, cartArb.map((c) => ({ ...c, totes: Math.min(c.totes, 3) })), (orders, cart) => {
-        const wave = planWave({ orders, cart, batching: 'savings', depotNode: floor.depotNode, distance: floor.distance, routing: { method: 'exact' } });
-        expect(wave.notes).toEqual([]);
-        // With exact routing both figures are sums of optimal circuits; splicing two circuits at the
-        // depot is a circuit through the union, so an optimal one through the union is never longer.
-        expect(wave.totals.metres).toBeLessThanOrEqual(wave.totals.singleMetres + 1e-6);
-      }),
+      fc.property(
+        ordersArb,
+        cartArb.map((c) => ({ ...c, totes: Math.min(c.totes, 3) })),
+        (orders, cart) => {
+          const wave = planWave({ orders, cart, batching: 'savings', depotNode: floor.depotNode, distance: floor.distance, routing: { method: 'exact' } });
+          expect(wave.notes).toEqual([]);
+          // With exact routing both figures are sums of optimal circuits; splicing two circuits at the
+          // depot is a circuit through the union, so an optimal one through the union is never longer.
+          expect(wave.totals.metres).toBeLessThanOrEqual(wave.totals.singleMetres + 1e-6);
+        },
+      ),
       { numRuns: 60, seed: 99 },
     );
   });

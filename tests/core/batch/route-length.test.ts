@@ -37,9 +37,21 @@ describe('NodeTable.routeLength', () => {
 
   it('breaks ties as the tour engine does (points at equal distances on a line)', () => {
     // Depot at 0; stops at ±3 and ±7 on a line: every step has a tie, resolved to the lower index.
-    const pos = new Map([[0, 0], [1, 3], [2, -3], [3, 7], [4, -7], [5, 10]]);
+    const pos = new Map([
+      [0, 0],
+      [1, 3],
+      [2, -3],
+      [3, 7],
+      [4, -7],
+      [5, 10],
+    ]);
     const line = new NodeTable(0, [1, 2, 3, 4, 5], (a, b) => Math.abs(pos.get(a)! - pos.get(b)!));
-    for (const stops of [[1, 2], [1, 2, 3, 4], [2, 3, 5], [1, 2, 3, 4, 5]]) {
+    for (const stops of [
+      [1, 2],
+      [1, 2, 3, 4],
+      [2, 3, 5],
+      [1, 2, 3, 4, 5],
+    ]) {
       expect(line.routeLength(Int32Array.from(stops))).toBe(reference(line, stops));
     }
     // Hand check (common practice: nearest neighbor, ties to the lower index): 3 and −3 tie, node 1 first;
@@ -50,7 +62,12 @@ describe('NodeTable.routeLength', () => {
   });
 
   it('measures closeness as the walk to the other order’s nearest stop, both ways', () => {
-    const pos = new Map([[0, 0], [1, 2], [2, 5], [3, 9]]);
+    const pos = new Map([
+      [0, 0],
+      [1, 2],
+      [2, 5],
+      [3, 9],
+    ]);
     const line = new NodeTable(0, [1, 2, 3], (a, b) => Math.abs(pos.get(a)! - pos.get(b)!));
     // {1} ↔ {2, 3}: 1 → 2 is 3 m; 2 → 1 is 3 m, 3 → 1 is 7 m: 3 + 10.
     expect(closeness(line, Int32Array.from([1]), Int32Array.from([2, 3]))).toBe(13);

@@ -33,7 +33,12 @@ function walking(orders: readonly Order[], batches: { orders: number[] }[]): num
   return sum;
 }
 
-const run = (orders: Order[], cart: Cart, method: 'savings' | 'search', extra: { seed?: number; timeLimitMs?: number; searchStats?: SearchStats; progress?: (f: number) => void; step?: number } = {}) =>
+const run = (
+  orders: Order[],
+  cart: Cart,
+  method: 'savings' | 'search',
+  extra: { seed?: number; timeLimitMs?: number; searchStats?: SearchStats; progress?: (f: number) => void; step?: number } = {},
+) =>
   batchOrders({
     orders,
     cart,
@@ -52,7 +57,15 @@ describe('batching: search', () => {
 
   it.each([0, 1, 2])('keeps every capacity and places each order once (wave %i)', (w) => {
     const orders = waves[w]!;
-    const wave = planWave({ orders, cart: CART, batching: 'search', depotNode: floor.depotNode, distance: floor.distance, clock: steppingClock(1), timeLimitMs: 8000 });
+    const wave = planWave({
+      orders,
+      cart: CART,
+      batching: 'search',
+      depotNode: floor.depotNode,
+      distance: floor.distance,
+      clock: steppingClock(1),
+      timeLimitMs: 8000,
+    });
     expect(wave.trips.length).toBeGreaterThan(0);
     expect(waveProblems({ orders, cart: CART, depotNode: floor.depotNode, distance: floor.distance }, wave)).toEqual([]);
   });
@@ -97,10 +110,23 @@ describe('batching: search', () => {
   });
 
   it('keeps every guarantee on random orders and carts', () => {
-    const cartArb = fc.record({ totes: fc.integer({ min: 1, max: 8 }), maxKg: fc.double({ min: 5, max: 120, noNaN: true }), maxLitres: fc.double({ min: 10, max: 300, noNaN: true }) });
+    const cartArb = fc.record({
+      totes: fc.integer({ min: 1, max: 8 }),
+      maxKg: fc.double({ min: 5, max: 120, noNaN: true }),
+      maxLitres: fc.double({ min: 10, max: 300, noNaN: true }),
+    });
     fc.assert(
       fc.property(ordersArb(floor, 20), cartArb, (orders, cart) => {
-        const wave = planWave({ orders, cart, batching: 'search', depotNode: floor.depotNode, distance: floor.distance, clock: steppingClock(1), timeLimitMs: 1500, routing: { improve: 'none' } });
+        const wave = planWave({
+          orders,
+          cart,
+          batching: 'search',
+          depotNode: floor.depotNode,
+          distance: floor.distance,
+          clock: steppingClock(1),
+          timeLimitMs: 1500,
+          routing: { improve: 'none' },
+        });
         expect(waveProblems({ orders, cart, depotNode: floor.depotNode, distance: floor.distance }, wave)).toEqual([]);
       }),
       { numRuns: 40, seed: 20261205 },

@@ -45,7 +45,13 @@ describe('aisles closer than the racks drawn on them', () => {
     const p = plan(2.5);
     const problems = diagnosePlan(p, buildWalkGraph(p));
     expect(problems).toEqual([
-      { severity: 'warning', code: 'aisles_too_close', entity: 'aisle', index: 1, message: 'aisles A and B are 2.5 m apart: with racks about 1 m deep between them that leaves 0.5 m to walk, under 1 m' },
+      {
+        severity: 'warning',
+        code: 'aisles_too_close',
+        entity: 'aisle',
+        index: 1,
+        message: 'aisles A and B are 2.5 m apart: with racks about 1 m deep between them that leaves 0.5 m to walk, under 1 m',
+      },
     ]);
   });
 });

@@ -1,14 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { createRng } from '../../../server/core/rng';
 import { validateMatrix } from '../../../server/core/matrix';
-import {
-  DistanceBudgetError,
-  buildDistanceIndex,
-  circuitPolyline,
-  pairDistance,
-  shortestPath,
-  tripMatrix,
-} from '../../../server/core/plan/distances';
+import { DistanceBudgetError, buildDistanceIndex, circuitPolyline, pairDistance, shortestPath, tripMatrix } from '../../../server/core/plan/distances';
 import { generateRectangularPlan } from '../../../server/core/plan/generate';
 import { NODE_ACCESS, NODE_DEPOT, buildWalkGraph } from '../../../server/core/plan/walk-graph';
 import type { WalkGraph } from '../../../server/core/plan/walk-graph';
@@ -54,8 +47,13 @@ describe('pairDistance against graphology-shortest-path', () => {
 
   it('equals bidirectional Dijkstra on sampled pairs of a larger plan with middle cross aisles', () => {
     const plan = generateRectangularPlan({
-      aisles: 12, aisleLengthM: 45, aisleSpacingM: 3.2, baysPerAisle: 30, levels: 2,
-      crossAisles: { front: true, back: true, middle: 2 }, depot: { at: 'front_centre' },
+      aisles: 12,
+      aisleLengthM: 45,
+      aisleSpacingM: 3.2,
+      baysPerAisle: 30,
+      levels: 2,
+      crossAisles: { front: true, back: true, middle: 2 },
+      depot: { at: 'front_centre' },
     });
     const closures = [
       { kind: 'aisle' as const, code: 'D', from: 3, to: 9 },
@@ -100,8 +98,7 @@ describe('pairDistance against the single-block closed form', () => {
         for (let j = 0; j < plan.bins.length; j++) {
           const p = plan.bins[i]!;
           const q = plan.bins[j]!;
-          const formula =
-            p.aisle === q.aisle ? Math.abs(p.y - q.y) : Math.abs(x.get(p.aisle)! - x.get(q.aisle)!) + Math.min(p.y + q.y, 2 * L - p.y - q.y);
+          const formula = p.aisle === q.aisle ? Math.abs(p.y - q.y) : Math.abs(x.get(p.aisle)! - x.get(q.aisle)!) + Math.min(p.y + q.y, 2 * L - p.y - q.y);
           const got = pairDistance(ix, g.binNode[i]!, g.binNode[j]!);
           if (Math.abs(got - formula) > 1e-9) throw new Error(`plan ${t}: ${p.code} → ${q.code} is ${got} m, the formula says ${formula} m`);
           checked++;
@@ -114,14 +111,28 @@ describe('pairDistance against the single-block closed form', () => {
 
 describe('buildDistanceIndex', () => {
   it('keeps hubs to junctions and depots on a parallel-aisle plan', () => {
-    const plan = generateRectangularPlan({ aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 20, levels: 3, crossAisles: { front: true, back: true, middle: 1 } });
+    const plan = generateRectangularPlan({
+      aisles: 10,
+      aisleLengthM: 30,
+      aisleSpacingM: 3,
+      baysPerAisle: 20,
+      levels: 3,
+      crossAisles: { front: true, back: true, middle: 1 },
+    });
     const ix = buildDistanceIndex(buildWalkGraph(plan));
     // 10 aisles × 3 cross aisles, plus the depot; its link point is the front-left junction.
     expect(ix.hubCount).toBe(31);
   });
 
   it('returns Infinity between disconnected parts rather than throwing', () => {
-    const plan = generateRectangularPlan({ aisles: 2, aisleLengthM: 20, aisleSpacingM: 3, baysPerAisle: 3, levels: 1, crossAisles: { front: true, back: false } });
+    const plan = generateRectangularPlan({
+      aisles: 2,
+      aisleLengthM: 20,
+      aisleSpacingM: 3,
+      baysPerAisle: 3,
+      levels: 1,
+      crossAisles: { front: true, back: false },
+    });
     const g = buildWalkGraph(plan, [{ kind: 'cross_aisle', code: 'front', from: 1, to: 2 }]);
     const ix = buildDistanceIndex(g);
     const a = g.binNode[0]!;
@@ -148,9 +159,18 @@ describe('buildDistanceIndex', () => {
     const targets = Int32Array.of(1, 3, 0, 2, 1, 3, 2, 0);
     const lengths = Float64Array.of(1, 4, 1, 2, 2, 3, 3, 4);
     const g: WalkGraph = {
-      nodeCount: n, x: new Float64Array(n), y: new Float64Array(n), kind: new Uint8Array(n).fill(NODE_ACCESS),
-      aisle: new Int32Array(n), crossAisle: new Int32Array(n).fill(-1), offsets, targets, lengths,
-      binNode: Int32Array.of(0, 1, 2, 3), depotNode: new Int32Array(0), depotLink: new Int32Array(0),
+      nodeCount: n,
+      x: new Float64Array(n),
+      y: new Float64Array(n),
+      kind: new Uint8Array(n).fill(NODE_ACCESS),
+      aisle: new Int32Array(n),
+      crossAisle: new Int32Array(n).fill(-1),
+      offsets,
+      targets,
+      lengths,
+      binNode: Int32Array.of(0, 1, 2, 3),
+      depotNode: new Int32Array(0),
+      depotLink: new Int32Array(0),
     };
     const ix = buildDistanceIndex(g);
     expect(ix.hubCount).toBe(1);
@@ -221,7 +241,14 @@ describe('shortestPath and circuitPolyline', () => {
   });
 
   it('expands a closed circuit into a polyline from the depot back to the depot, as long as the circuit', () => {
-    const plan = generateRectangularPlan({ aisles: 6, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 12, levels: 1, crossAisles: { front: true, back: true, middle: 1 } });
+    const plan = generateRectangularPlan({
+      aisles: 6,
+      aisleLengthM: 30,
+      aisleSpacingM: 3,
+      baysPerAisle: 12,
+      levels: 1,
+      crossAisles: { front: true, back: true, middle: 1 },
+    });
     const g = buildWalkGraph(plan);
     const ix = buildDistanceIndex(g);
     const circuit = [g.depotNode[0]!, g.binNode[5]!, g.binNode[40]!, g.binNode[70]!, g.binNode[20]!];

@@ -15,7 +15,10 @@ describe('generateRectangularPlan', () => {
   it('makes aisles × bays × levels × sides bins with unique codes of the documented form', () => {
     const plan = generateRectangularPlan(base);
     expect(plan.aisles.map((a) => [a.code, a.x, a.yStart, a.yEnd])).toEqual([
-      ['A', 0, 0, 30], ['B', 3, 0, 30], ['C', 6, 0, 30], ['D', 9, 0, 30],
+      ['A', 0, 0, 30],
+      ['B', 3, 0, 30],
+      ['C', 6, 0, 30],
+      ['D', 9, 0, 30],
     ]);
     expect(plan.bins.length).toBe(4 * 10 * 3 * 2);
     expect(new Set(plan.bins.map((b) => b.code)).size).toBe(plan.bins.length);
@@ -37,7 +40,9 @@ describe('generateRectangularPlan', () => {
   it('spaces bays evenly inside each block, clear of the cross aisles', () => {
     const plan = generateRectangularPlan({ ...base, levels: 1, bothSides: false, crossAisles: { front: true, back: true, middle: 1 }, crossAisleWidthM: 2 });
     expect(plan.crossAisles.map((c) => [c.code, c.y, c.xStart, c.xEnd])).toEqual([
-      ['front', 0, 0, 9], ['middle-1', 15, 0, 9], ['back', 30, 0, 9],
+      ['front', 0, 0, 9],
+      ['middle-1', 15, 0, 9],
+      ['back', 30, 0, 9],
     ]);
     // Two blocks of 5 bays; racks from 1 to 14 and from 16 to 29, so bays 2.6 m long, centres 1.3 m in.
     const ys = plan.bins.filter((b) => b.aisle === 'A').map((b) => b.y);

@@ -1,12 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { createRng } from '../../../server/core/rng';
 import { buildDistanceIndex, pairDistance } from '../../../server/core/plan/distances';
-import {
-  deserializeDistanceIndex,
-  deserializeWalkGraph,
-  serializeDistanceIndex,
-  serializeWalkGraph,
-} from '../../../server/core/plan/serialize';
+import { deserializeDistanceIndex, deserializeWalkGraph, serializeDistanceIndex, serializeWalkGraph } from '../../../server/core/plan/serialize';
 import type { SerializedArrays } from '../../../server/core/plan/serialize';
 import { buildWalkGraph } from '../../../server/core/plan/walk-graph';
 import { randomIrregularPlan } from './fixtures';

@@ -4,14 +4,7 @@ import { buildDistanceIndex, pairDistance } from '../../../server/core/plan/dist
 import { generateRectangularPlan } from '../../../server/core/plan/generate';
 import type { PlanGeometry } from '../../../server/core/plan/types';
 import { DEPOT_LINK_MAX_M } from '../../../server/core/plan/types';
-import {
-  NODE_ACCESS,
-  NODE_DEPOT,
-  NODE_DEPOT_LINK,
-  NODE_JUNCTION,
-  buildWalkGraph,
-  edgeCount,
-} from '../../../server/core/plan/walk-graph';
+import { NODE_ACCESS, NODE_DEPOT, NODE_DEPOT_LINK, NODE_JUNCTION, buildWalkGraph, edgeCount } from '../../../server/core/plan/walk-graph';
 
 const small = (over: Partial<Parameters<typeof generateRectangularPlan>[0]> = {}): PlanGeometry =>
   generateRectangularPlan({ aisles: 3, aisleLengthM: 20, aisleSpacingM: 3, baysPerAisle: 4, levels: 3, ...over });
@@ -134,7 +127,9 @@ describe('closures', () => {
     const g = buildWalkGraph(plan, closures);
     const inside = plan.bins.map((b, i) => (b.aisle === 'B' && b.y > 6 && b.y < 12 ? i : -1)).filter((i) => i >= 0);
     expect(inside.length).toBeGreaterThan(0);
-    const listed = diagnosePlan(plan, g, closures).filter((p) => p.code === 'bin_unreachable').map((p) => p.index);
+    const listed = diagnosePlan(plan, g, closures)
+      .filter((p) => p.code === 'bin_unreachable')
+      .map((p) => p.index);
     expect(listed).toEqual(inside);
     const ix = buildDistanceIndex(g);
     for (const b of inside) expect(pairDistance(ix, g.depotNode[0]!, g.binNode[b]!)).toBe(Infinity);

@@ -24,9 +24,7 @@ export function randomStops(rng: Rng, layout: BlockLayout, count: number): Polic
  */
 export function blockMatrix(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[]): DistanceMatrix {
   const L = aisleLength(layout);
-  const pts = [{ x: depotX, d: 0, aisle: -1 }].concat(
-    stops.map((s) => ({ x: layout.aisleX[s.aisle]!, d: depthOf(layout, s.y), aisle: s.aisle })),
-  );
+  const pts = [{ x: depotX, d: 0, aisle: -1 }].concat(stops.map((s) => ({ x: layout.aisleX[s.aisle]!, d: depthOf(layout, s.y), aisle: s.aisle })));
   const c = layout.crossDepth;
   return matrixFromFunction(pts.length, (i, j) => {
     const p = pts[i]!;
@@ -52,18 +50,12 @@ const EPS = 1e-7;
  * one after another, `order` lists every stop once, and `length` is the polyline's length.
  * Otherwise a description of the first problem.
  */
-export function routeProblem(
-  layout: BlockLayout,
-  depotX: number,
-  stops: readonly PolicyStop[],
-  route: PolicyRoute,
-): string | null {
+export function routeProblem(layout: BlockLayout, depotX: number, stops: readonly PolicyStop[], route: PolicyRoute): string | null {
   const L = aisleLength(layout);
   const path = route.path;
   const depot = { x: depotX, d: 0 };
   const pts = path.map((p) => ({ x: p.x, d: depthOf(layout, p.y) }));
-  const same = (a: { x: number; d: number }, b: { x: number; d: number }): boolean =>
-    Math.abs(a.x - b.x) < EPS && Math.abs(a.d - b.d) < EPS;
+  const same = (a: { x: number; d: number }, b: { x: number; d: number }): boolean => Math.abs(a.x - b.x) < EPS && Math.abs(a.d - b.d) < EPS;
   if (pts.length === 0 || !same(pts[0]!, depot) || !same(pts[pts.length - 1]!, depot)) return 'path does not start and end at the depot';
   let walked = 0;
   for (let k = 0; k + 1 < pts.length; k++) {

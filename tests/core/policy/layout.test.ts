@@ -5,8 +5,7 @@ import type { BlockLayout } from '../../../server/core/policy/layout';
 import { aisleLength, blockLayoutOf, depthOf, stopOfBin, toBlockLayout, yOfDepth } from '../../../server/core/policy/layout';
 import { isNotApplicable } from '../../../server/core/policy/types';
 
-const base = (): PlanGeometry =>
-  generateRectangularPlan({ aisles: 5, aisleLengthM: 20, aisleSpacingM: 3, baysPerAisle: 10, levels: 2 });
+const base = (): PlanGeometry => generateRectangularPlan({ aisles: 5, aisleLengthM: 20, aisleSpacingM: 3, baysPerAisle: 10, levels: 2 });
 
 function layoutOf(plan: PlanGeometry, options = {}): BlockLayout {
   const r = toBlockLayout(plan, options);

@@ -107,7 +107,10 @@ describe('slotOrders', () => {
     expect(r.orders.map((o) => o.ref)).toEqual(['OK']);
     expect(r.orders[0]!.due).toBe(Date.UTC(2026, 11, 5, 8));
     expect(r.orders[0]!.priority).toBe(1);
-    expect(r.orders[0]!.lines.map((l) => [l.bin, m.graph.x[l.node], m.graph.y[l.node]])).toEqual([['A-02', 0, 2], ['B-02', 3, 2]]);
+    expect(r.orders[0]!.lines.map((l) => [l.bin, m.graph.x[l.node], m.graph.y[l.node]])).toEqual([
+      ['A-02', 0, 2],
+      ['B-02', 3, 2],
+    ]);
     expect(r.unslotted).toEqual([
       { order: 'UNKNOWN', code: 'unknown_bin', reason: 'bin Z-9 of SKU SKU-Z-9 is not on the floor plan' },
       { order: 'OFF', code: 'bin_off_plan', reason: 'bin OFF-1 of SKU SKU-OFF-1 has no access point on its aisle' },
@@ -156,7 +159,9 @@ describe('routeTrip', () => {
     let trips = 0;
     let local = 0;
     for (const { rng, plan, m, ref } of randomModels(4242, 40)) {
-      const candidates = [...new Set(plan.bins.map((b) => m.binNode(b.code)).filter((n): n is number => n !== undefined && m.reachesDepot(n) && n !== m.depotNode))];
+      const candidates = [
+        ...new Set(plan.bins.map((b) => m.binNode(b.code)).filter((n): n is number => n !== undefined && m.reachesDepot(n) && n !== m.depotNode)),
+      ];
       if (candidates.length < 3) continue;
       const k = Math.min(candidates.length, 3 + rng.int(4));
       const stops = Array.from({ length: k }, () => candidates.splice(rng.int(candidates.length), 1)[0]!).sort((a, b) => a - b);
@@ -169,9 +174,18 @@ describe('routeTrip', () => {
           best = Math.min(best, len + d[at]![pts[0]!]!);
           return;
         }
-        for (const i of rest) permute(rest.filter((j) => j !== i), i, len + d[at]![pts[i]!]!);
+        for (const i of rest)
+          permute(
+            rest.filter((j) => j !== i),
+            i,
+            len + d[at]![pts[i]!]!,
+          );
       };
-      permute(stops.map((_, i) => i + 1), 0, 0);
+      permute(
+        stops.map((_, i) => i + 1),
+        0,
+        0,
+      );
       const exact = routeTrip(m, stops, 'exact');
       expect(exact.length!).toBeCloseTo(best, 6);
       expect([...exact.visits].sort((a, b) => a - b)).toEqual(stops.map((_, i) => i));

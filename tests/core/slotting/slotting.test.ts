@@ -45,7 +45,10 @@ describe('popularity slotting', () => {
     const depotM = chosen.map((b) => floor.distance(floor.depotNode, b.node));
     let best = Infinity;
     for (const perm of permutations(6)) {
-      best = Math.min(best, picks.reduce((sum, p, i) => sum + 2 * p * depotM[perm[i]!]!, 0));
+      best = Math.min(
+        best,
+        picks.reduce((sum, p, i) => sum + 2 * p * depotM[perm[i]!]!, 0),
+      );
     }
     expect(r.figures.whole.metresAfter).toBeCloseTo(best, 6);
     // And it is a real improvement over the slotting it started from.
@@ -61,7 +64,9 @@ describe('slotting guarantees', () => {
 
   for (const method of ['popularity', 'cube-per-order', 'search'] as const) {
     it(`${method}: pinned bins keep their SKUs, the budget and the weight rule hold, one SKU per bin`, () => {
-      const r = planSlotting(base({ bins: pinned, skus: scenario.skus, history: scenario.history, method, maxMoves: 30, weightRule: { minUnitKg: 15, maxLevel: 1 } }));
+      const r = planSlotting(
+        base({ bins: pinned, skus: scenario.skus, history: scenario.history, method, maxMoves: 30, weightRule: { minUnitKg: 15, maxLevel: 1 } }),
+      );
       expect(r.moves.length).toBeGreaterThan(0);
       expect(r.moves.length).toBeLessThanOrEqual(30);
       const before = new Map(scenario.skus.map((s) => [s.code, s.bin]));

@@ -34,15 +34,37 @@ describe('heldKarpBound', () => {
 
   it('rounds up on integer matrices and is tight when the best 1-tree is a circuit', () => {
     // Four corners of a 3×4 rectangle: the perimeter 14 is optimal and the 1-tree bound reaches it.
-    const r = heldKarpBound(matrixFromRows([[0, 3, 5, 4], [3, 0, 4, 5], [5, 4, 0, 3], [4, 5, 3, 0]]));
+    const r = heldKarpBound(
+      matrixFromRows([
+        [0, 3, 5, 4],
+        [3, 0, 4, 5],
+        [5, 4, 0, 3],
+        [4, 5, 3, 0],
+      ]),
+    );
     expect(r.lowerBound).toBe(14);
     expect(r.tight).toBe(true);
   });
 
   it('gives 0 for one point and the only circuit for two or three', () => {
     expect(heldKarpBound(matrixFromRows([[0]])).lowerBound).toBe(0);
-    expect(heldKarpBound(matrixFromRows([[0, 2.5], [2.5, 0]])).lowerBound).toBe(5);
-    expect(heldKarpBound(matrixFromRows([[0, 3, 4], [3, 0, 5], [4, 5, 0]])).lowerBound).toBe(12);
+    expect(
+      heldKarpBound(
+        matrixFromRows([
+          [0, 2.5],
+          [2.5, 0],
+        ]),
+      ).lowerBound,
+    ).toBe(5);
+    expect(
+      heldKarpBound(
+        matrixFromRows([
+          [0, 3, 4],
+          [3, 0, 5],
+          [4, 5, 0],
+        ]),
+      ).lowerBound,
+    ).toBe(12);
   });
 
   it('still returns a valid bound with no time at all', () => {

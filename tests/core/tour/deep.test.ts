@@ -18,12 +18,15 @@ import { loadTsp, TSPLIB_LARGE_OPTIMA, TSPLIB_OPTIMA } from '../../helpers/tspli
 describe('deep on TSPLIB', () => {
   // Published optima (TSPLIB 95, Reinelt 1991): a correct circuit is never shorter, and these small
   // instances are where an LKH-class search must land exactly.
-  it.each(['burma14', 'ulysses16', 'ulysses22', 'att48', 'eil51', 'berlin52', 'st70', 'kroA100'])('%s: reaches the published optimum within a fixed amount of work', (name) => {
-    const { matrix } = loadTsp(name);
-    const r = solveTour(matrix, { method: 'best', improve: 'deep', timeLimitMs: 4, clock: steppingClock(0.001), seed: 1 });
-    expect(isCircuit(r.order, matrix.n)).toBe(true);
-    expect(r.length).toBe(TSPLIB_OPTIMA[name]);
-  });
+  it.each(['burma14', 'ulysses16', 'ulysses22', 'att48', 'eil51', 'berlin52', 'st70', 'kroA100'])(
+    '%s: reaches the published optimum within a fixed amount of work',
+    (name) => {
+      const { matrix } = loadTsp(name);
+      const r = solveTour(matrix, { method: 'best', improve: 'deep', timeLimitMs: 4, clock: steppingClock(0.001), seed: 1 });
+      expect(isCircuit(r.order, matrix.n)).toBe(true);
+      expect(r.length).toBe(TSPLIB_OPTIMA[name]);
+    },
+  );
 
   // pr439 (clustered, optimum 107217: TSPLIB 95, Reinelt 1991) is above deep's closing-scan size, so
   // this checks the kicks with the record-to-record acceptance alone: the circuit returned is the best
@@ -59,7 +62,13 @@ describe('local search undo log', () => {
         ls.rollback();
         expect(Array.from(ls.tour)).toEqual(before);
       }
-      expect(isCircuit([...ls.tour].sort((a, b) => a - b), m.n, 0)).toBe(true);
+      expect(
+        isCircuit(
+          [...ls.tour].sort((a, b) => a - b),
+          m.n,
+          0,
+        ),
+      ).toBe(true);
     }
     // The check is not vacuous: some kicks were kept and the rest rolled back.
     expect(kept).toBeGreaterThan(0);

@@ -40,8 +40,22 @@ describe('heldKarp', () => {
 
   it('handles trips of 1, 2 and 3 points', () => {
     expect(heldKarp(matrixFromRows([[0]]))).toEqual({ order: [0], length: 0 });
-    expect(heldKarp(matrixFromRows([[0, 4], [4, 0]]))).toEqual({ order: [0, 1], length: 8 });
-    const three = heldKarp(matrixFromRows([[0, 3, 4], [3, 0, 5], [4, 5, 0]]), 2);
+    expect(
+      heldKarp(
+        matrixFromRows([
+          [0, 4],
+          [4, 0],
+        ]),
+      ),
+    ).toEqual({ order: [0, 1], length: 8 });
+    const three = heldKarp(
+      matrixFromRows([
+        [0, 3, 4],
+        [3, 0, 5],
+        [4, 5, 0],
+      ]),
+      2,
+    );
     expect(three).toEqual({ order: [2, 0, 1], length: 12 });
   });
 

@@ -13,7 +13,6 @@ const maxD = (m: DistanceMatrix): number => m.d.reduce((a, b) => Math.max(a, b),
 // The engine promises no move gains more than 1e-9 of the longest distance; twice that absorbs re-summing.
 const tol = (m: DistanceMatrix): number => 2e-9 * Math.max(1, maxD(m));
 
-
 const cases: [string, DistanceMatrix][] = [
   ['random points n=60', randomEuclidean(60, 11)],
   ['random non-metric n=40', randomIntegerMatrix(40, 12)],

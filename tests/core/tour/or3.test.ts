@@ -20,8 +20,15 @@ const CHAINS_ONLY: LocalMoves = { twoOpt: false, orOpt: false, lk: true, lkBread
 const ALL_WIDE: LocalMoves = { twoOpt: true, orOpt: true, lk: true, or3: true, lkBreadth: LK_BREADTH_WIDE };
 const ALL_NARROW: LocalMoves = { twoOpt: true, orOpt: true, lk: true, or3: true, lkBreadth: LK_BREADTH_NARROW };
 
-
-const tol = (m: DistanceMatrix): number => 1e-6 * Math.max(1, circuitLength(m, Array.from({ length: m.n }, (_, i) => i)));
+const tol = (m: DistanceMatrix): number =>
+  1e-6 *
+  Math.max(
+    1,
+    circuitLength(
+      m,
+      Array.from({ length: m.n }, (_, i) => i),
+    ),
+  );
 
 describe('or-3opt chains: validity and exact gain accounting', () => {
   const instances: [string, () => DistanceMatrix][] = [];
@@ -38,7 +45,13 @@ describe('or-3opt chains: validity and exact gain accounting', () => {
         const before = circuitLength(m, start);
         expect(ls.run(undefined, false)).toBe(true);
         const after = circuitLength(m, ls.tour);
-        expect(isCircuit([...ls.tour].sort((a, b) => a - b), m.n, 0)).toBe(true);
+        expect(
+          isCircuit(
+            [...ls.tour].sort((a, b) => a - b),
+            m.n,
+            0,
+          ),
+        ).toBe(true);
         expect(after).toBeLessThanOrEqual(before + tol(m));
         // The search's own account of the change must match the circuit it holds (a chain undone
         // in a mirrored array once sent t4 to the wrong side and counted a gain that was not there).
@@ -98,7 +111,13 @@ describe('or-3opt chains: quality against outside facts', () => {
       const ls = createLocalSearch(matrix, ALL_WIDE, neighborLists(matrix, 10));
       ls.load(nearestNeighbor(matrix, 0));
       ls.run(undefined, false);
-      expect(isCircuit([...ls.tour].sort((a, b) => a - b), matrix.n, 0)).toBe(true);
+      expect(
+        isCircuit(
+          [...ls.tour].sort((a, b) => a - b),
+          matrix.n,
+          0,
+        ),
+      ).toBe(true);
       expect(circuitLength(matrix, ls.tour)).toBe(TSPLIB_OPTIMA[name]);
     }
   });

@@ -64,8 +64,15 @@ describe('solveTour on TSPLIB', () => {
 describe('solveTour edge cases', () => {
   it('returns the only circuit for trips of 1, 2 and 3 points, for every method', () => {
     const one = matrixFromRows([[0]]);
-    const two = matrixFromRows([[0, 5], [5, 0]]);
-    const three = matrixFromRows([[0, 3, 4], [3, 0, 5], [4, 5, 0]]);
+    const two = matrixFromRows([
+      [0, 5],
+      [5, 0],
+    ]);
+    const three = matrixFromRows([
+      [0, 3, 4],
+      [3, 0, 5],
+      [4, 5, 0],
+    ]);
     for (const method of [...heuristics, 'exact'] as TourMethod[]) {
       for (const improve of improvements) {
         expect(solveTour(one, { method, improve, timeLimitMs: 5, clock: steppingClock(0.01) })).toMatchObject({ order: [0], length: 0 });
@@ -115,8 +122,7 @@ describe('solveTour edge cases', () => {
 
   it('gives the same circuit for the same seed and the same amount of work', () => {
     const m = randomEuclidean(100, 3);
-    const run = (seed: number): number[] =>
-      solveTour(m, { method: 'best', improve: 'deep', timeLimitMs: 10, seed, clock: steppingClock(0.01) }).order;
+    const run = (seed: number): number[] => solveTour(m, { method: 'best', improve: 'deep', timeLimitMs: 10, seed, clock: steppingClock(0.01) }).order;
     expect(run(5)).toEqual(run(5));
   });
 });

@@ -58,7 +58,10 @@ function sShapeTrip(p: PlanGeometry, stopsWanted: number, seed: number, aisles: 
   }
   const byAisle = [...picks.values()].sort((a, b) => a.x - b.x || a.y - b.y);
   const visited = [...new Set(byAisle.map((s) => s.x))];
-  const points: MapPoint[] = [{ x: depot.x, y: depot.y }, { x: depot.x, y: 0 }];
+  const points: MapPoint[] = [
+    { x: depot.x, y: depot.y },
+    { x: depot.x, y: 0 },
+  ];
   const stops: RouteStop[] = [];
   let end = 0;
   for (const x of visited) {
@@ -129,24 +132,20 @@ const Harness = defineComponent({
           `${plan.bins.length.toLocaleString('en')} bins · ${plan.aisles.length} aisles · selected: ${last.value}`,
         ),
         showMini
-          ? h(
-              'div',
-              { style: 'position:absolute;right:12px;bottom:12px;border:2px solid #52606d;border-radius:8px;overflow:hidden' },
-              [
-                h(TripMiniMap, {
-                  ref: (el: unknown) => {
-                    mini.value = el as { stats: () => unknown } | null;
-                    if (w.__floorMap) w.__floorMap.mini = mini.value;
-                  },
-                  plan,
-                  route,
-                  closures,
-                  dark,
-                  width: 360,
-                  height: 240,
-                }),
-              ],
-            )
+          ? h('div', { style: 'position:absolute;right:12px;bottom:12px;border:2px solid #52606d;border-radius:8px;overflow:hidden' }, [
+              h(TripMiniMap, {
+                ref: (el: unknown) => {
+                  mini.value = el as { stats: () => unknown } | null;
+                  if (w.__floorMap) w.__floorMap.mini = mini.value;
+                },
+                plan,
+                route,
+                closures,
+                dark,
+                width: 360,
+                height: 240,
+              }),
+            ])
           : null,
       ]);
   },

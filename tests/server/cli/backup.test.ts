@@ -59,7 +59,13 @@ describe('aislewright backup verify', () => {
     expect(r.code).toBe(0);
     const body = JSON.parse(r.out) as { ok: boolean; tables: Record<string, number> };
     expect(body.ok).toBe(true);
-    expect(body.tables.users).toBe(await deps.db('users').count({ n: '*' }).first().then((x) => Number((x as { n: number }).n)));
+    expect(body.tables.users).toBe(
+      await deps
+        .db('users')
+        .count({ n: '*' })
+        .first()
+        .then((x) => Number((x as { n: number }).n)),
+    );
   });
 
   it('exits 1 for a damaged file (pages overwritten in the middle)', async () => {

@@ -5,7 +5,15 @@ import { run as route } from '../../../server/cli/commands/route';
 import { run as bound } from '../../../server/cli/commands/bound';
 import { loadTsp, TSPLIB_OPTIMA } from '../../helpers/tsplib';
 
-const square = { points: [[0, 0], [3, 0], [3, 4], [0, 4]], depot: 0 };
+const square = {
+  points: [
+    [0, 0],
+    [3, 0],
+    [3, 4],
+    [0, 4],
+  ],
+  depot: 0,
+};
 
 function rows(name: string): number[][] {
   const { matrix } = loadTsp(name);
@@ -52,11 +60,60 @@ describe('aislewright route (in process)', () => {
 
   const bad: [string, string[], unknown, RegExp][] = [
     ['ragged matrix', ['--method', 'best'], { distances: [[0, 1], [1]], depot: 0 }, /row 1 has 1 entries/],
-    ['asymmetric matrix', ['--method', 'best'], { distances: [[0, 1], [2, 0]], depot: 0 }, /not symmetric/],
-    ['negative distance', ['--method', 'best'], { distances: [[0, -1], [-1, 0]], depot: 0 }, /negative/],
-    ['non-finite distance', ['--method', 'best'], { distances: [[0, null], [null, 0]], depot: 0 }, /not a finite number/],
-    ['depot out of range', ['--method', 'best'], { points: [[0, 0], [1, 1]], depot: 2 }, /depot 2 is out of range/],
-    ['more than 16 stops for exact', ['--method', 'exact'], { points: Array.from({ length: 18 }, (_, i) => [i, 0]), depot: 0 }, /limited to 16 stops; this trip has 17/],
+    [
+      'asymmetric matrix',
+      ['--method', 'best'],
+      {
+        distances: [
+          [0, 1],
+          [2, 0],
+        ],
+        depot: 0,
+      },
+      /not symmetric/,
+    ],
+    [
+      'negative distance',
+      ['--method', 'best'],
+      {
+        distances: [
+          [0, -1],
+          [-1, 0],
+        ],
+        depot: 0,
+      },
+      /negative/,
+    ],
+    [
+      'non-finite distance',
+      ['--method', 'best'],
+      {
+        distances: [
+          [0, null],
+          [null, 0],
+        ],
+        depot: 0,
+      },
+      /not a finite number/,
+    ],
+    [
+      'depot out of range',
+      ['--method', 'best'],
+      {
+        points: [
+          [0, 0],
+          [1, 1],
+        ],
+        depot: 2,
+      },
+      /depot 2 is out of range/,
+    ],
+    [
+      'more than 16 stops for exact',
+      ['--method', 'exact'],
+      { points: Array.from({ length: 18 }, (_, i) => [i, 0]), depot: 0 },
+      /limited to 16 stops; this trip has 17/,
+    ],
     ['not JSON', ['--method', 'best'], '{oops', /not valid JSON/],
     ['both shapes', ['--method', 'best'], { points: [[0, 0]], distances: [[0]] }, /exactly one of/],
     ['bad point', ['--method', 'best'], { points: [[0, 0], [1]] }, /point 1 is not a pair/],
@@ -89,7 +146,15 @@ describe('aislewright bound (in process)', () => {
   });
 
   it('rejects bad input with exit 2', async () => {
-    const io = memoryIo(JSON.stringify({ distances: [[0, 1], [1, 0]], depot: -1 }));
+    const io = memoryIo(
+      JSON.stringify({
+        distances: [
+          [0, 1],
+          [1, 0],
+        ],
+        depot: -1,
+      }),
+    );
     expect(await bound([], io)).toBe(2);
     expect(io.stderr[0]).toMatch(/depot -1 is out of range/);
   });
@@ -107,7 +172,13 @@ describe('aislewright through node server/cli/bin.mjs', () => {
 
   it('exits 2 with one line on stderr for an asymmetric matrix', () => {
     const r = spawnSync('node', [bin, 'route', '--method', 'best'], {
-      input: JSON.stringify({ distances: [[0, 1], [2, 0]], depot: 0 }),
+      input: JSON.stringify({
+        distances: [
+          [0, 1],
+          [2, 0],
+        ],
+        depot: 0,
+      }),
       encoding: 'utf8',
     });
     expect(r.status).toBe(2);

@@ -29,7 +29,16 @@ beforeAll(async () => {
       at: new Date(Date.UTC(2026, 11, 1 + Math.floor(i / 10), 8, i)).toISOString(),
     });
   }
-  for (let i = 0; i < 5; i++) rows.push({ site_id: otherSite, user_id: ids.admin, action: 'site.updated', subject: `other:${i}`, detail: null, device: null, at: '2026-12-02T09:00:00.000Z' });
+  for (let i = 0; i < 5; i++)
+    rows.push({
+      site_id: otherSite,
+      user_id: ids.admin,
+      action: 'site.updated',
+      subject: `other:${i}`,
+      detail: null,
+      device: null,
+      at: '2026-12-02T09:00:00.000Z',
+    });
   await t.deps.db('audit_log').insert(rows);
 });
 afterAll(() => t.close());
@@ -115,11 +124,14 @@ describe('audit log export', () => {
   });
 
   it('downloads xlsx: one sheet, a row per entry, text cells stay text', async () => {
-    const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/audit-log/export?format=xlsx`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const res = await t.as.supervisor
+      .get(`/api/sites/${t.siteId}/audit-log/export?format=xlsx`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     const rows = XLSX.utils.sheet_to_json<string[]>(wb.Sheets[wb.SheetNames[0]!]!, { header: 1 });

@@ -29,8 +29,13 @@ beforeAll(async () => {
   const supervisor = await id({ role: 'supervisor' });
   const planId = await seedPlan(deps.db, siteId, supervisor);
   const wave = await insertReleasedWave(deps.db, {
-    siteId, planId, createdBy: supervisor,
-    trips: [{ stops: 40, pickerId: await id({ badge: 'P-1001' }) }, { stops: 40, pickerId: await id({ badge: 'P-1002' }) }],
+    siteId,
+    planId,
+    createdBy: supervisor,
+    trips: [
+      { stops: 40, pickerId: await id({ badge: 'P-1001' }) },
+      { stops: 40, pickerId: await id({ badge: 'P-1002' }) },
+    ],
   });
   tripIds = wave.tripIds;
   const app = appOf(deps);

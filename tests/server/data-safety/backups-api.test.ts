@@ -17,7 +17,16 @@ let supervisor: Agent;
 beforeAll(async () => {
   dir = tempDir('backups-api');
   deps = await fileDeps(join(dir, 'aislewright.sqlite'));
-  deps.backups = new BackupRunner({ dbFile: join(dir, 'aislewright.sqlite'), dir: join(dir, 'backups'), everyHours: 24, keep: 2, db: deps.db, mailer: deps.mailer, logger: deps.logger, publicUrl: 'http://aislewright.test' });
+  deps.backups = new BackupRunner({
+    dbFile: join(dir, 'aislewright.sqlite'),
+    dir: join(dir, 'backups'),
+    everyHours: 24,
+    keep: 2,
+    db: deps.db,
+    mailer: deps.mailer,
+    logger: deps.logger,
+    publicUrl: 'http://aislewright.test',
+  });
   const app = appOf(deps);
   admin = await signIn(app, 'admin');
   supervisor = await signIn(app, 'supervisor');

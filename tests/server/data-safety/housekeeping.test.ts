@@ -35,7 +35,14 @@ describe('retention', () => {
       { action: 'old.thing', at: ago(401) },
       { action: 'recent.thing', at: ago(399) },
     ]);
-    const mail = (status: string, days: number) => ({ to: 'a@b.test', subject: `${status} ${days}`, text: 'body', attachments: '[{"filename":"x.csv","contentType":"text/csv","base64":"eA=="}]', status, created_at: ago(days) });
+    const mail = (status: string, days: number) => ({
+      to: 'a@b.test',
+      subject: `${status} ${days}`,
+      text: 'body',
+      attachments: '[{"filename":"x.csv","contentType":"text/csv","base64":"eA=="}]',
+      status,
+      created_at: ago(days),
+    });
     await db('mail_outbox').insert([mail('sent', 91), mail('failed', 91), mail('retrying', 91), mail('sent', 89)]);
     await db('invites').insert([
       { email: 'old@x.test', role: 'engineer', site_ids: '[]', token_hash: 'h1', expires_at: ago(31), created_at: ago(34) },
@@ -54,7 +61,10 @@ describe('retention', () => {
     expect(await db('audit_log').where({ action: 'recent.thing' })).toHaveLength(1);
     const outbox = await db('mail_outbox').orderBy('id');
     expect(outbox.map((m: { status: string; text: string; attachments: string }) => [m.status, m.text, m.attachments])).toEqual([
-      ['sent', '', '[]'], ['failed', '', '[]'], ['retrying', 'body', expect.stringContaining('x.csv')], ['sent', 'body', expect.stringContaining('x.csv')],
+      ['sent', '', '[]'],
+      ['failed', '', '[]'],
+      ['retrying', 'body', expect.stringContaining('x.csv')],
+      ['sent', 'body', expect.stringContaining('x.csv')],
     ]);
     expect((await db('invites').select('email')).map((r: { email: string }) => r.email)).toEqual(['open@x.test']);
     const run = await db('audit_log').where({ action: 'retention.pruned' }).first<{ user_id: number; detail: string }>();
@@ -97,7 +107,12 @@ describe('mail retries', () => {
     expect(shown).toMatchObject({ status: 'failed', attempts: MAIL_RETRY_DELAYS_MS.length + 1, error: 'connection refused' });
 
     // A message that fails once and then goes through ends as sent.
-    const id2 = await mailer.send({ to: 'admin@demo.aislewright.test', subject: 'Second', text: 'x', attachments: [{ filename: 'a.txt', contentType: 'text/plain', content: Buffer.from('a') }] });
+    const id2 = await mailer.send({
+      to: 'admin@demo.aislewright.test',
+      subject: 'Second',
+      text: 'x',
+      attachments: [{ filename: 'a.txt', contentType: 'text/plain', content: Buffer.from('a') }],
+    });
     fail = false;
     await mailer.retryDue(new Date(Date.now() + MAIL_RETRY_DELAYS_MS[0]!));
     expect(await t.deps.db('mail_outbox').where({ id: id2 }).first()).toMatchObject({ status: 'sent', attempts: 2, error: null });
@@ -118,10 +133,16 @@ describe('integration tokens', () => {
     const listed = list.find((x) => x.id === made.id)!;
     expect(listed.lastUsedAt).not.toBeNull();
     expect(listed).not.toHaveProperty('token');
-    await t.deps.db('integration_tokens').where({ id: made.id }).update({ expires_at: ago(0.001) });
+    await t.deps
+      .db('integration_tokens')
+      .where({ id: made.id })
+      .update({ expires_at: ago(0.001) });
     expect((await push()).status).toBe(401);
 
-    const past = await t.as.admin.post(`/api/sites/${t.siteId}/integration-tokens`).set(csrf).send({ name: 'Old', expiresAt: ago(1) });
+    const past = await t.as.admin
+      .post(`/api/sites/${t.siteId}/integration-tokens`)
+      .set(csrf)
+      .send({ name: 'Old', expiresAt: ago(1) });
     expect(past.status).toBe(400);
     expect(past.body.error.details[0].field).toBe('expiresAt');
 

@@ -26,7 +26,11 @@ async function schemaOf(db: Db): Promise<string[]> {
     const cols: { name: string; type: string; notnull: number; dflt_value: unknown; pk: number }[] = await db.raw(`PRAGMA table_info("${table}")`);
     for (const c of cols) out.push(`${table}.${c.name} ${c.type} ${c.notnull} ${String(c.dflt_value)} ${c.pk}`);
   }
-  const idx: { name: string; sql: string | null }[] = await db('sqlite_master').whereIn('type', ['index', 'trigger', 'view']).whereNot('name', 'like', 'sqlite_%').orderBy('name').select('name', 'sql');
+  const idx: { name: string; sql: string | null }[] = await db('sqlite_master')
+    .whereIn('type', ['index', 'trigger', 'view'])
+    .whereNot('name', 'like', 'sqlite_%')
+    .orderBy('name')
+    .select('name', 'sql');
   for (const i of idx) out.push(`${i.name}: ${i.sql ?? ''}`);
   return out;
 }

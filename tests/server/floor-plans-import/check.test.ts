@@ -68,7 +68,9 @@ describe('sheets and columns', () => {
         for (const row of s.bins!) row.splice(i, 1);
       }
     });
-    expect(r.errors).toEqual([{ sheet: 'bins', row: 1, column: 'y_m', value: null, message: 'bins needs a y_m column or a bay column (or both, one filled per row)' }]);
+    expect(r.errors).toEqual([
+      { sheet: 'bins', row: 1, column: 'y_m', value: null, message: 'bins needs a y_m column or a bay column (or both, one filled per row)' },
+    ]);
   });
 });
 
@@ -111,7 +113,15 @@ describe('cell values', () => {
 
   it('reports a code that a spreadsheet program would run as a formula', () => {
     const r = edited((s) => set(s, 'bins', 'B-01-01-1', 'bin', '=1+1'));
-    expect(r.errors).toEqual([{ sheet: 'bins', row: rowOf(rows, 'bins', 'B-01-01-1'), column: 'bin', value: '=1+1', message: expect.stringMatching(/^bin starts with "=", which spreadsheet programs run as a formula/) }]);
+    expect(r.errors).toEqual([
+      {
+        sheet: 'bins',
+        row: rowOf(rows, 'bins', 'B-01-01-1'),
+        column: 'bin',
+        value: '=1+1',
+        message: expect.stringMatching(/^bin starts with "=", which spreadsheet programs run as a formula/),
+      },
+    ]);
   });
 });
 
@@ -119,7 +129,12 @@ describe('duplicate codes', () => {
   it.each([
     ['aisles', 'aisle', ['A', 11, 0, 20, 2.5], 'aisle A is already used in row 2; codes must be unique'],
     ['cross_aisles', 'cross_aisle', ['front', 10, 2, 8], 'cross aisle front is already used in row 2; codes must be unique'],
-    ['bins', 'bin', ['C-01-01-1', 'C', 12, null, 'L', 2, null], `bin C-01-01-1 is already used in row ${rowOf(rows, 'bins', 'C-01-01-1')}; codes must be unique`],
+    [
+      'bins',
+      'bin',
+      ['C-01-01-1', 'C', 12, null, 'L', 2, null],
+      `bin C-01-01-1 is already used in row ${rowOf(rows, 'bins', 'C-01-01-1')}; codes must be unique`,
+    ],
     ['depots', 'depot', ['PACK-1', 8, -2], 'depot PACK-1 is already used in row 2; codes must be unique'],
   ] as const)('reports a second %s row with the same %s code', (sheet, column, row, message) => {
     const r = edited((s) => s[sheet]!.push([...row]));
@@ -128,7 +143,9 @@ describe('duplicate codes', () => {
 
   it('reports a depot code that is also a bin code', () => {
     const r = edited((s) => set(s, 'depots', 'PACK-1', 'depot', 'A-01-01-1'));
-    expect(r.errors).toEqual([{ sheet: 'depots', row: 2, column: 'depot', value: 'A-01-01-1', message: 'depot code A-01-01-1 is also a bin code; give the depot its own code' }]);
+    expect(r.errors).toEqual([
+      { sheet: 'depots', row: 2, column: 'depot', value: 'A-01-01-1', message: 'depot code A-01-01-1 is also a bin code; give the depot its own code' },
+    ]);
   });
 });
 
@@ -140,13 +157,23 @@ describe('bin positions', () => {
 
   it('reports a y_m outside its aisle', () => {
     const r = edited((s) => set(s, 'bins', 'C-02-01-2', 'y_m', 25));
-    expect(r.errors).toEqual([{ sheet: 'bins', row: rowOf(rows, 'bins', 'C-02-01-2'), column: 'y_m', value: '25', message: 'y_m 25 m lies outside aisle C, which runs from 0 m to 20 m' }]);
+    expect(r.errors).toEqual([
+      {
+        sheet: 'bins',
+        row: rowOf(rows, 'bins', 'C-02-01-2'),
+        column: 'y_m',
+        value: '25',
+        message: 'y_m 25 m lies outside aisle C, which runs from 0 m to 20 m',
+      },
+    ]);
   });
 
   it('reports a bay whose centre lies past the end of its aisle', () => {
     // Bay centre y = y_start + (bay − 0.5) × bay length = 0 + 8.5 × 2.5 = 21.25 m > 20 m.
     const r = edited((s) => set(s, 'bins', 'B-04-01-2', 'bay', 9));
-    expect(r.errors).toEqual([{ sheet: 'bins', row: rowOf(rows, 'bins', 'B-04-01-2'), column: 'bay', value: '9', message: 'bay 9 centres at 21.25 m, past the end of aisle B (20 m)' }]);
+    expect(r.errors).toEqual([
+      { sheet: 'bins', row: rowOf(rows, 'bins', 'B-04-01-2'), column: 'bay', value: '9', message: 'bay 9 centres at 21.25 m, past the end of aisle B (20 m)' },
+    ]);
   });
 
   it('reports a bin with both y_m and bay, and a bin with neither', () => {
@@ -166,7 +193,13 @@ describe('bin positions', () => {
       set(s, 'bins', 'C-01-01-1', 'bay', 2);
     });
     expect(r.errors).toEqual([
-      { sheet: 'bins', row: rowOf(rows, 'bins', 'C-01-01-1'), column: 'bay', value: '2', message: 'aisle C has no bay_length_m, so bay 2 cannot be placed; fill bay_length_m in aisles or give y_m' },
+      {
+        sheet: 'bins',
+        row: rowOf(rows, 'bins', 'C-01-01-1'),
+        column: 'bay',
+        value: '2',
+        message: 'aisle C has no bay_length_m, so bay 2 cannot be placed; fill bay_length_m in aisles or give y_m',
+      },
     ]);
   });
 });
@@ -180,8 +213,20 @@ describe('geometry (engine diagnostics mapped to rows)', () => {
     });
     const cBins = rows.bins!.slice(1).filter((b) => b[1] === 'C');
     expect(r.errors).toEqual([
-      { sheet: 'aisles', row: 4, column: 'aisle', value: 'C', message: 'aisle C touches no cross aisle, so no one can walk into it; extend it to a cross aisle or add one' },
-      ...cBins.map((b) => ({ sheet: 'bins', row: rowOf(rows, 'bins', String(b[0])), column: 'bin', value: b[0], message: `bin ${b[0]} cannot be reached from the depot on foot` })),
+      {
+        sheet: 'aisles',
+        row: 4,
+        column: 'aisle',
+        value: 'C',
+        message: 'aisle C touches no cross aisle, so no one can walk into it; extend it to a cross aisle or add one',
+      },
+      ...cBins.map((b) => ({
+        sheet: 'bins',
+        row: rowOf(rows, 'bins', String(b[0])),
+        column: 'bin',
+        value: b[0],
+        message: `bin ${b[0]} cannot be reached from the depot on foot`,
+      })),
     ]);
   });
 
@@ -191,18 +236,36 @@ describe('geometry (engine diagnostics mapped to rows)', () => {
       s.cross_aisles!.push(['island', 0, 49, 51]);
       s.depots!.push(['PACK-2', 50, -2]);
     });
-    expect(r.errors).toEqual([{ sheet: 'depots', row: 3, column: 'depot', value: 'PACK-2', message: 'depot PACK-2 cannot be reached on foot from the first depot' }]);
+    expect(r.errors).toEqual([
+      { sheet: 'depots', row: 3, column: 'depot', value: 'PACK-2', message: 'depot PACK-2 cannot be reached on foot from the first depot' },
+    ]);
     expect(r.warnings).toEqual([{ sheet: 'aisles', row: 5, column: 'aisle', value: 'Z', message: 'aisle Z has no bins' }]);
   });
 
   it('reports a depot too far from every walkway', () => {
     const r = edited((s) => s.depots!.push(['DOCK', 100, 100]));
-    expect(r.errors).toEqual([{ sheet: 'depots', row: 3, column: 'depot', value: 'DOCK', message: 'depot DOCK lies more than 5 m from every aisle and cross aisle; move it next to one' }]);
+    expect(r.errors).toEqual([
+      {
+        sheet: 'depots',
+        row: 3,
+        column: 'depot',
+        value: 'DOCK',
+        message: 'depot DOCK lies more than 5 m from every aisle and cross aisle; move it next to one',
+      },
+    ]);
   });
 
   it('reports a plan with no depot', () => {
     const r = edited((s) => s.depots!.splice(1));
-    expect(r.errors).toEqual([{ sheet: 'depots', row: null, column: 'depot', value: null, message: 'the plan has no depot; add a row to depots for the point where every trip starts and ends' }]);
+    expect(r.errors).toEqual([
+      {
+        sheet: 'depots',
+        row: null,
+        column: 'depot',
+        value: null,
+        message: 'the plan has no depot; add a row to depots for the point where every trip starts and ends',
+      },
+    ]);
   });
 
   it('lets a warning through: an aisle with no bins still gives a plan', () => {
@@ -223,7 +286,13 @@ describe('geometry (engine diagnostics mapped to rows)', () => {
     const r = edited((s) => set(s, 'aisles', 'B', 'x_m', 4));
     expect(r.errors).toEqual([]);
     expect(r.warnings).toEqual([
-      { sheet: 'aisles', row: 3, column: 'aisle', value: 'B', message: 'aisles A and B are 2 m apart: with racks about 1 m deep between them that leaves 0 m to walk, under 1 m; check the x of both aisles' },
+      {
+        sheet: 'aisles',
+        row: 3,
+        column: 'aisle',
+        value: 'B',
+        message: 'aisles A and B are 2 m apart: with racks about 1 m deep between them that leaves 0 m to walk, under 1 m; check the x of both aisles',
+      },
     ]);
     expect(r.ok).toBe(true);
   });
@@ -257,7 +326,14 @@ describe('bins CSV', () => {
 });
 
 it('lists at most maxIssues errors and says how many more there were', () => {
-  const r = check(editedTemplate((s) => { for (const row of s.bins!.slice(1)) row[col(s, 'bins', 'side')] = '?'; }), 'plan.xlsx', undefined, 10);
+  const r = check(
+    editedTemplate((s) => {
+      for (const row of s.bins!.slice(1)) row[col(s, 'bins', 'side')] = '?';
+    }),
+    'plan.xlsx',
+    undefined,
+    10,
+  );
   expect(r.errors).toHaveLength(11);
   expect(r.errors[10]).toEqual({ sheet: '(file)', row: null, column: null, value: null, message: '20 more errors not listed' });
 });

@@ -15,7 +15,12 @@ const broken = join(dir, 'broken.xlsx');
 
 beforeAll(() => {
   writeFileSync(template, buildFloorPlanTemplate());
-  writeFileSync(broken, editedTemplate((s) => { s.bins![1]![col(s, 'bins', 'aisle')] = 'Q'; }));
+  writeFileSync(
+    broken,
+    editedTemplate((s) => {
+      s.bins![1]![col(s, 'bins', 'aisle')] = 'Q';
+    }),
+  );
 });
 
 async function cli(...args: string[]) {
@@ -29,7 +34,9 @@ describe('aislewright plan check', () => {
     const r = await cli('check', template);
     expect(r.code).toBe(0);
     expect(JSON.parse(r.out)).toEqual({
-      ok: true, errors: [], warnings: [],
+      ok: true,
+      errors: [],
+      warnings: [],
       stats: { aisles: 3, crossAisles: 2, bins: 30, accessPoints: 11, depots: 1, totalAisleLengthM: 60 },
     });
   });

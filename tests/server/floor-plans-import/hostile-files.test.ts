@@ -29,7 +29,15 @@ describe('checkFloorPlanFile on hostile files', () => {
   it('reads a sheet declaring A1:XFD1048576 with 3 cells from its cells, within the time limit', async () => {
     const s = templateSheets();
     const sheets = Object.entries(s).map(([name, rows]) => rawSheet(name, rows.map((r) => r.map((v) => v ?? '')) as (string | number)[][]));
-    sheets[0] = { name: 'aisles', dimension: 'A1:XFD1048576', cells: [['A1', 'aisle'], ['B1', 'x_m'], ['A2', 'A']] };
+    sheets[0] = {
+      name: 'aisles',
+      dimension: 'A1:XFD1048576',
+      cells: [
+        ['A1', 'aisle'],
+        ['B1', 'x_m'],
+        ['A2', 'A'],
+      ],
+    };
     const r = await checkFloorPlanFile(rawXlsx(sheets), 'plan.xlsx', { timeoutMs: 10_000 });
     expect(r.errors.slice(0, 2)).toEqual([
       { sheet: 'aisles', row: 1, column: 'y_start_m', value: null, message: 'column y_start_m is missing from the header row' },
@@ -56,14 +64,16 @@ describe('checkFloorPlanFile on hostile files', () => {
 
   it('refuses a file that is not a ZIP archive but is named .xlsx', async () => {
     const r = await checkFloorPlanFile(new TextEncoder().encode('<html>not a workbook</html>'), 'plan.xlsx');
-    expect(r.errors).toEqual([{ sheet: '(file)', row: null, column: null, value: null, message: 'the file is not an .xlsx workbook (it is not a ZIP archive)' }]);
+    expect(r.errors).toEqual([
+      { sheet: '(file)', row: null, column: null, value: null, message: 'the file is not an .xlsx workbook (it is not a ZIP archive)' },
+    ]);
     await expectStillWorking();
   });
 
   it('keeps a formula-injection value in a bins CSV as text and refuses it as a code', async () => {
     const template = await checkFloorPlanFile(buildFloorPlanTemplate(), 'template.xlsx');
     const layout = { aisles: template.plan!.aisles, crossAisles: template.plan!.crossAisles, depots: template.plan!.depots };
-    const r = await checkFloorPlanFile(csvOf(['bin,aisle,y_m,side,level', '@SUM(1+1)*cmd|\' /C calc\'!A0,A,3,L,1', 'A-9,A,4,L,1']), 'bins.csv', { layout });
+    const r = await checkFloorPlanFile(csvOf(['bin,aisle,y_m,side,level', "@SUM(1+1)*cmd|' /C calc'!A0,A,3,L,1", 'A-9,A,4,L,1']), 'bins.csv', { layout });
     expect(r.errors).toEqual([
       { sheet: 'bins', row: 2, column: 'bin', value: "@SUM(1+1)*cmd|' /C calc'!A0", message: expect.stringMatching(/^bin starts with "@"/) },
     ]);
@@ -71,7 +81,9 @@ describe('checkFloorPlanFile on hostile files', () => {
   });
 
   it('refuses a file over the size limit and an empty file', async () => {
-    expect((await checkFloorPlanFile(new Uint8Array(2048), 'plan.xlsx', { limits: { maxFileBytes: 1024 } })).errors[0]!.message).toBe('the file is 2 KiB; at most 1 KiB are accepted');
+    expect((await checkFloorPlanFile(new Uint8Array(2048), 'plan.xlsx', { limits: { maxFileBytes: 1024 } })).errors[0]!.message).toBe(
+      'the file is 2 KiB; at most 1 KiB are accepted',
+    );
     expect((await checkFloorPlanFile(new Uint8Array(0), 'plan.xlsx')).errors[0]!.message).toBe('the file is empty');
   });
 

@@ -23,8 +23,13 @@ describe('checkFloorPlanFile', () => {
 
   it('round-trips a generated plan written to xlsx to the same geometry and walk graph', async () => {
     const plan = generateRectangularPlan({
-      aisles: 8, aisleLengthM: 30, aisleSpacingM: 3.2, baysPerAisle: 10, levels: 3,
-      crossAisles: { front: true, back: true, middle: 1 }, depot: { at: 'front_centre' },
+      aisles: 8,
+      aisleLengthM: 30,
+      aisleSpacingM: 3.2,
+      baysPerAisle: 10,
+      levels: 3,
+      crossAisles: { front: true, back: true, middle: 1 },
+      depot: { at: 'front_centre' },
     });
     const r = await checkFloorPlanFile(floorPlanToWorkbook(plan), 'generated.xlsx');
     expect(r.errors).toEqual([]);

@@ -18,7 +18,10 @@ import { generatePlan, waitForJob } from './helpers';
 const countOf = (r: unknown): number => Number(((r as { rows?: { n: number }[] }).rows ?? (r as { n: number }[]))[0]!.n);
 
 async function sqlSkusWithoutBin(t: TestApp, planId: number): Promise<number> {
-  const r = await t.deps.db.raw('select count(*) as n from skus s where s.site_id = ? and s.bin not in (select code from floor_plan_bins where plan_id = ?)', [t.siteId, planId]);
+  const r = await t.deps.db.raw('select count(*) as n from skus s where s.site_id = ? and s.bin not in (select code from floor_plan_bins where plan_id = ?)', [
+    t.siteId,
+    planId,
+  ]);
   return countOf(r);
 }
 async function sqlOrdersUnplaceable(t: TestApp, planId: number): Promise<number> {
@@ -101,9 +104,16 @@ describe('activation check and acknowledged activation (issue 10, item 8)', () =
     const csv = await t.as.supervisor.get(`${base()}/${renamedDraft}/activation-check/skus-without-bin?format=csv`);
     expect(csv.status).toBe(200);
     expect(csv.headers['content-type']).toMatch(/^text\/csv/);
-    const lines = csv.text.replace(/^\ufeff/, '').trim().split('\r\n');
+    const lines = csv.text
+      .replace(/^\ufeff/, '')
+      .trim()
+      .split('\r\n');
     expect(lines).toHaveLength(601);
-    const sku = (await t.deps.db('skus').where({ site_id: t.siteId }).orderBy('sku').first<{ sku: string; bin: string; description: string }>('sku', 'bin', 'description'))!;
+    const sku = (await t.deps
+      .db('skus')
+      .where({ site_id: t.siteId })
+      .orderBy('sku')
+      .first<{ sku: string; bin: string; description: string }>('sku', 'bin', 'description'))!;
     // RFC 4180: a field holding a comma is quoted.
     const description = sku.description.includes(',') ? `"${sku.description}"` : sku.description;
     expect(lines).toContain(`${sku.sku},${description},${sku.bin},yes`);
@@ -133,7 +143,15 @@ describe('activation check and acknowledged activation (issue 10, item 8)', () =
 
   it('rolls back to the retired plan without a re-upload, with no acknowledgement when it loses nothing', async () => {
     const before = ActivationCheck.parse((await t.as.supervisor.get(`${base()}/${demoPlan}/activation-check`)).body);
-    expect(before).toMatchObject({ plan: { id: demoPlan, state: 'retired' }, currentPlan: { id: renamedDraft }, skusWithoutBin: 0, skusLosingBin: 0, openOrdersUnplaceable: 0, needsAcknowledgement: false, runningWaves: [] });
+    expect(before).toMatchObject({
+      plan: { id: demoPlan, state: 'retired' },
+      currentPlan: { id: renamedDraft },
+      skusWithoutBin: 0,
+      skusLosingBin: 0,
+      openOrdersUnplaceable: 0,
+      needsAcknowledgement: false,
+      runningWaves: [],
+    });
     const res = await t.as.supervisor.post(`${base()}/${demoPlan}/activate`).set(csrf);
     expect(res.status, JSON.stringify(res.body)).toBe(200);
     expect(FloorPlanDetail.parse(res.body)).toMatchObject({ state: 'active', retiredAt: null });

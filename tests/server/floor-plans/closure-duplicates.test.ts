@@ -29,7 +29,8 @@ async function close(fromM: number, toM: number): Promise<ClosureResult> {
   const n = r.unreachableBins.length;
   if (n === 0) expect(r.message).toMatch(/Every bin can still be reached\.$/);
   else expect(r.message).not.toMatch(/Every bin can still be reached/);
-  if (r.newlyUnreachable.length) expect(r.message).toContain(`${r.newlyUnreachable.length} bin${r.newlyUnreachable.length === 1 ? '' : 's'} can no longer be reached`);
+  if (r.newlyUnreachable.length)
+    expect(r.message).toContain(`${r.newlyUnreachable.length} bin${r.newlyUnreachable.length === 1 ? '' : 's'} can no longer be reached`);
   else if (n) expect(r.message).toContain(`No more bins are cut off; ${n} bin${n === 1 ? '' : 's'} remain`);
   expect(r.plan.unreachableBins).toEqual(r.unreachableBins);
   return r;
@@ -57,7 +58,9 @@ describe('closing a stretch that is already closed', () => {
     expect(again.closure!.id).toBe(first.closure!.id);
     expect(again.newlyUnreachable).toEqual([]);
     expect(again.unreachableBins).toEqual(['B-02-01-1', 'B-02-01-2']);
-    expect(again.message).toBe('Aisle B from 5 m to 6 m is already closed (closed by Sam Supervisor); nothing was changed. No more bins are cut off; 2 bins remain unreachable.');
+    expect(again.message).toBe(
+      'Aisle B from 5 m to 6 m is already closed (closed by Sam Supervisor); nothing was changed. No more bins are cut off; 2 bins remain unreachable.',
+    );
     expect(again.plan.closureVersion).toBe(first.plan.closureVersion);
     expect(await openRows()).toHaveLength(2);
   });
@@ -74,7 +77,10 @@ describe('closing a stretch that is already closed', () => {
     expect(wider.outcome).toBe('extended');
     expect(wider.closure).toMatchObject({ id: first.closure!.id, fromM: 4, toM: 6 });
     expect(wider.message).toMatch(/^Aisle B from 4 m to 6 m: closed; it overlapped the open closure at 5 m–6 m, now one closure\./);
-    expect((await openRows()).map((c) => [c.fromM, c.toM])).toEqual([[10, 11], [4, 6]]);
+    expect((await openRows()).map((c) => [c.fromM, c.toM])).toEqual([
+      [10, 11],
+      [4, 6],
+    ]);
   });
 
   it('merges every open closure a bridging stretch overlaps into the oldest of them', async () => {

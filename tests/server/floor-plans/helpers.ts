@@ -19,7 +19,12 @@ export async function waitForJob(agent: Agent, siteId: number, jobId: string, ti
 }
 
 /** Generates a plan through the API and returns its id once saved. */
-export async function generatePlan(agent: Agent, siteId: number, name: string, params: Partial<GeneratePlanParams> & Pick<GeneratePlanParams, 'aisles' | 'baysPerAisle'>): Promise<number> {
+export async function generatePlan(
+  agent: Agent,
+  siteId: number,
+  name: string,
+  params: Partial<GeneratePlanParams> & Pick<GeneratePlanParams, 'aisles' | 'baysPerAisle'>,
+): Promise<number> {
   const body = {
     name,
     params: { aisleLengthM: 20, aisleSpacingM: 4, levels: 1, crossAisles: { front: true, back: true, middle: 0 }, ...params },
@@ -33,7 +38,16 @@ export async function generatePlan(agent: Agent, siteId: number, name: string, p
 
 /** Rows in every floor-plan table, to show that a refused upload left the database unchanged. */
 export async function floorPlanRowCounts(db: import('knex').Knex): Promise<Record<string, number>> {
-  const tables = ['floor_plans', 'floor_plan_aisles', 'floor_plan_cross_aisles', 'floor_plan_bins', 'floor_plan_depots', 'floor_plan_closures', 'floor_plan_graphs', 'floor_plan_arrays'];
+  const tables = [
+    'floor_plans',
+    'floor_plan_aisles',
+    'floor_plan_cross_aisles',
+    'floor_plan_bins',
+    'floor_plan_depots',
+    'floor_plan_closures',
+    'floor_plan_graphs',
+    'floor_plan_arrays',
+  ];
   const out: Record<string, number> = {};
   for (const t of tables) out[t] = Number((await db(t).count<{ n: number }[]>({ n: '*' }))[0]!.n);
   return out;

@@ -28,7 +28,10 @@ describe('floor plans: generate → draft → activate → retire', () => {
     await generatePlan(t.as.supervisor, t.siteId, 'Second', { aisles: 2, baysPerAisle: 2 });
     const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans`);
     const list = FloorPlanSummary.array().parse(res.body);
-    expect(list.map((p) => [p.version, p.name])).toEqual([[2, 'Second'], [1, 'Study hall']]);
+    expect(list.map((p) => [p.version, p.name])).toEqual([
+      [2, 'Second'],
+      [1, 'Study hall'],
+    ]);
   });
 
   it('activating retires the previous active plan, and only one plan is ever active', async () => {
@@ -40,7 +43,10 @@ describe('floor plans: generate → draft → activate → retire', () => {
     const a2 = await t.as.admin.post(`/api/sites/${t.siteId}/floor-plans/${v2}/activate`).set(csrf);
     expect(a2.status).toBe(200);
     const after = FloorPlanSummary.array().parse((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans`)).body);
-    expect(after.map((p) => [p.version, p.state, p.readOnly])).toEqual([[2, 'active', false], [1, 'retired', true]]);
+    expect(after.map((p) => [p.version, p.state, p.readOnly])).toEqual([
+      [2, 'active', false],
+      [1, 'retired', true],
+    ]);
     expect(after[1]!.retiredAt).not.toBeNull();
     expect(await activePlanId(t.deps.db, t.siteId)).toBe(v2);
   });
@@ -83,7 +89,9 @@ describe('floor plans: generate → draft → activate → retire', () => {
   });
 
   it('refuses generator parameters with the field named', async () => {
-    const res = await t.as.engineer.post(`/api/sites/${t.siteId}/floor-plans/generate`).set(csrf)
+    const res = await t.as.engineer
+      .post(`/api/sites/${t.siteId}/floor-plans/generate`)
+      .set(csrf)
       .send({ name: 'Bad', params: { aisles: 0, aisleLengthM: -1, aisleSpacingM: 3, baysPerAisle: 2, levels: 1, crossAisles: {} } });
     expect(res.status).toBe(400);
     const fields = (res.body.error.details as { field: string }[]).map((d) => d.field);
@@ -128,7 +136,9 @@ describe('floor plans of another site', () => {
   });
 
   it("hide another site's jobs", async () => {
-    const res = await t.as.admin.post(`/api/sites/${otherSite}/floor-plans/generate`).set(csrf)
+    const res = await t.as.admin
+      .post(`/api/sites/${otherSite}/floor-plans/generate`)
+      .set(csrf)
       .send({ name: 'N2', params: { aisles: 2, aisleLengthM: 20, aisleSpacingM: 4, baysPerAisle: 2, levels: 1, crossAisles: {} } });
     expect(res.status).toBe(202);
     expect((await t.as.admin.get(`/api/sites/${t.siteId}/floor-plans/jobs/${res.body.id}`)).status).toBe(404);
@@ -145,7 +155,9 @@ describe('a generated plan the engine refuses', () => {
 
   it('ends the job as failed with the reason, saving nothing', async () => {
     // 4 m aisles cannot hold racks between front, 3 middle and back cross aisles 3 m wide.
-    const res = await t.as.engineer.post(`/api/sites/${t.siteId}/floor-plans/generate`).set(csrf)
+    const res = await t.as.engineer
+      .post(`/api/sites/${t.siteId}/floor-plans/generate`)
+      .set(csrf)
       .send({ name: 'Cramped', params: { aisles: 2, aisleLengthM: 4, aisleSpacingM: 3, baysPerAisle: 8, levels: 1, crossAisles: { middle: 3 } } });
     expect(res.status).toBe(202);
     const job = await waitForJob(t.as.engineer, t.siteId, res.body.id);
@@ -163,7 +175,9 @@ describe('a save interrupted by a stopped server', () => {
   afterAll(() => t.close());
 
   it('leaves an unlisted plan that the next save removes with its rows', async () => {
-    const [{ id: stale }] = await t.deps.db('floor_plans').insert({ site_id: t.siteId, name: 'half saved', state: 'building', source: 'upload', created_at: new Date().toISOString() }, 'id');
+    const [{ id: stale }] = await t.deps
+      .db('floor_plans')
+      .insert({ site_id: t.siteId, name: 'half saved', state: 'building', source: 'upload', created_at: new Date().toISOString() }, 'id');
     await t.deps.db('floor_plan_aisles').insert({ plan_id: stale, idx: 0, code: 'A', x_m: 0, y_start_m: 0, y_end_m: 10 });
     expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans`)).body).toEqual([]);
     expect((await t.as.supervisor.get(`/api/sites/${t.siteId}/floor-plans/${stale}`)).status).toBe(404);

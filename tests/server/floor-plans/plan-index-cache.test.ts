@@ -24,7 +24,12 @@ describe('the plan index cache', () => {
     const { saveBuiltPlan } = await import('../../../server/floor-plans/floor-plans.service');
     const params = { aisles: 3, aisleLengthM: 10, aisleSpacingM: 3, baysPerAisle: 4, levels: 1 };
     const built = await runBuild({ kind: 'generate', params, closures: [], budgetMs: BUILD_BUDGET_MS });
-    const idB = await saveBuiltPlan(b.deps.db, { siteId: b.siteId, userId: 1, name: 'small', source: 'generated', sourceFilename: null, generatorParams: null as never, warnings: [] }, generateRectangularPlan(params), built);
+    const idB = await saveBuiltPlan(
+      b.deps.db,
+      { siteId: b.siteId, userId: 1, name: 'small', source: 'generated', sourceFilename: null, generatorParams: null as never, warnings: [] },
+      generateRectangularPlan(params),
+      built,
+    );
     expect(idB).toBe(idA);
     const planB = await loadPlanIndex(b.deps.db, idB);
     expect(planB.geometry.bins.length).toBe(generateRectangularPlan(params).bins.length);

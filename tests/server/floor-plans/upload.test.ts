@@ -30,11 +30,14 @@ describe('uploading a floor-plan workbook', () => {
   afterAll(() => t.close());
 
   it('serves the template as a workbook', async () => {
-    const res = await t.as.engineer.get('/api/floor-plans/template').buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const res = await t.as.engineer
+      .get('/api/floor-plans/template')
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toBe(XLSX_TYPE);
     const wb = XLSX.read(res.body as Buffer);
@@ -48,7 +51,13 @@ describe('uploading a floor-plan workbook', () => {
     expect(job).toMatchObject({ status: 'done', phase: 'done', fraction: 1, errors: [] });
     expect(job.totalMs).toBeGreaterThan(0);
     const first = FloorPlanDetail.parse((await t.as.supervisor.get(`${base()}/${job.planId}`)).body);
-    expect(first).toMatchObject({ version: 1, state: 'draft', source: 'upload', sourceFilename: 'aislewright-floor-plan-template.xlsx', name: 'aislewright-floor-plan-template' });
+    expect(first).toMatchObject({
+      version: 1,
+      state: 'draft',
+      source: 'upload',
+      sourceFilename: 'aislewright-floor-plan-template.xlsx',
+      name: 'aislewright-floor-plan-template',
+    });
     expect(first.uploadedBy?.name).toBe('Sam Supervisor');
     expect(first.stats.bins).toBeGreaterThan(0);
     expect(first.unreachableBins).toEqual([]);
@@ -112,17 +121,23 @@ describe('uploading a floor-plan workbook', () => {
   it('streams progress as server-sent events until the job ends', async () => {
     const res = await upload(buildFloorPlanTemplate(), 'sse.xlsx');
     const id = (res.body as FloorPlanJob).id;
-    const stream = await t.as.supervisor.get(`${base()}/jobs/${id}/events`).buffer(true).parse((r, cb) => {
-      let text = '';
-      r.setEncoding('utf8');
-      r.on('data', (c: string) => (text += c));
-      r.on('end', () => cb(null, text));
-    });
+    const stream = await t.as.supervisor
+      .get(`${base()}/jobs/${id}/events`)
+      .buffer(true)
+      .parse((r, cb) => {
+        let text = '';
+        r.setEncoding('utf8');
+        r.on('data', (c: string) => (text += c));
+        r.on('end', () => cb(null, text));
+      });
     expect(stream.headers['content-type']).toContain('text/event-stream');
-    const events = (stream.body as string).split('\n\n').filter(Boolean).map((block) => {
-      const [ev, data] = block.split('\n');
-      return { event: ev!.replace('event: ', ''), job: FloorPlanJob.parse(JSON.parse(data!.replace('data: ', ''))) };
-    });
+    const events = (stream.body as string)
+      .split('\n\n')
+      .filter(Boolean)
+      .map((block) => {
+        const [ev, data] = block.split('\n');
+        return { event: ev!.replace('event: ', ''), job: FloorPlanJob.parse(JSON.parse(data!.replace('data: ', ''))) };
+      });
     expect(events.at(-1)!.event).toBe('end');
     expect(events.at(-1)!.job.status).toBe('done');
     expect(events.length).toBeGreaterThanOrEqual(2);

@@ -4,7 +4,13 @@ import type { RowIssue } from '../../../shared/imports';
 import { rowIssuesToCsv, rowIssuesToXlsx } from '../../../server/imports/issues-export';
 
 const issues: RowIssue[] = [
-  { sheet: 'bins', row: 7, column: 'bin', value: '=HYPERLINK("http://example.invalid")', message: 'bin starts with "=", which spreadsheet programs run as a formula' },
+  {
+    sheet: 'bins',
+    row: 7,
+    column: 'bin',
+    value: '=HYPERLINK("http://example.invalid")',
+    message: 'bin starts with "=", which spreadsheet programs run as a formula',
+  },
   { sheet: 'aisles', row: 3, column: 'x_m', value: '-1,5', message: 'x_m must be a number; use a point as the decimal mark' },
   { sheet: '(file)', row: null, column: null, value: null, message: 'line one\nline two' },
 ];

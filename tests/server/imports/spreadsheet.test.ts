@@ -24,11 +24,27 @@ const spec: WorkbookSpec = {
 const limits = DEFAULT_IMPORT_LIMITS;
 const read = (bytes: Uint8Array, name = 'f.xlsx', over = {}) => readSpreadsheet(bytes, name, spec, resolveLimits(over));
 const items = (r: SpreadsheetRead) => r.sheets.find((s) => s.name === 'items')!;
-const normal = () => xlsxOf({ items: [['code', 'qty'], ['A', 1], ['B', 2]] });
+const normal = () =>
+  xlsxOf({
+    items: [
+      ['code', 'qty'],
+      ['A', 1],
+      ['B', 2],
+    ],
+  });
 
 describe('readSpreadsheet', () => {
   it('numbers rows as the spreadsheet does, header = row 1, blank rows skipped but counted', () => {
-    const r = read(xlsxOf({ items: [['code', 'qty', 'note'], ['A', 1, null], [null, null, null], ['B', '2', 'top shelf']] }));
+    const r = read(
+      xlsxOf({
+        items: [
+          ['code', 'qty', 'note'],
+          ['A', 1, null],
+          [null, null, null],
+          ['B', '2', 'top shelf'],
+        ],
+      }),
+    );
     expect(r.ok).toBe(true);
     expect(r.issues).toEqual([]);
     expect(items(r).rows.map((x) => [x.row, x.cells.code, x.cells.qty, x.cells.note])).toEqual([
@@ -38,14 +54,29 @@ describe('readSpreadsheet', () => {
   });
 
   it('matches sheet and column names ignoring case and surrounding spaces, and ignores other sheets', () => {
-    const r = read(xlsxOf({ notes: [['anything']], ' Items ': [[' CODE ', 'Qty'], ['A', 3]] }));
+    const r = read(
+      xlsxOf({
+        notes: [['anything']],
+        ' Items ': [
+          [' CODE ', 'Qty'],
+          ['A', 3],
+        ],
+      }),
+    );
     expect(r.issues).toEqual([]);
     expect(items(r).rows[0]!.cells).toEqual({ code: 'A', qty: 3, note: null });
   });
 
   it('reports a missing sheet, a missing column, a duplicate column and an unnamed column holding values', () => {
     expect(read(xlsxOf({ other: [['x']] })).issues).toEqual([{ sheet: 'items', row: null, column: null, value: null, message: 'sheet items is missing' }]);
-    const r = read(xlsxOf({ items: [['code', 'code', null], ['A', 'B', 'loose']] }));
+    const r = read(
+      xlsxOf({
+        items: [
+          ['code', 'code', null],
+          ['A', 'B', 'loose'],
+        ],
+      }),
+    );
     expect(r.issues).toEqual([
       { sheet: 'items', row: 1, column: 'code', value: 'code', message: 'column code appears twice (cells A1 and B1); keep one' },
       { sheet: 'items', row: 1, column: 'qty', value: null, message: 'column qty is missing from the header row' },
@@ -55,7 +86,14 @@ describe('readSpreadsheet', () => {
   });
 
   it('turns __proto__, constructor and toString headers into unknown-column errors and never into keys', () => {
-    const r = read(xlsxOf({ items: [['code', 'qty', '__proto__', 'constructor', 'toString'], ['A', 1, '{"polluted":1}', 'x', 'y']] }));
+    const r = read(
+      xlsxOf({
+        items: [
+          ['code', 'qty', '__proto__', 'constructor', 'toString'],
+          ['A', 1, '{"polluted":1}', 'x', 'y'],
+        ],
+      }),
+    );
     expect(r.issues.map((i) => [i.row, i.column, i.message.split(';')[0]])).toEqual([
       [1, '__proto__', 'unknown column "__proto__" in cell C1'],
       [1, 'constructor', 'unknown column "constructor" in cell D1'],
@@ -68,7 +106,17 @@ describe('readSpreadsheet', () => {
   });
 
   it('reads a sheet declaring A1:XFD1048576 with 3 cells from the cells it holds', () => {
-    const bytes = rawXlsx([{ name: 'items', dimension: 'A1:XFD1048576', cells: [['A1', 'code'], ['B1', 'qty'], ['A2', 'Z']] }]);
+    const bytes = rawXlsx([
+      {
+        name: 'items',
+        dimension: 'A1:XFD1048576',
+        cells: [
+          ['A1', 'code'],
+          ['B1', 'qty'],
+          ['A2', 'Z'],
+        ],
+      },
+    ]);
     const r = read(bytes);
     expect(r.ok).toBe(true);
     expect(items(r).rows).toEqual([{ row: 2, cells: { code: 'Z', qty: null, note: null } }]);
@@ -77,19 +125,40 @@ describe('readSpreadsheet', () => {
   it('refuses a sheet with more rows than the limit', () => {
     const rows = [['code', 'qty'], ...Array.from({ length: 12 }, (_, i) => [`C${i}`, i])];
     const r = read(xlsxOf({ items: rows }), 'f.xlsx', { maxRowsPerSheet: 10 });
-    expect(r.issues).toEqual([{ sheet: 'items', row: null, column: null, value: null, message: 'the sheet has more than 10 data rows; split it into several files' }]);
+    expect(r.issues).toEqual([
+      { sheet: 'items', row: null, column: null, value: null, message: 'the sheet has more than 10 data rows; split it into several files' },
+    ]);
     expect(items(r).rows).toEqual([]);
   });
 
   it('reports a value past the last column read', () => {
-    const r = read(rawXlsx([{ name: 'items', cells: [['A1', 'code'], ['B1', 'qty'], ['A2', 'x'], ['B2', 1], ['XFD2', 'far']] }]));
+    const r = read(
+      rawXlsx([
+        {
+          name: 'items',
+          cells: [
+            ['A1', 'code'],
+            ['B1', 'qty'],
+            ['A2', 'x'],
+            ['B2', 1],
+            ['XFD2', 'far'],
+          ],
+        },
+      ]),
+    );
     expect(r.issues.map((i) => i.message)).toEqual(['cell XFD2 lies past column BL; only the first 64 columns are read — remove the values there']);
     expect(items(r).rows[0]!.cells.code).toBe('x');
   });
 
   it('refuses a non-ZIP file named .xlsx, an old .xls container and an unknown file type', () => {
     const text = new TextEncoder().encode('code,qty\nA,1\n');
-    expect(read(text, 'plan.xlsx').issues[0]).toEqual({ sheet: FILE_SHEET, row: null, column: null, value: null, message: 'the file is not an .xlsx workbook (it is not a ZIP archive)' });
+    expect(read(text, 'plan.xlsx').issues[0]).toEqual({
+      sheet: FILE_SHEET,
+      row: null,
+      column: null,
+      value: null,
+      message: 'the file is not an .xlsx workbook (it is not a ZIP archive)',
+    });
     expect(read(Uint8Array.of(0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1), 'plan.xls').issues[0]!.message).toMatch(/old-format .xls/);
     expect(read(text, 'plan.pdf').issues[0]!.message).toMatch(/unsupported file type/);
   });
@@ -99,7 +168,10 @@ describe('readSpreadsheet', () => {
     expect(r.kind).toBe('csv');
     const rows = items(r).rows;
     expect(rows[0]!.cells.code).toBe('=HYPERLINK("http://example.invalid","x")');
-    expect(readCode(rows[0]!.cells.code!, 'code')).toEqual({ ok: false, message: expect.stringMatching(/starts with "=", which spreadsheet programs run as a formula/) });
+    expect(readCode(rows[0]!.cells.code!, 'code')).toEqual({
+      ok: false,
+      message: expect.stringMatching(/starts with "=", which spreadsheet programs run as a formula/),
+    });
     expect(readCode(rows[1]!.cells.code!, 'code').ok).toBe(false);
     expect(readNumber(rows[1]!.cells.qty!, 'qty')).toEqual({ ok: true, value: 20 });
     expect(readNumber(rows[2]!.cells.qty!, 'qty')).toEqual({ ok: false, message: 'qty must be a number; use a point as the decimal mark' });
@@ -136,12 +208,24 @@ describe('readSpreadsheetFile (fresh worker)', () => {
   it('refuses, inside the worker, an archive whose directory understates what it unpacks to', async () => {
     const parts = [rawSheet('items', [['code', 'qty']])];
     const liar = zipOf(
-      (await import('../../helpers/workbooks')).rawXlsxParts(parts).map((p) =>
-        p.name.endsWith('sheet1.xml') ? { ...p, data: String(p.data).replace('</sheetData>', `${' '.repeat(4 * 1024 * 1024)}</sheetData>`), declaredSize: 2048 } : p,
-      ),
+      (await import('../../helpers/workbooks'))
+        .rawXlsxParts(parts)
+        .map((p) =>
+          p.name.endsWith('sheet1.xml')
+            ? { ...p, data: String(p.data).replace('</sheetData>', `${' '.repeat(4 * 1024 * 1024)}</sheetData>`), declaredSize: 2048 }
+            : p,
+        ),
     );
     const r = await readSpreadsheetFile(liar, 'liar.xlsx', spec, limits);
-    expect(r.issues).toEqual([{ sheet: FILE_SHEET, row: null, column: null, value: null, message: 'archive entry xl/worksheets/sheet1.xml is damaged or unpacks to more than it declares' }]);
+    expect(r.issues).toEqual([
+      {
+        sheet: FILE_SHEET,
+        row: null,
+        column: null,
+        value: null,
+        message: 'archive entry xl/worksheets/sheet1.xml is damaged or unpacks to more than it declares',
+      },
+    ]);
   });
 
   it('stops a worker past its time limit with a file issue, and the next read still works', async () => {

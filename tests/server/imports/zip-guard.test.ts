@@ -23,7 +23,13 @@ describe('inspectZip', () => {
 
   it('reads the sizes our own writer put into the central directory (PKWARE APPNOTE 4.3.12)', () => {
     const text = 'x'.repeat(5000);
-    const r = inspectZip(zipOf([{ name: 'a.txt', data: text }, { name: 'b.bin', data: new Uint8Array(7), method: 0 }]), limits);
+    const r = inspectZip(
+      zipOf([
+        { name: 'a.txt', data: text },
+        { name: 'b.bin', data: new Uint8Array(7), method: 0 },
+      ]),
+      limits,
+    );
     expect(r.ok && r.entries.map((e) => [e.name, e.method, e.uncompressedSize])).toEqual([
       ['a.txt', 8, 5000],
       ['b.bin', 0, 7],

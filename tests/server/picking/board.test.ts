@@ -102,7 +102,10 @@ describe('server-sent events', () => {
 describe('supervisor actions', () => {
   it('reassigns a trip and audits it; refuses a picker who already holds a trip', async () => {
     await freePickers();
-    const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }, { stops: 2, pickerId: t.ids.picker2 }]);
+    const w = await t.wave([
+      { stops: 2, pickerId: t.ids.picker },
+      { stops: 2, pickerId: t.ids.picker2 },
+    ]);
     const busy = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${w.tripIds[0]}/assign`).set(csrf).send({ pickerId: t.ids.picker2 });
     expect(busy.status).toBe(409);
     expect(busy.body.error.code).toBe('picker_busy');
@@ -111,7 +114,10 @@ describe('supervisor actions', () => {
     expect(ok.status).toBe(200);
     expect((await t.as.picker2.get(`/api/picking/trips/${w.tripIds[0]}`)).status).toBe(200);
     expect((await t.as.picker.get(`/api/picking/trips/${w.tripIds[0]}`)).status).toBe(403);
-    const a = await t.deps.db('audit_log').where({ action: 'trip.reassign', subject: `trip:${w.tripIds[0]}` }).first();
+    const a = await t.deps
+      .db('audit_log')
+      .where({ action: 'trip.reassign', subject: `trip:${w.tripIds[0]}` })
+      .first();
     expect(JSON.parse(a.detail)).toEqual({ from: t.ids.picker, to: t.ids.picker2 });
     expect(a.user_id).toBe(t.ids.supervisor);
     expect((await t.as.picker.post(`/api/sites/${t.siteId}/board/trips/${w.tripIds[0]}/assign`).set(csrf).send({ pickerId: t.ids.picker })).status).toBe(403);
@@ -135,7 +141,10 @@ describe('supervisor actions', () => {
     const late = await confirm(t.as.picker, trip.id, trip.stopList[1]!.lines[0]!.id);
     expect(late.status).toBe(409);
     expect(late.body.error.code).toBe('trip_closed');
-    const a = await t.deps.db('audit_log').where({ action: 'trip.cancel', subject: `trip:${trip.id}` }).first();
+    const a = await t.deps
+      .db('audit_log')
+      .where({ action: 'trip.cancel', subject: `trip:${trip.id}` })
+      .first();
     expect(JSON.parse(a.detail)).toMatchObject({ reason: 'aisle blocked', linesCancelled: trip.lines - 1 });
   });
 
@@ -175,7 +184,23 @@ describe('supervisor actions', () => {
     expect(att.filename).toMatch(/\.xlsx$/);
     const wb = XLSX.read(Buffer.from(att.base64, 'base64'), { type: 'buffer' });
     const rows = XLSX.utils.sheet_to_json<unknown[]>(wb.Sheets.trips!, { header: 1 });
-    expect(rows[0]).toEqual(['trip', 'picker', 'status', 'stops', 'stops done', 'lines', 'picked', 'short', 'cancelled', 'planned m', 'walked m', 'estimated min', 'actual min', 'started (UTC)', 'finished (UTC)']);
+    expect(rows[0]).toEqual([
+      'trip',
+      'picker',
+      'status',
+      'stops',
+      'stops done',
+      'lines',
+      'picked',
+      'short',
+      'cancelled',
+      'planned m',
+      'walked m',
+      'estimated min',
+      'actual min',
+      'started (UTC)',
+      'finished (UTC)',
+    ]);
     expect(rows[1]!.slice(0, 9)).toEqual([1, 'Pat Picker', 'done', 5, 5, trip.lines, trip.lines, 0, 0]);
     expect(rows[1]![10]).toBeCloseTo(Math.round(walked * 10) / 10, 6);
     // A second completion path (closing the finished wave) does not mail again.
@@ -196,11 +221,14 @@ describe('supervisor actions', () => {
     expect(b.status).toBe('completed');
     expect(b.trips.map((x) => x.status)).toEqual(['cancelled', 'cancelled']);
     expect(await t.deps.db('audit_log').where({ action: 'wave.close', subject: `wave:${w.waveId}` })).toHaveLength(1);
-    const report = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse((res2, cb) => {
-      const chunks: Buffer[] = [];
-      res2.on('data', (c: Buffer) => chunks.push(c));
-      res2.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const report = await t.as.supervisor
+      .get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`)
+      .buffer(true)
+      .parse((res2, cb) => {
+        const chunks: Buffer[] = [];
+        res2.on('data', (c: Buffer) => chunks.push(c));
+        res2.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(report.status).toBe(200);
     const wb = XLSX.read(report.body as Buffer, { type: 'buffer' });
     expect(wb.SheetNames).toEqual(['trips', 'shorts']);

@@ -19,8 +19,10 @@ async function assignedTrip() {
   const w = await t.wave([{ stops: 4, pickerId: t.ids.picker }]);
   return w.tripIds[0]!;
 }
-const totesOf = async (tripId: number) => (await t.deps.db('pick_lines').where({ trip_id: tripId }).distinct('tote').orderBy('tote')).map((r: { tote: number }) => r.tote);
-const cartReady = (tripId: number, totes: { tote: number; via: 'scan' | 'tap' }[]) => t.as.picker.post(`/api/picking/trips/${tripId}/cart-ready`).set(csrf).send({ totes });
+const totesOf = async (tripId: number) =>
+  (await t.deps.db('pick_lines').where({ trip_id: tripId }).distinct('tote').orderBy('tote')).map((r: { tote: number }) => r.tote);
+const cartReady = (tripId: number, totes: { tote: number; via: 'scan' | 'tap' }[]) =>
+  t.as.picker.post(`/api/picking/trips/${tripId}/cart-ready`).set(csrf).send({ totes });
 
 describe('cart set-up', () => {
   it('stores the set-up once with its audit entry; the trip then says so and a second call changes nothing', async () => {

@@ -59,7 +59,12 @@ describe('a closure under a trip being picked', () => {
     expect(finiteEverywhere(board)).toBe(true);
     const boardTrip = board.waves.find((w) => w.id === waveId)!.trips.find((x) => x.id === trip.id)!;
     expect(boardTrip.cutOffLines).toBe(target.lines.length);
-    expect(board.cutOff.filter((c) => c.tripId === trip.id).map((c) => c.lineId).sort()).toEqual(target.lines.map((l) => l.id).sort());
+    expect(
+      board.cutOff
+        .filter((c) => c.tripId === trip.id)
+        .map((c) => c.lineId)
+        .sort(),
+    ).toEqual(target.lines.map((l) => l.id).sort());
     expect(board.cutOff.find((c) => c.tripId === trip.id)).toMatchObject({ stopN: cutStopN, pickerName: 'Pat Picker', bin: target.lines[0]!.bin });
 
     // The tablet: route changed, the cut-off stop last and flagged, printed numbers unchanged.
@@ -71,7 +76,10 @@ describe('a closure under a trip being picked', () => {
     expect(after.currentStopId).not.toBe(cutStopId);
     expect(after.path.length).toBeGreaterThan(1);
     expect(after.path.flat().every(Number.isFinite)).toBe(true);
-    const audit = await t.deps.db('audit_log').where({ action: 'trip.reroute', subject: `trip:${trip.id}` }).first();
+    const audit = await t.deps
+      .db('audit_log')
+      .where({ action: 'trip.reroute', subject: `trip:${trip.id}` })
+      .first();
     expect(JSON.parse(audit.detail).cutOffStops).toContain(cutStopN);
     trip = after;
   });
@@ -100,11 +108,14 @@ describe('a closure under a trip being picked', () => {
   });
 
   it('writes a wave report with no Infinity, NaN or error values', async () => {
-    const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${waveId}/report.xlsx`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const res = await t.as.supervisor
+      .get(`/api/sites/${t.siteId}/board/waves/${waveId}/report.xlsx`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     const rows = XLSX.utils.sheet_to_json<unknown[]>(wb.Sheets.trips!, { header: 1 });
@@ -121,14 +132,18 @@ describe('a closure under a trip being picked', () => {
     const first = next.stopList.find((s) => !s.cutOff)!;
     for (const l of first.lines) expect((await confirm(t.as.picker, next.id, l.id)).status).toBe(200);
     const bin = (await loadPlanIndex(t.deps.db, planId)).geometry.bins.find((b) => b.code === first.bins[0])!;
-    const closed = await t.as.supervisor.post(`/api/sites/${t.siteId}/floor-plans/${planId}/closures`).set(csrf).send({ kind: 'aisle', code: bin.aisle, fromM: bin.y - 0.3, toM: bin.y + 0.3 });
+    const closed = await t.as.supervisor
+      .post(`/api/sites/${t.siteId}/floor-plans/${planId}/closures`)
+      .set(csrf)
+      .send({ kind: 'aisle', code: bin.aisle, fromM: bin.y - 0.3, toM: bin.y + 0.3 });
     expect(closed.status, JSON.stringify(closed.body)).toBe(201);
     // The picker stands in the closed stretch: every other stop is cut off from there; report them all.
     const now = await readTrip(t.as.picker, next.id);
-    for (const s of now.stopList) for (const l of s.lines) {
-      if (l.status !== 'open') continue;
-      expect((await post(t.as.picker, `/api/picking/trips/${next.id}/lines/${l.id}/short`, { qtyFound: 0, reason: 'cannot_reach' })).status).toBe(200);
-    }
+    for (const s of now.stopList)
+      for (const l of s.lines) {
+        if (l.status !== 'open') continue;
+        expect((await post(t.as.picker, `/api/picking/trips/${next.id}/lines/${l.id}/short`, { qtyFound: 0, reason: 'cannot_reach' })).status).toBe(200);
+      }
     const res = await post(t.as.picker, `/api/picking/trips/${next.id}/finish`, {});
     expect(res.status, JSON.stringify(res.body)).toBe(200);
     const result = TripResult.parse(res.body);

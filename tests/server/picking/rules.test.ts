@@ -29,14 +29,21 @@ async function freePickers(): Promise<void> {
 describe('taking a trip', () => {
   it('gives the assigned trip before any released one', async () => {
     await freePickers();
-    const w = await t.wave([{ stops: 3, due: '2026-12-01T08:00:00Z' }, { stops: 3, pickerId: t.ids.picker }]);
+    const w = await t.wave([
+      { stops: 3, due: '2026-12-01T08:00:00Z' },
+      { stops: 3, pickerId: t.ids.picker },
+    ]);
     const got = await take(t.as.picker);
     expect(got.trip?.id).toBe(w.tripIds[1]);
   });
 
   it('takes released trips oldest due first, those without a due date last', async () => {
     await freePickers();
-    const w = await t.wave([{ stops: 2, due: null }, { stops: 2, due: '2026-12-02T15:00:00Z' }, { stops: 2, due: '2026-12-02T09:00:00Z' }]);
+    const w = await t.wave([
+      { stops: 2, due: null },
+      { stops: 2, due: '2026-12-02T15:00:00Z' },
+      { stops: 2, due: '2026-12-02T09:00:00Z' },
+    ]);
     expect((await take(t.as.picker)).trip?.id).toBe(w.tripIds[2]);
     expect((await take(t.as.picker2)).trip?.id).toBe(w.tripIds[1]);
     // Asking again returns the trip already held, not another one.
@@ -276,7 +283,13 @@ describe('shorts, skips and the end of a trip', () => {
     const l = LineAnswer.parse(res.body).line;
     expect(l).toMatchObject({ status: 'short', pickedQty: line.qty - 1, shortReason: 'damaged' });
     const board = await t.as.supervisor.get(`/api/sites/${t.siteId}/board`);
-    expect(board.body.shorts.find((s: { tripId: number }) => s.tripId === trip.id)).toMatchObject({ sku: line.sku, qtyOrdered: line.qty, qtyFound: line.qty - 1, reason: 'damaged', reportedBy: 'Pat Picker' });
+    expect(board.body.shorts.find((s: { tripId: number }) => s.tripId === trip.id)).toMatchObject({
+      sku: line.sku,
+      qtyOrdered: line.qty,
+      qtyFound: line.qty - 1,
+      reason: 'damaged',
+      reportedBy: 'Pat Picker',
+    });
   });
 
   it('moves a skipped stop to the end and re-sequences the rest from where the picker stands', async () => {
@@ -297,7 +310,10 @@ describe('shorts, skips and the end of a trip', () => {
     expect(new Map(rows.map((r: { id: number; n: number }) => [r.id, r.n]))).toEqual(new Map(w0.map((s) => [s.id, s.n])));
     expect(trip.currentStopId).toBe(trip.stopList[1]!.id);
     expect(new Set(trip.stopList.map((s) => s.id)).size).toBe(7);
-    const audit = await t.deps.db('audit_log').where({ action: 'pick.skip', subject: `stop:${skipped.id}` }).first();
+    const audit = await t.deps
+      .db('audit_log')
+      .where({ action: 'pick.skip', subject: `stop:${skipped.id}` })
+      .first();
     expect(audit.user_id).toBe(t.ids.picker);
     // A second skip of another stop puts it after the first one skipped.
     const second = trip.stopList[1]!;
@@ -314,7 +330,10 @@ describe('shorts, skips and the end of a trip', () => {
     expect(early.body.error.code).toBe('lines_open');
     const lines = trip.stopList.flatMap((s) => s.lines);
     for (const [i, l] of lines.entries()) {
-      const res = i === 0 ? await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${l.id}/short`, { qtyFound: 0, reason: 'empty_bin' }) : await confirm(t.as.picker, trip.id, l.id);
+      const res =
+        i === 0
+          ? await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${l.id}/short`, { qtyFound: 0, reason: 'empty_bin' })
+          : await confirm(t.as.picker, trip.id, l.id);
       expect(res.status).toBe(200);
     }
     trip = await readTrip(t.as.picker, trip.id);
@@ -338,9 +357,22 @@ describe('shorts, skips and the end of a trip', () => {
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const [a, b] = [trip.stopList[0]!.lines[0]!, trip.stopList[1]!.lines[0]!];
-    await t.as.picker.post(`/api/picking/trips/${trip.id}/lines/${a.id}/confirm`).set(csrf).set(IDEMPOTENCY_HEADER, newKey()).set(DEVICE_HEADER, 'cart-tablet-07').send({ via: 'scan', scan: a.bin });
-    await t.as.picker.post(`/api/picking/trips/${trip.id}/lines/${b.id}/short`).set(csrf).set(IDEMPOTENCY_HEADER, newKey()).set(DEVICE_HEADER, 'cart-tablet-07').send({ qtyFound: 0, reason: 'cannot_reach' });
-    const rows = await t.deps.db('audit_log').whereIn('subject', [`line:${a.id}`, `line:${b.id}`]).orderBy('id');
+    await t.as.picker
+      .post(`/api/picking/trips/${trip.id}/lines/${a.id}/confirm`)
+      .set(csrf)
+      .set(IDEMPOTENCY_HEADER, newKey())
+      .set(DEVICE_HEADER, 'cart-tablet-07')
+      .send({ via: 'scan', scan: a.bin });
+    await t.as.picker
+      .post(`/api/picking/trips/${trip.id}/lines/${b.id}/short`)
+      .set(csrf)
+      .set(IDEMPOTENCY_HEADER, newKey())
+      .set(DEVICE_HEADER, 'cart-tablet-07')
+      .send({ qtyFound: 0, reason: 'cannot_reach' });
+    const rows = await t.deps
+      .db('audit_log')
+      .whereIn('subject', [`line:${a.id}`, `line:${b.id}`])
+      .orderBy('id');
     expect(rows.map((r) => [r.action, r.user_id, r.device])).toEqual([
       ['pick.confirm', t.ids.picker, 'cart-tablet-07'],
       ['pick.short', t.ids.picker, 'cart-tablet-07'],

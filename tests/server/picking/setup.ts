@@ -38,7 +38,8 @@ export async function makePickingApp(): Promise<PickingFixture> {
     ...t,
     planId,
     ids,
-    wave: (trips, name) => insertReleasedWave(t.deps.db, { siteId: t.siteId, planId, createdBy: ids.supervisor, trips, ...(name ? { name } : {}), binOffset: (offset += 3) }),
+    wave: (trips, name) =>
+      insertReleasedWave(t.deps.db, { siteId: t.siteId, planId, createdBy: ids.supervisor, trips, ...(name ? { name } : {}), binOffset: (offset += 3) }),
   };
 }
 

@@ -29,7 +29,7 @@ async function startedTrip(stops = 4) {
 }
 
 describe('a tap confirms only the line on screen', () => {
-  it('refuses a confirmation whose shown stop number is not the line\'s (409 line_not_shown), recording nothing', async () => {
+  it("refuses a confirmation whose shown stop number is not the line's (409 line_not_shown), recording nothing", async () => {
     const trip = await startedTrip();
     const [a, b] = trip.stopList;
     const res = await confirm(t.as.picker, trip.id, b!.lines[0]!.id, { via: 'tap', stopN: a!.n });
@@ -50,7 +50,11 @@ describe('a tap confirms only the line on screen', () => {
     expect(second.body.error.code).toBe('line_not_shown');
     expect(await t.deps.db('pick_lines').where({ trip_id: trip.id, status: 'picked' }).count({ n: '*' })).toEqual([{ n: 1 }]);
     // A real pick of the next line, later than the guard, is recorded.
-    const later = await confirm(t.as.picker, trip.id, b!.lines[0]!.id, { via: 'tap', stopN: b!.n, pickedAt: new Date(t0 + TAP_GUARD_MS + 2_000).toISOString() });
+    const later = await confirm(t.as.picker, trip.id, b!.lines[0]!.id, {
+      via: 'tap',
+      stopN: b!.n,
+      pickedAt: new Date(t0 + TAP_GUARD_MS + 2_000).toISOString(),
+    });
     expect(later.status).toBe(200);
   });
 });
@@ -67,12 +71,18 @@ describe('undo and correction', () => {
     expect(a.stop.status).toBe('open');
     const row = await t.deps.db('pick_lines').where({ id: line.id }).first();
     expect(row).toMatchObject({ status: 'open', confirmed_by: null, confirmed_at: null, picked_qty: null });
-    const entry = await t.deps.db('audit_log').where({ action: 'pick.undo', subject: `line:${line.id}` }).first();
+    const entry = await t.deps
+      .db('audit_log')
+      .where({ action: 'pick.undo', subject: `line:${line.id}` })
+      .first();
     expect(entry.user_id).toBe(t.ids.picker);
     expect(JSON.parse(entry.detail).was.status).toBe('picked');
     // Confirm again, then pretend the window passed.
     expect((await confirm(t.as.picker, trip.id, line.id)).status).toBe(200);
-    await t.deps.db('pick_lines').where({ id: line.id }).update({ received_at: new Date(Date.now() - UNDO_WINDOW_MS - 1_000).toISOString() });
+    await t.deps
+      .db('pick_lines')
+      .where({ id: line.id })
+      .update({ received_at: new Date(Date.now() - UNDO_WINDOW_MS - 1_000).toISOString() });
     const late = await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${line.id}/undo`, {});
     expect(late.status).toBe(409);
     expect(late.body.error.code).toBe('undo_expired');
@@ -89,7 +99,10 @@ describe('undo and correction', () => {
     const res = await t.as.supervisor.post(`/api/sites/${t.siteId}/board/lines/${line.id}/reopen`).set(csrf).send({ reason: 'double tap, not picked' });
     expect(res.status, JSON.stringify(res.body)).toBe(200);
     expect(LineAnswer.parse(res.body).line.status).toBe('open');
-    const entry = await t.deps.db('audit_log').where({ action: 'pick.correct', subject: `line:${line.id}` }).first();
+    const entry = await t.deps
+      .db('audit_log')
+      .where({ action: 'pick.correct', subject: `line:${line.id}` })
+      .first();
     expect(entry.user_id).toBe(t.ids.supervisor);
     expect(JSON.parse(entry.detail)).toMatchObject({ reason: 'double tap, not picked', was: { status: 'picked', by: t.ids.picker } });
     // The picker sees it open again and picks the trip to the end.
@@ -108,7 +121,10 @@ describe('pick time and arrival time', () => {
     const trip = await startedTrip();
     const started = Date.parse((await t.deps.db('trips').where({ id: trip.id }).first()).started_at);
     // Pretend the trip started 20 minutes ago and the picker confirmed 10 minutes ago, offline.
-    await t.deps.db('trips').where({ id: trip.id }).update({ started_at: new Date(started - 20 * 60_000).toISOString() });
+    await t.deps
+      .db('trips')
+      .where({ id: trip.id })
+      .update({ started_at: new Date(started - 20 * 60_000).toISOString() });
     const pickedAt = new Date(Date.now() - 10 * 60_000).toISOString();
     const before = Date.now();
     const res = await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id, { via: 'tap', pickedAt });
@@ -122,7 +138,10 @@ describe('pick time and arrival time', () => {
   it('bounds the pick time: not before the trip started, not after now; refuses a clock far ahead', async () => {
     const trip = await startedTrip();
     const started = (await t.deps.db('trips').where({ id: trip.id }).first()).started_at as string;
-    const early = await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id, { via: 'tap', pickedAt: new Date(Date.parse(started) - 3_600_000).toISOString() });
+    const early = await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id, {
+      via: 'tap',
+      pickedAt: new Date(Date.parse(started) - 3_600_000).toISOString(),
+    });
     expect(early.status).toBe(200);
     expect((await t.deps.db('pick_lines').where({ id: trip.stopList[0]!.lines[0]!.id }).first()).confirmed_at).toBe(started);
     const slightlyAhead = new Date(Date.now() + CLOCK_SKEW_MS / 2).toISOString();
@@ -130,7 +149,10 @@ describe('pick time and arrival time', () => {
     expect(ahead.status).toBe(200);
     const aheadRow = await t.deps.db('pick_lines').where({ id: trip.stopList[1]!.lines[0]!.id }).first();
     expect(Date.parse(aheadRow.confirmed_at)).toBeLessThanOrEqual(Date.parse(aheadRow.received_at));
-    const farAhead = await confirm(t.as.picker, trip.id, trip.stopList[2]!.lines[0]!.id, { via: 'tap', pickedAt: new Date(Date.now() + CLOCK_SKEW_MS + 60_000).toISOString() });
+    const farAhead = await confirm(t.as.picker, trip.id, trip.stopList[2]!.lines[0]!.id, {
+      via: 'tap',
+      pickedAt: new Date(Date.now() + CLOCK_SKEW_MS + 60_000).toISOString(),
+    });
     expect(farAhead.status).toBe(400);
     expect((await t.deps.db('pick_lines').where({ id: trip.stopList[2]!.lines[0]!.id }).first()).status).toBe('open');
   });

@@ -61,7 +61,10 @@ function gatedHasher(real: Hasher) {
 }
 
 const cookieOf = (res: request.Response) =>
-  ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`))?.split(';')[0];
+  ([] as string[])
+    .concat(res.headers['set-cookie'] ?? [])
+    .find((c) => c.startsWith(`${SESSION_COOKIE}=`))
+    ?.split(';')[0];
 
 async function withGatedHasher<T>(run: (g: ReturnType<typeof gatedHasher>) => Promise<T>): Promise<T> {
   const real = t.deps.hasher;
@@ -83,7 +86,11 @@ async function burst(path: string, wrong: (i: number) => object, right: object) 
   return withGatedHasher(async (g) => {
     const answered: request.Response[] = [];
     const pending = Array.from({ length: 39 }, (_v, i) =>
-      request(t.app).post(path).set(csrf).send(wrong(i)).then((r) => void answered.push(r)),
+      request(t.app)
+        .post(path)
+        .set(csrf)
+        .send(wrong(i))
+        .then((r) => void answered.push(r)),
     );
     await vi.waitFor(() => expect(answered.length + g.stats.waiting).toBe(39), { timeout: 20_000, interval: 20 });
     const rightAnswer = request(t.app).post(path).set(csrf).send(right);
@@ -98,7 +105,10 @@ async function burst(path: string, wrong: (i: number) => object, right: object) 
 
 describe('parallel guessing (issue 11, item 1)', () => {
   it('checks at most 6 PINs of a 40-guess burst on one badge, and refuses the right PIN inside it with 429 and Retry-After', async () => {
-    const { answers, right, checksInBurst } = await burst('/api/auth/badge-sign-in', (i) => ({ badge: 'P-1003', pin: String(100000 + i) }), { badge: 'P-1003', pin: DEMO_PIN });
+    const { answers, right, checksInBurst } = await burst('/api/auth/badge-sign-in', (i) => ({ badge: 'P-1003', pin: String(100000 + i) }), {
+      badge: 'P-1003',
+      pin: DEMO_PIN,
+    });
     expect(checksInBurst).toBeLessThanOrEqual(6);
     const codes = answers.map((r) => r.status);
     expect(codes.filter((c) => c === 401).length).toBe(6);
@@ -110,7 +120,10 @@ describe('parallel guessing (issue 11, item 1)', () => {
 
   it('does the same for password sign-in', async () => {
     const email = 'engineer@demo.aislewright.test';
-    const { answers, right, checksInBurst } = await burst('/api/auth/sign-in', (i) => ({ email, password: `wrong-password-${i}` }), { email, password: DEMO_PASSWORD });
+    const { answers, right, checksInBurst } = await burst('/api/auth/sign-in', (i) => ({ email, password: `wrong-password-${i}` }), {
+      email,
+      password: DEMO_PASSWORD,
+    });
     expect(checksInBurst).toBeLessThanOrEqual(6);
     expect(answers.filter((r) => r.status === 200)).toEqual([]);
     expect(right.status).toBe(429);
@@ -133,7 +146,11 @@ describe('parallel guessing (issue 11, item 1)', () => {
     const second = createApp(t.deps);
     await withGatedHasher(async (g) => {
       const all = Array.from({ length: 40 }, (_v, i) =>
-        request(i % 2 ? second : t.app).post('/api/auth/badge-sign-in').set(csrf).send({ badge: 'P-1001', pin: String(200000 + i) }).then((r) => r),
+        request(i % 2 ? second : t.app)
+          .post('/api/auth/badge-sign-in')
+          .set(csrf)
+          .send({ badge: 'P-1001', pin: String(200000 + i) })
+          .then((r) => r),
       );
       await vi.waitFor(() => expect(g.stats.waiting).toBeGreaterThan(0), { timeout: 10_000, interval: 20 });
       g.release();
@@ -186,7 +203,13 @@ describe('sign-out (issue 11, item 3)', () => {
     expect((await request(t.app).get(`/api/sites/${t.siteId}`).set('Cookie', cookie)).status).toBe(401);
     // A token of that session about to expire (the renewal case) is refused as well, with no new cookie.
     const claims = jwt.decode(cookie.split('=')[1]!) as { sub: string; ver: number; auth: number; sid: string };
-    const nearEnd = jwt.sign({ ver: claims.ver, auth: claims.auth, sid: claims.sid }, t.deps.jwtSecret, { algorithm: 'HS256', subject: claims.sub, issuer: 'aislewright', audience: 'aislewright-app', expiresIn: 60 });
+    const nearEnd = jwt.sign({ ver: claims.ver, auth: claims.auth, sid: claims.sid }, t.deps.jwtSecret, {
+      algorithm: 'HS256',
+      subject: claims.sub,
+      issuer: 'aislewright',
+      audience: 'aislewright-app',
+      expiresIn: 60,
+    });
     const renew = await me(`${SESSION_COOKIE}=${nearEnd}`);
     expect(renew.status).toBe(401);
     expect(cookieOf(renew)).toBeUndefined();
@@ -245,7 +268,13 @@ describe('sign-out (issue 11, item 3)', () => {
 function heldBackground() {
   const tasks: (() => Promise<void>)[] = [];
   const bg: Background = { run: (_name, task) => void tasks.push(task), settled: async () => undefined };
-  return { bg, tasks, runAll: async () => { for (const task of tasks.splice(0)) await task(); } };
+  return {
+    bg,
+    tasks,
+    runAll: async () => {
+      for (const task of tasks.splice(0)) await task();
+    },
+  };
 }
 
 describe('password reset requests (issue 11, item 4)', () => {
@@ -321,7 +350,10 @@ describe('privacy at rest (issue 11, item 8)', () => {
   const tokenIn = (text: string) => /token=([\w-]+)/.exec(text)?.[1];
 
   it('removes an invitation link from the outbox once it is used', async () => {
-    await t.as.admin.post('/api/users/invites').set(csrf).send({ email: 'one.time@demo.aislewright.test', role: 'engineer', siteIds: [t.siteId] });
+    await t.as.admin
+      .post('/api/users/invites')
+      .set(csrf)
+      .send({ email: 'one.time@demo.aislewright.test', role: 'engineer', siteIds: [t.siteId] });
     const mail = (await t.as.admin.get('/api/mail/outbox')).body.find((m: { to: string }) => m.to === 'one.time@demo.aislewright.test');
     expect(mail.linkState).toBe('live');
     const token = tokenIn(mail.text)!;
@@ -338,7 +370,9 @@ describe('privacy at rest (issue 11, item 8)', () => {
     await request(t.app).post('/api/auth/reset-request').set(csrf).send({ email: 'supervisor@demo.aislewright.test' });
     await request(t.app).post('/api/auth/reset-request').set(csrf).send({ email: 'supervisor@demo.aislewright.test' });
     await t.deps.background.settled();
-    const mails = (await t.as.admin.get('/api/mail/outbox')).body.filter((m: { to: string; subject: string }) => m.to === 'supervisor@demo.aislewright.test' && /Reset/.test(m.subject));
+    const mails = (await t.as.admin.get('/api/mail/outbox')).body.filter(
+      (m: { to: string; subject: string }) => m.to === 'supervisor@demo.aislewright.test' && /Reset/.test(m.subject),
+    );
     expect(mails.length).toBe(2);
     const [newer, older] = mails;
     // The older link expires.
@@ -366,10 +400,16 @@ describe('badge codes (issue 10, item 7)', () => {
   });
 
   it('stores new badges normalised and refuses one that differs only in case', async () => {
-    const created = await t.as.admin.post('/api/users/pickers').set(csrf).send({ name: 'Case Picker', badge: ' p-3001 ', pin: '135790', siteIds: [t.siteId] });
+    const created = await t.as.admin
+      .post('/api/users/pickers')
+      .set(csrf)
+      .send({ name: 'Case Picker', badge: ' p-3001 ', pin: '135790', siteIds: [t.siteId] });
     expect(created.status).toBe(201);
     expect(created.body.badge).toBe('P-3001');
-    const twin = await t.as.admin.post('/api/users/pickers').set(csrf).send({ name: 'Twin', badge: 'P-3001', pin: '135790', siteIds: [t.siteId] });
+    const twin = await t.as.admin
+      .post('/api/users/pickers')
+      .set(csrf)
+      .send({ name: 'Twin', badge: 'P-3001', pin: '135790', siteIds: [t.siteId] });
     expect(twin.status).toBe(409);
     expect((await request(t.app).post('/api/auth/badge-sign-in').set(csrf).send({ badge: 'p-3001', pin: '135790' })).status).toBe(200);
   });

@@ -24,7 +24,10 @@ let port: number;
 
 beforeAll(async () => {
   t = await makePickingApp();
-  const skuRows = ['SKU-RED', 'SKU-BLUE'].map((sku, i) => ({ row: i + 2, values: { sku, description: `${sku} widget`, bin: `A-01-0${i + 1}-1`, unit_weight_kg: 0.5, unit_volume_l: 1 } }));
+  const skuRows = ['SKU-RED', 'SKU-BLUE'].map((sku, i) => ({
+    row: i + 2,
+    values: { sku, description: `${sku} widget`, bin: `A-01-0${i + 1}-1`, unit_weight_kg: 0.5, unit_volume_l: 1 },
+  }));
   expect((await importSkus(t.deps.db, t.siteId, null, 'skus', skuRows, async () => new Set())).ok).toBe(true);
   token = (await t.as.admin.post(`/api/sites/${t.siteId}/integration-tokens`).set(csrf).send({ name: 'Host' })).body.token;
   server = t.app.listen(0, '127.0.0.1');
@@ -86,8 +89,12 @@ describe('item 5: live-board streams', () => {
     const cookie = await supervisorCookie();
     // Four streams of one person (under the cap of five) and one of the admin.
     const adminCookie = (
-      (await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD })).headers['set-cookie'] as unknown as string[]
-    ).find((c) => c.startsWith(SESSION_COOKIE))!.split(';')[0]!;
+      (await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD })).headers[
+        'set-cookie'
+      ] as unknown as string[]
+    )
+      .find((c) => c.startsWith(SESSION_COOKIE))!
+      .split(';')[0]!;
     const streams = [...(await Promise.all([1, 2, 3, 4].map(() => openStream(cookie)))), await openStream(adminCookie)];
     try {
       await Promise.all(streams.map((s) => s.waitFor(1)));
@@ -132,7 +139,8 @@ describe('item 5: live-board streams', () => {
 });
 
 const push = (body: object) => request(t.app).post(`/api/sites/${t.siteId}/orders/push`).set('Authorization', `Bearer ${token}`).send(body);
-const uploadCsv = (path: 'orders' | 'skus', csv: string) => t.as.supervisor.post(`/api/sites/${t.siteId}/${path}/import`).set(csrf).attach('file', Buffer.from(csv, 'utf8'), `${path}.csv`);
+const uploadCsv = (path: 'orders' | 'skus', csv: string) =>
+  t.as.supervisor.post(`/api/sites/${t.siteId}/${path}/import`).set(csrf).attach('file', Buffer.from(csv, 'utf8'), `${path}.csv`);
 
 describe('item 6: one rule set for imported text and numbers', () => {
   const hostile = [
@@ -183,16 +191,29 @@ describe('item 6: one rule set for imported text and numbers', () => {
   it('refuses file quantities of 1e308, 2^53+1 and above the push cap; accepts the cap itself', async () => {
     const res = await uploadCsv('orders', `order,sku,qty\r\nQ-1,SKU-RED,1e308\r\nQ-2,SKU-RED,9007199254740993\r\nQ-3,SKU-RED,${MAX_LINE_QTY + 1}\r\n`);
     expect(res.body.ok).toBe(false);
-    expect(res.body.errors.map((e: { row: number; column: string }) => [e.row, e.column])).toEqual([[2, 'qty'], [3, 'qty'], [4, 'qty']]);
+    expect(res.body.errors.map((e: { row: number; column: string }) => [e.row, e.column])).toEqual([
+      [2, 'qty'],
+      [3, 'qty'],
+      [4, 'qty'],
+    ]);
     expect(res.body.errors[0].message).toBe('quantity must be a whole number from 1 to 100,000');
     const ok = await uploadCsv('orders', `order,sku,qty\r\nQ-4,SKU-RED,${MAX_LINE_QTY}\r\n`);
     expect(ok.body).toMatchObject({ ok: true, created: 1 });
   });
 
   it('refuses SKU weights and volumes of 1e308, Infinity, hex and above the caps', async () => {
-    const res = await uploadCsv('skus', 'sku,description,bin,unit_weight_kg,unit_volume_l\r\nW-1,,A-01-01-1,1e308,1\r\nW-2,,A-01-01-1,1,Infinity\r\nW-3,,A-01-01-1,0x10,1\r\nW-4,,A-01-01-1,1001,10001\r\n');
+    const res = await uploadCsv(
+      'skus',
+      'sku,description,bin,unit_weight_kg,unit_volume_l\r\nW-1,,A-01-01-1,1e308,1\r\nW-2,,A-01-01-1,1,Infinity\r\nW-3,,A-01-01-1,0x10,1\r\nW-4,,A-01-01-1,1001,10001\r\n',
+    );
     expect(res.body.ok).toBe(false);
-    expect(res.body.errors.map((e: { row: number; column: string }) => `${e.row}:${e.column}`)).toEqual(['2:unit_weight_kg', '3:unit_volume_l', '4:unit_weight_kg', '5:unit_weight_kg', '5:unit_volume_l']);
+    expect(res.body.errors.map((e: { row: number; column: string }) => `${e.row}:${e.column}`)).toEqual([
+      '2:unit_weight_kg',
+      '3:unit_volume_l',
+      '4:unit_weight_kg',
+      '5:unit_weight_kg',
+      '5:unit_volume_l',
+    ]);
     expect(res.body.errors.find((e: { row: number }) => e.row === 5).message).toBe('unit weight must be at most 1,000 kg');
   });
 
@@ -205,11 +226,14 @@ describe('item 6: one rule set for imported text and numbers', () => {
     await t.deps.db('users').where({ id: t.ids.picker2 }).update({ name: '=HYPERLINK("http://example.invalid","x")' });
     try {
       const w = await t.wave([{ stops: 2, pickerId: t.ids.picker2 }], 'Formula wave');
-      const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+      const res = await t.as.supervisor
+        .get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`)
+        .buffer(true)
+        .parse((r, cb) => {
+          const chunks: Buffer[] = [];
+          r.on('data', (c: Buffer) => chunks.push(c));
+          r.on('end', () => cb(null, Buffer.concat(chunks)));
+        });
       const wb = XLSX.read(res.body as Buffer, { type: 'buffer', cellFormula: true });
       const cell = wb.Sheets.trips!.B2!;
       expect(cell).toMatchObject({ t: 's', v: `'=HYPERLINK("http://example.invalid","x")` });
@@ -227,7 +251,18 @@ describe('item 6: one rule set for imported text and numbers', () => {
 
 describe('item 7: push API answers', () => {
   it('answers an unknown SKU with 422 naming the order and field, saving nothing', async () => {
-    const res = await push({ orders: [{ order: 'P-1', lines: [{ sku: 'SKU-RED', qty: 1 }] }, { order: 'P-2', lines: [{ sku: 'SKU-RED', qty: 1 }, { sku: 'NOPE', qty: 2 }] }] });
+    const res = await push({
+      orders: [
+        { order: 'P-1', lines: [{ sku: 'SKU-RED', qty: 1 }] },
+        {
+          order: 'P-2',
+          lines: [
+            { sku: 'SKU-RED', qty: 1 },
+            { sku: 'NOPE', qty: 2 },
+          ],
+        },
+      ],
+    });
     expect(res.status).toBe(422);
     expect(res.body.error).toMatchObject({ code: 'unknown_sku', details: [{ order: 'P-2', field: 'orders.1.lines.1.sku', value: 'NOPE' }] });
     expect(res.body.error.message).toMatch(/order P-2, orders\.1\.lines\.1\.sku: SKU NOPE is not in the SKU master/);
@@ -235,7 +270,13 @@ describe('item 7: push API answers', () => {
   });
 
   it('refuses the same order reference twice in one batch, naming it', async () => {
-    const res = await push({ orders: [{ order: 'P-3', lines: [{ sku: 'SKU-RED', qty: 1 }] }, { order: 'P-4', lines: [{ sku: 'SKU-RED', qty: 1 }] }, { order: 'P-3', lines: [{ sku: 'SKU-BLUE', qty: 1 }] }] });
+    const res = await push({
+      orders: [
+        { order: 'P-3', lines: [{ sku: 'SKU-RED', qty: 1 }] },
+        { order: 'P-4', lines: [{ sku: 'SKU-RED', qty: 1 }] },
+        { order: 'P-3', lines: [{ sku: 'SKU-BLUE', qty: 1 }] },
+      ],
+    });
     expect(res.status).toBe(400);
     expect(res.body.error).toMatchObject({ code: 'duplicate_order', details: [{ field: 'orders.2.order', order: 'P-3' }] });
     expect(res.body.error.message).toMatch(/order P-3 appears more than once in this request \(orders\.0 and orders\.2\)/);
@@ -248,9 +289,17 @@ describe('item 7: push API answers', () => {
     await t.deps.db('orders').where({ ref: 'P-5' }).update({ status: 'planned', wave_id: w.waveId });
     const same = await push({ orders: [{ order: 'P-5', lines: [{ sku: 'SKU-RED', qty: 1 }] }] });
     expect(same.body).toMatchObject({ ok: true, unchanged: 1 });
-    const changed = await push({ orders: [{ order: 'P-6', lines: [{ sku: 'SKU-RED', qty: 1 }] }, { order: 'P-5', lines: [{ sku: 'SKU-RED', qty: 3 }] }] });
+    const changed = await push({
+      orders: [
+        { order: 'P-6', lines: [{ sku: 'SKU-RED', qty: 1 }] },
+        { order: 'P-5', lines: [{ sku: 'SKU-RED', qty: 3 }] },
+      ],
+    });
     expect(changed.status).toBe(409);
-    expect(changed.body.error).toMatchObject({ code: 'order_released', details: [{ order: 'P-5', field: 'orders.1', status: 'planned', waveId: w.waveId, wave: 'Released for push' }] });
+    expect(changed.body.error).toMatchObject({
+      code: 'order_released',
+      details: [{ order: 'P-5', field: 'orders.1', status: 'planned', waveId: w.waveId, wave: 'Released for push' }],
+    });
     expect(changed.body.error.message).toMatch(/order P-5 is in a released wave \(wave "Released for push"/);
     // All or nothing: P-6 was not saved, P-5 kept its quantity.
     expect(await t.deps.db('orders').where({ ref: 'P-6' }).first()).toBeUndefined();
@@ -278,12 +327,18 @@ describe('item 9: site time zone', () => {
     // Asia/Kolkata is UTC+05:30 all year (no daylight saving; IANA tz database).
     expect((await t.as.admin.patch(`/api/sites/${t.siteId}`).set(csrf).send({ timezone: 'Asia/Kolkata' })).status).toBe(200);
     const w = await t.wave([{ stops: 1 }], 'Zone wave');
-    await t.deps.db('trips').where({ id: w.tripIds[0] }).update({ status: 'done', started_at: '2026-12-05T08:00:00.000Z', finished_at: '2026-12-05T20:45:00.000Z' });
-    const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    await t.deps
+      .db('trips')
+      .where({ id: w.tripIds[0] })
+      .update({ status: 'done', started_at: '2026-12-05T08:00:00.000Z', finished_at: '2026-12-05T20:45:00.000Z' });
+    const res = await t.as.supervisor
+      .get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     const rows = XLSX.utils.sheet_to_json<string[]>(XLSX.read(res.body as Buffer, { type: 'buffer' }).Sheets.trips!, { header: 1 });
     expect(rows[0]!.slice(-2)).toEqual(['started (Asia/Kolkata)', 'finished (Asia/Kolkata)']);
     // 08:00 UTC is 13:30 in Kolkata; 20:45 UTC is 02:15 the next day.

@@ -58,7 +58,10 @@ afterAll(() => t.close());
 
 describe('slotting runs', () => {
   it('a popularity run with a move budget reports honest figures and at most that many moves', async () => {
-    const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'Fast movers forward', method: 'popularity', history: { kind: 'upload', historyId }, maxMoves: 40, cartProfileId });
+    const res = await t.as.engineer
+      .post(`${url()}/runs`)
+      .set(csrf)
+      .send({ name: 'Fast movers forward', method: 'popularity', history: { kind: 'upload', historyId }, maxMoves: 40, cartProfileId });
     expect(res.status, JSON.stringify(res.body)).toBe(202);
     const run = await awaitRun(res.body.id);
     expect(run.status, run.error ?? '').toBe('done');
@@ -69,30 +72,42 @@ describe('slotting runs', () => {
     expect(r.figures.test.days).toBe(2);
     expect(r.figures.whole.metresAfter).toBeLessThan(r.figures.whole.metresBefore);
     for (const m of r.moves) expect(r.heat.after[m.toBin]).toBeGreaterThan(0);
-    const xlsx = await t.as.engineer.get(`${url()}/runs/${run.id}/moves.xlsx`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const xlsx = await t.as.engineer
+      .get(`${url()}/runs/${run.id}/moves.xlsx`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(xlsx.status).toBe(200);
     const rows = XLSX.utils.sheet_to_json<unknown[]>(XLSX.read(xlsx.body as Buffer, { type: 'buffer' }).Sheets.moves!, { header: 1 });
     expect(rows.length).toBe(r.moves.length + 1);
   }, 180_000);
 
   it('refuses an empty recorded history with a plain reason', async () => {
-    const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'Nothing', method: 'search', history: { kind: 'recorded', from: '2020-01-01', to: '2020-01-31' }, cartProfileId });
+    const res = await t.as.engineer
+      .post(`${url()}/runs`)
+      .set(csrf)
+      .send({ name: 'Nothing', method: 'search', history: { kind: 'recorded', from: '2020-01-01', to: '2020-01-31' }, cartProfileId });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('empty_history');
   }, 180_000);
 
   it('runs on a stored plan that is not active, and applies its moves only on the active plan', async () => {
     const activeId: number = (await t.deps.db('floor_plans').where({ site_id: t.siteId, state: 'active' }).first('id')).id;
-    const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'On a chosen plan', method: 'popularity', history: { kind: 'upload', historyId }, maxMoves: 5, cartProfileId, planId: activeId });
+    const res = await t.as.engineer
+      .post(`${url()}/runs`)
+      .set(csrf)
+      .send({ name: 'On a chosen plan', method: 'popularity', history: { kind: 'upload', historyId }, maxMoves: 5, cartProfileId, planId: activeId });
     expect(res.status, JSON.stringify(res.body)).toBe(202);
     const run = await awaitRun(res.body.id);
     expect(run.status, run.error ?? '').toBe('done');
     expect(run.results!.planId).toBe(activeId);
-    const unknown = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'No such plan', method: 'popularity', history: { kind: 'upload', historyId }, cartProfileId, planId: 999_999 });
+    const unknown = await t.as.engineer
+      .post(`${url()}/runs`)
+      .set(csrf)
+      .send({ name: 'No such plan', method: 'popularity', history: { kind: 'upload', historyId }, cartProfileId, planId: 999_999 });
     expect(unknown.status).toBe(404);
     await t.deps.db('floor_plans').where({ id: activeId }).update({ state: 'retired' });
     try {
@@ -110,13 +125,19 @@ describe('slotting runs', () => {
   }, 180_000);
 
   it('applies the chosen moves in one audited step, keeps the old bins, and refuses a second apply', async () => {
-    const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'Search', method: 'search', history: { kind: 'upload', historyId }, maxMoves: 20, cartProfileId });
+    const res = await t.as.engineer
+      .post(`${url()}/runs`)
+      .set(csrf)
+      .send({ name: 'Search', method: 'search', history: { kind: 'upload', historyId }, maxMoves: 20, cartProfileId });
     const run = await awaitRun(res.body.id);
     expect(run.status, run.error ?? '').toBe('done');
     // Moves into a free bin apply alone; pick those.
     const chosen = run.results!.moves.filter((m) => !run.results!.moves.some((o) => o.fromBin === m.toBin)).slice(0, 5);
     expect(chosen.length).toBeGreaterThan(0);
-    const ok = await t.as.supervisor.post(`${url()}/runs/${run.id}/apply`).set(csrf).send({ skus: chosen.map((m) => m.sku) });
+    const ok = await t.as.supervisor
+      .post(`${url()}/runs/${run.id}/apply`)
+      .set(csrf)
+      .send({ skus: chosen.map((m) => m.sku) });
     expect(ok.status, JSON.stringify(ok.body)).toBe(200);
     expect(ok.body.applied + ok.body.skipped.length).toBe(chosen.length);
     expect(ok.body.applied).toBeGreaterThan(0);
@@ -134,13 +155,23 @@ describe('slotting runs', () => {
 
   it('refuses to move SKUs that open waves still have to pick, naming the wave', async () => {
     const wave = await releaseDemoWave(t, { orders: 40 });
-    const res = await t.as.engineer.post(`${url()}/runs`).set(csrf).send({ name: 'All', method: 'popularity', history: { kind: 'upload', historyId }, cartProfileId });
+    const res = await t.as.engineer
+      .post(`${url()}/runs`)
+      .set(csrf)
+      .send({ name: 'All', method: 'popularity', history: { kind: 'upload', historyId }, cartProfileId });
     const run = await awaitRun(res.body.id);
     expect(run.status).toBe('done');
-    const open: string[] = await t.deps.db('pick_lines').join('trips', 'trips.id', 'pick_lines.trip_id').where({ 'trips.wave_id': wave.id, 'pick_lines.status': 'open' }).pluck('pick_lines.sku');
+    const open: string[] = await t.deps
+      .db('pick_lines')
+      .join('trips', 'trips.id', 'pick_lines.trip_id')
+      .where({ 'trips.wave_id': wave.id, 'pick_lines.status': 'open' })
+      .pluck('pick_lines.sku');
     const clash = run.results!.moves.find((m) => open.includes(m.sku));
     expect(clash, 'a full re-slotting moves some SKU of a 40-order wave').toBeDefined();
-    const refused = await t.as.supervisor.post(`${url()}/runs/${run.id}/apply`).set(csrf).send({ skus: [clash!.sku] });
+    const refused = await t.as.supervisor
+      .post(`${url()}/runs/${run.id}/apply`)
+      .set(csrf)
+      .send({ skus: [clash!.sku] });
     expect(refused.status).toBe(409);
     expect(refused.body.error.code).toBe('open_waves');
     expect(refused.body.error.message).toContain(wave.name);

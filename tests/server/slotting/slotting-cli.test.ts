@@ -35,7 +35,13 @@ const plan = generateRectangularPlan({ aisles: 5, aisleLengthM: 20, aisleSpacing
 const graph = buildWalkGraph(plan);
 const scenario = generateSlottingScenario({ bins: slotBinsOf(plan, graph), skuCount: 80, days: 6, ordersPerDay: 15, maxLines: 3, rng: createRng(9) });
 const planPath = write('plan.xlsx', floorPlanToWorkbook(plan));
-const skuPath = write('skus.xlsx', sheet('skus', [['sku', 'description', 'bin', 'unit_weight_kg', 'unit_volume_l'], ...scenario.skus.map((s) => [s.code, `Item ${s.code}`, s.bin, s.unitKg, s.unitLitres])]));
+const skuPath = write(
+  'skus.xlsx',
+  sheet('skus', [
+    ['sku', 'description', 'bin', 'unit_weight_kg', 'unit_volume_l'],
+    ...scenario.skus.map((s) => [s.code, `Item ${s.code}`, s.bin, s.unitKg, s.unitLitres]),
+  ]),
+);
 const historyPath = write(
   'history.xlsx',
   sheet('orders', [

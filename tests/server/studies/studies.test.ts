@@ -17,8 +17,15 @@ import { makeDemoApp, releaseDemoWave } from '../../helpers/waves';
 
 /** One block (front and back cross aisles only): every routing policy applies. */
 const SINGLE_BLOCK: GeneratePlanParams = {
-  aisles: 8, aisleLengthM: 30, aisleSpacingM: 3.2, baysPerAisle: 15, levels: 2, bothSides: true,
-  crossAisles: { front: true, back: true, middle: 0 }, crossAisleWidthM: 3, depot: 'front_left',
+  aisles: 8,
+  aisleLengthM: 30,
+  aisleSpacingM: 3.2,
+  baysPerAisle: 15,
+  levels: 2,
+  bothSides: true,
+  crossAisles: { front: true, back: true, middle: 0 },
+  crossAisleWidthM: 3,
+  depot: 'front_left',
 };
 
 const generated = (name: string, seed: number, extra: Partial<StudyInputsBody> = {}): StudyInputsBody => ({
@@ -102,23 +109,40 @@ describe('studies', () => {
     expect(v.depotNode).toBe(plan.depotNode);
     for (const trip of v.trips) {
       const m = tripMatrix(plan.index, [plan.depotNode, ...trip.nodes]);
-      expect(trip.metres['best+local']).toBeCloseTo(solveTour(m, { method: 'best', improve: 'local', timeLimitMs: 10_000, clock: steppingClock(0.001) }).length, 6);
+      expect(trip.metres['best+local']).toBeCloseTo(
+        solveTour(m, { method: 'best', improve: 'local', timeLimitMs: 10_000, clock: steppingClock(0.001) }).length,
+        6,
+      );
       expect(trip.metres['nearest-neighbor+none']).toBeCloseTo(solveTour(m, { method: 'nearest-neighbor' }).length, 6);
-      if (trip.nodes.length <= 16) expect(trip.metres.exact).toBeCloseTo(solveTour(m, { method: 'exact', timeLimitMs: 10_000, clock: steppingClock(0.001) }).length, 6);
+      if (trip.nodes.length <= 16)
+        expect(trip.metres.exact).toBeCloseTo(solveTour(m, { method: 'exact', timeLimitMs: 10_000, clock: steppingClock(0.001) }).length, 6);
       const layout = plan.layout;
       if (isNotApplicable(layout)) throw new Error(layout.reason);
-      const s = sShape(layout, layout.depots[0]!.x, trip.nodes.map((n) => plan.stopOf(n)!));
+      const s = sShape(
+        layout,
+        layout.depots[0]!.x,
+        trip.nodes.map((n) => plan.stopOf(n)!),
+      );
       if (isNotApplicable(s)) throw new Error(s.reason);
       // The wave planner's convention: the depot's link to the front cross aisle is walked out and back.
       expect(trip.metres['s-shape']).toBeCloseTo(s.length + 2 * layout.depots[0]!.offset, 6);
     }
     // The whole savings row against the engine's wave planner on the same generated orders.
-    const waves = generateStudyOrders(plan.input.geometry.bins, { waves: 2, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 }, 42);
+    const waves = generateStudyOrders(
+      plan.input.geometry.bins,
+      { waves: 2, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 },
+      42,
+    );
     let direct = 0;
     for (const orders of waves) {
       const r = planWave({
         orders: orders.map((o) => ({ ref: o.ref, lines: o.lines.map((l) => ({ ...l, node: plan.binNode(l.bin)! })) })),
-        cart: first.results.cart, batching: 'savings', depotNode: plan.depotNode, distance: (a, b) => pairDistance(plan.index, a, b), timeLimitMs: 60_000, clock: steppingClock(0.001),
+        cart: first.results.cart,
+        batching: 'savings',
+        depotNode: plan.depotNode,
+        distance: (a, b) => pairDistance(plan.index, a, b),
+        timeLimitMs: 60_000,
+        clock: steppingClock(0.001),
       });
       direct += r.totals.metres;
     }
@@ -154,11 +178,14 @@ describe('studies', () => {
   });
 
   it('exports a workbook whose sheets hold the same figures as the page', async () => {
-    const res = await t.as.engineer.get(`${base()}/${first.id}/export.xlsx`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const res = await t.as.engineer
+      .get(`${base()}/${first.id}/export.xlsx`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     expect(wb.SheetNames[0]).toBe('inputs');
@@ -195,7 +222,12 @@ describe('studies', () => {
   });
 
   it('cancels a running study by stopping its worker', async () => {
-    const big = generated('Big', 5, { work: { ...(generated('x', 5).work as object), orders: { waves: 6, ordersPerWave: 200, linesMin: 2, linesMax: 8, skus: 200, skewSkuPct: 20, skewLinesPct: 80 } } as StudyInputsBody['work'] });
+    const big = generated('Big', 5, {
+      work: {
+        ...(generated('x', 5).work as object),
+        orders: { waves: 6, ordersPerWave: 200, linesMin: 2, linesMax: 8, skus: 200, skewSkuPct: 20, skewLinesPct: 80 },
+      } as StudyInputsBody['work'],
+    });
     const s = await start(big);
     const res = await t.as.engineer.post(`${base()}/${s.id}/cancel`).set(csrf).send({});
     expect(res.status).toBe(200);
@@ -207,7 +239,13 @@ describe('studies', () => {
 
   it('compares a recorded wave: planned metres as released, walked metres as confirmed', async () => {
     const wave = await releaseDemoWave(t, { orders: 12, batching: 'savings' });
-    const s = await start({ name: 'Recorded', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local', 's-shape'], batching: ['single', 'savings'] });
+    const s = await start({
+      name: 'Recorded',
+      seed: 1,
+      work: { kind: 'recorded', waveIds: [wave.id] },
+      routing: ['best+local', 's-shape'],
+      batching: ['single', 'savings'],
+    });
     let done = await waitDone(s.id);
     const rec = done.results.recorded![0]!;
     expect(rec.waveId).toBe(wave.id);
@@ -218,19 +256,35 @@ describe('studies', () => {
     // A picker confirms the first trip's stops in reverse order: the walk is the reversed circuit, the same length.
     const trip = (await t.deps.db('trips').where({ wave_id: wave.id }).orderBy('n').first<{ id: number; planned_metres: number }>())!;
     const stops: { id: number }[] = await t.deps.db('stops').where({ trip_id: trip.id }).orderBy('n', 'desc');
-    for (const [i, st] of stops.entries()) await t.deps.db('stops').where({ id: st.id }).update({ status: 'done', done_seq: i + 1 });
-    done = await waitDone((await start({ name: 'Recorded again', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['savings'] })).id);
+    for (const [i, st] of stops.entries())
+      await t.deps
+        .db('stops')
+        .where({ id: st.id })
+        .update({ status: 'done', done_seq: i + 1 });
+    done = await waitDone(
+      (await start({ name: 'Recorded again', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['savings'] })).id,
+    );
     const again = done.results.recorded![0]!;
     expect(again.confirmedTrips).toBe(1);
     expect(again.walkedMetres!).toBeCloseTo(trip.planned_metres, 1);
   }, 120_000);
 
   it('gives no what-if difference when a closed stretch leaves orders unreachable, and says why', async () => {
-    const closed = await waitDone((await start(generated('Closed stretch', 7, {
-      work: { ...(generated('x', 7).work as object), orders: { waves: 1, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80 } } as StudyInputsBody['work'],
-      routing: ['best+local', 's-shape'], batching: ['savings'],
-      whatIfs: [{ label: 'Aisle D closed 2–28 m', changes: [{ kind: 'close_aisle', aisle: 'D', fromM: 2, toM: 28 }] }],
-    }))).id);
+    const closed = await waitDone(
+      (
+        await start(
+          generated('Closed stretch', 7, {
+            work: {
+              ...(generated('x', 7).work as object),
+              orders: { waves: 1, ordersPerWave: 24, linesMin: 2, linesMax: 4, skus: 150, skewSkuPct: 20, skewLinesPct: 80 },
+            } as StudyInputsBody['work'],
+            routing: ['best+local', 's-shape'],
+            batching: ['savings'],
+            whatIfs: [{ label: 'Aisle D closed 2–28 m', changes: [{ kind: 'close_aisle', aisle: 'D', fromM: 2, toM: 28 }] }],
+          }),
+        )
+      ).id,
+    );
     const v = closed.results.variants[1]!;
     expect(v.unplaced.length).toBeGreaterThan(0);
     expect(v.routing.find((r) => r.key === 's-shape')!.reason).toMatch(/closed aisle stretches/);
@@ -241,19 +295,39 @@ describe('studies', () => {
   }, 120_000);
 
   it('refuses what-ifs outside the plan before saving anything', async () => {
-    const res = await t.as.engineer.post(base()).set(csrf).send(generated('Bad', 1, { whatIfs: [{ label: 'No such aisle', changes: [{ kind: 'close_aisle', aisle: 'ZZ', fromM: 0, toM: 5 }] }] }));
+    const res = await t.as.engineer
+      .post(base())
+      .set(csrf)
+      .send(generated('Bad', 1, { whatIfs: [{ label: 'No such aisle', changes: [{ kind: 'close_aisle', aisle: 'ZZ', fromM: 0, toM: 5 }] }] }));
     expect(res.status).toBe(400);
     expect(res.body.error.message).toMatch(/aisle ZZ/);
   });
 
   it('refuses a depot moved outside the plan and a cross aisle where one exists, naming the field', async () => {
-    const far = await t.as.engineer.post(base()).set(csrf).send(generated('Bad depot', 1, { whatIfs: [{ label: 'Depot far away', changes: [{ kind: 'move_depot', xM: 500, yM: 0 }] }] }));
+    const far = await t.as.engineer
+      .post(base())
+      .set(csrf)
+      .send(generated('Bad depot', 1, { whatIfs: [{ label: 'Depot far away', changes: [{ kind: 'move_depot', xM: 500, yM: 0 }] }] }));
     expect(far.status).toBe(400);
     expect(far.body.error.message).toMatch(/depot .* outside the plan/);
     expect(far.body.error.details).toEqual([expect.objectContaining({ field: 'whatIfs.0.changes.0.xM' })]);
-    const twice = await t.as.engineer.post(base()).set(csrf).send(generated('Bad cross aisle', 1, {
-      whatIfs: [{ label: 'Ok', changes: [{ kind: 'add_cross_aisle', yM: 10 }] }, { label: 'Twice', changes: [{ kind: 'add_cross_aisle', yM: 15 }, { kind: 'add_cross_aisle', yM: 15.2 }] }],
-    }));
+    const twice = await t.as.engineer
+      .post(base())
+      .set(csrf)
+      .send(
+        generated('Bad cross aisle', 1, {
+          whatIfs: [
+            { label: 'Ok', changes: [{ kind: 'add_cross_aisle', yM: 10 }] },
+            {
+              label: 'Twice',
+              changes: [
+                { kind: 'add_cross_aisle', yM: 15 },
+                { kind: 'add_cross_aisle', yM: 15.2 },
+              ],
+            },
+          ],
+        }),
+      );
     expect(twice.status).toBe(400);
     expect(twice.body.error.message).toMatch(/already has a cross aisle/);
     expect(twice.body.error.details).toEqual([expect.objectContaining({ field: 'whatIfs.1.changes.1.yM' })]);
@@ -295,7 +369,14 @@ describe('studies', () => {
     const one = await waitDone((await start(body)).id);
     expect(one.inputs.work.kind === 'generated' && one.inputs.work.cart).toEqual({ totes: 4, maxKg: 60, maxLitres: 120 });
     expect(one.results.cart).toEqual({ totes: 4, maxKg: 60, maxLitres: 120 });
-    expect((await t.as.admin.put(`/api/sites/${t.siteId}/cart-profiles/${made.body.id}`).set(csrf).send({ name: 'Study trolley', totes: 10, maxKg: 200, maxLitres: 500 })).status).toBe(200);
+    expect(
+      (
+        await t.as.admin
+          .put(`/api/sites/${t.siteId}/cart-profiles/${made.body.id}`)
+          .set(csrf)
+          .send({ name: 'Study trolley', totes: 10, maxKg: 200, maxLitres: 500 })
+      ).status,
+    ).toBe(200);
     const edited = await waitDone((await t.as.engineer.post(`${base()}/${one.id}/rerun`).set(csrf).send({})).body.id);
     expect(figures(edited.results)).toEqual(figures(one.results));
     expect((await t.as.admin.delete(`/api/sites/${t.siteId}/cart-profiles/${made.body.id}`).set(csrf)).status).toBe(200);
@@ -312,8 +393,15 @@ describe('studies', () => {
     expect(orders.length).toBe(12);
     // Due times that interleave the arrival order: the even-numbered arrivals are due first.
     const dueOrder = [...orders.filter((_, i) => i % 2 === 0), ...orders.filter((_, i) => i % 2 === 1)];
-    for (const [i, o] of dueOrder.entries()) await t.deps.db('orders').where({ id: o.id }).update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString(), priority: null });
-    const done = await waitDone((await start({ name: 'Recorded FCFS', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs', 'savings'] })).id);
+    for (const [i, o] of dueOrder.entries())
+      await t.deps
+        .db('orders')
+        .where({ id: o.id })
+        .update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString(), priority: null });
+    const done = await waitDone(
+      (await start({ name: 'Recorded FCFS', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs', 'savings'] }))
+        .id,
+    );
     const v = done.results.variants[0]!;
     const released = v.routing.find((r) => r.key === 'best+local')!.metres!;
     const fcfs = v.batching.find((b) => b.method === 'fcfs')!;
@@ -321,8 +409,15 @@ describe('studies', () => {
     // FCFS on the interleaved due times does not replay the savings wave as released.
     expect(Math.abs(fcfs.metres - released)).toBeGreaterThan(0.01);
     // The due times decide FCFS: the same wave with due times in arrival order batches differently.
-    for (const [i, o] of orders.entries()) await t.deps.db('orders').where({ id: o.id }).update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString() });
-    const inArrival = await waitDone((await start({ name: 'Recorded FCFS by arrival', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs'] })).id);
+    for (const [i, o] of orders.entries())
+      await t.deps
+        .db('orders')
+        .where({ id: o.id })
+        .update({ due: new Date(Date.UTC(2026, 11, 5, 8, i)).toISOString() });
+    const inArrival = await waitDone(
+      (await start({ name: 'Recorded FCFS by arrival', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] }, routing: ['best+local'], batching: ['fcfs'] }))
+        .id,
+    );
     const fcfs2 = inArrival.results.variants[0]!.batching[0]!;
     expect(fcfs2.orders).toBe(12);
     expect(Math.abs(fcfs2.metres - fcfs.metres)).toBeGreaterThan(0.01);

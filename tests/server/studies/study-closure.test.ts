@@ -40,16 +40,29 @@ describe('a recorded-wave study with a closure over one of its stops', () => {
     const plan = await loadPlanIndex(t.deps.db, (await activePlanId(t.deps.db, t.siteId))!);
     const bin = plan.geometry.bins.find((b) => b.code === binCode)!;
     const cutOff = plan.geometry.bins.filter((b) => b.aisle === bin.aisle && Math.abs(b.y - bin.y) < 0.01).map((b) => b.code);
-    const orderRefs: string[] = await t.deps.db('pick_lines').join('stops', 'stops.id', 'pick_lines.stop_id').where('stops.trip_id', trip.id)
-      .whereIn('pick_lines.bin', cutOff).distinct('pick_lines.order_ref').pluck('pick_lines.order_ref');
+    const orderRefs: string[] = await t.deps
+      .db('pick_lines')
+      .join('stops', 'stops.id', 'pick_lines.stop_id')
+      .where('stops.trip_id', trip.id)
+      .whereIn('pick_lines.bin', cutOff)
+      .distinct('pick_lines.order_ref')
+      .pluck('pick_lines.order_ref');
     expect(orderRefs.length).toBeGreaterThan(0);
 
     // A short stretch around the bin's access point: both walks into it are cut, nothing else is.
-    const res = await t.as.engineer.post(base()).set(csrf).send({
-      name: 'Closure over a stop', seed: 1, work: { kind: 'recorded', waveIds: [wave.id] },
-      routing: ['best+local', 'exact', 's-shape'], batching: ['savings'],
-      whatIfs: [{ label: `Aisle ${bin.aisle} closed at the stop`, changes: [{ kind: 'close_aisle', aisle: bin.aisle, fromM: bin.y - 0.4, toM: bin.y + 0.4 }] }],
-    });
+    const res = await t.as.engineer
+      .post(base())
+      .set(csrf)
+      .send({
+        name: 'Closure over a stop',
+        seed: 1,
+        work: { kind: 'recorded', waveIds: [wave.id] },
+        routing: ['best+local', 'exact', 's-shape'],
+        batching: ['savings'],
+        whatIfs: [
+          { label: `Aisle ${bin.aisle} closed at the stop`, changes: [{ kind: 'close_aisle', aisle: bin.aisle, fromM: bin.y - 0.4, toM: bin.y + 0.4 }] },
+        ],
+      });
     expect(res.status, JSON.stringify(res.body)).toBe(202);
     const done = await waitEnd(res.body.id as number);
     expect(done.status, done.error ?? '').toBe('done');

@@ -13,7 +13,9 @@ describe('studies whose job is gone', () => {
   afterAll(() => t.close());
 
   const insert = async (name: string, createdAt: string) => {
-    const [{ id }] = await t.deps.db('studies').insert({ site_id: t.siteId, name, kind: 'generated', seed: 1, inputs: '{}', status: 'running', created_at: createdAt }, 'id');
+    const [{ id }] = await t.deps
+      .db('studies')
+      .insert({ site_id: t.siteId, name, kind: 'generated', seed: 1, inputs: '{}', status: 'running', created_at: createdAt }, 'id');
     return id as number;
   };
 

@@ -17,8 +17,16 @@ const orders: PlannerOrder[] = Array.from({ length: 6 }, (_, i) => ({
 function input(closures: PlanClosure[], withClosures: boolean): PlannerInput {
   const graph = buildWalkGraph(geometry, closures);
   return {
-    geometry, graph, index: buildDistanceIndex(graph), orders, cart: { totes: 4, maxKg: 100, maxLitres: 100 },
-    batching: 'fcfs', method: 'best', improve: 'local', depotIdx: 0, speeds: { walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 0 },
+    geometry,
+    graph,
+    index: buildDistanceIndex(graph),
+    orders,
+    cart: { totes: 4, maxKg: 100, maxLitres: 100 },
+    batching: 'fcfs',
+    method: 'best',
+    improve: 'local',
+    depotIdx: 0,
+    speeds: { walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 0 },
     ...(withClosures ? { closures } : {}),
   };
 }

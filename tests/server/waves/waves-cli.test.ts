@@ -42,7 +42,8 @@ skuData.set('SKU-ANVIL', { kg: 500, litres: 2, bin: plan.bins[3]!.code });
 const orderRows: unknown[][] = [['order', 'sku', 'qty', 'due', 'priority']];
 for (let o = 0; o < 30; o++) {
   const lines = 2 + rng.int(3);
-  for (let k = 0; k < lines; k++) orderRows.push([`W-${100 + o}`, `SKU-${rng.int(40)}`, 1 + rng.int(3), `2026-12-03T${String(8 + (o % 10)).padStart(2, '0')}:00:00Z`, '']);
+  for (let k = 0; k < lines; k++)
+    orderRows.push([`W-${100 + o}`, `SKU-${rng.int(40)}`, 1 + rng.int(3), `2026-12-03T${String(8 + (o % 10)).padStart(2, '0')}:00:00Z`, '']);
 }
 orderRows.push(['W-LOST', 'SKU-GONE', 1, '', '']);
 orderRows.push(['W-HEAVY', 'SKU-ANVIL', 1, '', '']);
@@ -53,7 +54,11 @@ const orderPath = write('orders.xlsx', sheet('orders', orderRows));
 const cartFlag = 'totes=6,kg=60,litres=120';
 
 interface Output {
-  trips: { orders: string[]; stops: { n: number; bins: string[]; lines: { order: string; sku: string; qty: number; bin: string; tote: number }[] }[]; metres: number }[];
+  trips: {
+    orders: string[];
+    stops: { n: number; bins: string[]; lines: { order: string; sku: string; qty: number; bin: string; tote: number }[] }[];
+    metres: number;
+  }[];
   totalMetres: number;
   unplaced: { order: string; reason: string }[];
   comparison: { singleMetres: number; sShapeMetres: number | null };
@@ -79,7 +84,10 @@ describe('aislewright waves plan', () => {
     expect(code).toBe(0);
     const o = out!;
     // Every order line of the file is picked once, or its order is unplaced.
-    const expected = orderRows.slice(1).map((r) => JSON.stringify([r[0], r[1], r[2]])).sort();
+    const expected = orderRows
+      .slice(1)
+      .map((r) => JSON.stringify([r[0], r[1], r[2]]))
+      .sort();
     const unplaced = new Set(o.unplaced.map((u) => u.order));
     const picked = o.trips.flatMap((t) => t.stops.flatMap((s) => s.lines.map((l) => JSON.stringify([l.order, l.sku, l.qty]))));
     expect([...picked, ...expected.filter((k) => unplaced.has(JSON.parse(k)[0]))].sort()).toEqual(expected);
@@ -99,7 +107,10 @@ describe('aislewright waves plan', () => {
       expect(kg).toBeLessThanOrEqual(60 + 1e-9);
       expect(t.stops.map((s) => s.n)).toEqual(t.stops.map((_, i) => i + 1));
     }
-    expect(o.totalMetres).toBeCloseTo(o.trips.reduce((s, t) => s + t.metres, 0), 1);
+    expect(o.totalMetres).toBeCloseTo(
+      o.trips.reduce((s, t) => s + t.metres, 0),
+      1,
+    );
     // A generated rectangular plan is a block layout, so the S-shape comparison is there.
     expect(o.comparison.sShapeMetres).toBeGreaterThan(0);
   });
@@ -112,7 +123,14 @@ describe('aislewright waves plan', () => {
   });
 
   it('lists a bad order file row by row and plans nothing', async () => {
-    const bad = write('bad-orders.xlsx', sheet('orders', [['order', 'sku', 'qty'], ['W-1', 'SKU-1', 0], ['W-2', 'NOPE', 1]]));
+    const bad = write(
+      'bad-orders.xlsx',
+      sheet('orders', [
+        ['order', 'sku', 'qty'],
+        ['W-1', 'SKU-1', 0],
+        ['W-2', 'NOPE', 1],
+      ]),
+    );
     const io = memoryIo();
     const code = await run(['plan', '--plan', planPath, '--skus', skuPath, '--orders', bad, '--cart', cartFlag, '--batching', 'fcfs'], io);
     expect(code).toBe(2);
