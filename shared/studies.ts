@@ -4,7 +4,8 @@
  * the server to validate and by the client to parse.
  */
 import { z } from 'zod';
-import { GeneratePlanParams } from './floor-plans';
+import { FloorPlanStats, GeneratePlanParams } from './floor-plans';
+import { RowIssue } from './imports';
 import { BatchingName } from './waves';
 
 /**
@@ -71,10 +72,14 @@ export const PlanChange = z.discriminatedUnion('kind', [
 ]);
 export type PlanChange = z.infer<typeof PlanChange>;
 
-export const WhatIf = z.strictObject({
-  label: z.string().trim().min(1).max(80),
-  changes: z.array(PlanChange).min(1).max(5),
-});
+export const WhatIf = z
+  .strictObject({
+    label: z.string().trim().min(1).max(80),
+    /** A candidate layout uploaded for studies (`/studies/layouts`): the what-if plan is that layout, then `changes` on it. */
+    layoutId: z.number().int().positive().optional(),
+    changes: z.array(PlanChange).max(5).default([]),
+  })
+  .refine((w) => w.layoutId !== undefined || w.changes.length > 0, { message: 'a what-if needs a change or a candidate layout', path: ['changes'] });
 export type WhatIf = z.infer<typeof WhatIf>;
 
 export const StudyPlanSource = z.discriminatedUnion('source', [
@@ -128,22 +133,35 @@ export const StudyWork = z.discriminatedUnion('kind', [
 ]);
 export type StudyWork = z.infer<typeof StudyWork>;
 
-export const StudyInputs = z.strictObject({
-  name: z.string().trim().min(1).max(120),
-  work: StudyWork,
-  routing: z
-    .array(RoutingMethodKey)
-    .min(1)
-    .default([...ROUTING_METHOD_KEYS]),
-  batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings', 'search']),
-  whatIfs: z.array(WhatIf).max(4).default([]),
-  seed: z
-    .number()
-    .int()
-    .min(0)
-    .max(2 ** 31 - 1)
-    .default(1),
-});
+export const MAX_REPLICATIONS = 30;
+export const REPLICATIONS_RECORDED_MESSAGE = 'recorded waves happened once: there is nothing to replicate, so replications stay at 1';
+
+export const StudyInputs = z
+  .strictObject({
+    name: z.string().trim().min(1).max(120),
+    work: StudyWork,
+    routing: z
+      .array(RoutingMethodKey)
+      .min(1)
+      .default([...ROUTING_METHOD_KEYS]),
+    batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings', 'search']),
+    whatIfs: z.array(WhatIf).max(4).default([]),
+    seed: z
+      .number()
+      .int()
+      .min(0)
+      .max(2 ** 31 - 1)
+      .default(1),
+    /**
+     * Generated work only: the scenario is drawn and run once per seed (seed, seed + 1, …) and each
+     * method's figures are shown as a mean with a 95 % interval. Recorded waves happened once.
+     */
+    replications: z.number().int().min(1).max(MAX_REPLICATIONS).default(1),
+  })
+  .refine((s) => s.work.kind === 'generated' || s.replications === 1, {
+    message: REPLICATIONS_RECORDED_MESSAGE,
+    path: ['replications'],
+  });
 export type StudyInputs = z.infer<typeof StudyInputs>;
 export type StudyInputsBody = z.input<typeof StudyInputs>;
 
@@ -212,6 +230,8 @@ export const StudyVariant = z.object({
   key: z.string(),
   label: z.string(),
   changes: z.array(PlanChange),
+  /** The candidate layout the what-if is built on, or null (the study's base plan). */
+  layoutId: z.number().int().nullable().default(null),
   layout: z.object({
     aisles: z.number().int(),
     crossAisles: z.number().int(),
@@ -260,6 +280,38 @@ export const RecordedWaveRow = z.object({
 });
 export type RecordedWaveRow = z.infer<typeof RecordedWaveRow>;
 
+/** Mean of a figure over the replications with its 95 % interval (Student's t, n − 1 degrees of freedom). */
+export const Interval = z.object({
+  n: z.number().int(),
+  mean: num,
+  /** Sample standard deviation; null with one replication (as are t and the bounds). */
+  sd: maybe,
+  t: maybe,
+  halfWidth: maybe,
+  low: maybe,
+  high: maybe,
+});
+export type Interval = z.infer<typeof Interval>;
+
+/** One method's figure in every replication (in seed order), and its interval when every replication has one. */
+export const ReplicatedFigure = z.object({
+  key: z.string(),
+  label: z.string(),
+  metres: z.array(maybe),
+  hoursPerDay: z.array(maybe),
+  metresCi: Interval.nullable(),
+  hoursPerDayCi: Interval.nullable(),
+});
+export type ReplicatedFigure = z.infer<typeof ReplicatedFigure>;
+
+export const Replications = z.object({
+  seeds: z.array(z.number().int()),
+  variants: z.array(z.object({ key: z.string(), label: z.string(), routing: z.array(ReplicatedFigure), batching: z.array(ReplicatedFigure) })),
+  /** What-if differences paired by seed: `metres` and `hoursPerDay` hold the differences. */
+  whatIf: z.array(ReplicatedFigure.extend({ variant: z.string() })),
+});
+export type Replications = z.infer<typeof Replications>;
+
 export const StudyResults = z.object({
   seed: z.number().int(),
   speeds: z.object({ walkingSpeedMps: num, secondsPerLine: num, secondsPerStop: num }),
@@ -272,6 +324,8 @@ export const StudyResults = z.object({
   recorded: z.array(RecordedWaveRow).nullable(),
   notes: z.array(z.string()),
   ms: num,
+  /** With more than one replication: every method's figures per seed, mean and interval. The rest is the first seed's. */
+  replications: Replications.nullable().default(null),
 });
 export type StudyResults = z.infer<typeof StudyResults>;
 
@@ -291,8 +345,33 @@ export const StudySummary = z.object({
   finishedAt: z.string().nullable(),
   rerunOf: z.number().int().nullable(),
   error: z.string().nullable(),
+  /** Set while the study is archived: hidden from the default list, kept whole. */
+  archivedAt: z.string().nullable().default(null),
 });
 export type StudySummary = z.infer<typeof StudySummary>;
+
+/** The studies list: archived studies are left out unless asked for. */
+export const StudyListQuery = z.strictObject({ archived: z.enum(['hide', 'include']).default('hide') });
+
+/** A candidate layout uploaded for what-if studies: a floor-plan workbook checked like a plan upload, never a plan of the site. */
+export const CandidateLayout = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  filename: z.string(),
+  stats: FloorPlanStats,
+  createdBy: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type CandidateLayout = z.infer<typeof CandidateLayout>;
+
+/** The answer to a candidate upload: the row-by-row problems (nothing saved), or the saved layout. */
+export const CandidateLayoutUpload = z.object({
+  ok: z.boolean(),
+  errors: z.array(RowIssue),
+  warnings: z.array(RowIssue),
+  layout: CandidateLayout.nullable(),
+});
+export type CandidateLayoutUpload = z.infer<typeof CandidateLayoutUpload>;
 
 export const StudyDetail = StudySummary.extend({
   inputs: StudyInputs,
