@@ -168,6 +168,20 @@ export type StudyInputsBody = z.input<typeof StudyInputs>;
 const num = z.number();
 const maybe = num.nullable();
 
+/** The figures a routing row and a batching row share; `n` is the number schema (nullable for routing). */
+const figures = <N extends z.ZodType>(n: N) => ({
+  metres: n,
+  metresPerTrip: n,
+  metresPerLine: n,
+  aboveBestPct: n,
+  aboveBoundPct: n,
+  /** Walking plus handling at the site's speeds, for the work in the study. */
+  hours: n,
+  hoursPerDay: n,
+  /** Compute time, milliseconds (wall clock; the only figure that changes between runs). */
+  ms: num,
+});
+
 /** One routing method on one plan: the whole work routed by it. */
 export const RoutingRow = z.object({
   key: RoutingMethodKey,
@@ -175,16 +189,7 @@ export const RoutingRow = z.object({
   /** False when the method does not apply (layout, trip size); `reason` says why. */
   applicable: z.boolean(),
   reason: z.string().nullable(),
-  metres: maybe,
-  metresPerTrip: maybe,
-  metresPerLine: maybe,
-  aboveBestPct: maybe,
-  aboveBoundPct: maybe,
-  /** Walking plus handling at the site's speeds, for the work in the study. */
-  hours: maybe,
-  hoursPerDay: maybe,
-  /** Compute time, milliseconds (wall clock; the only figure that changes between runs). */
-  ms: num,
+  ...figures(maybe),
   /**
    * Exact method only, when some trips have too many stops for it: the trips it solved. The others are
    * counted at their lower bound, so the row's metres are then a lower bound themselves.
@@ -199,14 +204,7 @@ export const BatchingRow = z.object({
   trips: z.number().int(),
   orders: z.number().int(),
   lines: z.number().int(),
-  metres: num,
-  metresPerTrip: num,
-  metresPerLine: num,
-  aboveBestPct: num,
-  aboveBoundPct: num,
-  hours: num,
-  hoursPerDay: num,
-  ms: num,
+  ...figures(num),
 });
 export type BatchingRow = z.infer<typeof BatchingRow>;
 

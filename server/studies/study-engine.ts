@@ -263,6 +263,8 @@ function oncePerOrder(list: readonly { order: string; reason: string }[]): { ord
   const seen = new Set<string>();
   return list.filter((u) => !seen.has(u.order) && seen.add(u.order));
 }
+/** A routing row's figures before they are known (or when the method does not apply). */
+const NO_FIGURES = { metres: null, metresPerTrip: null, metresPerLine: null, aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null } as const;
 const pct = (a: number, b: number): number => (b > 0 ? (a / b - 1) * 100 : 0);
 const hoursOf = (trips: readonly { lines: number; stops: number; metres: number }[], s: SiteSpeeds): number =>
   trips.reduce((h, t) => h + estimateMinutes(t.metres, t.lines, t.stops, s) / 60, 0);
@@ -462,13 +464,7 @@ function runOnce(input: StudyEngineInput): StudyResults {
           label: ROUTING_LABELS[key],
           applicable: missing.length === 0 && trips.length > 0,
           reason: null,
-          metres: null,
-          metresPerTrip: null,
-          metresPerLine: null,
-          aboveBestPct: null,
-          aboveBoundPct: null,
-          hours: null,
-          hoursPerDay: null,
+          ...NO_FIGURES,
           ms: ms.get(key)!,
           solved: null,
         };
