@@ -278,17 +278,11 @@ export const RecordedWaveRow = z.object({
 });
 export type RecordedWaveRow = z.infer<typeof RecordedWaveRow>;
 
-/** Mean of a figure over the replications with its 95 % interval (Student's t, n − 1 degrees of freedom). */
-export const Interval = z.object({
-  n: z.number().int(),
-  mean: num,
-  /** Sample standard deviation; null with one replication (as are t and the bounds). */
-  sd: maybe,
-  t: maybe,
-  halfWidth: maybe,
-  low: maybe,
-  high: maybe,
-});
+/**
+ * Mean of a figure over the replications with its 95 % interval (Student's t, n − 1 degrees of freedom):
+ * sample standard deviation `sd`, `t`, `halfWidth`, `low` and `high` are null with one replication.
+ */
+export const Interval = z.object({ n: z.number().int(), mean: num, sd: maybe, t: maybe, halfWidth: maybe, low: maybe, high: maybe });
 export type Interval = z.infer<typeof Interval>;
 
 /** One method's figure in every replication (in seed order), and its interval when every replication has one. */

@@ -1,10 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { generateRectangularPlan } from '../../../server/core/plan/generate';
-import { engineParams } from '../../../server/floor-plans/floor-plans.service';
-import { generateStudyOrders } from '../../../server/studies/generate-orders';
 import { meanInterval, studentCdf, studentQuantile } from '../../../server/studies/replications';
 import { runStudy, type StudyEngineInput } from '../../../server/studies/study-engine';
 import { StudyInputs, type StudyInputsBody } from '../../../shared/studies';
+import { smallPlan, wavesOn } from './helpers';
 
 describe("Student's t interval", () => {
   it('gives the two-sided 95 % quantiles of the t table (any statistics text; 3 decimals)', () => {
@@ -87,22 +85,9 @@ describe('replications', () => {
   });
 
   it('runs each seed, keeps the first as the study and summarises every method by mean and interval, progress counting replications', () => {
-    const geometry = generateRectangularPlan(
-      engineParams({
-        aisles: 6,
-        aisleLengthM: 20,
-        aisleSpacingM: 3.2,
-        baysPerAisle: 10,
-        levels: 2,
-        bothSides: true,
-        crossAisles: { front: true, back: true, middle: 0 },
-        crossAisleWidthM: 3,
-        depot: 'front_left',
-      }),
-    );
-    const cart = { totes: 6, maxKg: 100, maxLitres: 300 };
+    const geometry = smallPlan();
     const spec = { waves: 1, ordersPerWave: 12, linesMin: 1, linesMax: 3, skus: 60, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 };
-    const draw = (seed: number) => generateStudyOrders(geometry.bins, spec, seed).map((orders, i) => ({ id: i + 1, name: `Wave ${i + 1}`, orders, cart }));
+    const draw = (seed: number) => wavesOn(geometry, spec, seed);
     const input: StudyEngineInput = {
       base: { geometry, closures: [], depotIdx: 0 },
       whatIfs: [{ label: 'Middle cross aisle', changes: [{ kind: 'add_cross_aisle', yM: 10 }] }],
