@@ -93,56 +93,38 @@ export function meanInterval(values: readonly number[]): Interval | null {
   return { n, mean, sd, t, halfWidth, low: mean - halfWidth, high: mean + halfWidth };
 }
 
-/** Per replication figures and their interval; no interval when a replication has no figure. */
-function figure(key: string, label: string, metres: (number | null)[], hoursPerDay: (number | null)[]): ReplicatedFigure {
-  const all = (xs: (number | null)[]) => (xs.every((x): x is number => x !== null) ? meanInterval(xs) : null);
-  return { key, label, metres, hoursPerDay, metresCi: all(metres), hoursPerDayCi: all(hoursPerDay) };
-}
-
 /**
  * Each method's figures across the replications (all run with the same methods and what-ifs, so their
  * variants and rows line up by key), with mean and interval; what-if differences are paired by seed.
  */
 export function summariseReplications(runs: readonly StudyResults[]): Replications {
   const first = runs[0]!;
+  type Pair = { metres: number | null; hoursPerDay: number | null } | undefined;
+  // One row's figure in every run, its interval when every run has the figure.
+  const across = (key: string, label: string, pick: (r: StudyResults) => Pair): ReplicatedFigure => {
+    const rows = runs.map(pick);
+    const metres = rows.map((r) => r?.metres ?? null);
+    const hoursPerDay = rows.map((r) => r?.hoursPerDay ?? null);
+    const all = (xs: (number | null)[]) => (xs.every((x): x is number => x !== null) ? meanInterval(xs) : null);
+    return { key, label, metres, hoursPerDay, metresCi: all(metres), hoursPerDayCi: all(hoursPerDay) };
+  };
   return {
     seeds: runs.map((r) => r.seed),
     variants: first.variants.map((v) => {
-      const same = runs.map((r) => r.variants.find((x) => x.key === v.key));
+      const on = (r: StudyResults) => r.variants.find((x) => x.key === v.key);
       return {
         key: v.key,
         label: v.label,
-        routing: v.routing.map((row) => {
-          const rows = same.map((x) => x?.routing.find((y) => y.key === row.key));
-          return figure(
-            row.key,
-            row.label,
-            rows.map((r) => r?.metres ?? null),
-            rows.map((r) => r?.hoursPerDay ?? null),
-          );
-        }),
-        batching: v.batching.map((row) => {
-          const rows = same.map((x) => x?.batching.find((y) => y.method === row.method));
-          return figure(
-            row.method,
-            row.label,
-            rows.map((r) => r?.metres ?? null),
-            rows.map((r) => r?.hoursPerDay ?? null),
-          );
-        }),
+        routing: v.routing.map((row) => across(row.key, row.label, (r) => on(r)?.routing.find((y) => y.key === row.key))),
+        batching: v.batching.map((row) => across(row.method, row.label, (r) => on(r)?.batching.find((y) => y.method === row.method))),
       };
     }),
-    whatIf: first.whatIf.map((w) => {
-      const rows = runs.map((r) => r.whatIf.find((x) => x.variant === w.variant && x.method === w.method));
-      return {
-        variant: w.variant,
-        ...figure(
-          w.method,
-          w.methodLabel,
-          rows.map((r) => r?.deltaMetres ?? null),
-          rows.map((r) => r?.deltaHoursPerDay ?? null),
-        ),
-      };
-    }),
+    whatIf: first.whatIf.map((w) => ({
+      variant: w.variant,
+      ...across(w.method, w.methodLabel, (r) => {
+        const x = r.whatIf.find((y) => y.variant === w.variant && y.method === w.method);
+        return x && { metres: x.deltaMetres, hoursPerDay: x.deltaHoursPerDay };
+      }),
+    })),
   };
 }

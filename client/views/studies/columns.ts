@@ -10,6 +10,7 @@ import { byNullable, hours2, metres1, ms0, pct2, signed } from './format';
 
 type Figures = Pick<RoutingRow, 'metres' | 'metresPerTrip' | 'metresPerLine' | 'aboveBestPct' | 'aboveBoundPct' | 'hoursPerDay' | 'ms'>;
 
+type Show = (v: number | null) => string;
 const metresPerLine = (m: number | null): string => (m === null ? '—' : `${m.toFixed(2)} m`);
 
 /** A right-aligned figure, sortable with missing figures last. */
@@ -25,27 +26,24 @@ export function withInterval(ci: Interval | null, show: (v: number | null) => st
 
 /** With several seeds: each row's mean metres and hours a day over them, with the 95 % interval. */
 function replicated<T>(seeds: number, find: (r: T) => ReplicatedFigure | undefined, signedFigures = false): DataTableColumns<T> {
-  const m = signedFigures ? (v: number | null) => signed(v, 'm', 1) : metres1;
-  const hrs = signedFigures ? (v: number | null) => signed(v, 'h') : hours2;
+  const column = (title: string, key: string, width: number, ci: (f: ReplicatedFigure) => Interval | null, show: Show, half: Show): DataTableColumn<T> => {
+    const get = (r: T) => {
+      const f = find(r);
+      return f ? ci(f) : null;
+    };
+    return {
+      title,
+      key,
+      width,
+      align: 'right',
+      className: 'num ci',
+      sorter: byNullable((r) => get(r)?.mean ?? null),
+      render: (r) => withInterval(get(r), show, half),
+    };
+  };
   return [
-    {
-      title: `Mean of ${seeds} seeds (95 % interval)`,
-      key: 'replicatedMetres',
-      align: 'right',
-      className: 'num ci',
-      width: 200,
-      sorter: byNullable((r) => find(r)?.metresCi?.mean ?? null),
-      render: (r) => withInterval(find(r)?.metresCi ?? null, m, metres1),
-    },
-    {
-      title: 'Picker hours / day, mean (95 %)',
-      key: 'replicatedHours',
-      align: 'right',
-      className: 'num ci',
-      width: 170,
-      sorter: byNullable((r) => find(r)?.hoursPerDayCi?.mean ?? null),
-      render: (r) => withInterval(find(r)?.hoursPerDayCi ?? null, hrs, hours2),
-    },
+    column(`Mean of ${seeds} seeds (95 % interval)`, 'replicatedMetres', 200, (f) => f.metresCi, signedFigures ? (v) => signed(v, 'm', 1) : metres1, metres1),
+    column('Picker hours / day, mean (95 %)', 'replicatedHours', 170, (f) => f.hoursPerDayCi, signedFigures ? (v) => signed(v, 'h') : hours2, hours2),
   ];
 }
 

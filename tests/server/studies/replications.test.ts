@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { meanInterval, studentCdf, studentQuantile } from '../../../server/studies/replications';
-import { runStudy, type StudyEngineInput } from '../../../server/studies/study-engine';
+import { runStudy } from '../../../server/studies/study-engine';
 import { StudyInputs, type StudyInputsBody } from '../../../shared/studies';
-import { smallPlan, wavesOn } from './helpers';
+import { smallPlan, smallStudy, wavesOn } from './helpers';
 
 describe("Student's t interval", () => {
   it('gives the two-sided 95 % quantiles of the t table (any statistics text; 3 decimals)', () => {
@@ -88,17 +88,10 @@ describe('replications', () => {
     const geometry = smallPlan();
     const spec = { waves: 1, ordersPerWave: 12, linesMin: 1, linesMax: 3, skus: 60, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 };
     const draw = (seed: number) => wavesOn(geometry, spec, seed);
-    const input: StudyEngineInput = {
-      base: { geometry, closures: [], depotIdx: 0 },
+    const input = smallStudy(geometry, draw(11), 11, {
       whatIfs: [{ label: 'Middle cross aisle', changes: [{ kind: 'add_cross_aisle', yM: 10 }] }],
-      waves: draw(11),
-      tripsFrom: 'savings',
-      routing: ['best+local', 's-shape'],
-      batching: ['single', 'savings'],
-      speeds: { walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 5 },
       dayScale: 2,
-      seed: 11,
-    };
+    });
     const one = runStudy(input);
     expect(one.replications).toBeNull();
     const seen: { f: number; phase: string }[] = [];

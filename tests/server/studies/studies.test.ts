@@ -59,6 +59,17 @@ async function waitDone(id: number): Promise<StudyDetail & { results: StudyResul
   throw new Error('study did not finish in 120 s');
 }
 
+/** A study's workbook download, its body as bytes. */
+const workbook = (id: number) =>
+  t.as.engineer
+    .get(`${base()}/${id}/export.xlsx`)
+    .buffer(true)
+    .parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+
 async function start(body: StudyInputsBody): Promise<StudySummary> {
   const res = await t.as.engineer.post(base()).set(csrf).send(body);
   expect(res.status, JSON.stringify(res.body)).toBe(202);
@@ -178,14 +189,7 @@ describe('studies', () => {
   });
 
   it('exports a workbook whose sheets hold the same figures as the page', async () => {
-    const res = await t.as.engineer
-      .get(`${base()}/${first.id}/export.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await workbook(first.id);
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     expect(wb.SheetNames[0]).toBe('inputs');
@@ -216,14 +220,7 @@ describe('studies', () => {
     const mean = sShape.metres.reduce<number>((a, m) => a + m!, 0) / 3;
     expect(sShape.metresCi!.mean).toBeCloseTo(mean, 9);
     expect(sShape.metresCi!.high! - sShape.metresCi!.low!).toBeGreaterThan(0);
-    const res = await t.as.engineer
-      .get(`${base()}/${s.id}/export.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await workbook(s.id);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     const rows = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.replications!, { header: 1 });
     const mine = rows.filter((r) => r[1] === 'routing' && r[2] === 's-shape');
