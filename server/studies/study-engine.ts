@@ -277,14 +277,16 @@ const hoursOf = (trips: readonly { lines: number; stops: number; metres: number 
 export function runStudy(input: StudyEngineInput): StudyResults {
   const runs = [{ seed: input.seed, waves: input.waves }, ...(input.replicas ?? [])];
   const report = input.progress ?? (() => {});
-  const results = runs.map((r, i) =>
-    runOnce({
+  const results = runs.map((r, i) => {
+    const one = runOnce({
       ...input,
       ...r,
       progress: (f, phase) =>
         report(runs.length === 1 ? f : (i + f) / runs.length, runs.length === 1 ? phase : `Replication ${i + 1} of ${runs.length} (seed ${r.seed}): ${phase}`),
-    }),
-  );
+    });
+    // Only the first replication's trips are kept (tables of trips, maps); the others give their totals.
+    return i === 0 ? one : { ...one, variants: one.variants.map((v) => ({ ...v, trips: [] })) };
+  });
   const first = results[0]!;
   if (results.length === 1) return first;
   report(1, 'done');
