@@ -163,11 +163,13 @@ test('an engineer runs three replications with a candidate layout, reads means w
   await page.getByTestId('replications').locator('input').fill('3');
   await page.getByTestId('replications').locator('input').blur();
   await expect(page.getByText(/each method's mean with a 95 % interval; 3× the run time/)).toBeVisible();
+  await page.screenshot({ path: 'test-results/studies3-form.png' });
 
   // Recorded waves have nothing to replicate: the field gives way to a plain sentence.
   await page.getByText('Recorded waves', { exact: true }).click();
   await expect(page.getByTestId('replications')).toHaveCount(0);
   await expect(page.getByTestId('replications-recorded')).toContainText('Recorded waves happened once: there is nothing to replicate.');
+  await page.screenshot({ path: 'test-results/studies3-form-recorded.png' });
   await page.getByText('Generated scenario', { exact: true }).click();
   await expect(page.getByTestId('replications').locator('input')).toHaveValue('3');
 
