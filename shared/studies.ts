@@ -4,7 +4,8 @@
  * the server to validate and by the client to parse.
  */
 import { z } from 'zod';
-import { GeneratePlanParams } from './floor-plans';
+import { FloorPlanStats, GeneratePlanParams } from './floor-plans';
+import { RowIssue } from './imports';
 import { BatchingName } from './waves';
 
 /**
@@ -71,10 +72,14 @@ export const PlanChange = z.discriminatedUnion('kind', [
 ]);
 export type PlanChange = z.infer<typeof PlanChange>;
 
-export const WhatIf = z.strictObject({
-  label: z.string().trim().min(1).max(80),
-  changes: z.array(PlanChange).min(1).max(5),
-});
+export const WhatIf = z
+  .strictObject({
+    label: z.string().trim().min(1).max(80),
+    /** A candidate layout uploaded for studies (`/studies/layouts`): the what-if plan is that layout, then `changes` on it. */
+    layoutId: z.number().int().positive().optional(),
+    changes: z.array(PlanChange).max(5).default([]),
+  })
+  .refine((w) => w.layoutId !== undefined || w.changes.length > 0, { message: 'a what-if needs a change or a candidate layout', path: ['changes'] });
 export type WhatIf = z.infer<typeof WhatIf>;
 
 export const StudyPlanSource = z.discriminatedUnion('source', [
@@ -128,27 +133,54 @@ export const StudyWork = z.discriminatedUnion('kind', [
 ]);
 export type StudyWork = z.infer<typeof StudyWork>;
 
-export const StudyInputs = z.strictObject({
-  name: z.string().trim().min(1).max(120),
-  work: StudyWork,
-  routing: z
-    .array(RoutingMethodKey)
-    .min(1)
-    .default([...ROUTING_METHOD_KEYS]),
-  batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings', 'search']),
-  whatIfs: z.array(WhatIf).max(4).default([]),
-  seed: z
-    .number()
-    .int()
-    .min(0)
-    .max(2 ** 31 - 1)
-    .default(1),
-});
+export const MAX_REPLICATIONS = 30;
+export const REPLICATIONS_RECORDED_MESSAGE = 'recorded waves happened once: there is nothing to replicate, so replications stay at 1';
+
+export const StudyInputs = z
+  .strictObject({
+    name: z.string().trim().min(1).max(120),
+    work: StudyWork,
+    routing: z
+      .array(RoutingMethodKey)
+      .min(1)
+      .default([...ROUTING_METHOD_KEYS]),
+    batching: z.array(BatchingName).default(['single', 'fcfs', 'seed', 'savings', 'search']),
+    whatIfs: z.array(WhatIf).max(4).default([]),
+    seed: z
+      .number()
+      .int()
+      .min(0)
+      .max(2 ** 31 - 1)
+      .default(1),
+    /**
+     * Generated work only: the scenario is drawn and run once per seed (seed, seed + 1, …) and each
+     * method's figures are shown as a mean with a 95 % interval. Recorded waves happened once.
+     */
+    replications: z.number().int().min(1).max(MAX_REPLICATIONS).default(1),
+  })
+  .refine((s) => s.work.kind === 'generated' || s.replications === 1, {
+    message: REPLICATIONS_RECORDED_MESSAGE,
+    path: ['replications'],
+  });
 export type StudyInputs = z.infer<typeof StudyInputs>;
 export type StudyInputsBody = z.input<typeof StudyInputs>;
 
 const num = z.number();
 const maybe = num.nullable();
+
+/** The figures a routing row and a batching row share; `n` is the number schema (nullable for routing). */
+const figures = <N extends z.ZodType>(n: N) => ({
+  metres: n,
+  metresPerTrip: n,
+  metresPerLine: n,
+  aboveBestPct: n,
+  aboveBoundPct: n,
+  /** Walking plus handling at the site's speeds, for the work in the study. */
+  hours: n,
+  hoursPerDay: n,
+  /** Compute time, milliseconds (wall clock; the only figure that changes between runs). */
+  ms: num,
+});
 
 /** One routing method on one plan: the whole work routed by it. */
 export const RoutingRow = z.object({
@@ -157,16 +189,7 @@ export const RoutingRow = z.object({
   /** False when the method does not apply (layout, trip size); `reason` says why. */
   applicable: z.boolean(),
   reason: z.string().nullable(),
-  metres: maybe,
-  metresPerTrip: maybe,
-  metresPerLine: maybe,
-  aboveBestPct: maybe,
-  aboveBoundPct: maybe,
-  /** Walking plus handling at the site's speeds, for the work in the study. */
-  hours: maybe,
-  hoursPerDay: maybe,
-  /** Compute time, milliseconds (wall clock; the only figure that changes between runs). */
-  ms: num,
+  ...figures(maybe),
   /**
    * Exact method only, when some trips have too many stops for it: the trips it solved. The others are
    * counted at their lower bound, so the row's metres are then a lower bound themselves.
@@ -181,14 +204,7 @@ export const BatchingRow = z.object({
   trips: z.number().int(),
   orders: z.number().int(),
   lines: z.number().int(),
-  metres: num,
-  metresPerTrip: num,
-  metresPerLine: num,
-  aboveBestPct: num,
-  aboveBoundPct: num,
-  hours: num,
-  hoursPerDay: num,
-  ms: num,
+  ...figures(num),
 });
 export type BatchingRow = z.infer<typeof BatchingRow>;
 
@@ -212,6 +228,8 @@ export const StudyVariant = z.object({
   key: z.string(),
   label: z.string(),
   changes: z.array(PlanChange),
+  /** The candidate layout the what-if is built on, or null (the study's base plan). */
+  layoutId: z.number().int().nullable().default(null),
   layout: z.object({
     aisles: z.number().int(),
     crossAisles: z.number().int(),
@@ -260,6 +278,32 @@ export const RecordedWaveRow = z.object({
 });
 export type RecordedWaveRow = z.infer<typeof RecordedWaveRow>;
 
+/**
+ * Mean of a figure over the replications with its 95 % interval (Student's t, n − 1 degrees of freedom):
+ * sample standard deviation `sd`, `t`, `halfWidth`, `low` and `high` are null with one replication.
+ */
+export const Interval = z.object({ n: z.number().int(), mean: num, sd: maybe, t: maybe, halfWidth: maybe, low: maybe, high: maybe });
+export type Interval = z.infer<typeof Interval>;
+
+/** One method's figure in every replication (in seed order), and its interval when every replication has one. */
+export const ReplicatedFigure = z.object({
+  key: z.string(),
+  label: z.string(),
+  metres: z.array(maybe),
+  hoursPerDay: z.array(maybe),
+  metresCi: Interval.nullable(),
+  hoursPerDayCi: Interval.nullable(),
+});
+export type ReplicatedFigure = z.infer<typeof ReplicatedFigure>;
+
+export const Replications = z.object({
+  seeds: z.array(z.number().int()),
+  variants: z.array(z.object({ key: z.string(), label: z.string(), routing: z.array(ReplicatedFigure), batching: z.array(ReplicatedFigure) })),
+  /** What-if differences paired by seed: `metres` and `hoursPerDay` hold the differences. */
+  whatIf: z.array(ReplicatedFigure.extend({ variant: z.string() })),
+});
+export type Replications = z.infer<typeof Replications>;
+
 export const StudyResults = z.object({
   seed: z.number().int(),
   speeds: z.object({ walkingSpeedMps: num, secondsPerLine: num, secondsPerStop: num }),
@@ -272,6 +316,8 @@ export const StudyResults = z.object({
   recorded: z.array(RecordedWaveRow).nullable(),
   notes: z.array(z.string()),
   ms: num,
+  /** With more than one replication: every method's figures per seed, mean and interval. The rest is the first seed's. */
+  replications: Replications.nullable().default(null),
 });
 export type StudyResults = z.infer<typeof StudyResults>;
 
@@ -291,8 +337,33 @@ export const StudySummary = z.object({
   finishedAt: z.string().nullable(),
   rerunOf: z.number().int().nullable(),
   error: z.string().nullable(),
+  /** Set while the study is archived: hidden from the default list, kept whole. */
+  archivedAt: z.string().nullable().default(null),
 });
 export type StudySummary = z.infer<typeof StudySummary>;
+
+/** The studies list: archived studies are left out unless asked for. */
+export const StudyListQuery = z.strictObject({ archived: z.enum(['hide', 'include']).default('hide') });
+
+/** A candidate layout uploaded for what-if studies: a floor-plan workbook checked like a plan upload, never a plan of the site. */
+export const CandidateLayout = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  filename: z.string(),
+  stats: FloorPlanStats,
+  createdBy: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type CandidateLayout = z.infer<typeof CandidateLayout>;
+
+/** The answer to a candidate upload: the row-by-row problems (nothing saved), or the saved layout. */
+export const CandidateLayoutUpload = z.object({
+  ok: z.boolean(),
+  errors: z.array(RowIssue),
+  warnings: z.array(RowIssue),
+  layout: CandidateLayout.nullable(),
+});
+export type CandidateLayoutUpload = z.infer<typeof CandidateLayoutUpload>;
 
 export const StudyDetail = StudySummary.extend({
   inputs: StudyInputs,

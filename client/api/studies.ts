@@ -1,8 +1,9 @@
 import { z } from 'zod';
 import { PlanGeometry } from '@shared/floor-plans';
-import { StudyDetail, StudyRoute, StudySummary, type RoutingMethodKey, type StudyInputsBody } from '@shared/studies';
+import { CandidateLayout, CandidateLayoutUpload, StudyDetail, StudyRoute, StudySummary, type RoutingMethodKey, type StudyInputsBody } from '@shared/studies';
 import { Ok } from '@shared/common';
 import { http } from './http';
+import { uploadFile } from './upload';
 
 const base = (siteId: number) => `/api/sites/${siteId}/studies`;
 
@@ -12,7 +13,15 @@ export const StudyPlan = z.object({
 });
 export type StudyPlan = z.infer<typeof StudyPlan>;
 
-export const listStudies = (siteId: number) => http('GET', base(siteId), StudySummary.array());
+/** `withArchived`: archived studies too (the "Show archived" toggle). */
+export const listStudies = (siteId: number, withArchived = false) =>
+  http('GET', withArchived ? `${base(siteId)}?archived=include` : base(siteId), StudySummary.array());
+export const archiveStudy = (siteId: number, id: number, archived: boolean) =>
+  http('POST', `${base(siteId)}/${id}/${archived ? 'archive' : 'unarchive'}`, StudySummary);
+export const listCandidateLayouts = (siteId: number) => http('GET', `${base(siteId)}/layouts`, CandidateLayout.array());
+/** A candidate layout workbook for a what-if; the answer holds the row-by-row problems when it was refused. */
+export const uploadCandidateLayout = (siteId: number, file: Blob, filename: string, onProgress?: (fraction: number) => void) =>
+  uploadFile(`${base(siteId)}/layouts`, file, filename, CandidateLayoutUpload, onProgress);
 export const getStudy = (siteId: number, id: number) => http('GET', `${base(siteId)}/${id}`, StudyDetail);
 export const createStudy = (siteId: number, body: StudyInputsBody) => http('POST', base(siteId), StudySummary, { body });
 export const cancelStudy = (siteId: number, id: number) => http('POST', `${base(siteId)}/${id}/cancel`, StudySummary);

@@ -6,7 +6,7 @@ import * as XLSX from 'xlsx';
 import { neutraliseCells } from '../../shared/input-rules';
 import { formatInZone } from '../../shared/time-zone';
 import { BATCHING_LABELS } from '../../shared/waves';
-import type { StudyDetail, StudyResults } from '../../shared/studies';
+import type { ReplicatedFigure, Replications, RoutingRow, StudyDetail, StudyResults } from '../../shared/studies';
 import { ROUTING_LABELS } from '../../shared/studies';
 
 const r1 = (v: number | null): number | string => (v === null ? '' : Math.round(v * 10) / 10);
@@ -19,34 +19,42 @@ const sheetOf = (rows: (string | number)[][]) => XLSX.utils.aoa_to_sheet(neutral
 /** Sheet names are at most 31 characters and unique. */
 const sheetName = (base: string, variant: number): string => (variant === 0 ? base : `${base} what-if ${variant}`).slice(0, 31);
 
-export const ROUTING_HEADER = [
-  'method',
-  'label',
-  'total m',
-  'm per trip',
-  'm per line',
-  '% above best',
-  '% above lower bound',
-  'picker hours',
-  'picker hours per day',
-  'compute ms',
-  'note',
+/** The figures a routing and a batching row share, in this order. */
+const FIGURE_HEADER = ['total m', 'm per trip', 'm per line', '% above best', '% above lower bound', 'picker hours', 'picker hours per day', 'compute ms'];
+const ROUTING_HEADER = ['method', 'label', ...FIGURE_HEADER, 'note'];
+const BATCHING_HEADER = ['batching', 'label', 'trips', 'orders', 'lines', ...FIGURE_HEADER];
+
+type Figures = Pick<RoutingRow, 'metres' | 'metresPerTrip' | 'metresPerLine' | 'aboveBestPct' | 'aboveBoundPct' | 'hours' | 'hoursPerDay' | 'ms'>;
+const figureCells = (r: Figures): (number | string)[] => [
+  r1(r.metres),
+  r1(r.metresPerTrip),
+  r2(r.metresPerLine),
+  r2(r.aboveBestPct),
+  r2(r.aboveBoundPct),
+  r2(r.hours),
+  r2(r.hoursPerDay),
+  r0(r.ms),
 ];
-export const BATCHING_HEADER = [
-  'batching',
-  'label',
-  'trips',
-  'orders',
-  'lines',
-  'total m',
-  'm per trip',
-  'm per line',
-  '% above best',
-  '% above lower bound',
-  'picker hours',
-  'picker hours per day',
-  'compute ms',
-];
+
+/** Every seed's figures of each method, then the mean and its 95 % interval, one block of rows per method. */
+function replicationRows(rep: Replications): (string | number)[][] {
+  const rows: (string | number)[][] = [['plan', 'table', 'method', 'label', 'row', 'total m', 'picker hours per day']];
+  const block = (plan: string, table: string, f: ReplicatedFigure) => {
+    f.metres.forEach((m, i) => rows.push([plan, table, f.key, f.label, `seed ${rep.seeds[i]}`, r1(m), r2(f.hoursPerDay[i] ?? null)]));
+    const [m, h] = [f.metresCi, f.hoursPerDayCi];
+    rows.push([plan, table, f.key, f.label, `mean of ${f.metres.length}`, r1(m?.mean ?? null), r2(h?.mean ?? null)]);
+    rows.push([plan, table, f.key, f.label, 'standard deviation', r1(m?.sd ?? null), r2(h?.sd ?? null)]);
+    rows.push([plan, table, f.key, f.label, `t (0.975, ${f.metres.length - 1} degrees of freedom)`, r2(m?.t ?? h?.t ?? null), '']);
+    rows.push([plan, table, f.key, f.label, '95 % interval low', r1(m?.low ?? null), r2(h?.low ?? null)]);
+    rows.push([plan, table, f.key, f.label, '95 % interval high', r1(m?.high ?? null), r2(h?.high ?? null)]);
+  };
+  for (const v of rep.variants) {
+    for (const f of v.routing) block(v.label, 'routing', f);
+    for (const f of v.batching) block(v.label, 'batching', f);
+  }
+  for (const f of rep.whatIf) block(rep.variants.find((v) => v.key === f.variant)?.label ?? f.variant, 'what-if difference', f);
+  return rows;
+}
 
 /** `timeZone`: the site's IANA zone; the created time is written in it, and the zone named. */
 export function studyWorkbook(study: StudyDetail & { results: StudyResults }, timeZone = 'UTC'): Buffer {
@@ -56,6 +64,7 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }, ti
     ['study', study.name],
     ['id', study.id],
     ['seed', study.seed],
+    ['replications', res.replications ? `${res.replications.seeds.length} (seeds ${res.replications.seeds.join(', ')}); other sheets: seed ${study.seed}` : 1],
     [`created (${timeZone})`, formatInZone(study.createdAt, timeZone)],
     ['created by', study.createdBy ?? ''],
     ['work', study.inputs.work.kind],
@@ -76,42 +85,12 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }, ti
   XLSX.utils.book_append_sheet(wb, sheetOf(inputs), 'inputs');
 
   res.variants.forEach((v, vi) => {
-    const routing = [
-      [`${v.label}`],
-      ROUTING_HEADER,
-      ...v.routing.map((r) => [
-        r.key,
-        r.label,
-        r1(r.metres),
-        r1(r.metresPerTrip),
-        r2(r.metresPerLine),
-        r2(r.aboveBestPct),
-        r2(r.aboveBoundPct),
-        r2(r.hours),
-        r2(r.hoursPerDay),
-        r0(r.ms),
-        r.reason ?? '',
-      ]),
-    ];
+    const routing = [[`${v.label}`], ROUTING_HEADER, ...v.routing.map((r) => [r.key, r.label, ...figureCells(r), r.reason ?? ''])];
     XLSX.utils.book_append_sheet(wb, sheetOf(routing), sheetName('routing', vi));
     const batching = [
       [`${v.label}`],
       BATCHING_HEADER,
-      ...v.batching.map((b) => [
-        b.method,
-        BATCHING_LABELS[b.method],
-        b.trips,
-        b.orders,
-        b.lines,
-        r1(b.metres),
-        r1(b.metresPerTrip),
-        r2(b.metresPerLine),
-        r2(b.aboveBestPct),
-        r2(b.aboveBoundPct),
-        r2(b.hours),
-        r2(b.hoursPerDay),
-        r0(b.ms),
-      ]),
+      ...v.batching.map((b) => [b.method, BATCHING_LABELS[b.method], b.trips, b.orders, b.lines, ...figureCells(b)]),
     ];
     XLSX.utils.book_append_sheet(wb, sheetOf(batching), sheetName('batching', vi));
     const keys = v.routing.map((r) => r.key);
@@ -166,5 +145,6 @@ export function studyWorkbook(study: StudyDetail & { results: StudyResults }, ti
     ];
     XLSX.utils.book_append_sheet(wb, sheetOf(rows), 'recorded waves');
   }
+  if (res.replications) XLSX.utils.book_append_sheet(wb, sheetOf(replicationRows(res.replications)), 'replications');
   return XLSX.write(wb, { type: 'buffer', bookType: 'xlsx', compression: true }) as Buffer;
 }

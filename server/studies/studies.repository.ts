@@ -16,9 +16,10 @@ export interface DbStudyRow {
   created_by: number | null;
   created_at: string;
   finished_at: string | null;
+  archived_at: string | null;
 }
 
-export async function insertStudy(db: Q, row: Omit<DbStudyRow, 'id' | 'results' | 'error' | 'finished_at'>): Promise<number> {
+export async function insertStudy(db: Q, row: Omit<DbStudyRow, 'id' | 'results' | 'error' | 'finished_at' | 'archived_at'>): Promise<number> {
   const [{ id }] = await db('studies').insert(row, 'id');
   return id as number;
 }
@@ -29,10 +30,14 @@ export const getStudyRow = (db: Q, siteId: number, id: number): Promise<(DbStudy
     .where({ 'studies.site_id': siteId, 'studies.id': id })
     .first('studies.*', 'users.name as creator');
 
-export const listStudyRows = (db: Q, siteId: number): Promise<(Omit<DbStudyRow, 'results' | 'inputs'> & { creator: string | null })[]> =>
+/** The site's studies, newest first; archived ones only when `withArchived`. */
+export const listStudyRows = (db: Q, siteId: number, withArchived: boolean): Promise<(Omit<DbStudyRow, 'results' | 'inputs'> & { creator: string | null })[]> =>
   db('studies')
     .leftJoin('users', 'users.id', 'studies.created_by')
     .where({ 'studies.site_id': siteId })
+    .modify((q) => {
+      if (!withArchived) q.whereNull('studies.archived_at');
+    })
     .orderBy('studies.id', 'desc')
     .select(
       'studies.id',
@@ -46,10 +51,15 @@ export const listStudyRows = (db: Q, siteId: number): Promise<(Omit<DbStudyRow, 
       'studies.created_by',
       'studies.created_at',
       'studies.finished_at',
+      'studies.archived_at',
       'users.name as creator',
     );
 
-export async function setStudyStatus(db: Q, id: number, patch: Partial<Pick<DbStudyRow, 'status' | 'results' | 'error' | 'finished_at'>>): Promise<void> {
+export async function setStudyStatus(
+  db: Q,
+  id: number,
+  patch: Partial<Pick<DbStudyRow, 'status' | 'results' | 'error' | 'finished_at' | 'archived_at'>>,
+): Promise<void> {
   await db('studies').where({ id }).update(patch);
 }
 
@@ -71,6 +81,7 @@ export function toSummary(
     finishedAt: r.finished_at,
     rerunOf: r.rerun_of,
     error: r.error,
+    archivedAt: r.archived_at,
   };
 }
 
@@ -163,3 +174,40 @@ export const orderFacts = (db: Q, siteId: number, refs: string[]): Promise<DbOrd
   db('orders').where({ site_id: siteId }).whereIn('ref', refs).select<DbOrderFacts[]>('ref', 'due', 'priority', 'created_at', 'id');
 
 export const deleteStudyRow = (db: Q, siteId: number, id: number): Promise<number> => db('studies').where({ site_id: siteId, id }).del();
+
+export interface DbStudyLayoutRow {
+  id: number;
+  site_id: number;
+  name: string;
+  filename: string;
+  geometry: string;
+  stats: string;
+  created_by: number | null;
+  created_at: string;
+}
+
+export async function insertStudyLayout(db: Q, row: Omit<DbStudyLayoutRow, 'id'>): Promise<number> {
+  const [{ id }] = await db('study_layouts').insert(row, 'id');
+  return id as number;
+}
+
+/** One candidate layout of the site with its geometry. */
+export const getStudyLayoutRow = (db: Q, siteId: number, id: number): Promise<DbStudyLayoutRow | undefined> =>
+  db<DbStudyLayoutRow>('study_layouts').where({ site_id: siteId, id }).first();
+
+/** The site's candidate layouts, newest first, without their geometry. */
+export const listStudyLayoutRows = (db: Q, siteId: number): Promise<(Omit<DbStudyLayoutRow, 'geometry'> & { creator: string | null })[]> =>
+  db('study_layouts')
+    .leftJoin('users', 'users.id', 'study_layouts.created_by')
+    .where({ 'study_layouts.site_id': siteId })
+    .orderBy('study_layouts.id', 'desc')
+    .select(
+      'study_layouts.id',
+      'study_layouts.site_id',
+      'study_layouts.name',
+      'study_layouts.filename',
+      'study_layouts.stats',
+      'study_layouts.created_by',
+      'study_layouts.created_at',
+      'users.name as creator',
+    );

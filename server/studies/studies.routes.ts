@@ -1,13 +1,36 @@
 import { z } from 'zod';
 import { PlanGeometry } from '../../shared/floor-plans';
 import { Ok } from '../../shared/common';
-import { StudyDetail, StudyInputs, StudyRoute, StudyRouteQuery, StudySummary } from '../../shared/studies';
+import {
+  CandidateLayout,
+  CandidateLayoutUpload,
+  StudyDetail,
+  StudyInputs,
+  StudyListQuery,
+  StudyRoute,
+  StudyRouteQuery,
+  StudySummary,
+} from '../../shared/studies';
+import { AppError } from '../http/errors';
 import { pathId } from '../http/path-id';
 import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import { defineRoute } from '../http/route';
 import { studyWorkbook } from './export';
 import { siteTimeZone } from '../sites/sites.repository';
-import { cancelStudy, createStudy, deleteStudy, doneStudy, getStudy, listStudies, rerunStudy, studyPlan, studyRoute } from './studies.service';
+import {
+  archiveStudy,
+  cancelStudy,
+  createStudy,
+  deleteStudy,
+  doneStudy,
+  getStudy,
+  listCandidateLayouts,
+  listStudies,
+  rerunStudy,
+  studyPlan,
+  studyRoute,
+  uploadCandidateLayout,
+} from './studies.service';
 
 /** Engineers run studies; supervisors read and run them too. Pickers and admins are not given them. */
 const STUDY_ROLES = ['engineer', 'supervisor'] as const;
@@ -24,9 +47,38 @@ export const studyRoutes = [
     method: 'get',
     path: base,
     access: STUDY_ROLES,
-    summary: "The site's studies, newest first",
+    summary: "The site's studies, newest first; archived ones only with ?archived=include",
+    query: StudyListQuery,
     response: z.array(StudySummary),
-    handler: ({ deps, siteId }) => listStudies(deps, siteId),
+    handler: ({ deps, siteId, query }) => listStudies(deps, siteId, query.archived === 'include'),
+  }),
+  defineRoute({
+    method: 'get',
+    path: `${base}/layouts`,
+    access: STUDY_ROLES,
+    summary: 'Candidate layouts uploaded for what-if studies, newest first',
+    response: z.array(CandidateLayout),
+    handler: ({ deps, siteId }) => listCandidateLayouts(deps, siteId),
+  }),
+  defineRoute({
+    method: 'post',
+    path: `${base}/layouts`,
+    access: STUDY_ROLES,
+    upload: 'single-file',
+    summary:
+      'Upload a candidate layout for a what-if (a floor-plan workbook, multipart field "file", optional field "name"); checked like a plan upload: any problem → nothing saved, the problems row by row',
+    response: CandidateLayoutUpload,
+    handler: ({ deps, req, siteId, user }) => {
+      const file = req.file;
+      if (!file)
+        throw new AppError('validation', 'validation_failed', 'Send the workbook in the multipart field "file"', [{ field: 'file', message: 'required' }]);
+      const name = (req.body as { name?: unknown } | undefined)?.name;
+      return uploadCandidateLayout(deps, siteId, user.id, {
+        bytes: new Uint8Array(file.buffer),
+        filename: file.originalname,
+        ...(typeof name === 'string' ? { name: name.slice(0, 120) } : {}),
+      });
+    },
   }),
   defineRoute({
     method: 'post',
@@ -50,9 +102,25 @@ export const studyRoutes = [
     method: 'delete',
     path: `${base}/:id`,
     access: STUDY_ROLES,
-    summary: 'Delete a study that is not running (reruns of it stay)',
+    summary: 'Delete a study that is not running (reruns of it stay); audited',
     response: Ok,
-    handler: ({ deps, siteId, params }) => deleteStudy(deps, siteId, idOf(params)),
+    handler: ({ deps, siteId, user, params }) => deleteStudy(deps, siteId, user.id, idOf(params)),
+  }),
+  defineRoute({
+    method: 'post',
+    path: `${base}/:id/archive`,
+    access: STUDY_ROLES,
+    summary: 'Archive a study that is not running: hidden from the default list, kept whole',
+    response: StudySummary,
+    handler: ({ deps, siteId, user, params }) => archiveStudy(deps, siteId, user.id, idOf(params), true),
+  }),
+  defineRoute({
+    method: 'post',
+    path: `${base}/:id/unarchive`,
+    access: STUDY_ROLES,
+    summary: 'Bring an archived study back to the default list',
+    response: StudySummary,
+    handler: ({ deps, siteId, user, params }) => archiveStudy(deps, siteId, user.id, idOf(params), false),
   }),
   defineRoute({
     method: 'post',

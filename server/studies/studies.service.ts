@@ -14,9 +14,13 @@ import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repositor
 import { jobStopMessage, runInWorker } from '../workers/spawn';
 import { isActive, type JobContext, type JobKind, type JobRecord } from '../workers/jobs';
 import type { PlannerOrder } from '../waves/wave-planner';
+import { audit } from '../audit/audit';
+import { checkFloorPlanFile } from '../floor-plans/import';
 import {
   ROUTING_LABELS,
   StudyInputs,
+  type CandidateLayout,
+  type CandidateLayoutUpload,
   type RoutingMethodKey,
   type StudyDetail,
   type StudyInputsBody,
@@ -35,13 +39,17 @@ import {
   type StudyEngineInput,
   type StudyPlanInput,
   type StudyWave,
+  type StudyWhatIf,
 } from './study-engine';
 import { generateStudyOrders } from './generate-orders';
 import type { StudyProgress } from './study.worker';
 import {
   deleteStudyRow,
+  getStudyLayoutRow,
   getStudyRow,
   insertStudy,
+  insertStudyLayout,
+  listStudyLayoutRows,
   linesOfTrips,
   listStudyRows,
   orderFacts,
@@ -52,6 +60,7 @@ import {
   toDetail,
   toSummary,
   tripsOfWaves,
+  type DbStudyLayoutRow,
 } from './studies.repository';
 
 /** A queued or running row without a live job this long after it was saved was cut off. */
@@ -176,6 +185,34 @@ async function cartOf(db: Knex, siteId: number, cartProfileId: number | undefine
   return { totes: c.totes, maxKg: c.maxKg, maxLitres: c.maxLitres };
 }
 
+/**
+ * A candidate layout as a what-if plan: its own geometry, no closures, the depot of the base plan's
+ * code (else its first). Refused when it shares no bin code with the base plan: no order of the
+ * study could be placed on it, so it would compare nothing.
+ */
+async function candidatePlan(db: Knex, siteId: number, layoutId: number, base: StudyPlanInput, i: number): Promise<StudyPlanInput> {
+  const row = await getStudyLayoutRow(db, siteId, layoutId);
+  if (!row)
+    throw new AppError('validation', 'validation_failed', 'Unknown candidate layout; upload it again', [
+      { field: `whatIfs.${i}.layoutId`, message: 'no such candidate layout on this site' },
+    ]);
+  const geometry = JSON.parse(row.geometry) as PlanGeometry;
+  const baseBins = new Set(base.geometry.bins.map((b) => b.code));
+  if (!geometry.bins.some((b) => baseBins.has(b.code))) {
+    const message = `the candidate layout "${row.name}" has none of the plan's bin codes, so no order could be placed on it; keep the site's bin codes in the candidate workbook`;
+    throw new AppError('validation', 'validation_failed', message, [{ field: `whatIfs.${i}.layoutId`, message }]);
+  }
+  const code = base.geometry.depots[base.depotIdx]?.code;
+  return {
+    geometry,
+    closures: [],
+    depotIdx: Math.max(
+      0,
+      geometry.depots.findIndex((d) => d.code === code),
+    ),
+  };
+}
+
 /** Everything the worker needs, read from the database and generated from the seed. */
 async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promise<Work> {
   const site = (await getSiteRow(db, siteId))!;
@@ -183,6 +220,7 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
   let waves: StudyWave[];
   let base: StudyPlanInput;
   let dayScale: number;
+  let replicas: { seed: number; waves: StudyWave[] }[] = [];
   if (inputs.work.kind === 'recorded') {
     const r = await recordedWork(db, siteId, inputs);
     waves = r.waves;
@@ -192,21 +230,31 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
     const w = inputs.work;
     base = await basePlanOf(db, siteId, inputs, null, 0);
     const cart = w.cart ?? (await cartOf(db, siteId, w.cartProfileId));
-    waves = generateStudyOrders(base.geometry.bins, w.orders, inputs.seed).map((orders, i) => ({ id: i + 1, name: `Generated wave ${i + 1}`, orders, cart }));
+    const draw = (seed: number): StudyWave[] =>
+      generateStudyOrders(base.geometry.bins, w.orders, seed).map((orders, i) => ({ id: i + 1, name: `Generated wave ${i + 1}`, orders, cart }));
+    waves = draw(inputs.seed);
+    // Replication r (from 0) draws with seed + r, wrapping within the seed's range.
+    replicas = Array.from({ length: inputs.replications - 1 }, (_, r) => {
+      const seed = (inputs.seed + r + 1) % 2 ** 31;
+      return { seed, waves: draw(seed) };
+    });
     dayScale = w.wavesPerDay / w.orders.waves;
   }
-  inputs.whatIfs.forEach((wi, i) => {
+  const whatIfs: StudyWhatIf[] = [];
+  for (const [i, wi] of inputs.whatIfs.entries()) {
+    const layout = wi.layoutId === undefined ? undefined : await candidatePlan(db, siteId, wi.layoutId, base, i);
     try {
-      applyChanges(base, wi.changes);
+      applyChanges(layout ?? base, wi.changes);
     } catch (e) {
       if (!(e instanceof StudyInputError)) throw e;
       const field = `whatIfs.${i}${e.field ? `.${e.field}` : ''}`;
       throw new AppError('validation', 'validation_failed', `What-if "${wi.label}": ${e.message}`, [{ field, message: e.message }]);
     }
-  });
+    whatIfs.push(layout ? { ...wi, layout } : wi);
+  }
   return {
     base,
-    whatIfs: inputs.whatIfs,
+    whatIfs,
     waves,
     tripsFrom: inputs.work.kind === 'recorded' ? 'recorded' : inputs.work.batching,
     routing: inputs.routing,
@@ -214,6 +262,7 @@ async function prepareWork(db: Knex, siteId: number, inputs: StudyInputs): Promi
     speeds,
     dayScale,
     seed: inputs.seed,
+    replicas,
   };
 }
 
@@ -323,8 +372,8 @@ async function settleOrphan<T extends { id: number; site_id: number; status: str
   return row;
 }
 
-export async function listStudies(deps: Deps, siteId: number): Promise<StudySummary[]> {
-  const rows = await listStudyRows(deps.db, siteId);
+export async function listStudies(deps: Deps, siteId: number, withArchived = false): Promise<StudySummary[]> {
+  const rows = await listStudyRows(deps.db, siteId, withArchived);
   return Promise.all(
     rows.map(async (r) => {
       const job = r.status === 'queued' || r.status === 'running' ? await studyJobOf(deps, r.id) : null;
@@ -351,15 +400,71 @@ export async function cancelStudy(deps: Deps, siteId: number, id: number): Promi
   return (await getStudySummary(deps, siteId, id))!;
 }
 
-/** Deletes a finished, failed or cancelled study (a running one is cancelled first); reruns of it keep their figures. */
-export async function deleteStudy(deps: Deps, siteId: number, id: number): Promise<{ ok: true }> {
+/** A study that is not queued or running, or a 409 naming what to do. */
+async function settledStudy(deps: Deps, siteId: number, id: number, doing: string) {
   const row = await getStudyRow(deps.db, siteId, id);
   if (!row) throw notFound('Study');
-  if (isActive(await studyJobOf(deps, id))) throw new AppError('conflict', 'study_running', 'This study is still running; cancel it before deleting it');
+  if (isActive(await studyJobOf(deps, id))) throw new AppError('conflict', 'study_running', `This study is still running; cancel it before ${doing} it`);
+  return row;
+}
+
+/** Deletes a finished, failed or cancelled study (a running one is cancelled first); reruns of it keep their figures. Audited. */
+export async function deleteStudy(deps: Deps, siteId: number, userId: number, id: number): Promise<{ ok: true }> {
+  const row = await settledStudy(deps, siteId, id, 'deleting');
   await deleteStudyRow(deps.db, siteId, id);
+  await audit(deps.db, { siteId, userId, action: 'study.deleted', subject: row.name, detail: { studyId: id, status: row.status } });
   const planCache = planCacheOf(deps.db);
   for (const key of [...planCache.keys()]) if (key.startsWith(`${id}:`)) planCache.delete(key);
   return { ok: true };
+}
+
+/** Archives (hides from the default list) or unarchives a study that is not running; audited. Doing it twice changes nothing. */
+export async function archiveStudy(deps: Deps, siteId: number, userId: number, id: number, archived: boolean): Promise<StudySummary> {
+  const row = await settledStudy(deps, siteId, id, archived ? 'archiving' : 'unarchiving');
+  if ((row.archived_at !== null) !== archived) {
+    await setStudyStatus(deps.db, id, { archived_at: archived ? nowIso() : null });
+    await audit(deps.db, { siteId, userId, action: archived ? 'study.archived' : 'study.unarchived', subject: row.name, detail: { studyId: id } });
+  }
+  return (await getStudySummary(deps, siteId, id))!;
+}
+
+const layoutOf = (r: Omit<DbStudyLayoutRow, 'geometry'> & { creator: string | null }): CandidateLayout => ({
+  id: r.id,
+  name: r.name,
+  filename: r.filename,
+  stats: JSON.parse(r.stats) as CandidateLayout['stats'],
+  createdBy: r.creator,
+  createdAt: r.created_at,
+});
+
+/**
+ * A candidate layout for what-if studies: the workbook is checked by the floor-plan upload's own check
+ * (same sheets, same row-by-row problems); with any error nothing is saved and the problems are answered.
+ */
+export async function uploadCandidateLayout(
+  deps: Deps,
+  siteId: number,
+  userId: number,
+  file: { bytes: Uint8Array; filename: string; name?: string },
+): Promise<CandidateLayoutUpload> {
+  const check = await checkFloorPlanFile(file.bytes, file.filename);
+  if (!check.ok || !check.plan) return { ok: false, errors: check.errors, warnings: check.warnings, layout: null };
+  const name = file.name?.trim() || file.filename.replace(/\.(xlsx|xls|csv)$/i, '').trim() || 'Candidate layout';
+  const id = await insertStudyLayout(deps.db, {
+    site_id: siteId,
+    name: name.slice(0, 120),
+    filename: file.filename.slice(0, 200),
+    geometry: JSON.stringify(check.plan),
+    stats: JSON.stringify(check.stats),
+    created_by: userId,
+    created_at: nowIso(),
+  });
+  const layout = (await listStudyLayoutRows(deps.db, siteId)).find((r) => r.id === id)!;
+  return { ok: true, errors: [], warnings: check.warnings, layout: layoutOf(layout) };
+}
+
+export async function listCandidateLayouts(deps: Deps, siteId: number): Promise<CandidateLayout[]> {
+  return (await listStudyLayoutRows(deps.db, siteId)).map(layoutOf);
 }
 
 /** A new study with the same inputs and seed (named "… (rerun)"). */
@@ -399,7 +504,8 @@ async function variantPlan(db: Knex, siteId: number, detail: StudyDetail, varian
     depotIdx = r.depotIdx;
   }
   const base = await basePlanOf(db, siteId, detail.inputs, recordedPlanId, depotIdx);
-  const built = buildPlan(v.changes.length ? applyChanges(base, v.changes) : base);
+  const on = v.layoutId === null ? base : await candidatePlan(db, siteId, v.layoutId, base, 0);
+  const built = buildPlan(v.changes.length ? applyChanges(on, v.changes) : on);
   planCache.set(key, built);
   while (planCache.size > PLAN_CACHE_LIMIT) planCache.delete(planCache.keys().next().value!);
   return built;

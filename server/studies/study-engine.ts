@@ -30,6 +30,7 @@ import {
 import { HELD_KARP_MAX_POINTS, heldKarpBound, solveTour } from '../core/tour/index';
 import { estimateMinutes, type PlannerOrder, type SiteSpeeds } from '../waves/wave-planner';
 import { BATCHING_LABELS, type BatchingName } from '../../shared/waves';
+import { summariseReplications } from './replications';
 import {
   DEFAULT_ROUTING,
   ROUTING_LABELS,
@@ -87,9 +88,12 @@ export interface StudyWave {
   recorded?: RecordedTrip[];
 }
 
+/** A what-if as the engine gets it: on a candidate layout when `layout` is given, else on the base plan. */
+export type StudyWhatIf = WhatIf & { layout?: StudyPlanInput };
+
 export interface StudyEngineInput {
   base: StudyPlanInput;
-  whatIfs: WhatIf[];
+  whatIfs: StudyWhatIf[];
   waves: StudyWave[];
   /** Trips compared by the routing methods: as recorded, or batched by this method. */
   tripsFrom: 'recorded' | BatchingName;
@@ -98,6 +102,8 @@ export interface StudyEngineInput {
   speeds: SiteSpeeds;
   dayScale: number;
   seed: number;
+  /** Further replications of generated work: the same scenario drawn with another seed (waves of that draw). */
+  replicas?: { seed: number; waves: StudyWave[] }[];
   progress?: (fraction: number, phase: string) => void;
 }
 
@@ -257,18 +263,55 @@ function oncePerOrder(list: readonly { order: string; reason: string }[]): { ord
   const seen = new Set<string>();
   return list.filter((u) => !seen.has(u.order) && seen.add(u.order));
 }
+/** A routing row's figures before they are known (or when the method does not apply). */
+const NO_FIGURES = { metres: null, metresPerTrip: null, metresPerLine: null, aboveBestPct: null, aboveBoundPct: null, hours: null, hoursPerDay: null } as const;
 const pct = (a: number, b: number): number => (b > 0 ? (a / b - 1) * 100 : 0);
 const hoursOf = (trips: readonly { lines: number; stops: number; metres: number }[], s: SiteSpeeds): number =>
   trips.reduce((h, t) => h + estimateMinutes(t.metres, t.lines, t.stops, s) / 60, 0);
 
-/** Runs the whole study. Cost: per plan, the build plus (methods × trips) routings and one bound per trip. */
+/**
+ * Runs the whole study, once per replication (the first on `waves` and `seed`, then each replica),
+ * progress counting replications. The results are the first replication's, with every replication's
+ * figures, means and intervals in `replications` when there is more than one.
+ */
 export function runStudy(input: StudyEngineInput): StudyResults {
+  const runs = [{ seed: input.seed, waves: input.waves }, ...(input.replicas ?? [])];
+  const report = input.progress ?? (() => {});
+  const results = runs.map((r, i) => {
+    const one = runOnce({
+      ...input,
+      ...r,
+      progress: (f, phase) =>
+        report(runs.length === 1 ? f : (i + f) / runs.length, runs.length === 1 ? phase : `Replication ${i + 1} of ${runs.length} (seed ${r.seed}): ${phase}`),
+    });
+    // Only the first replication's trips are kept (tables of trips, maps); the others give their totals.
+    return i === 0 ? one : { ...one, variants: one.variants.map((v) => ({ ...v, trips: [] })) };
+  });
+  const first = results[0]!;
+  if (results.length === 1) return first;
+  report(1, 'done');
+  return {
+    ...first,
+    notes: [...new Set(results.flatMap((r) => r.notes))],
+    replications: summariseReplications(results),
+    ms: results.reduce((s, r) => s + r.ms, 0),
+  };
+}
+
+/** One replication. Cost: per plan, the build plus (methods × trips) routings and one bound per trip. */
+function runOnce(input: StudyEngineInput): StudyResults {
   const t0 = performance.now();
   const report = input.progress ?? (() => {});
   const notes: string[] = [];
-  const variantsIn: { key: string; label: string; changes: PlanChange[] }[] = [
-    { key: 'base', label: 'Plan as it is', changes: [] },
-    ...input.whatIfs.map((w, i) => ({ key: `what-if-${i + 1}`, label: w.label, changes: w.changes })),
+  const variantsIn: { key: string; label: string; changes: PlanChange[]; on: StudyPlanInput; layoutId: number | null }[] = [
+    { key: 'base', label: 'Plan as it is', changes: [], on: input.base, layoutId: null },
+    ...input.whatIfs.map((w, i) => ({
+      key: `what-if-${i + 1}`,
+      label: w.label,
+      changes: w.changes,
+      on: w.layout ?? input.base,
+      layoutId: w.layout ? (w.layoutId ?? null) : null,
+    })),
   ];
   const routingKeys = [...new Set<RoutingMethodKey>([...input.routing, DEFAULT_ROUTING])];
   const tripCount = input.waves.reduce((s, w) => s + (w.recorded?.length ?? w.orders.length), 0);
@@ -282,7 +325,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
   const variants: StudyVariant[] = [];
   let recorded: RecordedWaveRow[] | null = null;
   for (const v of variantsIn) {
-    const planInput = v.changes.length ? applyChanges(input.base, v.changes) : input.base;
+    const planInput = v.changes.length ? applyChanges(v.on, v.changes) : v.on;
     const plan = buildPlan(planInput);
     tick(1, `${v.label}: walk graph built`);
     const unplaced: { order: string; reason: string }[] = [];
@@ -423,13 +466,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
           label: ROUTING_LABELS[key],
           applicable: missing.length === 0 && trips.length > 0,
           reason: null,
-          metres: null,
-          metresPerTrip: null,
-          metresPerLine: null,
-          aboveBestPct: null,
-          aboveBoundPct: null,
-          hours: null,
-          hoursPerDay: null,
+          ...NO_FIGURES,
           ms: ms.get(key)!,
           solved: null,
         };
@@ -483,6 +520,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
       key: v.key,
       label: v.label,
       changes: v.changes,
+      layoutId: v.layoutId,
       layout: {
         aisles: planInput.geometry.aisles.length,
         crossAisles: planInput.geometry.crossAisles.length,
@@ -512,6 +550,7 @@ export function runStudy(input: StudyEngineInput): StudyResults {
     recorded,
     notes: [...new Set(notes)],
     ms: performance.now() - t0,
+    replications: null,
   };
 }
 

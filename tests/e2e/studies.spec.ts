@@ -127,3 +127,118 @@ test('the new-study form describes each method and shows a refused what-if on it
   await expect(page).toHaveURL('/studies');
   await expect(page.getByText('Browser what-if study')).toHaveCount(0);
 });
+
+interface Geometry {
+  aisles: { code: string; x: number; yStart: number; yEnd: number }[];
+  crossAisles: { code: string; y: number; xStart: number; xEnd: number }[];
+  bins: { code: string; aisle: string; y: number; side: string; level: number; zone: string | null }[];
+  depots: { code: string; x: number; y: number }[];
+}
+
+/** A floor-plan workbook in the upload's format (the template's four sheets) from a plan's geometry. */
+function planWorkbook(g: Geometry): Buffer {
+  const wb = XLSX.utils.book_new();
+  const sheet = (name: string, rows: (string | number | null)[][]) => XLSX.utils.book_append_sheet(wb, XLSX.utils.aoa_to_sheet(rows), name);
+  sheet('aisles', [['aisle', 'x_m', 'y_start_m', 'y_end_m', 'bay_length_m'], ...g.aisles.map((a) => [a.code, a.x, a.yStart, a.yEnd, null])]);
+  sheet('cross_aisles', [['cross_aisle', 'y_m', 'x_start_m', 'x_end_m'], ...g.crossAisles.map((c) => [c.code, c.y, c.xStart, c.xEnd])]);
+  sheet('bins', [['bin', 'aisle', 'y_m', 'bay', 'side', 'level', 'zone'], ...g.bins.map((b) => [b.code, b.aisle, b.y, null, b.side, b.level, b.zone])]);
+  sheet('depots', [['depot', 'x_m', 'y_m'], ...g.depots.map((d) => [d.code, d.x, d.y])]);
+  return XLSX.write(wb, { type: 'buffer', bookType: 'xlsx' }) as Buffer;
+}
+
+test('an engineer runs three replications with a candidate layout, reads means with 95 % intervals, then archives the study and brings it back', async ({
+  page,
+}) => {
+  test.setTimeout(360_000);
+  await page.setViewportSize({ width: 1366, height: 800 });
+  await signInPage(page, ENGINEER, '/studies');
+  const me = await (await page.request.get('/api/auth/me')).json();
+  const siteId = me.sites.find((s: { code: string }) => s.code === 'BWE')?.id ?? me.sites[0].id;
+  const active = (await (await page.request.get(`/api/sites/${siteId}/floor-plans/active`)).json()) as { geometry: Geometry };
+
+  await page.getByRole('button', { name: 'New study' }).click();
+  await page.getByTestId('study-name').locator('input').fill('Replicated browser study');
+  await page.getByTestId('orders-waves').locator('input').fill('1');
+  await page.getByTestId('orders-per-wave').locator('input').fill('12');
+  await page.getByTestId('replications').locator('input').fill('3');
+  await page.getByTestId('replications').locator('input').blur();
+  await expect(page.getByText(/each method's mean with a 95 % interval; 3× the run time/)).toBeVisible();
+  await page.screenshot({ path: 'test-results/studies3-form.png' });
+
+  // Recorded waves have nothing to replicate: the field gives way to a plain sentence.
+  await page.getByText('Recorded waves', { exact: true }).click();
+  await expect(page.getByTestId('replications')).toHaveCount(0);
+  await expect(page.getByTestId('replications-recorded')).toContainText('Recorded waves happened once: there is nothing to replicate.');
+  await page.screenshot({ path: 'test-results/studies3-form-recorded.png' });
+  await page.getByText('Generated scenario', { exact: true }).click();
+  await expect(page.getByTestId('replications').locator('input')).toHaveValue('3');
+
+  // A bad candidate workbook: its problems row by row, and the form keeps what was typed.
+  const bad = structuredClone(active.geometry);
+  bad.bins[0] = { ...bad.bins[0]!, aisle: 'QQ' };
+  bad.bins[2] = { ...bad.bins[2]!, code: bad.bins[1]!.code };
+  await page
+    .getByTestId('candidate-upload')
+    .locator('input[type=file]')
+    .setInputFiles({
+      name: 'candidate-bad.xlsx',
+      mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+      buffer: planWorkbook(bad),
+    });
+  const problems = page.getByTestId('candidate-problems');
+  await expect(problems).toContainText('Nothing was saved: 2 problems to fix');
+  await expect(problems.getByRole('row').filter({ hasText: 'QQ' })).toContainText('bins');
+  await expect(page.getByTestId('study-name').locator('input')).toHaveValue('Replicated browser study');
+  await expect(page.getByTestId('replications').locator('input')).toHaveValue('3');
+  await problems.scrollIntoViewIfNeeded();
+  await page.screenshot({ path: 'test-results/studies3-candidate-problems.png' });
+
+  // The site's own layout as a candidate: checked, kept for studies, added as a what-if.
+  await page
+    .getByTestId('candidate-upload')
+    .locator('input[type=file]')
+    .setInputFiles({
+      name: 'candidate-east-hall.xlsx',
+      mimeType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+      buffer: planWorkbook(active.geometry),
+    });
+  await expect(page.getByTestId('candidate-layout')).toContainText(`candidate-east-hall.xlsx: ${active.geometry.aisles.length} aisles`);
+  await expect(page.getByTestId('candidate-problems')).toHaveCount(0);
+  await page.getByRole('button', { name: 'Run study' }).click();
+  await expect(page).toHaveURL(/\/studies\/\d+$/);
+  await expect(page.getByTestId('study-phase')).toContainText(/Replication \d of 3/, { timeout: 60_000 });
+
+  const table = page.getByTestId('routing-table');
+  await expect(table).toBeVisible({ timeout: 300_000 });
+  await expect(table.getByRole('columnheader', { name: 'Mean of 3 seeds (95 % interval)' })).toBeVisible();
+  await expect(table.getByRole('row').filter({ hasText: 'S-shape (traversal)' })).toContainText(/[\d,.]+ m ± [\d,.]+ m/);
+  await expect(page.getByTestId('replications-note')).toContainText('3 replications (seeds 1, 2, 3)');
+  await expect(page.getByTestId('what-if-table')).toContainText('Candidate: candidate-east-hall');
+  await expect(page.getByTestId('chart-total').locator('canvas')).toBeVisible({ timeout: 30_000 });
+  await page.screenshot({ path: 'test-results/studies3-replications.png' });
+  await page.getByTestId('chart-total').scrollIntoViewIfNeeded();
+  await page.screenshot({ path: 'test-results/studies3-chart.png' });
+
+  const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-workbook').click()]);
+  const wb = XLSX.read(readFileSync(await download.path()), { type: 'buffer' });
+  const rep = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.replications!, { header: 1 });
+  expect(rep.filter((r) => r[2] === 's-shape' && r[1] === 'routing').map((r) => r[4])).toEqual(expect.arrayContaining(['seed 1', 'seed 3', 'mean of 3']));
+
+  // Archive: gone from the list, back with "Show archived", and unarchived from its page.
+  const studyPath = new URL(page.url()).pathname;
+  await page.getByTestId('archive-study').click();
+  await expect(page.getByTestId('archived-tag')).toBeVisible();
+  await page.goto('/studies');
+  await expect(page.getByRole('heading', { level: 1, name: 'Studies' })).toBeVisible();
+  await expect(page.getByText('Replicated browser study')).toHaveCount(0);
+  await page.getByTestId('show-archived').click();
+  const row = page.getByRole('row').filter({ hasText: 'Replicated browser study' });
+  await expect(row).toContainText('Archived');
+  await page.screenshot({ path: 'test-results/studies3-archived-list.png' });
+  await row.click();
+  await expect(page).toHaveURL(studyPath);
+  await page.getByTestId('unarchive-study').click();
+  await expect(page.getByTestId('archived-tag')).toHaveCount(0);
+  await page.goto('/studies');
+  await expect(page.getByText('Replicated browser study')).toBeVisible();
+});

@@ -1,11 +1,5 @@
-import type { StudyStatus } from '@shared/studies';
-
-export const STATUS_LABEL: Record<StudyStatus, string> = { queued: 'Queued', running: 'Running', done: 'Done', failed: 'Failed', cancelled: 'Cancelled' };
-/** Tag colours always come with the word, never alone. */
-export const STATUS_TYPE: Record<StudyStatus, 'default' | 'info' | 'success' | 'error' | 'warning'> = {
-  queued: 'default',
-  running: 'info',
-  done: 'success',
-  failed: 'error',
-  cancelled: 'warning',
-};
+/**
+ * A study runs as a background job like a slotting run, with the same states and the same words for
+ * them: one wording, kept with the slotting screens.
+ */
+export { RUN_STATUS_LABEL as STATUS_LABEL, RUN_STATUS_TYPE as STATUS_TYPE } from '../slotting/labels';

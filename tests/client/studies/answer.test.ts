@@ -1,37 +1,17 @@
 import { describe, expect, it } from 'vitest';
 import { savingOverSShape, studyAnswerLines, studyDayNote, studyQuestion } from '../../../client/views/studies/answer';
-import { DEFAULT_ROUTING, type RoutingRow, type StudyDetail, type StudyResults, type StudyVariant } from '../../../shared/studies';
+import { DEFAULT_ROUTING, type RoutingRow, type StudyDetail, type StudyResults } from '../../../shared/studies';
+import { routingRow, variantOf } from './fixtures';
 
 // Hand-worked figures: S-shape walks 300 m and the default 200 m; at 1 m/s with no time per line or
 // stop that is 300 s vs 200 s a wave; × 9 waves a day (dayScale 9) → 0.75 h vs 0.5 h → 0.25 h saved.
-const row = (key: RoutingRow['key'], metres: number, hoursPerDay: number): RoutingRow => ({
-  key,
-  label: key,
-  applicable: true,
-  reason: null,
-  metres,
-  metresPerTrip: null,
-  metresPerLine: null,
-  aboveBestPct: null,
-  aboveBoundPct: null,
-  hours: null,
-  hoursPerDay,
-  ms: 1,
-  solved: null,
-});
-const variant: StudyVariant = {
-  key: 'base',
-  label: 'Plan as it is',
-  changes: [],
-  layout: { aisles: 4, crossAisles: 2, bins: 10, blocks: 1, policyNote: null },
-  depotNode: 0,
-  routing: [row('s-shape', 300, 0.75), row(DEFAULT_ROUTING, 200, 0.5)],
-  batching: [],
-  unplaced: [],
-  lowerBound: 190,
-  lines: 6,
-  trips: [{ n: 1, wave: 1, orders: 1, lines: 6, nodes: [1, 2, 3], lowerBound: 190, metres: {}, visits: {} }],
-};
+const row = (key: RoutingRow['key'], metres: number, hoursPerDay: number): RoutingRow => routingRow(key, metres, hoursPerDay);
+const variant = variantOf(
+  [row('s-shape', 300, 0.75), row(DEFAULT_ROUTING, 200, 0.5)],
+  [{ n: 1, wave: 1, orders: 1, lines: 6, nodes: [1, 2, 3], lowerBound: 190, metres: {}, visits: {} }],
+  190,
+  6,
+);
 const results: StudyResults = {
   seed: 7,
   speeds: { walkingSpeedMps: 1, secondsPerLine: 0, secondsPerStop: 0 },
@@ -57,6 +37,7 @@ const results: StudyResults = {
   recorded: null,
   notes: [],
   ms: 10,
+  replications: null,
 };
 const study = {
   kind: 'generated',

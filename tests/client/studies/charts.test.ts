@@ -1,40 +1,20 @@
 import { describe, expect, it } from 'vitest';
 import { stopsScatterOption, totalDistanceOption } from '../../../client/views/studies/charts';
 import { byNullable, metres1, signed } from '../../../client/views/studies/format';
-import type { RoutingRow, StudyVariant } from '../../../shared/studies';
+import { meanInterval } from '../../../server/studies/replications';
+import type { ReplicatedFigure, Replications } from '../../../shared/studies';
+import { routingRow, variantOf } from './fixtures';
 
-const row = (key: RoutingRow['key'], metres: number | null): RoutingRow => ({
-  key,
-  label: key,
-  applicable: metres !== null,
-  reason: metres === null ? 'does not apply' : null,
-  metres,
-  metresPerTrip: null,
-  metresPerLine: null,
-  aboveBestPct: null,
-  aboveBoundPct: null,
-  hours: null,
-  hoursPerDay: null,
-  ms: 1,
-  solved: null,
-});
-
-const variant: StudyVariant = {
-  key: 'base',
-  label: 'Plan as it is',
-  changes: [],
-  layout: { aisles: 4, crossAisles: 2, bins: 10, blocks: 1, policyNote: null },
-  depotNode: 0,
-  routing: [row('s-shape', 300.04), row('best+local', 200.06), row('return', null)],
-  batching: [],
-  unplaced: [],
-  lowerBound: 190,
-  lines: 6,
-  trips: [
+const row = routingRow;
+const variant = variantOf(
+  [row('s-shape', 300.04), row('best+local', 200.06), row('return', null)],
+  [
     { n: 1, wave: 1, orders: 1, lines: 3, nodes: [1, 2, 3], lowerBound: 90, metres: { 's-shape': 140, 'best+local': 100, return: null }, visits: {} },
     { n: 2, wave: 1, orders: 1, lines: 3, nodes: [4, 5], lowerBound: 100, metres: { 's-shape': 160.04, 'best+local': 100.06, return: null }, visits: {} },
   ],
-};
+  190,
+  6,
+);
 
 describe('study charts', () => {
   it('draws the total per applicable method, shortest first, the default marked', () => {
@@ -60,5 +40,45 @@ describe('study charts', () => {
     expect(signed(-1.046, 'h')).toBe('−1.05 h');
     const rows = [row('return', null), row('s-shape', 3), row('best+local', 1)];
     expect(rows.sort(byNullable((r) => r.metres)).map((r) => r.key)).toEqual(['best+local', 's-shape', 'return']);
+  });
+
+  it("draws each method's mean over the seeds with a whisker from the 95 % interval's low to high end", () => {
+    const fig = (key: string, metres: (number | null)[]): ReplicatedFigure => ({
+      key,
+      label: key,
+      metres,
+      hoursPerDay: metres.map(() => null),
+      metresCi: metres.every((m) => m !== null) ? meanInterval(metres as number[]) : null,
+      hoursPerDayCi: null,
+    });
+    // S-shape 300, 310, 320 m: mean 310, s = 10, t(0.975, 2) = 4.303 (t table) → ± 24.84 m.
+    const rep: Replications = {
+      seeds: [1, 2, 3],
+      variants: [
+        {
+          key: 'base',
+          label: 'Plan as it is',
+          routing: [fig('s-shape', [300, 310, 320]), fig('best+local', [200, 202, 204]), fig('return', [null, null, null])],
+          batching: [],
+        },
+      ],
+      whatIf: [],
+    };
+    const o = totalDistanceOption(variant, rep) as {
+      title: { text: string };
+      yAxis: { data: string[] };
+      series: { type: string; data: ({ value: number } | number[])[] }[];
+    };
+    expect(o.title.text).toContain('mean of 3 seeds');
+    expect(o.yAxis.data).toEqual(['best+local (default)', 's-shape']);
+    expect(o.series[0]!.data.map((d) => (d as { value: number }).value)).toEqual([202, 310]);
+    const whiskers = o.series[1]!;
+    expect(whiskers.type).toBe('custom');
+    const [lo, hi, at] = whiskers.data[1] as number[];
+    expect(at).toBe(1);
+    expect(lo).toBeCloseTo(310 - (4.303 * 10) / Math.sqrt(3), 2);
+    expect(hi).toBeCloseTo(310 + (4.303 * 10) / Math.sqrt(3), 2);
+    // One replication: no whiskers, the figures as they are.
+    expect((totalDistanceOption(variant, null) as { series: unknown[] }).series).toHaveLength(1);
   });
 });

@@ -59,6 +59,17 @@ async function waitDone(id: number): Promise<StudyDetail & { results: StudyResul
   throw new Error('study did not finish in 120 s');
 }
 
+/** A study's workbook download, its body as bytes. */
+const workbook = (id: number) =>
+  t.as.engineer
+    .get(`${base()}/${id}/export.xlsx`)
+    .buffer(true)
+    .parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+
 async function start(body: StudyInputsBody): Promise<StudySummary> {
   const res = await t.as.engineer.post(base()).set(csrf).send(body);
   expect(res.status, JSON.stringify(res.body)).toBe(202);
@@ -178,14 +189,7 @@ describe('studies', () => {
   });
 
   it('exports a workbook whose sheets hold the same figures as the page', async () => {
-    const res = await t.as.engineer
-      .get(`${base()}/${first.id}/export.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await workbook(first.id);
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     expect(wb.SheetNames[0]).toBe('inputs');
@@ -202,6 +206,54 @@ describe('studies', () => {
     }
     const batching = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.batching!, { header: 1 }).slice(2);
     for (const b of first.results.variants[0]!.batching) expect(batching.find((x) => x[0] === b.method)![5]).toBe(Math.round(b.metres * 10) / 10);
+  });
+
+  it("runs 3 replications of a generated scenario: the first seed is the study, each method's mean and 95 % interval, and a replications sheet", async () => {
+    const body = generated('Replicated', 42, { replications: 3, routing: ['best+local', 's-shape'], batching: ['savings'], whatIfs: [] });
+    const s = await waitDone((await start(body)).id);
+    const rep = s.results.replications!;
+    expect(rep.seeds).toEqual([42, 43, 44]);
+    const sShape = rep.variants[0]!.routing.find((r) => r.key === 's-shape')!;
+    // The first replication is the study with seed 42 (the same figures as the first study of this file).
+    expect(sShape.metres[0]).toBeCloseTo(first.results.variants[0]!.routing.find((r) => r.key === 's-shape')!.metres!, 6);
+    expect(s.results.variants[0]!.routing.find((r) => r.key === 's-shape')!.metres).toBe(sShape.metres[0]);
+    const mean = sShape.metres.reduce<number>((a, m) => a + m!, 0) / 3;
+    expect(sShape.metresCi!.mean).toBeCloseTo(mean, 9);
+    expect(sShape.metresCi!.high! - sShape.metresCi!.low!).toBeGreaterThan(0);
+    const res = await workbook(s.id);
+    const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
+    const rows = XLSX.utils.sheet_to_json<(string | number)[]>(wb.Sheets.replications!, { header: 1 });
+    const mine = rows.filter((r) => r[1] === 'routing' && r[2] === 's-shape');
+    expect(mine.map((r) => r[4])).toEqual([
+      'seed 42',
+      'seed 43',
+      'seed 44',
+      'mean of 3',
+      'standard deviation',
+      't (0.975, 2 degrees of freedom)',
+      '95 % interval low',
+      '95 % interval high',
+    ]);
+    expect(mine.slice(0, 3).map((r) => r[5])).toEqual(sShape.metres.map((m) => Math.round(m! * 10) / 10));
+    expect(mine[3]![5]).toBe(Math.round(mean * 10) / 10);
+    // t(0.975, 2) = 4.303 (t table).
+    expect(mine[5]![5]).toBe(4.3);
+  }, 240_000);
+
+  it('refuses replications on recorded waves with a plain message naming the field', async () => {
+    const res = await t.as.engineer
+      .post(base())
+      .set(csrf)
+      .send({
+        name: 'Recorded replicated',
+        seed: 1,
+        replications: 5,
+        work: { kind: 'recorded', waveIds: [1] },
+        routing: ['best+local'],
+        batching: ['savings'],
+      });
+    expect(res.status).toBe(400);
+    expect(res.body.error.details).toEqual([expect.objectContaining({ field: 'replications', message: expect.stringMatching(/nothing to replicate/) })]);
   });
 
   it('draws one trip by two methods for the side-by-side maps', async () => {

@@ -1,43 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { generateRectangularPlan } from '../../../server/core/plan/generate';
-import { engineParams } from '../../../server/floor-plans/floor-plans.service';
-import { generateStudyOrders } from '../../../server/studies/generate-orders';
 import { runStudy } from '../../../server/studies/study-engine';
+import { smallPlan, smallStudy, wavesOn } from './helpers';
 
 describe('study progress', () => {
   it('moves forward wave by wave and method by method, ending at 1', () => {
-    const geometry = generateRectangularPlan(
-      engineParams({
-        aisles: 6,
-        aisleLengthM: 20,
-        aisleSpacingM: 3.2,
-        baysPerAisle: 10,
-        levels: 2,
-        bothSides: true,
-        crossAisles: { front: true, back: true, middle: 0 },
-        crossAisleWidthM: 3,
-        depot: 'front_left',
-      }),
-    );
-    const cart = { totes: 6, maxKg: 100, maxLitres: 300 };
-    const waves = generateStudyOrders(
-      geometry.bins,
-      { waves: 3, ordersPerWave: 10, linesMin: 1, linesMax: 3, skus: 60, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 },
-      3,
-    ).map((orders, i) => ({ id: i + 1, name: `Wave ${i + 1}`, orders, cart }));
+    const geometry = smallPlan();
+    const waves = wavesOn(geometry, { waves: 3, ordersPerWave: 10, linesMin: 1, linesMax: 3, skus: 60, skewSkuPct: 20, skewLinesPct: 80, qtyMax: 2 }, 3);
     const seen: { f: number; phase: string }[] = [];
-    runStudy({
-      base: { geometry, closures: [], depotIdx: 0 },
-      whatIfs: [],
-      waves,
-      tripsFrom: 'savings',
-      routing: ['best+local', 's-shape'],
-      batching: ['single', 'savings'],
-      speeds: { walkingSpeedMps: 1, secondsPerLine: 10, secondsPerStop: 5 },
-      dayScale: 1,
-      seed: 1,
-      progress: (f, phase) => seen.push({ f, phase }),
-    });
+    runStudy(smallStudy(geometry, waves, 1, { progress: (f, phase) => seen.push({ f, phase }) }));
     for (let i = 1; i < seen.length; i++) expect(seen[i]!.f).toBeGreaterThanOrEqual(seen[i - 1]!.f);
     expect(seen.at(-1)).toEqual({ f: 1, phase: 'done' });
     // Each batching method reports each wave, and routing reports each trip with its wave.
