@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { buildPlanIndex } from '../../../client/components/floor-map/plan-index';
 import { generateRectangularPlan } from '../../../server/core/plan/generate';
 import { DEMO_PLAN_PARAMS } from '../../../server/floor-plans/demo-seed';
+import { engineParams } from '../../../server/floor-plans/floor-plans.service';
 import { crowdedAislePairs, DRAWN_HALF_WIDTH_MAX_M, NOMINAL_RACK_DEPTH_M, rackDrawing, type PlanGeometry } from '../../../shared/plan-geometry';
 
 /** Pairs of slot footprints that share area (touching edges, as back-to-back racks do, is not overlap). */
@@ -28,14 +29,14 @@ const twoAisles = (pitch: number): PlanGeometry => generateRectangularPlan({ ais
 
 describe('racks drawn to fit the aisle pitch', () => {
   it('on the demo plan (3.2 m pitch, racks both sides): 1 m racks and a 1.2 m walkway, nothing overlapping', () => {
-    const demo = generateRectangularPlan(DEMO_PLAN_PARAMS);
+    const demo = generateRectangularPlan(engineParams(DEMO_PLAN_PARAMS));
     // Hand-worked: 3.2 m between centre lines = two 1 m racks + two walkway halves of 0.6 m.
     expect(rackDrawing(demo)).toEqual({ aisleHalfWidth: expect.closeTo(0.6, 9), rackDepth: NOMINAL_RACK_DEPTH_M });
     expect(overlappingSlots(demo)).toBe(0);
   });
 
   it('the former fixed drawing (1.5 m + 1 m each side) did overlap on that plan, so the check above can fail', () => {
-    const demo = generateRectangularPlan(DEMO_PLAN_PARAMS);
+    const demo = generateRectangularPlan(engineParams(DEMO_PLAN_PARAMS));
     const index = buildPlanIndex(demo, { aisleHalfWidth: 1.5, rackDepth: 1, crossAisleHalfWidth: 1.5 });
     // The right edge of aisle A's right-hand racks against the left edge of aisle B's left-hand racks.
     let maxRightOfA = -Infinity;
