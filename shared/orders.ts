@@ -88,6 +88,10 @@ export const OrderDetail = OrderSummary.extend({
       totes: z.array(z.number().int()),
     }),
   ),
+  /** Set on an order made to re-pick a short: the order the short happened on. */
+  repickOf: z.object({ id: z.number().int(), ref: z.string() }).nullable(),
+  /** Orders made to re-pick this order's shorts in a later wave. */
+  repicks: z.array(z.object({ id: z.number().int(), ref: z.string(), sku: z.string(), qty: z.number().int() })),
 });
 export type OrderDetail = z.infer<typeof OrderDetail>;
 

@@ -3,6 +3,7 @@
  * and the board's snapshot (sent whole on every change over server-sent events).
  */
 import { z } from 'zod';
+import { ExportFormat } from './data-safety';
 import { PlanGeometry } from './floor-plans';
 import { PickLineView, StopView, TripDetail } from './waves';
 
@@ -181,6 +182,57 @@ export const BoardShort = z.object({
 });
 export type BoardShort = z.infer<typeof BoardShort>;
 
+/** What the supervisor did about a short: marked handled, re-picked in a later wave, or sent to the replenishment list. */
+export const ShortFollowUp = z.enum(['handled', 'repick', 'replenish']);
+export type ShortFollowUp = z.infer<typeof ShortFollowUp>;
+
+/** A short with its follow-up chosen, as the board lists it for the rest of the shift. */
+export const HandledShort = BoardShort.extend({
+  followUp: ShortFollowUp,
+  handledBy: z.string().nullable(),
+  handledAt: z.string(),
+  /** The open order made for the quantity not found (follow-up "repick"). */
+  repickOrder: z.object({ id: z.number().int(), ref: z.string() }).nullable(),
+});
+export type HandledShort = z.infer<typeof HandledShort>;
+
+/** The answer to choosing a follow-up: the short, and the re-pick order when one was made. */
+export const ShortFollowUpResult = z.object({
+  shortId: z.number().int(),
+  followUp: ShortFollowUp,
+  repickOrder: z.object({ id: z.number().int(), ref: z.string() }).nullable(),
+});
+export type ShortFollowUpResult = z.infer<typeof ShortFollowUpResult>;
+
+/** One entry of the replenishment list: a bin found short, to be refilled. */
+export const ReplenishmentItem = z.object({
+  shortId: z.number().int(),
+  sku: z.string(),
+  description: z.string(),
+  bin: z.string(),
+  /** Ordered less found: what the bin lacked. */
+  qtyShort: z.number().int(),
+  reason: ShortReason,
+  orderId: z.number().int(),
+  orderRef: z.string(),
+  waveName: z.string(),
+  tripN: z.number().int(),
+  reportedBy: z.string().nullable(),
+  reportedAt: z.string(),
+  sentBy: z.string().nullable(),
+  sentAt: z.string(),
+  restockedBy: z.string().nullable(),
+  restockedAt: z.string().nullable(),
+});
+export type ReplenishmentItem = z.infer<typeof ReplenishmentItem>;
+
+export const ReplenishmentQuery = z.strictObject({
+  /** open: not restocked yet (the default); all: restocked ones too. */
+  show: z.enum(['open', 'all']).default('open'),
+});
+export type ReplenishmentQuery = z.infer<typeof ReplenishmentQuery>;
+export const ReplenishmentExportQuery = ReplenishmentQuery.extend({ format: ExportFormat.default('xlsx') });
+
 /** An open line of a trip in progress that no walk reaches now: for the supervisor to handle. */
 export const BoardCutOffLine = z.object({
   lineId: z.number().int(),
@@ -202,6 +254,8 @@ export const Board = z.object({
   at: z.string(),
   waves: z.array(BoardWave),
   shorts: z.array(BoardShort),
+  /** Shorts whose follow-up was chosen in the last shift, newest first, with what was chosen. */
+  handledShorts: z.array(HandledShort),
   cutOff: z.array(BoardCutOffLine),
   pickers: z.array(z.object({ id: z.number().int(), name: z.string(), tripId: z.number().int().nullable() })),
 });

@@ -9,10 +9,13 @@ import {
   LineAnswer,
   PickAnswer,
   PickTrip,
+  ReplenishmentItem,
+  ShortFollowUpResult,
   TripPlan,
   TripPulse,
   TripResult,
   type CartReadyBody,
+  type ReplenishmentQuery,
   type ShortReason,
 } from '@shared/picking';
 import { ApiError, badResponse, errorFromAnswer, http, networkError, parseJsonText } from './http';
@@ -88,4 +91,15 @@ export const closeWave = (siteId: number, waveId: number, reason?: string) =>
 export const reopenLine = (siteId: number, lineId: number, reason: string) =>
   http('POST', `/api/sites/${siteId}/board/lines/${lineId}/reopen`, LineAnswer, { body: { reason } });
 export const markShortHandled = (siteId: number, shortId: number) => http('POST', `/api/sites/${siteId}/board/shorts/${shortId}/handled`, Ok, { body: {} });
+/** Re-pick in a later wave (a new open order) or send to the replenishment list. */
+export const followUpShort = (siteId: number, shortId: number, followUp: 'repick' | 'replenish') =>
+  http('POST', `/api/sites/${siteId}/board/shorts/${shortId}/${followUp}`, ShortFollowUpResult, { body: {} });
+
+// ---- replenishment list ----
+export const getReplenishment = (siteId: number, show: ReplenishmentQuery['show']) =>
+  http('GET', `/api/sites/${siteId}/replenishment?show=${show}`, z.array(ReplenishmentItem));
+export const markRestocked = (siteId: number, shortId: number) => http('POST', `/api/sites/${siteId}/replenishment/${shortId}/restocked`, Ok, { body: {} });
+/** A plain download: the browser keeps the session cookie on a same-origin link. */
+export const replenishmentExportUrl = (siteId: number, format: 'xlsx' | 'csv', show: ReplenishmentQuery['show']) =>
+  `/api/sites/${siteId}/replenishment/export?format=${format}&show=${show}`;
 export const waveReportUrl = (siteId: number, waveId: number) => `/api/sites/${siteId}/board/waves/${waveId}/report.xlsx`;

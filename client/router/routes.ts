@@ -119,6 +119,12 @@ export const routes: RouteRecordRaw[] = [
     meta: { roles: ['supervisor', 'admin'], title: 'Live board', menu: { label: 'Live board', group: 'Floor' } },
   },
   {
+    path: '/replenishment',
+    name: 'replenishment',
+    component: () => import('@client/views/board/ReplenishmentView.vue'),
+    meta: { roles: ['supervisor', 'admin'], title: 'Replenishment list', menu: { label: 'Replenishment', group: 'Floor' } },
+  },
+  {
     path: '/studies',
     name: 'studies',
     component: () => import('@client/views/studies/StudiesView.vue'),

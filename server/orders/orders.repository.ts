@@ -166,8 +166,10 @@ export async function orderDetail(db: Q, siteId: number, id: number): Promise<Or
       'waves.name as wave_name',
       'trip_orders.totes',
     );
+  const links = await repickLinks(db, id);
   return {
     ...toOrderSummary(o),
+    ...links,
     lineItems: lines.map((l) => ({
       lineNo: l.line_no,
       sku: l.sku,
@@ -184,4 +186,19 @@ export async function orderDetail(db: Q, siteId: number, id: number): Promise<Or
       totes: JSON.parse(t.totes) as number[],
     })),
   };
+}
+
+/** Re-pick orders made from this order's shorts, and the order this one re-picks (if it is one). */
+async function repickLinks(db: Q, orderId: number): Promise<Pick<OrderDetail, 'repickOf' | 'repicks'>> {
+  const of = await db('pick_shorts')
+    .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
+    .where('pick_shorts.repick_order_id', orderId)
+    .first<{ id: number; ref: string } | undefined>({ id: 'pick_lines.order_id', ref: 'pick_lines.order_ref' });
+  const repicks: { id: number; ref: string; sku: string; qtyOrdered: number; qtyFound: number }[] = await db('pick_shorts')
+    .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
+    .join('orders', 'orders.id', 'pick_shorts.repick_order_id')
+    .where('pick_lines.order_id', orderId)
+    .orderBy('orders.id')
+    .select({ id: 'orders.id', ref: 'orders.ref', sku: 'pick_lines.sku', qtyOrdered: 'pick_shorts.qty_ordered', qtyFound: 'pick_shorts.qty_found' });
+  return { repickOf: of ?? null, repicks: repicks.map((r) => ({ id: r.id, ref: r.ref, sku: r.sku, qty: r.qtyOrdered - r.qtyFound })) };
 }

@@ -5,7 +5,9 @@
  */
 import type { Q } from '../db/knex';
 import type { Knex } from 'knex';
-import type { Board, BoardCutOffLine, BoardTrip, BoardWave } from '../../shared/picking';
+import type { Board, BoardCutOffLine, BoardTrip, BoardWave, ReplenishmentItem, ShortFollowUp, ShortFollowUpResult } from '../../shared/picking';
+import type { Table } from '../exports/table-export';
+import { insertOrder, skuMap } from '../orders/orders.repository';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
@@ -121,8 +123,9 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
   }
 
   const shorts = await repo.unhandledShorts(db, siteId);
+  const handledShorts = await repo.handledShortsSince(db, siteId, since);
   const pickers = await repo.sitePickersWithTrip(db, siteId);
-  return { siteId, at: new Date(now).toISOString(), waves: outWaves, shorts, cutOff, pickers };
+  return { siteId, at: new Date(now).toISOString(), waves: outWaves, shorts, handledShorts, cutOff, pickers };
 }
 
 function groupBy<T>(items: T[], key: (t: T) => number): Map<number, T[]> {
@@ -235,13 +238,137 @@ export async function closeWave(db: Knex, mailer: Mailer, actor: Actor, siteId: 
   return { waveId, ...out, reportMailedTo: mailed };
 }
 
-export async function handleShort(db: Knex, actor: Actor, siteId: number, shortId: number): Promise<void> {
-  await db.transaction(async (trx) => {
+const FOLLOW_UP_WORDS: Record<ShortFollowUp, string> = {
+  handled: 'marked handled',
+  repick: 'sent to re-pick',
+  replenish: 'sent to the replenishment list',
+};
+
+/** The longest order reference (input rules: codes up to 64 characters). */
+const MAX_REF = 64;
+
+/** `<original>-R1`, `-R2`, … : the first reference not taken on the site, cut to fit 64 characters. */
+async function repickRef(db: Q, siteId: number, original: string): Promise<string> {
+  const taken = new Set(await repo.orderRefsStartingWith(db, siteId, original.slice(0, MAX_REF - 4)));
+  for (let k = 1; ; k++) {
+    const suffix = `-R${k}`;
+    const ref = `${original.slice(0, MAX_REF - suffix.length)}${suffix}`;
+    if (!taken.has(ref)) return ref;
+  }
+}
+
+/**
+ * The supervisor's follow-up on a short: mark it handled, re-pick the quantity not found in a later
+ * wave (a new open order `<original>-R1` with that one line, keeping the original's due time and
+ * priority, so the wave builder offers it like any open order), or send it to the replenishment list.
+ * The short leaves the attention list; the board lists it with the follow-up for the rest of the shift.
+ * Asking again for the follow-up already chosen answers the same (a double click makes one order);
+ * another follow-up is refused (409 short_already_handled).
+ */
+export async function followUpShort(db: Knex, actor: Actor, siteId: number, shortId: number, followUp: ShortFollowUp): Promise<ShortFollowUpResult> {
+  const out = await db.transaction(async (trx): Promise<ShortFollowUpResult> => {
     const row = await repo.getSiteShort(trx, siteId, shortId);
     if (!row) throw notFound('Short');
-    if (row.handled_at) return;
-    await repo.markShortHandled(trx, shortId, actor.id, nowIso());
-    await audit(trx, { siteId, userId: actor.id, action: 'short.handled', subject: `line:${row.line_id}`, detail: { shortId }, device: actor.device });
+    if (row.handled_at) {
+      const chosen = row.follow_up ?? 'handled';
+      if (chosen !== followUp)
+        throw new AppError('conflict', 'short_already_handled', `This short was already ${FOLLOW_UP_WORDS[chosen]}`, { followUp: chosen });
+      const order = row.repick_order_id ? await repo.orderOfLine(trx, siteId, row.repick_order_id) : undefined;
+      return { shortId, followUp, repickOrder: order ? { id: order.id, ref: order.ref } : null };
+    }
+    const line = (await repo.getLineRow(trx, row.line_id))!;
+    const qtyShort = row.qty_ordered - row.qty_found;
+    let repickOrder: ShortFollowUpResult['repickOrder'] = null;
+    if (followUp === 'repick') {
+      if (qtyShort < 1) throw new AppError('conflict', 'nothing_to_repick', 'Everything ordered on this line was found: there is nothing to re-pick');
+      const original = await repo.orderOfLine(trx, siteId, line.order_id);
+      if (!original) throw notFound('Order');
+      const skus = await skuMap(trx, siteId);
+      if (!skus.has(line.sku))
+        throw new AppError(
+          'unprocessable',
+          'unknown_sku',
+          `SKU ${line.sku} is no longer in the SKU master: import it again, or send the short to the replenishment list`,
+          { sku: line.sku },
+        );
+      const ref = await repickRef(trx, siteId, original.ref);
+      const id = await insertOrder(
+        trx,
+        siteId,
+        { ref, due: original.due, priority: original.priority, lines: [{ sku: line.sku, qty: qtyShort }], row: null },
+        'repick',
+        skus,
+      );
+      repickOrder = { id, ref };
+    }
+    await repo.markShortHandled(trx, shortId, actor.id, nowIso(), followUp, repickOrder?.id ?? null);
+    await audit(trx, {
+      siteId,
+      userId: actor.id,
+      action: followUp === 'handled' ? 'short.handled' : followUp === 'repick' ? 'short.repick' : 'short.replenish',
+      subject: `line:${row.line_id}`,
+      detail: { shortId, sku: line.sku, bin: line.bin, order: line.order_ref, qtyShort, ...(repickOrder ? { repickOrder: repickOrder.ref } : {}) },
+      device: actor.device,
+    });
+    return { shortId, followUp, repickOrder };
   });
   siteChanged(siteId);
+  return out;
+}
+
+export async function handleShort(db: Knex, actor: Actor, siteId: number, shortId: number): Promise<void> {
+  await followUpShort(db, actor, siteId, shortId, 'handled');
+}
+
+/** The replenishment list's "Restocked": the entry leaves the open list (audited; a second call changes nothing). */
+export async function markRestocked(db: Knex, actor: Actor, siteId: number, shortId: number): Promise<void> {
+  await db.transaction(async (trx) => {
+    const row = await repo.getSiteShort(trx, siteId, shortId);
+    if (!row || row.follow_up !== 'replenish') throw notFound('Replenishment entry');
+    if (row.restocked_at) return;
+    await repo.markShortRestocked(trx, shortId, actor.id, nowIso());
+    await audit(trx, { siteId, userId: actor.id, action: 'short.restocked', subject: `line:${row.line_id}`, detail: { shortId }, device: actor.device });
+  });
+}
+
+export const replenishmentList = (db: Q, siteId: number, show: 'open' | 'all'): Promise<ReplenishmentItem[]> =>
+  repo.replenishmentRows(db, siteId, show === 'all');
+
+/** The replenishment list as one table for the xlsx and CSV downloads. */
+export function replenishmentTable(items: readonly ReplenishmentItem[]): Table {
+  return {
+    name: 'replenishment',
+    header: [
+      'sku',
+      'description',
+      'bin',
+      'qty_short',
+      'reason',
+      'reported_at',
+      'reported_by',
+      'order',
+      'wave',
+      'trip',
+      'sent_at',
+      'sent_by',
+      'restocked_at',
+      'restocked_by',
+    ],
+    rows: items.map((i) => [
+      i.sku,
+      i.description,
+      i.bin,
+      i.qtyShort,
+      i.reason,
+      i.reportedAt,
+      i.reportedBy,
+      i.orderRef,
+      i.waveName,
+      i.tripN,
+      i.sentAt,
+      i.sentBy,
+      i.restockedAt,
+      i.restockedBy,
+    ]),
+  };
 }

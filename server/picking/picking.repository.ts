@@ -1,6 +1,6 @@
 /** Rows of the waves tables as picking reads them, and the trip as the tablet sees it. */
 import type { Q } from '../db/knex';
-import type { BoardShort, PickStop, PickTrip } from '../../shared/picking';
+import type { BoardShort, HandledShort, PickStop, PickTrip, ReplenishmentItem, ShortFollowUp } from '../../shared/picking';
 import { circuitPolyline, pairDistance } from '../core/plan/distances';
 import { loadPlanIndex, type LoadedPlan } from '../floor-plans/plan-index';
 
@@ -278,34 +278,93 @@ export async function boardTripRows(
   return { trips, stops, lines };
 }
 
-/** Shorts of the site nobody has handled yet, oldest first. */
-export async function unhandledShorts(db: Q, siteId: number): Promise<BoardShort[]> {
-  const rows: (BoardShort & { line_status: string })[] = await db('pick_shorts')
+/** The shorts table joined to its line, trip, wave and reporter, for the board and the replenishment list. */
+function shortsQuery(db: Q, siteId: number) {
+  return db('pick_shorts')
     .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
     .join('trips', 'trips.id', 'pick_shorts.trip_id')
     .join('waves', 'waves.id', 'pick_shorts.wave_id')
-    .leftJoin('users', 'users.id', 'pick_shorts.reported_by')
-    .where('pick_shorts.site_id', siteId)
-    .whereNull('pick_shorts.handled_at')
-    .orderBy('pick_shorts.reported_at')
-    .select({
-      id: 'pick_shorts.id',
-      waveId: 'waves.id',
-      waveName: 'waves.name',
-      tripId: 'trips.id',
-      tripN: 'trips.n',
-      orderRef: 'pick_lines.order_ref',
-      sku: 'pick_lines.sku',
-      description: 'pick_lines.description',
-      bin: 'pick_lines.bin',
-      qtyOrdered: 'pick_shorts.qty_ordered',
-      qtyFound: 'pick_shorts.qty_found',
-      reason: 'pick_shorts.reason',
-      reportedBy: 'users.name',
-      reportedAt: 'pick_shorts.reported_at',
-      line_status: 'pick_lines.status',
-    });
-  return rows.map(({ line_status: _s, ...s }) => s);
+    .leftJoin('users as reporter', 'reporter.id', 'pick_shorts.reported_by')
+    .where('pick_shorts.site_id', siteId);
+}
+
+const SHORT_COLUMNS = {
+  id: 'pick_shorts.id',
+  waveId: 'waves.id',
+  waveName: 'waves.name',
+  tripId: 'trips.id',
+  tripN: 'trips.n',
+  orderRef: 'pick_lines.order_ref',
+  sku: 'pick_lines.sku',
+  description: 'pick_lines.description',
+  bin: 'pick_lines.bin',
+  qtyOrdered: 'pick_shorts.qty_ordered',
+  qtyFound: 'pick_shorts.qty_found',
+  reason: 'pick_shorts.reason',
+  reportedBy: 'reporter.name',
+  reportedAt: 'pick_shorts.reported_at',
+} as const;
+
+/** Shorts of the site nobody has handled yet, oldest first. */
+export async function unhandledShorts(db: Q, siteId: number): Promise<BoardShort[]> {
+  return shortsQuery(db, siteId).whereNull('pick_shorts.handled_at').orderBy('pick_shorts.reported_at').select(SHORT_COLUMNS);
+}
+
+/** Shorts handled since `since` (ISO time), newest first, with the follow-up chosen and the re-pick order. */
+export async function handledShortsSince(db: Q, siteId: number, since: string): Promise<HandledShort[]> {
+  const rows: (Omit<HandledShort, 'repickOrder' | 'followUp'> & { followUp: string | null; repickId: number | null; repickRef: string | null })[] =
+    await shortsQuery(db, siteId)
+      .leftJoin('users as handler', 'handler.id', 'pick_shorts.handled_by')
+      .leftJoin('orders as repick', 'repick.id', 'pick_shorts.repick_order_id')
+      .where('pick_shorts.handled_at', '>=', since)
+      .orderBy('pick_shorts.handled_at', 'desc')
+      .orderBy('pick_shorts.id', 'desc')
+      .limit(200)
+      .select({
+        ...SHORT_COLUMNS,
+        followUp: 'pick_shorts.follow_up',
+        handledBy: 'handler.name',
+        handledAt: 'pick_shorts.handled_at',
+        repickId: 'repick.id',
+        repickRef: 'repick.ref',
+      });
+  return rows.map(({ repickId, repickRef, followUp, ...r }) => ({
+    ...r,
+    followUp: (followUp ?? 'handled') as ShortFollowUp,
+    repickOrder: repickId !== null && repickRef !== null ? { id: repickId, ref: repickRef } : null,
+  }));
+}
+
+/** The replenishment list: shorts sent to it, newest first; restocked ones only when asked. */
+export async function replenishmentRows(db: Q, siteId: number, includeRestocked: boolean): Promise<ReplenishmentItem[]> {
+  const q = shortsQuery(db, siteId)
+    .leftJoin('users as sender', 'sender.id', 'pick_shorts.handled_by')
+    .leftJoin('users as restocker', 'restocker.id', 'pick_shorts.restocked_by')
+    .where('pick_shorts.follow_up', 'replenish')
+    .orderBy('pick_shorts.handled_at', 'desc')
+    .orderBy('pick_shorts.id', 'desc')
+    .limit(5000);
+  if (!includeRestocked) q.whereNull('pick_shorts.restocked_at');
+  const rows: (Omit<ReplenishmentItem, 'qtyShort'> & { qtyOrdered: number; qtyFound: number })[] = await q.select({
+    shortId: 'pick_shorts.id',
+    sku: 'pick_lines.sku',
+    description: 'pick_lines.description',
+    bin: 'pick_lines.bin',
+    qtyOrdered: 'pick_shorts.qty_ordered',
+    qtyFound: 'pick_shorts.qty_found',
+    reason: 'pick_shorts.reason',
+    orderId: 'pick_lines.order_id',
+    orderRef: 'pick_lines.order_ref',
+    waveName: 'waves.name',
+    tripN: 'trips.n',
+    reportedBy: 'reporter.name',
+    reportedAt: 'pick_shorts.reported_at',
+    sentBy: 'sender.name',
+    sentAt: 'pick_shorts.handled_at',
+    restockedBy: 'restocker.name',
+    restockedAt: 'pick_shorts.restocked_at',
+  });
+  return rows.map(({ qtyOrdered, qtyFound, ...r }) => ({ ...r, qtyShort: qtyOrdered - qtyFound }));
 }
 
 /** The site's active pickers by name, and the trip each holds (assigned or picking). */
@@ -395,14 +454,43 @@ export async function completeWaveRow(db: Q, waveId: number, at: string): Promis
   await db('waves').where({ id: waveId }).update({ status: 'completed', completed_at: at });
 }
 
-export async function getSiteShort(db: Q, siteId: number, shortId: number): Promise<{ id: number; handled_at: string | null; line_id: number } | undefined> {
-  return db('pick_shorts')
-    .where({ id: shortId, site_id: siteId })
-    .first<{ id: number; handled_at: string | null; line_id: number } | undefined>('id', 'handled_at', 'line_id');
+export interface DbShortRow {
+  id: number;
+  handled_at: string | null;
+  line_id: number;
+  qty_ordered: number;
+  qty_found: number;
+  follow_up: ShortFollowUp | null;
+  repick_order_id: number | null;
+  restocked_at: string | null;
 }
 
-export async function markShortHandled(db: Q, shortId: number, userId: number, at: string): Promise<void> {
-  await db('pick_shorts').where({ id: shortId }).update({ handled_at: at, handled_by: userId });
+export async function getSiteShort(db: Q, siteId: number, shortId: number): Promise<DbShortRow | undefined> {
+  return db('pick_shorts')
+    .where({ id: shortId, site_id: siteId })
+    .first<DbShortRow | undefined>('id', 'handled_at', 'line_id', 'qty_ordered', 'qty_found', 'follow_up', 'repick_order_id', 'restocked_at');
+}
+
+/** The short recorded on a line, if any (a line has at most one). */
+export async function shortOfLine(db: Q, lineId: number): Promise<Pick<DbShortRow, 'id' | 'follow_up' | 'repick_order_id'> | undefined> {
+  return db('pick_shorts')
+    .where({ line_id: lineId })
+    .first<Pick<DbShortRow, 'id' | 'follow_up' | 'repick_order_id'> | undefined>('id', 'follow_up', 'repick_order_id');
+}
+
+export async function markShortHandled(
+  db: Q,
+  shortId: number,
+  userId: number,
+  at: string,
+  followUp: ShortFollowUp = 'handled',
+  repickOrderId: number | null = null,
+): Promise<void> {
+  await db('pick_shorts').where({ id: shortId }).update({ handled_at: at, handled_by: userId, follow_up: followUp, repick_order_id: repickOrderId });
+}
+
+export async function markShortRestocked(db: Q, shortId: number, userId: number, at: string): Promise<void> {
+  await db('pick_shorts').where({ id: shortId }).update({ restocked_at: at, restocked_by: userId });
 }
 
 /* ---- The picker's tablet ---- */
@@ -607,3 +695,25 @@ export async function lastFreedAt(db: Q, pickerIds: number[]): Promise<Map<numbe
 /** The wave's released trips nobody holds, by trip number. */
 export const waitingTripsOf = (db: Q, waveId: number): Promise<{ id: number; n: number }[]> =>
   db('trips').where({ wave_id: waveId, status: 'released' }).whereNull('picker_id').orderBy('n').select('id', 'n');
+
+/* ---- Re-pick orders made from shorts ---- */
+
+/** The order a short line came from: reference, due time and priority carry over to its re-pick. */
+export async function orderOfLine(
+  db: Q,
+  siteId: number,
+  orderId: number,
+): Promise<{ id: number; ref: string; due: string | null; priority: number | null } | undefined> {
+  return db('orders')
+    .where({ id: orderId, site_id: siteId })
+    .first<{ id: number; ref: string; due: string | null; priority: number | null } | undefined>('id', 'ref', 'due', 'priority');
+}
+
+/** References of the site's orders that start with `prefix` (re-pick references already taken). */
+export async function orderRefsStartingWith(db: Q, siteId: number, prefix: string): Promise<string[]> {
+  // LIKE treats _ and % as wildcards: the caller checks the exact prefix.
+  return db('orders')
+    .where({ site_id: siteId })
+    .andWhere('ref', 'like', `${prefix.replace(/[%_]/g, '_')}%`)
+    .pluck('ref');
+}

@@ -23,14 +23,22 @@ import {
   PickAnswer,
   PickTrip,
   ReopenLineBody,
+  ReplenishmentExportQuery,
+  ReplenishmentItem,
+  ReplenishmentQuery,
   ShortBody,
+  ShortFollowUpResult,
   SkipBody,
   TripPlan,
   TripPulse,
   TripResult,
   UndoBody,
 } from '../../shared/picking';
+import { z } from 'zod';
+import { audit } from '../audit/audit';
+import { exportTable, sendExport } from '../exports/table-export';
 import { loadPlanIndex } from '../floor-plans/plan-index';
+import { siteCodeOf } from '../sites/sites.repository';
 import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
 import { sendAttachment, XLSX_TYPE } from '../http/attachment';
@@ -271,6 +279,59 @@ export const pickingRoutes = [
     response: Ok,
     handler: async ({ deps, user, req, siteId, params }) => {
       await board.handleShort(deps.db, actorOf(user, req), siteId, pathId(params.shortId, 'Short'));
+      return { ok: true as const };
+    },
+  }),
+  ...(['repick', 'replenish'] as const).map((followUp) =>
+    defineRoute({
+      method: 'post',
+      path: `${siteBoard}/shorts/:shortId/${followUp}`,
+      access: SUPERVISE,
+      summary:
+        followUp === 'repick'
+          ? 'Re-pick a short in a later wave: the quantity not found becomes a new open order <original>-R1 (same due time and priority); the short leaves the attention list'
+          : 'Send a short to the replenishment list (its bin is to be refilled); the short leaves the attention list',
+      response: ShortFollowUpResult,
+      handler: ({ deps, user, req, siteId, params }) => board.followUpShort(deps.db, actorOf(user, req), siteId, pathId(params.shortId, 'Short'), followUp),
+    }),
+  ),
+  defineRoute({
+    method: 'get',
+    path: '/api/sites/:siteId/replenishment',
+    access: SUPERVISE,
+    query: ReplenishmentQuery,
+    summary: 'The replenishment list: bins found short and sent to it, newest first (show=all adds the restocked ones)',
+    response: z.array(ReplenishmentItem),
+    handler: ({ deps, siteId, query }) => board.replenishmentList(deps.db, siteId, query.show),
+  }),
+  defineRoute({
+    method: 'get',
+    path: '/api/sites/:siteId/replenishment/export',
+    access: SUPERVISE,
+    query: ReplenishmentExportQuery,
+    summary: 'The replenishment list as xlsx or CSV (text that starts like a formula is made inert)',
+    handler: async ({ deps, siteId, query, res, user }) => {
+      const code = (await siteCodeOf(deps.db, siteId)) ?? 'site';
+      const items = await board.replenishmentList(deps.db, siteId, query.show);
+      const file = exportTable(board.replenishmentTable(items), query.format, `replenishment-${code}-${new Date().toISOString().slice(0, 10)}`);
+      await audit(deps.db, {
+        siteId,
+        userId: user.id,
+        action: 'export.downloaded',
+        subject: 'replenishment',
+        detail: { format: query.format, show: query.show },
+      });
+      return sendExport(res, file);
+    },
+  }),
+  defineRoute({
+    method: 'post',
+    path: '/api/sites/:siteId/replenishment/:shortId/restocked',
+    access: SUPERVISE,
+    summary: 'Mark a replenishment entry restocked: it leaves the open list (audited)',
+    response: Ok,
+    handler: async ({ deps, user, req, siteId, params }) => {
+      await board.markRestocked(deps.db, actorOf(user, req), siteId, pathId(params.shortId, 'Replenishment entry'));
       return { ok: true as const };
     },
   }),

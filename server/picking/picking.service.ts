@@ -560,6 +560,17 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
  * the supervisor's correction. The caller checks who may and audits.
  */
 async function reopenLine(trx: Q, line: DbLineRow): Promise<void> {
+  // A short already re-picked (an order made for it) or on the replenishment list stays as recorded.
+  const short = await repo.shortOfLine(trx, line.id);
+  if (short && (short.follow_up === 'repick' || short.follow_up === 'replenish'))
+    throw new AppError(
+      'conflict',
+      'short_followed_up',
+      short.follow_up === 'repick'
+        ? 'This short was already sent to re-pick in a later wave (an order was made for it): the line can no longer be reopened'
+        : 'This short is on the replenishment list: the line can no longer be reopened',
+      { shortId: short.id, followUp: short.follow_up, repickOrderId: short.repick_order_id },
+    );
   await repo.reopenLineRow(trx, line);
   Object.assign(line, { status: 'open', picked_qty: null, short_reason: null, confirmed_by: null, confirmed_at: null, received_at: null, tablet_at: null });
 }

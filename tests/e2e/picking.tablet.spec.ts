@@ -84,7 +84,7 @@ test('a picker picks a whole trip through a network drop; nothing is lost or dou
   await page.keyboard.type(`T${firstTote}`);
   await page.keyboard.press('Enter');
   await expect(page.getByTestId(`tote-done-${firstTote}`)).toContainText('Ready (scanned)');
-  await expect(page.getByTestId('tote-count')).toHaveText(`1 of ${toteCount} totes ready`);
+  await expect(page.getByTestId('tote-count')).toHaveText(`1 of ${toteCount} ${toteCount === 1 ? 'tote' : 'totes'} ready`);
   while ((await page.getByTestId('tote-ready').count()) > 0) await page.getByTestId('tote-ready').first().click();
   await expect(page.getByTestId('current-bin')).toBeVisible();
   // Stored on the server with its audit entry: a reload goes straight back to the stop.

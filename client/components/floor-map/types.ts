@@ -43,11 +43,11 @@ export interface FloorMapProps {
   route?: FloorMapRoute | null;
   /** Dark palette (dim light); light by default. */
   dark?: boolean;
-  /** Half the walkable width of a pick aisle, centre line to rack face (metres). */
+  /** Half the walkable width of a pick aisle, centre line to rack face (metres); unset: fitted to the plan's aisle pitch (rackDrawing). */
   aisleHalfWidth?: number;
   /** Half the width of a cross aisle (metres). */
   crossAisleHalfWidth?: number;
-  /** Rack depth behind the rack face (metres). */
+  /** Rack depth behind the rack face (metres); unset: fitted to the plan's aisle pitch (rackDrawing). */
   rackDepth?: number;
   /** Extra bins to highlight (outlined and hatched), e.g. a wave's bins. */
   highlightBins?: string[];
