@@ -221,13 +221,16 @@ function drawClosures(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPal
   }
 }
 
+/** Half the side of a depot's square marker, in screen pixels. */
+const depotHalf = (compact: boolean): number => (compact ? 9 : 11);
+
 /** Depots go on the route layer: a trip starts and ends there, and the marker must sit above its line. */
 function drawDepots(ctx: CanvasRenderingContext2D, plan: PlanGeometry, p: MapPalette, vp: Viewport, view: WorldRect, compact: boolean): void {
   for (const d of plan.depots) {
     if (d.x < view.minX - 10 || d.x > view.maxX + 10 || d.y < view.minY - 10 || d.y > view.maxY + 10) continue;
     const sx = vp.ox + d.x * vp.scale;
     const sy = vp.oy + (vp.flipY ? -d.y : d.y) * vp.scale;
-    drawDepotMarker(ctx, sx, sy, compact ? null : d.code, p, compact ? 9 : 11);
+    drawDepotMarker(ctx, sx, sy, compact ? null : d.code, p, depotHalf(compact));
   }
 }
 
@@ -267,6 +270,11 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
     .filter((a) => a.x >= view.minX - 5 && a.x <= view.maxX + 5)
     .slice()
     .sort((a, b) => a.x - b.x);
+  const depots = g.plan.depots.map((d) => ({
+    sx: vp.ox + d.x * vp.scale,
+    sy: vp.oy + (vp.flipY ? -d.y : d.y) * vp.scale,
+    half: depotHalf(g.compact),
+  }));
   let lastRight = -Infinity;
   for (const a of aisles) {
     const sx = vp.ox + a.x * vp.scale;
@@ -285,6 +293,8 @@ function drawLabels(ctx: CanvasRenderingContext2D, g: SceneGeometry, p: MapPalet
     for (const [yEnd, away] of ends) {
       const sy = vp.oy + (vp.flipY ? -yEnd : yEnd) * vp.scale;
       const dir = (vp.flipY ? -away : away) * (px * 0.9 + 2);
+      // A depot marker sits on the front cross aisle: an aisle code it would cover is left to the aisle's other end.
+      if (depots.some((d) => Math.abs(d.sx - sx) < d.half + w / 2 + 2 && Math.abs(d.sy - (sy + dir)) < d.half + px / 2 + 2)) continue;
       label(ctx, a.code, sx, sy + dir, p, px);
     }
   }

@@ -113,3 +113,28 @@ describe('drawOverlayScene', () => {
     expect(dashes).toContain('7,6');
   });
 });
+
+describe('aisle codes and the depot marker', () => {
+  it('leaves out an aisle code the depot square would cover; that aisle keeps its code at the other end', () => {
+    // Few, wide-apart aisles so every code is drawn at both ends; the depot sits on the front cross aisle.
+    const generated = generateRectangularPlan({ aisles: 8, aisleLengthM: 30, aisleSpacingM: 3.2, baysPerAisle: 20, levels: 2, crossAisles: { middle: 0 } });
+    // The depot just in front of aisle F, as the demo hall has it (between its aisles, on the front cross aisle).
+    const small = { ...generated, depots: [{ code: 'D1', x: generated.aisles[5]!.x, y: -1 }] };
+    const smallIndex = buildPlanIndex(small, { aisleHalfWidth: 1, rackDepth: 1, crossAisleHalfWidth: 1 });
+    const g: SceneGeometry = { plan: small, index: smallIndex, closures: [], aisleHalfWidth: 1, crossAisleHalfWidth: 1, rackDepth: 1, compact: false };
+    const vp = fitViewport(smallIndex.bounds!, 1000, 600, true, 40);
+    const ctx = context();
+    drawStaticScene(ctx, g, LIGHT_PALETTE, vp, 1000, 600, 5);
+    const calls = (ctx as unknown as { __getEvents: () => { type: string; props: Record<string, unknown> }[] }).__getEvents();
+    const codes = new Set(small.aisles.map((a) => a.code));
+    const drawn = calls.filter((c) => c.type === 'fillText' && codes.has(c.props.text as string));
+    const depot = small.depots[0]!;
+    const dx = vp.ox + depot.x * vp.scale;
+    const dy = vp.oy + (vp.flipY ? -depot.y : depot.y) * vp.scale;
+    // The marker is a square of half-side 11 px; a 12 px code centred inside that box (plus its own half size) would touch it.
+    const covered = drawn.filter((c) => Math.abs((c.props.x as number) - dx) < 11 + 6 && Math.abs((c.props.y as number) - dy) < 11 + 6);
+    expect(covered).toEqual([]);
+    // Every aisle still has its code somewhere; only the one under the depot lost its front end.
+    for (const code of codes) expect(drawn.filter((c) => c.props.text === code).length).toBe(code === 'F' ? 1 : 2);
+  });
+});
