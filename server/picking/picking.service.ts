@@ -261,7 +261,12 @@ async function idempotent<T>(
     // Writes to one trip one at a time (SQLite's one connection does this by itself; on PostgreSQL each
     // write has its own transaction): a repeated key or two pickers on one line see the first one's result.
     await lockForTransaction(trx, `trip:${tripId}`);
-    // Keys are per user: a stored answer goes back only to the picker who made it.
+    // Keys are per user: a stored answer goes back only to the picker who made it. The trip lock does
+    // not cover one key sent to two trips (a picker's own trip and one taken from them), so the key has
+    // a lock too, always taken after the trip's (no cycle): the second sees the first's record and is
+    // refused as a reused key (422), never a UNIQUE-index crash (500). Keys stay per user, not per
+    // trip: the tablet makes a fresh key per action, so one key on two trips is a mistake to refuse.
+    await lockForTransaction(trx, `pick-key:${actor.id}:${key}`);
     const stored = await repo.storedRequest(trx, actor.id, key);
     if (stored) {
       if (stored.request_hash !== hash) {
