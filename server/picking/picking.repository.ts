@@ -231,7 +231,8 @@ export async function bumpRevision(db: Q, tripId: number): Promise<number> {
   return rows[0]!.revision;
 }
 
-export function lineView(l: DbLineRow) {
+/** A pick line as the tablet, the board and the print view show it. */
+export function lineView(l: Pick<DbLineRow, 'id' | 'order_ref' | 'sku' | 'description' | 'bin' | 'qty' | 'tote' | 'status' | 'picked_qty' | 'short_reason'>) {
   return {
     id: l.id,
     orderRef: l.order_ref,

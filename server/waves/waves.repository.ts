@@ -2,6 +2,7 @@
 import type { TripDetail, WaveSummary } from '../../shared/waves';
 import type { Q } from '../db/knex';
 import { ordersOfSiteBy, type DbOrderRow } from '../orders/orders.repository';
+import type { DbLineRow } from '../picking/picking.repository';
 
 export interface DbReleasedWaveRow {
   id: number;
@@ -146,19 +147,17 @@ export interface DbPrintStopRow {
   status: 'open' | 'done';
   node: number;
 }
-export interface DbPrintLineRow {
-  id: number;
-  stop_id: number;
-  order_ref: string;
-  sku: string;
-  description: string;
-  bin: string;
-  qty: number;
-  tote: number;
-  status: 'open' | 'picked' | 'short' | 'cancelled';
-  picked_qty: number | null;
-  short_reason: string | null;
-}
+/** A pick line as the print view reads it (the whole row). */
+export type DbPrintLineRow = DbLineRow;
+
+/** What every view of a trip starts with: id, number, status and picker. */
+export const tripHead = <S extends string>(t: { id: number; n: number; status: S; picker_id: number | null; picker_name: string | null }) => ({
+  id: t.id,
+  n: t.n,
+  status: t.status,
+  pickerId: t.picker_id,
+  pickerName: t.picker_name,
+});
 
 /** A trip's stops by printed number and its pick lines, as the print view shows them. */
 export async function printStopsAndLines(db: Q, tripId: number): Promise<{ stops: DbPrintStopRow[]; lines: DbPrintLineRow[] }> {
