@@ -19,7 +19,7 @@ import {
   type TripPulse,
   type TripResult,
 } from '../../shared/picking';
-import { audit } from '../audit/audit';
+import { audit, type AuditEntry } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
 import { loadPlanIndex } from '../floor-plans/plan-index';
@@ -137,8 +137,7 @@ export async function startTrip(db: Knex, actor: Actor, tripId: number): Promise
     const trip = await readableTrip(trx, actor, tripId);
     if (trip.status !== 'assigned') return false;
     await markStarted(trx, trip);
-    await bumpRevision(trx, trip.id);
-    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.start', subject: `trip:${trip.id}`, device: actor.device });
+    await tripChanged(trx, actor, trip, { action: 'trip.start', subject: `trip:${trip.id}` });
     return true;
   });
   const trip = (await loadPickTrip(db, tripId))!;
@@ -172,15 +171,7 @@ export async function cartReady(db: Knex, actor: Actor, tripId: number, body: Ca
       });
     }
     await repo.setCartReady(trx, trip.id, nowIso());
-    await bumpRevision(trx, trip.id);
-    await audit(trx, {
-      siteId: trip.site_id,
-      userId: actor.id,
-      action: 'trip.cart_ready',
-      subject: `trip:${trip.id}`,
-      device: actor.device,
-      detail: { totes: body.totes },
-    });
+    await tripChanged(trx, actor, trip, { action: 'trip.cart_ready', subject: `trip:${trip.id}`, detail: { totes: body.totes } });
     return true;
   });
   const trip = (await loadPickTrip(db, tripId))!;
@@ -194,6 +185,17 @@ async function markStarted(trx: Q, trip: DbTripRow, firstWork?: string): Promise
   await repo.markTripStarted(trx, trip, at);
   trip.status = 'picking';
   trip.started_at = at;
+}
+
+/** A picker's change to a trip: its revision moves on (tablet and board reload) and the audit log says who, where and what. */
+async function tripChanged(
+  trx: Q,
+  actor: Actor,
+  trip: Pick<DbTripRow, 'id' | 'site_id'>,
+  entry: Pick<AuditEntry, 'action' | 'subject' | 'detail'>,
+): Promise<void> {
+  await bumpRevision(trx, trip.id);
+  await audit(trx, { siteId: trip.site_id, userId: actor.id, device: actor.device, ...entry });
 }
 
 // ---- idempotent writes ----
@@ -547,14 +549,10 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
     await repo.markStopSkipped(trx, stop.id, at);
     await writeWalkOrder(trx, done, sequence);
     await markStarted(trx, trip);
-    await bumpRevision(trx, trip.id);
-    await audit(trx, {
-      siteId: trip.site_id,
-      userId: actor.id,
+    await tripChanged(trx, actor, trip, {
       action: 'pick.skip',
       subject: `stop:${stop.id}`,
       detail: { tripId: trip.id, stopN: stop.n, bins: stop.bins, openBefore: before, openAfter: sequence.map((s) => s.id), key: req.key },
-      device: actor.device,
     });
     return { answer: { trip: (await loadPickTrip(trx, trip.id))! }, siteId: trip.site_id };
   });
@@ -686,15 +684,7 @@ export async function finishTrip(db: Knex, mailer: Mailer, actor: Actor, tripId:
       const walked = await walkedMetres(trx, trip);
       const at = nowIso();
       await repo.markTripDone(trx, trip.id, walked, at);
-      await bumpRevision(trx, trip.id);
-      await audit(trx, {
-        siteId: trip.site_id,
-        userId: actor.id,
-        action: 'trip.finish',
-        subject: `trip:${trip.id}`,
-        detail: { walkedMetres: walked },
-        device: actor.device,
-      });
+      await tripChanged(trx, actor, trip, { action: 'trip.finish', subject: `trip:${trip.id}`, detail: { walkedMetres: walked } });
       return { answer: await tripResult(trx, trip.id), siteId: trip.site_id, closedTripWave: trip.wave_id };
     },
     mailer,
