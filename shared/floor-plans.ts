@@ -195,7 +195,7 @@ export const ActiveFloorPlan = z.object({
 });
 export type ActiveFloorPlan = z.infer<typeof ActiveFloorPlan>;
 
-export const JobPhase = z.enum(['queued', 'parsing', 'checking', 'building_graph', 'building_distances', 'saving', 'done']);
+export const JobPhase = z.enum(['queued', 'parsing', 'checking', 'building_graph', 'building_distances', 'saving', 'done', 'cancelled']);
 export type JobPhase = z.infer<typeof JobPhase>;
 
 /** Words for each phase, shown beside the progress bar. */
@@ -207,14 +207,15 @@ export const JOB_PHASE_LABEL: Record<JobPhase, string> = {
   building_distances: 'Computing shortest walking distances',
   saving: 'Saving the draft',
   done: 'Done',
+  cancelled: 'Cancelled',
 };
 
 export const FloorPlanJob = z.object({
   id: z.string(),
   siteId: z.number().int(),
   kind: z.enum(['upload', 'generate']),
-  /** running → done (a draft was saved) | invalid (the file has errors; nothing saved) | failed. */
-  status: z.enum(['running', 'done', 'invalid', 'failed']),
+  /** running → done (a draft was saved) | invalid (the file has errors; nothing saved) | failed | cancelled (stopped by a user; nothing saved). */
+  status: z.enum(['running', 'done', 'invalid', 'failed', 'cancelled']),
   phase: JobPhase,
   /** 0…1 within the phase. */
   fraction: z.number().min(0).max(1),

@@ -29,6 +29,7 @@ export const renameFloorPlan = (siteId: number, planId: number, name: string) =>
   http('PATCH', `${base(siteId)}/${planId}`, FloorPlanDetail, { body: { name } });
 export const generateFloorPlan = (siteId: number, body: GenerateFloorPlanBody) => http('POST', `${base(siteId)}/generate`, FloorPlanJob, { body });
 export const getFloorPlanJob = (siteId: number, jobId: string) => http('GET', `${base(siteId)}/jobs/${jobId}`, FloorPlanJob);
+export const cancelFloorPlanJob = (siteId: number, jobId: string) => http('POST', `${base(siteId)}/jobs/${jobId}/cancel`, FloorPlanJob);
 export const closeSegment = (siteId: number, planId: number, body: CloseSegmentBody) =>
   http('POST', `${base(siteId)}/${planId}/closures`, ClosureResult, { body });
 export const reopenSegment = (siteId: number, planId: number, closureId: number) =>

@@ -100,3 +100,8 @@ export async function auditTable(db: Knex, scope: AuditScope, f: AuditFilter): P
     rows: rows.map((r) => [r.at, r.site_code ?? '', r.user_name ?? '', r.user_role ?? '', r.action, r.subject ?? '', r.device ?? '', r.detail ?? '']),
   };
 }
+
+/** The latest entry of one action (when it was, and its detail as stored), or undefined. */
+export async function latestEntryOf(db: Knex, action: string): Promise<{ at: string; detail: string | null } | undefined> {
+  return db('audit_log').where({ action }).orderBy('id', 'desc').first<{ at: string; detail: string | null } | undefined>('at', 'detail');
+}

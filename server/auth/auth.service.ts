@@ -1,12 +1,24 @@
 import type { Knex } from 'knex';
 import { isIanaTimeZone } from '../../shared/time-zone';
 import { normaliseBadge, type Me, type InviteInfo } from '../../shared/auth';
-import type { Role } from '../../shared/common';
 import type { Deps } from '../deps';
 import { AppError } from '../http/errors';
 import { SESSION_MAX_S } from '../http/session';
 import { listSitesOf } from '../sites/sites.repository';
-import { bumpTokenVersion, findUserByBadge, findUserByEmail, findUserById, insertUser, type DbUserRow } from '../users/users.repository';
+import {
+  bumpTokenVersion,
+  findUserByBadge,
+  findUserByEmail,
+  findUserById,
+  insertUser,
+  inviteByTokenHash,
+  markInviteAccepted,
+  updateUser,
+  type DbInviteRow,
+  type DbUserRow,
+} from '../users/users.repository';
+import { uniqueOrConflict } from '../db/knex';
+import { closeOpenResets, insertPasswordReset, markResetUsed, passwordResetByTokenHash } from './password-resets.repository';
 import { audit } from '../audit/audit';
 import { newToken, sha256 } from './tokens';
 import { closeOutboxLinks } from '../mail/mailer';
@@ -84,7 +96,7 @@ export async function changePassword(deps: Deps, userId: number, current: string
     throw new AppError('validation', 'validation_failed', 'The current password is not right', [{ field: 'currentPassword', message: 'not right' }]);
   }
   const hash = await deps.hasher.hash(next);
-  await deps.db('users').where({ id: userId }).update({ password_hash: hash });
+  await updateUser(deps.db, userId, { password_hash: hash });
   await bumpTokenVersion(deps.db, userId);
   await audit(deps.db, { userId, action: 'password.changed' });
 }
@@ -114,7 +126,7 @@ async function mailPasswordReset(deps: Deps, email: string): Promise<void> {
   if (!user || !user.active || user.role === 'picker') return;
   const now = Date.now();
   const expiresAt = new Date(now + RESET_TTL_MS).toISOString();
-  await deps.db('password_resets').insert({ user_id: user.id, token_hash: hash, expires_at: expiresAt, created_at: new Date(now).toISOString() });
+  await insertPasswordReset(deps.db, { user_id: user.id, token_hash: hash, expires_at: expiresAt, created_at: new Date(now).toISOString() });
   const link = `${deps.config.publicUrl}/reset-password?token=${token}`;
   await deps.mailer.send({
     to: email,
@@ -125,10 +137,7 @@ async function mailPasswordReset(deps: Deps, email: string): Promise<void> {
 }
 
 export async function completePasswordReset(deps: Deps, token: string, newPassword: string): Promise<void> {
-  const row = await deps
-    .db('password_resets')
-    .where({ token_hash: sha256(token) })
-    .first<{ id: number; user_id: number; expires_at: string; used_at: string | null } | undefined>();
+  const row = await passwordResetByTokenHash(deps.db, sha256(token));
   if (!row || row.used_at || row.expires_at < new Date().toISOString()) {
     throw new AppError('validation', 'invalid_token', 'This reset link is not valid any more; ask for a new one');
   }
@@ -136,33 +145,19 @@ export async function completePasswordReset(deps: Deps, token: string, newPasswo
   const closed = await deps.db.transaction(async (trx) => {
     // Single use, even under a double submit: the update only succeeds while used_at is empty.
     const now = new Date().toISOString();
-    const n = await trx('password_resets').where({ id: row.id }).whereNull('used_at').update({ used_at: now });
-    if (n !== 1) throw new AppError('validation', 'invalid_token', 'This reset link has already been used');
+    if (!(await markResetUsed(trx, row.id, now))) throw new AppError('validation', 'invalid_token', 'This reset link has already been used');
     // Other reset links of the same account stop working too.
-    const others = await trx('password_resets').where({ user_id: row.user_id }).whereNull('used_at').pluck('token_hash');
-    await trx('password_resets').where({ user_id: row.user_id }).whereNull('used_at').update({ used_at: now });
-    await trx('users').where({ id: row.user_id }).update({ password_hash: hash });
+    const others = await closeOpenResets(trx, row.user_id, now);
+    await updateUser(trx, row.user_id, { password_hash: hash });
     await bumpTokenVersion(trx, row.user_id);
-    return [sha256(token), ...(others as string[])];
+    return [sha256(token), ...others];
   });
   await closeOutboxLinks(deps.db, closed, 'used');
   await audit(deps.db, { userId: row.user_id, action: 'password.reset' });
 }
 
-interface DbInvite {
-  id: number;
-  email: string;
-  role: Role;
-  site_ids: string;
-  token_hash: string;
-  expires_at: string;
-  accepted_at: string | null;
-}
-
-async function liveInvite(db: Knex, token: string): Promise<DbInvite> {
-  const inv = await db<DbInvite>('invites')
-    .where({ token_hash: sha256(token) })
-    .first();
+async function liveInvite(db: Knex, token: string): Promise<DbInviteRow> {
+  const inv = await inviteByTokenHash(db, sha256(token));
   if (!inv || inv.accepted_at || inv.expires_at < new Date().toISOString()) {
     throw new AppError('not_found', 'invalid_token', 'This invitation is not valid any more; ask your admin for a new one');
   }
@@ -176,17 +171,22 @@ export async function inviteInfo(db: Knex, token: string): Promise<InviteInfo> {
 
 export async function acceptInvite(deps: Deps, token: string, name: string, password: string): Promise<DbUserRow> {
   const inv = await liveInvite(deps.db, token);
-  if (await findUserByEmail(deps.db, inv.email)) throw new AppError('conflict', 'email_taken', 'An account with this e-mail already exists');
+  const emailTaken = () => new AppError('conflict', 'email_taken', 'An account with this e-mail already exists');
+  if (await findUserByEmail(deps.db, inv.email)) throw emailTaken();
   const hash = await deps.hasher.hash(password);
-  const id = await deps.db.transaction(async (trx) => {
-    const n = await trx('invites').where({ id: inv.id }).whereNull('accepted_at').update({ accepted_at: new Date().toISOString() });
-    if (n !== 1) throw new AppError('not_found', 'invalid_token', 'This invitation has already been used');
-    return insertUser(
-      trx,
-      { name, email: inv.email, badge: null, role: inv.role, password_hash: hash, pin_hash: null, created_at: new Date().toISOString() },
-      JSON.parse(inv.site_ids) as number[],
-    );
-  });
+  // Another invitation to the same address accepted at the same moment takes the e-mail first: 409.
+  const id = await uniqueOrConflict(
+    deps.db.transaction(async (trx) => {
+      if (!(await markInviteAccepted(trx, inv.id, new Date().toISOString())))
+        throw new AppError('not_found', 'invalid_token', 'This invitation has already been used');
+      return insertUser(
+        trx,
+        { name, email: inv.email, badge: null, role: inv.role, password_hash: hash, pin_hash: null, created_at: new Date().toISOString() },
+        JSON.parse(inv.site_ids) as number[],
+      );
+    }),
+    emailTaken,
+  );
   await closeOutboxLinks(deps.db, [inv.token_hash], 'used');
   await audit(deps.db, { userId: id, action: 'invite.accepted', subject: inv.email });
   return (await findUserById(deps.db, id))!;

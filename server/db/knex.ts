@@ -19,6 +19,15 @@ export function isUniqueViolation(err: unknown): boolean {
   return !!e && (e.code === 'SQLITE_CONSTRAINT_UNIQUE' || e.code === '23505');
 }
 
+/** `work`'s answer; a UNIQUE violation (a parallel request inserted the row first) becomes `conflict()` instead. */
+export async function uniqueOrConflict<T>(work: Promise<T>, conflict: () => Error): Promise<T> {
+  try {
+    return await work;
+  } catch (err) {
+    throw isUniqueViolation(err) ? conflict() : err;
+  }
+}
+
 export interface OpenDbOptions {
   /** PostgreSQL only: schema to work in (tests give each file its own). */
   schema?: string;

@@ -6,15 +6,10 @@
  */
 import type { Knex } from 'knex';
 import type { Cell, Table } from './table-export';
+import { orderLineRows, pickLineRows, siteTableRows, siteUserRows } from './exports.repository';
 
 export async function ordersTable(db: Knex, siteId: number): Promise<Table> {
-  const rows = await db('orders as o')
-    .leftJoin('order_lines as l', 'l.order_id', 'o.id')
-    .leftJoin('waves as w', 'w.id', 'o.wave_id')
-    .where('o.site_id', siteId)
-    .orderBy('o.ref')
-    .orderBy('l.line_no')
-    .select('o.ref', 'o.status', 'o.due', 'o.priority', 'o.source', 'o.created_at', 'w.name as wave', 'l.line_no', 'l.sku', 'l.qty');
+  const rows = await orderLineRows(db, siteId);
   return {
     name: 'orders',
     header: ['order', 'status', 'due', 'priority', 'source', 'created (UTC)', 'wave', 'line', 'sku', 'qty'],
@@ -23,29 +18,7 @@ export async function ordersTable(db: Knex, siteId: number): Promise<Table> {
 }
 
 export async function pickLinesTable(db: Knex, siteId: number): Promise<Table> {
-  const rows = await db('pick_lines as p')
-    .join('trips as t', 't.id', 'p.trip_id')
-    .join('waves as w', 'w.id', 't.wave_id')
-    .leftJoin('stops as s', 's.id', 'p.stop_id')
-    .leftJoin('users as u', 'u.id', 'p.confirmed_by')
-    .where('t.site_id', siteId)
-    .orderBy('p.id')
-    .select(
-      'w.name as wave',
-      't.n as trip',
-      's.n as stop',
-      'p.order_ref',
-      'p.sku',
-      'p.description',
-      'p.bin',
-      'p.qty',
-      'p.picked_qty',
-      'p.status',
-      'p.short_reason',
-      'u.name as by',
-      'u.badge as badge',
-      'p.confirmed_at',
-    );
+  const rows = await pickLineRows(db, siteId);
   return {
     name: 'pick lines',
     header: [
@@ -84,20 +57,7 @@ export async function pickLinesTable(db: Knex, siteId: number): Promise<Table> {
 }
 
 export async function usersTable(db: Knex, siteId: number): Promise<Table> {
-  const rows = await db('users as u')
-    .join('user_sites as us', 'us.user_id', 'u.id')
-    .where('us.site_id', siteId)
-    .orderBy('u.role')
-    .orderBy('u.name')
-    .select('u.id', 'u.name', 'u.email', 'u.badge', 'u.role', 'u.active', 'u.created_at');
-  const admins = await db('users')
-    .where({ role: 'admin' })
-    .whereNotIn(
-      'id',
-      rows.map((r: { id: number }) => r.id),
-    )
-    .orderBy('name')
-    .select('id', 'name', 'email', 'badge', 'role', 'active', 'created_at');
+  const { rows, admins } = await siteUserRows(db, siteId);
   return {
     name: 'users',
     header: ['name', 'e-mail', 'badge', 'role', 'active', 'created (UTC)', 'site member'],
@@ -131,40 +91,5 @@ function tableOf(name: string, rows: Record<string, unknown>[]): Table {
 
 /** Every table that belongs to the site, one sheet each (rows as stored). */
 export async function siteDataTables(db: Knex, siteId: number): Promise<Table[]> {
-  const plans = db('floor_plans').where({ site_id: siteId }).select('id');
-  const trips = db('trips').where({ site_id: siteId }).select('id');
-  const orders = db('orders').where({ site_id: siteId }).select('id');
-  const users = db('user_sites').where({ site_id: siteId }).select('user_id');
-  const sources: [string, Knex.QueryBuilder][] = [
-    ['sites', db('sites').where({ id: siteId })],
-    ['cart_profiles', db('cart_profiles').where({ site_id: siteId })],
-    ['users', db('users').whereIn('id', users).select('id', 'name', 'email', 'badge', 'role', 'active', 'created_at')],
-    ['floor_plans', db('floor_plans').where({ site_id: siteId })],
-    ['floor_plan_aisles', db('floor_plan_aisles').whereIn('plan_id', plans)],
-    ['floor_plan_cross_aisles', db('floor_plan_cross_aisles').whereIn('plan_id', plans)],
-    ['floor_plan_bins', db('floor_plan_bins').whereIn('plan_id', plans)],
-    ['floor_plan_depots', db('floor_plan_depots').whereIn('plan_id', plans)],
-    ['floor_plan_closures', db('floor_plan_closures').whereIn('plan_id', plans)],
-    ['skus', db('skus').where({ site_id: siteId })],
-    ['orders', db('orders').where({ site_id: siteId })],
-    ['order_lines', db('order_lines').whereIn('order_id', orders)],
-    ['waves', db('waves').where({ site_id: siteId })],
-    ['trips', db('trips').where({ site_id: siteId })],
-    ['trip_orders', db('trip_orders').whereIn('trip_id', trips)],
-    ['trip_assignments', db('trip_assignments').whereIn('trip_id', trips)],
-    ['stops', db('stops').whereIn('trip_id', trips)],
-    ['pick_lines', db('pick_lines').whereIn('trip_id', trips)],
-    ['pick_shorts', db('pick_shorts').where({ site_id: siteId })],
-    ['studies', db('studies').where({ site_id: siteId })],
-    [
-      'integration_tokens',
-      db('integration_tokens')
-        .where({ site_id: siteId })
-        .select('id', 'name', 'prefix', 'created_by', 'created_at', 'expires_at', 'revoked_at', 'last_used_at'),
-    ],
-    ['audit_log', db('audit_log').where({ site_id: siteId })],
-  ];
-  const out: Table[] = [];
-  for (const [name, q] of sources) out.push(tableOf(name, (await q) as Record<string, unknown>[]));
-  return out;
+  return (await siteTableRows(db, siteId)).map(([name, rows]) => tableOf(name, rows));
 }

@@ -15,7 +15,8 @@ import {
   type UnplaceableOrder,
 } from '../../shared/floor-plans';
 import { csvDocument, neutraliseCells } from '../../shared/input-rules';
-import { skuMap } from '../orders/orders.repository';
+import { openOrderRefs, openOrderSkus, skuMap } from '../orders/orders.repository';
+import { runningWavesOffPlan } from '../waves/waves.repository';
 import { activePlanRow, type DbFloorPlanRow } from './floor-plans.repository';
 import { loadPlanIndex } from './plan-index';
 import { unreachableBinCodes } from './reachability';
@@ -45,11 +46,7 @@ function unplaceableReason(lines: readonly { sku: string }[], skus: Map<string, 
 const refOf = (r: DbFloorPlanRow): PlanRef => ({ id: r.id, version: r.version ?? 0, name: r.name, state: r.state === 'building' ? 'draft' : r.state });
 
 async function openOrderLines(db: Knex, siteId: number): Promise<Map<string, { sku: string }[]>> {
-  const rows: { ref: string; sku: string }[] = await db('orders as o')
-    .join('order_lines as l', 'l.order_id', 'o.id')
-    .where({ 'o.site_id': siteId, 'o.status': 'open' })
-    .orderBy(['o.id', 'l.line_no'])
-    .select('o.ref', 'l.sku');
+  const rows = await openOrderSkus(db, siteId);
   const out = new Map<string, { sku: string }[]>();
   for (const r of rows) {
     const list = out.get(r.ref) ?? [];
@@ -57,20 +54,12 @@ async function openOrderLines(db: Knex, siteId: number): Promise<Map<string, { s
     out.set(r.ref, list);
   }
   // Orders with no lines still count as open orders (and place trivially).
-  const bare: string[] = await db('orders').where({ site_id: siteId, status: 'open' }).pluck('ref');
-  for (const ref of bare) if (!out.has(ref)) out.set(ref, []);
+  for (const ref of await openOrderRefs(db, siteId)) if (!out.has(ref)) out.set(ref, []);
   return out;
 }
 
 async function runningWaves(db: Knex, siteId: number, exceptPlanId: number): Promise<RunningWave[]> {
-  const rows: { id: number; name: string; status: string; plan_id: number; version: number | null; open_trips: number }[] = await db('waves as w')
-    .join('floor_plans as p', 'p.id', 'w.plan_id')
-    .where('w.site_id', siteId)
-    .whereIn('w.status', ['released', 'picking'])
-    .whereNot('w.plan_id', exceptPlanId)
-    .orderBy('w.id')
-    .select('w.id', 'w.name', 'w.status', 'w.plan_id', 'p.version')
-    .select(db.raw("(select count(*) from trips t where t.wave_id = w.id and t.status not in ('done', 'cancelled')) as open_trips"));
+  const rows = await runningWavesOffPlan(db, siteId, exceptPlanId);
   return rows.map((r) => ({ id: r.id, name: r.name, status: r.status, planId: r.plan_id, planVersion: r.version ?? 0, openTrips: Number(r.open_trips) }));
 }
 

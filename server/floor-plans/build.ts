@@ -46,15 +46,17 @@ const BUILD_HEAP_MB = 1024;
 
 /**
  * Runs one build in its own process. Rejects with AppError `plan_refused` when the engine refuses
- * the plan, AppError `build_stopped` when its process was stopped (time, memory, fatal error), or Error.
+ * the plan, AppError `build_stopped` when its process was stopped (time, memory, fatal error), or Error
+ * (WorkerCancelledError when `signal` aborted it).
  */
-export async function runBuild(input: BuildInput, onProgress?: (p: BuildProgress) => void): Promise<BuildOutput> {
+export async function runBuild(input: BuildInput, onProgress?: (p: BuildProgress) => void, signal?: AbortSignal): Promise<BuildOutput> {
   let out: BuildOutput | BuildRefusal;
   try {
     out = await runInWorker<BuildOutput | BuildRefusal, BuildProgress>(new URL('./build.worker.ts', import.meta.url), input, {
       timeoutMs: WORKER_TIMEOUT_MS,
       heapMb: BUILD_HEAP_MB,
       ...(onProgress ? { onProgress } : {}),
+      ...(signal ? { signal } : {}),
     });
   } catch (err) {
     // Out of time or memory, or a fatal error: the plan (or its closures) is what this build was given.

@@ -28,7 +28,7 @@ import { openEventStream } from '../http/event-stream';
 import { defineRoute } from '../http/route';
 import { buildFloorPlanTemplate, rowIssuesToCsv, rowIssuesToXlsx } from './import';
 import * as service from './floor-plans.service';
-import { getJob, watchJob } from './jobs';
+import { cancelJob, getJob, watchJob } from './jobs';
 import type { Deps } from '../deps';
 import { skusWithoutBinCsv, skusWithoutBinXlsx } from './activation-check';
 
@@ -109,6 +109,20 @@ export const floorPlanRoutes = [
     summary: 'A build job: phase, fraction, and the error table when the file had problems',
     response: FloorPlanJob,
     handler: ({ deps, siteId, params }) => mustJob(deps, siteId, params.jobId),
+  }),
+  defineRoute({
+    method: 'post',
+    path: `${base}/jobs/:jobId/cancel`,
+    access: GENERATE,
+    summary: 'Cancel a running build job: its process stops and nothing is saved (409 once it has ended)',
+    response: FloorPlanJob,
+    handler: async ({ deps, siteId, params, user }) => {
+      const job = await mustJob(deps, siteId, params.jobId);
+      // Who may start the build may stop it: uploads are for supervisors and admins only.
+      if (job.kind === 'upload' && !MANAGE.includes(user.role))
+        throw new AppError('forbidden', 'forbidden', 'Only a supervisor or an admin can cancel an upload');
+      return (await cancelJob(deps, siteId, job.id)) ?? Promise.reject(notFound('Job'));
+    },
   }),
   defineRoute({
     method: 'get',

@@ -29,7 +29,7 @@ import { rerouteOpenTrips } from '../picking/reroute';
 import { nowIso } from '../db/knex';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
-import { jobStopMessage } from '../workers/spawn';
+import { jobStopMessage, WorkerCancelledError } from '../workers/spawn';
 import { BUILD_BUDGET_MS, runBuild, type BuildOutput } from './build';
 import * as repo from './floor-plans.repository';
 import { checkFloorPlanFile } from './import';
@@ -222,6 +222,7 @@ export async function saveBuiltPlan(
   plan: PlanGeometry,
   built: BuildOutput,
   onProgress?: (fraction: number) => void,
+  signal?: AbortSignal,
 ): Promise<number> {
   // Saves run one at a time, so any plan still 'building' now was left by a stopped server.
   await repo.purgeUnfinishedPlans(db);
@@ -246,12 +247,15 @@ export async function saveBuiltPlan(
   try {
     const chunks = repo.geometryInsertChunks(planId, plan);
     for (let i = 0; i < chunks.length; i++) {
+      if (signal?.aborted) throw new WorkerCancelledError();
       await repo.insertRows(db, chunks[i]!.table, chunks[i]!.rows);
       onProgress?.((i + 1) / (chunks.length + 1));
       await yieldToLoop();
     }
     let version = 0;
     await db.transaction(async (trx) => {
+      // Cancelled while saving: the draft is not committed (and the half-saved rows go below).
+      if (signal?.aborted) throw new WorkerCancelledError();
       await repo.replaceGraph(trx, planId, 0, built.graph, built.index);
       version = await repo.nextVersion(trx, meta.siteId);
       await repo.setPlanDraft(trx, planId, version);
@@ -283,7 +287,7 @@ function failureDescriber(logger: Logger): (err: unknown) => string {
 }
 
 async function buildWithProgress(control: JobControl, input: Parameters<typeof runBuild>[0]): Promise<BuildOutput> {
-  return runBuild(input, (p) => control.progress(p.phase, p.fraction));
+  return runBuild(input, (p) => control.progress(p.phase, p.fraction), control.signal);
 }
 
 const stripExtension = (filename: string) => filename.replace(/\.(xlsx|xls|csv)$/i, '').trim();
@@ -303,7 +307,7 @@ async function runUpload(
   control: JobControl,
 ): Promise<JobOutcome> {
   control.progress('parsing', 0);
-  const check = await checkFloorPlanFile(input.bytes, input.filename, { onProgress: (p) => control.progress(p.phase, p.fraction) });
+  const check = await checkFloorPlanFile(input.bytes, input.filename, { onProgress: (p) => control.progress(p.phase, p.fraction), signal: control.signal });
   if (!check.ok || !check.plan) {
     return {
       status: 'invalid',
@@ -322,6 +326,7 @@ async function runUpload(
     plan,
     built,
     (f) => control.progress('saving', f),
+    control.signal,
   );
   return { status: 'done', planId, warnings: check.warnings };
 }
@@ -356,6 +361,7 @@ async function runGenerate(
     unpackPlan(built.plan!),
     built,
     (f) => control.progress('saving', f),
+    control.signal,
   );
   return { status: 'done', planId, warnings: [] };
 }
@@ -365,7 +371,7 @@ export function floorPlanBuildJob(deps: Deps): JobKind<BuildJobData, JobOutcome>
   return {
     name: FLOOR_PLAN_BUILD_JOB,
     run: (data, job) => {
-      const control: JobControl = { progress: (phase, fraction) => job.progress(fraction, phase) };
+      const control: JobControl = { progress: (phase, fraction) => job.progress(fraction, phase), signal: job.signal };
       if (data.kind === 'upload') {
         const { bytes, kind: _kind, ...rest } = data;
         return runUpload(deps.db, { ...rest, bytes: new Uint8Array(Buffer.from(bytes, 'base64')) }, control);

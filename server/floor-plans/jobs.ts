@@ -7,6 +7,7 @@ import type { FloorPlanJob, GeneratePlanParams, JobPhase } from '../../shared/fl
 import { JobPhase as JobPhaseSchema } from '../../shared/floor-plans';
 import type { RowIssue } from '../../shared/imports';
 import type { Deps } from '../deps';
+import { AppError } from '../http/errors';
 import { isActive, type JobRecord } from '../workers/jobs';
 
 export const FLOOR_PLAN_BUILD_JOB = 'floor-plan-build';
@@ -16,6 +17,8 @@ export type JobOutcome =
 
 export interface JobControl {
   progress(phase: JobPhase, fraction: number): void;
+  /** Aborted when a user cancels the job: stops the build's process and the save. */
+  signal: AbortSignal;
 }
 
 /** What a build job is given (JSON: it may travel to another instance; an upload's bytes as base64). */
@@ -34,10 +37,17 @@ function toFloorPlanJob(r: JobRecord<JobOutcome>): FloorPlanJob {
     id: r.id,
     siteId: r.siteId ?? 0,
     kind: r.key === keyOf('upload') ? 'upload' : 'generate',
-    status: isActive(r) ? 'running' : out ? out.status : 'failed',
+    status: isActive(r) ? 'running' : out ? out.status : r.state === 'cancelled' ? 'cancelled' : 'failed',
     phase: out?.status === 'done' ? 'done' : phase.success ? phase.data : 'queued',
     fraction: out?.status === 'done' ? 1 : Math.max(0, Math.min(1, r.progress)),
-    message: out?.status === 'invalid' ? out.message : r.state === 'failed' || r.state === 'cancelled' ? (r.error ?? 'The job was cancelled') : null,
+    message:
+      out?.status === 'invalid'
+        ? out.message
+        : r.state === 'cancelled'
+          ? 'The build was cancelled; nothing was saved'
+          : r.state === 'failed'
+            ? (r.error ?? 'The build failed')
+            : null,
     planId: out?.status === 'done' ? out.planId : null,
     errors: out?.status === 'invalid' ? out.errors : [],
     warnings: out?.warnings ?? [],
@@ -57,6 +67,18 @@ export async function startJob(deps: Deps, data: BuildJobData): Promise<FloorPla
 export async function getJob(deps: Deps, siteId: number, id: string): Promise<FloorPlanJob | undefined> {
   const r = await deps.jobs.get<JobOutcome>(id);
   return r && r.kind === FLOOR_PLAN_BUILD_JOB && r.siteId === siteId ? toFloorPlanJob(r) : undefined;
+}
+
+/**
+ * Cancels a queued or running build (on whichever instance runs it): its process is stopped and any
+ * half-saved plan deleted. Undefined when the job is unknown or of another site; 409 once it has ended.
+ */
+export async function cancelJob(deps: Deps, siteId: number, id: string): Promise<FloorPlanJob | undefined> {
+  const job = await getJob(deps, siteId, id);
+  if (!job) return undefined;
+  if (job.finishedAt) throw new AppError('conflict', 'not_running', `This build has ended (${job.status}); only a running build can be cancelled`);
+  const r = await deps.jobs.cancel(id);
+  return r ? toFloorPlanJob(r as JobRecord<JobOutcome>) : job;
 }
 
 /** Calls `onUpdate` on every change until the job ends, then `onEnd` once; returns the unsubscribe function. */

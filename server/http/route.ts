@@ -77,5 +77,20 @@ export function defineRoute<B = undefined, Q = undefined, const P extends string
   return def;
 }
 
+/** The office roles: they read plans, orders, waves and trips (pickers use the tablet's routes). */
+export const OFFICE_ROLES: readonly Role[] = ['supervisor', 'admin', 'engineer'];
+
+/**
+ * `defineRoute` with the method and access rule fixed, for a run of routes that share them; the path,
+ * body and query still type each handler's context.
+ */
+export function routesWith<const A extends Access>(method: Method, access: A) {
+  return <B = undefined, Q = undefined, const P extends string = string>(def: Omit<RouteDef<B, Q, P, A>, 'method' | 'access'>): RouteDef<B, Q, P, A> =>
+    defineRoute<B, Q, P, A>({ ...def, method, access });
+}
+
+/** A GET for the office roles. */
+export const officeRead = routesWith('get', OFFICE_ROLES);
+
 /** A route with its body and query types erased, as the route table holds them. */
 export type AnyRoute = RouteDef<unknown, unknown>;

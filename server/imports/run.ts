@@ -44,12 +44,19 @@ export type JobOutcome<R> = { ok: true; result: R } | { ok: false; issue: RowIss
  * `limits.workerHeapMb` and `limits.timeoutMs`. A timeout, an out-of-memory stop or a fatal error in
  * that process becomes a file issue (nothing is saved); an error the job itself throws is a bug and rejects.
  */
-export async function runImportJob<R, P>(moduleUrl: URL, data: unknown, limits: ImportLimits, onProgress?: (p: P) => void): Promise<JobOutcome<R>> {
+export async function runImportJob<R, P>(
+  moduleUrl: URL,
+  data: unknown,
+  limits: ImportLimits,
+  onProgress?: (p: P) => void,
+  signal?: AbortSignal,
+): Promise<JobOutcome<R>> {
   try {
     const result = await runInWorker<R, P>(moduleUrl, data, {
       timeoutMs: limits.timeoutMs,
       heapMb: limits.workerHeapMb,
       ...(onProgress ? { onProgress } : {}),
+      ...(signal ? { signal } : {}),
     });
     return { ok: true, result };
   } catch (e) {

@@ -116,6 +116,46 @@ export async function replaceOrderLines(trx: Knex.Transaction, orderId: number, 
     .update({ due: o.due, priority: o.priority, ...orderTotals(o, skus) });
 }
 
+/** The site's orders whose `column` is one of `values` (read 500 at a time: SQLite's bound-parameter limit). */
+export async function ordersOfSiteBy<K extends 'id' | 'ref'>(db: Q, siteId: number, column: K, values: DbOrderRow[K][]): Promise<DbOrderRow[]> {
+  const rows: DbOrderRow[] = [];
+  for (let i = 0; i < values.length; i += 500)
+    rows.push(
+      ...(await db<DbOrderRow>('orders')
+        .where({ site_id: siteId })
+        .whereIn(column, values.slice(i, i + 500))),
+    );
+  return rows;
+}
+
+export async function getOrderRow(db: Q, siteId: number, id: number): Promise<DbOrderRow | undefined> {
+  return db<DbOrderRow>('orders').where({ site_id: siteId, id }).first();
+}
+
+export async function setOrderStatus(db: Q, id: number, status: OrderStatus): Promise<void> {
+  await db('orders').where({ id }).update({ status });
+}
+
+/** Wave id → name, for the waves named in an answer. */
+export async function waveNames(db: Q, waveIds: number[]): Promise<Map<number, string>> {
+  const rows = await db('waves').whereIn('id', waveIds).select<{ id: number; name: string }[]>('id', 'name');
+  return new Map(rows.map((w) => [w.id, w.name]));
+}
+
+/** The SKUs of every open order's lines, by order then line number. */
+export async function openOrderSkus(db: Q, siteId: number): Promise<{ ref: string; sku: string }[]> {
+  return db('orders as o')
+    .join('order_lines as l', 'l.order_id', 'o.id')
+    .where({ 'o.site_id': siteId, 'o.status': 'open' })
+    .orderBy(['o.id', 'l.line_no'])
+    .select('o.ref', 'l.sku');
+}
+
+/** The references of the site's open orders (those without lines too). */
+export async function openOrderRefs(db: Q, siteId: number): Promise<string[]> {
+  return db('orders').where({ site_id: siteId, status: 'open' }).pluck('ref');
+}
+
 export async function linesOf(db: Q, orderIds: number[]): Promise<Map<number, { line_no: number; sku: string; qty: number; id: number }[]>> {
   const out = new Map<number, { line_no: number; sku: string; qty: number; id: number }[]>();
   for (let i = 0; i < orderIds.length; i += 500) {
@@ -149,7 +189,7 @@ export async function pageOrders(db: Q, siteId: number, q: OrdersQuery): Promise
 }
 
 export async function orderDetail(db: Q, siteId: number, id: number): Promise<OrderDetail | null> {
-  const o = await db<DbOrderRow>('orders').where({ site_id: siteId, id }).first();
+  const o = await getOrderRow(db, siteId, id);
   if (!o) return null;
   const lines = (await linesOf(db, [id])).get(id) ?? [];
   const skus = await skuMap(db, siteId);

@@ -3,7 +3,7 @@ import { CancelOrderBody, ImportResult, OrderDetail, OrdersPage, OrdersQuery, Pu
 import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
 import { sendAttachment, XLSX_TYPE } from '../http/attachment';
-import { defineRoute } from '../http/route';
+import { defineRoute, officeRead } from '../http/route';
 import { orderDetail, pageOrders, skuMap } from './orders.repository';
 import { cancelOrder, importOrderRows, importSkus, pushOrders } from './orders.service';
 import { failed, orderTemplate, readTableFile, skuTemplate } from './orders.files';
@@ -62,19 +62,15 @@ export const orderRoutes = [
     summary: 'Order file template with a worked example',
     handler: ({ res }) => sendXlsx(res, 'aislewright-orders-template.xlsx', orderTemplate()),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/orders',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'Orders, server-paged, sortable and filterable',
     query: OrdersQuery,
     response: OrdersPage,
     handler: ({ deps, siteId, query }) => pageOrders(deps.db, siteId, query),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/orders/:id',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'One order with its lines',
     response: OrderDetail,
     handler: async ({ deps, siteId, params }) => (await orderDetail(deps.db, siteId, pathId(params.id, 'Order'))) ?? Promise.reject(notFound('Order')),
@@ -101,10 +97,8 @@ export const orderRoutes = [
     response: ImportResult,
     handler: ({ deps, siteId, body }) => pushOrders(deps.db, siteId, body.orders),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/skus',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'The SKU master, with bins missing from the active plan flagged',
     response: z.array(Sku),
     handler: async ({ deps, siteId }) => {

@@ -4,7 +4,19 @@ import type { ImportResult, OrderInput } from '../../shared/orders';
 import { trimSpaces } from '../../shared/input-rules';
 import { audit } from '../audit/audit';
 import { AppError, notFound } from '../http/errors';
-import { insertOrder, linesOf, replaceOrderLines, skuMap, upsertSkus, type DbOrderRow } from './orders.repository';
+import type { Q } from '../db/knex';
+import {
+  getOrderRow,
+  insertOrder,
+  linesOf,
+  ordersOfSiteBy,
+  replaceOrderLines,
+  setOrderStatus,
+  skuMap,
+  upsertSkus,
+  waveNames,
+  type DbOrderRow,
+} from './orders.repository';
 import { validateOrderRows, validateSkuRows, type InputRow, type OrderRecord } from './orders.validate';
 
 const empty = (errors: RowIssue[], warnings: RowIssue[] = []): ImportResult => ({ ok: false, errors, warnings, created: 0, unchanged: 0, updated: 0 });
@@ -63,13 +75,7 @@ export async function saveOrders(
   const skus = await skuMap(db, siteId);
   return db.transaction(async (trx) => {
     const refs = orders.map((o) => o.ref);
-    const existing = new Map<string, DbOrderRow>();
-    for (let i = 0; i < refs.length; i += 500) {
-      for (const r of await trx<DbOrderRow>('orders')
-        .where({ site_id: siteId })
-        .whereIn('ref', refs.slice(i, i + 500)))
-        existing.set(r.ref, r);
-    }
+    const existing = new Map((await ordersOfSiteBy(trx, siteId, 'ref', refs)).map((r) => [r.ref, r]));
     const lines = await linesOf(
       trx,
       [...existing.values()].map((r) => r.id),
@@ -116,11 +122,9 @@ const STATUS_WORDS: Record<DbOrderRow['status'], string> = {
   cancelled: 'cancelled',
 };
 
-async function lockedOrdersError(db: Knex, locked: LockedOrder[]): Promise<AppError> {
+async function lockedOrdersError(db: Q, locked: LockedOrder[]): Promise<AppError> {
   const waveIds = [...new Set(locked.map((l) => l.waveId).filter((id): id is number => id !== null))];
-  const names = new Map<number, string>(
-    (await db('waves').whereIn('id', waveIds).select('id', 'name')).map((w: { id: number; name: string }) => [w.id, w.name]),
-  );
+  const names = await waveNames(db, waveIds);
   const details = locked.map((l) => {
     const wave = l.waveId === null ? null : (names.get(l.waveId) ?? null);
     const where = wave ? ` (wave "${wave}", id ${l.waveId})` : '';
@@ -207,7 +211,7 @@ const NOT_OPEN: Record<string, string> = {
 /** Cancels an open order (never one in a wave or picked): it leaves the open pool; the audit log keeps who and why. */
 export async function cancelOrder(db: Knex, siteId: number, userId: number, orderId: number, reason: string | undefined): Promise<void> {
   await db.transaction(async (trx) => {
-    const o = await trx<DbOrderRow>('orders').where({ site_id: siteId, id: orderId }).first();
+    const o = await getOrderRow(trx, siteId, orderId);
     if (!o) throw notFound('Order');
     if (o.status !== 'open') {
       throw new AppError('conflict', 'order_not_open', `Order ${o.ref} ${NOT_OPEN[o.status] ?? `is ${o.status}`}; only open orders can be cancelled.`, {
@@ -215,7 +219,7 @@ export async function cancelOrder(db: Knex, siteId: number, userId: number, orde
         waveId: o.wave_id,
       });
     }
-    await trx('orders').where({ id: orderId }).update({ status: 'cancelled' });
+    await setOrderStatus(trx, orderId, 'cancelled');
     await audit(trx, { siteId, userId, action: 'order.cancelled', subject: o.ref, detail: { orderId, ...(reason ? { reason } : {}) } });
   });
 }

@@ -14,6 +14,7 @@ import type { Mailer } from '../mail/mailer';
 import { getSiteRow, settingsOf } from '../sites/sites.repository';
 import { loadPlanIndex } from '../floor-plans/plan-index';
 import { estimateMinutes } from '../waves/wave-planner';
+import { tripHead } from '../waves/waves.repository';
 import { siteChanged } from './events';
 import * as repo from './picking.repository';
 import { bumpRevision, depotNodeOf, distanceOf, finiteOrNull, pickerNode, splitStops, walkedStopIds, type DbTripRow } from './picking.repository';
@@ -87,11 +88,7 @@ export async function boardSnapshot(db: Knex, siteId: number, now = Date.now()):
             ) ?? 0);
         const end = t.finished_at ? Date.parse(t.finished_at) : now;
         return {
-          id: t.id,
-          n: t.n,
-          status: t.status,
-          pickerId: t.picker_id,
-          pickerName: t.picker_name,
+          ...tripHead(t),
           stops: ss.length,
           stopsDone: done.length,
           lines: ls.length,

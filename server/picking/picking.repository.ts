@@ -1,6 +1,6 @@
 /** Rows of the waves tables as picking reads them, and the trip as the tablet sees it. */
 import type { Q } from '../db/knex';
-import type { BoardShort, HandledShort, PickStop, PickTrip, ReplenishmentItem, ShortFollowUp } from '../../shared/picking';
+import type { BoardShort, HandledShort, PickStop, PickTrip, ReplenishmentItem, ShortFollowUp, ShortReason } from '../../shared/picking';
 import { circuitPolyline, pairDistance } from '../core/plan/distances';
 import { loadPlanIndex, type LoadedPlan } from '../floor-plans/plan-index';
 
@@ -85,6 +85,8 @@ export interface DbLineRow {
 }
 
 export const ACTIVE_TRIP = ['assigned', 'picking'] as const;
+/** Trips not yet finished or cancelled. */
+export const OPEN_TRIP = ['released', ...ACTIVE_TRIP] as const;
 
 export const getTripRow = (db: Q, id: number): Promise<DbTripRow | undefined> => db<DbTripRow>('trips').where({ id }).first();
 export const getWaveRow = (db: Q, id: number): Promise<DbWaveRow | undefined> => db<DbWaveRow>('waves').where({ id }).first();
@@ -229,7 +231,8 @@ export async function bumpRevision(db: Q, tripId: number): Promise<number> {
   return rows[0]!.revision;
 }
 
-export function lineView(l: DbLineRow) {
+/** A pick line as the tablet, the board and the print view show it. */
+export function lineView(l: Pick<DbLineRow, 'id' | 'order_ref' | 'sku' | 'description' | 'bin' | 'qty' | 'tote' | 'status' | 'picked_qty' | 'short_reason'>) {
   return {
     id: l.id,
     orderRef: l.order_ref,
@@ -258,18 +261,21 @@ export async function boardWaveRows(db: Q, siteId: number, since: string): Promi
 
 export type BoardLineRow = Pick<DbLineRow, 'id' | 'trip_id' | 'stop_id' | 'status' | 'short_reason' | 'order_ref' | 'sku' | 'bin' | 'qty'>;
 
+/** The trips of these waves with their picker's name, by wave then trip number. */
+export async function tripsWithPicker(db: Q, waveIds: number[]): Promise<(DbTripRow & { picker_name: string | null })[]> {
+  return db('trips')
+    .leftJoin('users', 'users.id', 'trips.picker_id')
+    .whereIn('trips.wave_id', waveIds)
+    .orderBy(['trips.wave_id', 'trips.n'])
+    .select('trips.*', 'users.name as picker_name');
+}
+
 /** The trips of these waves (with the picker's name), their stops and their lines. */
 export async function boardTripRows(
   db: Q,
   waveIds: number[],
 ): Promise<{ trips: (DbTripRow & { picker_name: string | null })[]; stops: DbStopRow[]; lines: BoardLineRow[] }> {
-  const trips: (DbTripRow & { picker_name: string | null })[] = waveIds.length
-    ? await db('trips')
-        .leftJoin('users', 'users.id', 'trips.picker_id')
-        .whereIn('trips.wave_id', waveIds)
-        .orderBy(['trips.wave_id', 'trips.n'])
-        .select('trips.*', 'users.name as picker_name')
-    : [];
+  const trips = waveIds.length ? await tripsWithPicker(db, waveIds) : [];
   const tripIds = trips.map((t) => t.id);
   const stops: DbStopRow[] = tripIds.length ? await db<DbStopRow>('stops').whereIn('trip_id', tripIds) : [];
   const lines: BoardLineRow[] = tripIds.length
@@ -278,14 +284,45 @@ export async function boardTripRows(
   return { trips, stops, lines };
 }
 
-/** The shorts table joined to its line, trip, wave and reporter, for the board and the replenishment list. */
-function shortsQuery(db: Q, siteId: number) {
-  return db('pick_shorts')
+/** The shorts table joined to its line, trip, wave and reporter. */
+const shortsJoined = (db: Q) =>
+  db('pick_shorts')
     .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
     .join('trips', 'trips.id', 'pick_shorts.trip_id')
     .join('waves', 'waves.id', 'pick_shorts.wave_id')
-    .leftJoin('users as reporter', 'reporter.id', 'pick_shorts.reported_by')
-    .where('pick_shorts.site_id', siteId);
+    .leftJoin('users as reporter', 'reporter.id', 'pick_shorts.reported_by');
+
+/** A site's shorts, for the board and the replenishment list. */
+const shortsQuery = (db: Q, siteId: number) => shortsJoined(db).where('pick_shorts.site_id', siteId);
+
+/** A wave's shorts as its report lists them, oldest first. */
+export async function waveShortRows(db: Q, waveId: number): Promise<DbWaveShortRow[]> {
+  return shortsJoined(db)
+    .where('pick_shorts.wave_id', waveId)
+    .orderBy('pick_shorts.reported_at')
+    .select(
+      'pick_lines.order_ref',
+      'pick_lines.sku',
+      'pick_lines.bin',
+      'pick_shorts.qty_ordered',
+      'pick_shorts.qty_found',
+      'pick_shorts.reason',
+      'pick_shorts.reported_at',
+      'reporter.name',
+      'trips.n',
+    );
+}
+
+export interface DbWaveShortRow {
+  order_ref: string;
+  sku: string;
+  bin: string;
+  qty_ordered: number;
+  qty_found: number;
+  reason: ShortReason;
+  reported_at: string;
+  name: string | null;
+  n: number;
 }
 
 const SHORT_COLUMNS = {
@@ -450,8 +487,38 @@ export async function endOpenAssignments(db: Q, tripId: number, at: string): Pro
 export const unfinishedTripsOf = (db: Q, waveId: number): Promise<DbTripRow[]> =>
   db<DbTripRow>('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']);
 
+export async function setWalkSeq(db: Q, stopId: number, seq: number): Promise<void> {
+  await db('stops').where({ id: stopId }).update({ walk_seq: seq });
+}
+
+/** Ids of the trips still to be picked (released, assigned or picking) on waves planned on this plan. */
+export async function openTripIdsOnPlan(db: Q, planId: number): Promise<number[]> {
+  return db('trips').join('waves', 'waves.id', 'trips.wave_id').where('waves.plan_id', planId).whereIn('trips.status', OPEN_TRIP).pluck('trips.id');
+}
+
+export async function markRouteChanged(db: Q, tripId: number, at: string): Promise<void> {
+  await db('trips').where({ id: tripId }).update({ route_changed_at: at });
+}
+
 export async function completeWaveRow(db: Q, waveId: number, at: string): Promise<void> {
   await db('waves').where({ id: waveId }).update({ status: 'completed', completed_at: at });
+}
+
+export async function unfinishedTripCount(db: Q, waveId: number): Promise<number> {
+  const [{ n }] = (await db('trips').where({ wave_id: waveId }).whereNotIn('status', ['done', 'cancelled']).count<{ n: number }[]>({ n: '*' })) as [
+    { n: number },
+  ];
+  return Number(n);
+}
+
+/** Completes the wave if it is still released or picking; false when it was not (already closed). */
+export async function completeRunningWave(db: Q, waveId: number, at: string): Promise<boolean> {
+  return (await db('waves').where({ id: waveId }).whereIn('status', ['released', 'picking']).update({ status: 'completed', completed_at: at })) > 0;
+}
+
+/** Claims the wave's report mail (once per wave); false when it was claimed before. */
+export async function claimWaveReport(db: Q, waveId: number, at: string): Promise<boolean> {
+  return (await db('waves').where({ id: waveId }).whereNull('report_mailed_at').update({ report_mailed_at: at })) === 1;
 }
 
 export interface DbShortRow {

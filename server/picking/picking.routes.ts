@@ -43,8 +43,10 @@ import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
 import { sendAttachment, XLSX_TYPE } from '../http/attachment';
 import { openEventStream, requireEventStream } from '../http/event-stream';
-import { defineRoute, type Access, type RouteContext } from '../http/route';
+import { defineRoute, routesWith, type Access, type RouteContext } from '../http/route';
 import type { SessionUser } from '../http/session';
+import type { Deps } from '../deps';
+import type { Knex } from 'knex';
 import * as board from './board.service';
 import { getWaveRow } from './picking.repository';
 import * as picking from './picking.service';
@@ -61,6 +63,18 @@ function actorOf(user: SessionUser, req: Request): picking.Actor {
 function keyed<B, Q, P extends string, A extends Access>(ctx: RouteContext<B, Q, P, A>): picking.KeyedRequest {
   return { key: ctx.req.get(IDEMPOTENCY_HEADER) || undefined, method: ctx.req.method, path: ctx.req.path, body: ctx.body };
 }
+
+/** A supervisor's action on the live board, and a picker's write to a trip. */
+const boardAction = routesWith('post', SUPERVISE);
+const pickerWrite = routesWith('post', PICKER);
+
+/** The first arguments of every picker write on a trip (and on one of its lines). */
+type TripContext = { deps: Deps; user: SessionUser; req: Request; params: { tripId: string } };
+const onTrip = (ctx: TripContext): [Knex, picking.Actor, number] => [ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip')];
+const onLine = (ctx: TripContext & { params: { lineId: string } }): [Knex, picking.Actor, number, number] => [
+  ...onTrip(ctx),
+  pathId(ctx.params.lineId, 'Pick line'),
+];
 
 const trip = '/api/picking/trips/:tripId';
 const siteBoard = '/api/sites/:siteId/board';
@@ -88,7 +102,7 @@ export const pickingRoutes = [
     access: PICKER,
     summary: "Your trip: numbered stops, lines, route (403 for another picker's trip)",
     response: PickTrip,
-    handler: ({ deps, user, req, params }) => picking.getPickTrip(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
+    handler: (ctx) => picking.getPickTrip(...onTrip(ctx)),
   }),
   defineRoute({
     method: 'get',
@@ -96,7 +110,7 @@ export const pickingRoutes = [
     access: PICKER,
     summary: "The tablet's poll: status and revision of your trip (one row)",
     response: TripPulse,
-    handler: ({ deps, user, req, params }) => picking.tripPulse(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
+    handler: (ctx) => picking.tripPulse(...onTrip(ctx)),
   }),
   defineRoute({
     method: 'get',
@@ -111,84 +125,52 @@ export const pickingRoutes = [
       return { geometry: plan.geometry, closures: plan.closures };
     },
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/start`,
-    access: PICKER,
     summary: 'Start the trip after the safety caution (a second call changes nothing)',
     response: PickTrip,
-    handler: ({ deps, user, req, params }) => picking.startTrip(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
+    handler: (ctx) => picking.startTrip(...onTrip(ctx)),
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/cart-ready`,
-    access: PICKER,
     body: CartReadyBody,
     summary:
       'Cart set-up before the first stop: every tote of the trip confirmed (scan of its label or tap); stored once with an audit entry, a second call changes nothing',
     response: PickTrip,
-    handler: ({ deps, user, req, params, body }) => picking.cartReady(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip'), body),
+    handler: (ctx) => picking.cartReady(...onTrip(ctx), ctx.body),
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/lines/:lineId/confirm`,
-    access: PICKER,
     body: ConfirmBody,
     summary:
       'Confirm a line (scan or tap). Idempotency-Key required: same key and body → stored answer; other body → 422; line done by someone → 409 with who and when; wrong scan → 422 wrong_scan',
     response: LineAnswer,
-    handler: (ctx) =>
-      picking.confirmLine(
-        ctx.deps.db,
-        actorOf(ctx.user, ctx.req),
-        pathId(ctx.params.tripId, 'Trip'),
-        pathId(ctx.params.lineId, 'Pick line'),
-        ctx.body,
-        keyed(ctx),
-      ),
+    handler: (ctx) => picking.confirmLine(...onLine(ctx), ctx.body, keyed(ctx)),
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/lines/:lineId/short`,
-    access: PICKER,
     body: ShortBody,
     summary: 'Report a line short: quantity found and reason; the supervisor is alerted. Idempotency-Key required',
     response: LineAnswer,
-    handler: (ctx) =>
-      picking.shortLine(
-        ctx.deps.db,
-        actorOf(ctx.user, ctx.req),
-        pathId(ctx.params.tripId, 'Trip'),
-        pathId(ctx.params.lineId, 'Pick line'),
-        ctx.body,
-        keyed(ctx),
-      ),
+    handler: (ctx) => picking.shortLine(...onLine(ctx), ctx.body, keyed(ctx)),
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/lines/:lineId/undo`,
-    access: PICKER,
     body: UndoBody,
     summary:
       'Undo a line you confirmed or reported short in the last few seconds: it is open again (audited). Idempotency-Key required; 409 undo_expired after the window',
     response: LineAnswer,
-    handler: (ctx) =>
-      picking.undoLine(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.lineId, 'Pick line'), keyed(ctx)),
+    handler: (ctx) => picking.undoLine(...onLine(ctx), keyed(ctx)),
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/stops/:stopId/skip`,
-    access: PICKER,
     body: SkipBody,
     summary: 'Skip a stop for now: it moves to the end and the other open stops are re-sequenced. Idempotency-Key required',
     response: PickAnswer,
-    handler: (ctx) =>
-      picking.skipStop(ctx.deps.db, actorOf(ctx.user, ctx.req), pathId(ctx.params.tripId, 'Trip'), pathId(ctx.params.stopId, 'Stop'), ctx.body, keyed(ctx)),
+    handler: (ctx) => picking.skipStop(...onTrip(ctx), pathId(ctx.params.stopId, 'Stop'), ctx.body, keyed(ctx)),
   }),
-  defineRoute({
-    method: 'post',
+  pickerWrite({
     path: `${trip}/finish`,
-    access: PICKER,
     body: FinishBody,
     summary: 'Return to depot: the trip is done when no line is open (409 lines_open otherwise). Idempotency-Key required',
     response: TripResult,
@@ -200,7 +182,7 @@ export const pickingRoutes = [
     access: PICKER,
     summary: 'Trip summary: lines, shorts, metres walked and planned, minutes',
     response: TripResult,
-    handler: ({ deps, user, req, params }) => picking.getTripResult(deps.db, actorOf(user, req), pathId(params.tripId, 'Trip')),
+    handler: (ctx) => picking.getTripResult(...onTrip(ctx)),
   }),
 
   defineRoute({
@@ -229,10 +211,8 @@ export const pickingRoutes = [
       return undefined;
     },
   }),
-  defineRoute({
-    method: 'post',
+  boardAction({
     path: `${siteBoard}/trips/:tripId/assign`,
-    access: SUPERVISE,
     body: AssignBody,
     summary: 'Assign or reassign a trip to a picker',
     response: Ok,
@@ -241,40 +221,32 @@ export const pickingRoutes = [
       return { ok: true as const };
     },
   }),
-  defineRoute({
-    method: 'post',
+  boardAction({
     path: `${siteBoard}/trips/:tripId/cancel`,
-    access: SUPERVISE,
     body: CancelTripBody,
     summary: 'Cancel the rest of a trip: its open lines go back to open orders',
     response: CancelResult,
     handler: ({ deps, user, req, siteId, params, body }) =>
       board.cancelTrip(deps.db, deps.mailer, actorOf(user, req), siteId, pathId(params.tripId, 'Trip'), body.reason ?? null),
   }),
-  defineRoute({
-    method: 'post',
+  boardAction({
     path: `${siteBoard}/waves/:waveId/close`,
-    access: SUPERVISE,
     body: CloseWaveBody,
     summary: 'Close a wave: trips not done are cancelled (open lines back to open orders); the report is mailed',
     response: CloseWaveResult,
     handler: ({ deps, user, req, siteId, params, body }) =>
       board.closeWave(deps.db, deps.mailer, actorOf(user, req), siteId, pathId(params.waveId, 'Wave'), body.reason ?? null),
   }),
-  defineRoute({
-    method: 'post',
+  boardAction({
     path: `${siteBoard}/lines/:lineId/reopen`,
-    access: SUPERVISE,
     body: ReopenLineBody,
     summary: 'Correct a recorded line of a trip still open (picked by mistake): it goes back to open for the picker, with the reason audited',
     response: LineAnswer,
     handler: ({ deps, user, req, siteId, params, body }) =>
       picking.correctLine(deps.db, actorOf(user, req), siteId, pathId(params.lineId, 'Pick line'), body.reason),
   }),
-  defineRoute({
-    method: 'post',
+  boardAction({
     path: `${siteBoard}/shorts/:shortId/handled`,
-    access: SUPERVISE,
     summary: 'Mark a short as handled (it leaves the attention list)',
     response: Ok,
     handler: async ({ deps, user, req, siteId, params }) => {

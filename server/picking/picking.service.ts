@@ -19,7 +19,7 @@ import {
   type TripPulse,
   type TripResult,
 } from '../../shared/picking';
-import { audit } from '../audit/audit';
+import { audit, type AuditEntry } from '../audit/audit';
 import type { Mailer } from '../mail/mailer';
 import { AppError, invalid, notFound } from '../http/errors';
 import { loadPlanIndex } from '../floor-plans/plan-index';
@@ -137,8 +137,7 @@ export async function startTrip(db: Knex, actor: Actor, tripId: number): Promise
     const trip = await readableTrip(trx, actor, tripId);
     if (trip.status !== 'assigned') return false;
     await markStarted(trx, trip);
-    await bumpRevision(trx, trip.id);
-    await audit(trx, { siteId: trip.site_id, userId: actor.id, action: 'trip.start', subject: `trip:${trip.id}`, device: actor.device });
+    await tripChanged(trx, actor, trip, { action: 'trip.start', subject: `trip:${trip.id}` });
     return true;
   });
   const trip = (await loadPickTrip(db, tripId))!;
@@ -172,15 +171,7 @@ export async function cartReady(db: Knex, actor: Actor, tripId: number, body: Ca
       });
     }
     await repo.setCartReady(trx, trip.id, nowIso());
-    await bumpRevision(trx, trip.id);
-    await audit(trx, {
-      siteId: trip.site_id,
-      userId: actor.id,
-      action: 'trip.cart_ready',
-      subject: `trip:${trip.id}`,
-      device: actor.device,
-      detail: { totes: body.totes },
-    });
+    await tripChanged(trx, actor, trip, { action: 'trip.cart_ready', subject: `trip:${trip.id}`, detail: { totes: body.totes } });
     return true;
   });
   const trip = (await loadPickTrip(db, tripId))!;
@@ -194,6 +185,17 @@ async function markStarted(trx: Q, trip: DbTripRow, firstWork?: string): Promise
   await repo.markTripStarted(trx, trip, at);
   trip.status = 'picking';
   trip.started_at = at;
+}
+
+/** A picker's change to a trip: its revision moves on (tablet and board reload) and the audit log says who, where and what. */
+async function tripChanged(
+  trx: Q,
+  actor: Actor,
+  trip: Pick<DbTripRow, 'id' | 'site_id'>,
+  entry: Pick<AuditEntry, 'action' | 'subject' | 'detail'>,
+): Promise<void> {
+  await bumpRevision(trx, trip.id);
+  await audit(trx, { siteId: trip.site_id, userId: actor.id, device: actor.device, ...entry });
 }
 
 // ---- idempotent writes ----
@@ -261,7 +263,12 @@ async function idempotent<T>(
     // Writes to one trip one at a time (SQLite's one connection does this by itself; on PostgreSQL each
     // write has its own transaction): a repeated key or two pickers on one line see the first one's result.
     await lockForTransaction(trx, `trip:${tripId}`);
-    // Keys are per user: a stored answer goes back only to the picker who made it.
+    // Keys are per user: a stored answer goes back only to the picker who made it. The trip lock does
+    // not cover one key sent to two trips (a picker's own trip and one taken from them), so the key has
+    // a lock too, always taken after the trip's (no cycle): the second sees the first's record and is
+    // refused as a reused key (422), never a UNIQUE-index crash (500). Keys stay per user, not per
+    // trip: the tablet makes a fresh key per action, so one key on two trips is a mistake to refuse.
+    await lockForTransaction(trx, `pick-key:${actor.id}:${key}`);
     const stored = await repo.storedRequest(trx, actor.id, key);
     if (stored) {
       if (stored.request_hash !== hash) {
@@ -542,14 +549,10 @@ export async function skipStop(db: Knex, actor: Actor, tripId: number, stopId: n
     await repo.markStopSkipped(trx, stop.id, at);
     await writeWalkOrder(trx, done, sequence);
     await markStarted(trx, trip);
-    await bumpRevision(trx, trip.id);
-    await audit(trx, {
-      siteId: trip.site_id,
-      userId: actor.id,
+    await tripChanged(trx, actor, trip, {
       action: 'pick.skip',
       subject: `stop:${stop.id}`,
       detail: { tripId: trip.id, stopN: stop.n, bins: stop.bins, openBefore: before, openAfter: sequence.map((s) => s.id), key: req.key },
-      device: actor.device,
     });
     return { answer: { trip: (await loadPickTrip(trx, trip.id))! }, siteId: trip.site_id };
   });
@@ -692,15 +695,7 @@ export async function finishTrip(db: Knex, mailer: Mailer, actor: Actor, tripId:
       const walked = await walkedMetres(trx, trip);
       const at = nowIso();
       await repo.markTripDone(trx, trip.id, walked, at);
-      await bumpRevision(trx, trip.id);
-      await audit(trx, {
-        siteId: trip.site_id,
-        userId: actor.id,
-        action: 'trip.finish',
-        subject: `trip:${trip.id}`,
-        detail: { walkedMetres: walked },
-        device: actor.device,
-      });
+      await tripChanged(trx, actor, trip, { action: 'trip.finish', subject: `trip:${trip.id}`, detail: { walkedMetres: walked } });
       return { answer: await tripResult(trx, trip.id), siteId: trip.site_id, closedTripWave: trip.wave_id };
     },
     mailer,

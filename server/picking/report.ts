@@ -6,10 +6,10 @@
 import * as XLSX from 'xlsx';
 import type { Knex } from 'knex';
 import { neutraliseCells } from '../../shared/input-rules';
-import { SHORT_REASON_LABELS, type ShortReason } from '../../shared/picking';
+import { SHORT_REASON_LABELS } from '../../shared/picking';
 import { formatInZone } from '../../shared/time-zone';
 import { siteTimeZone } from '../sites/sites.repository';
-import { finiteOrNull, getWaveRow, linesOf, stopsOf, type DbTripRow } from './picking.repository';
+import { finiteOrNull, getWaveRow, linesOf, stopsOf, tripsWithPicker, waveShortRows } from './picking.repository';
 import { walkedMetres } from './walked';
 
 export interface WaveReportRow {
@@ -50,11 +50,7 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
   const wave = (await getWaveRow(db, waveId))!;
   const zone = await siteTimeZone(db, wave.site_id);
   const at = (iso: string | null) => formatInZone(iso, zone);
-  const trips: (DbTripRow & { picker_name: string | null })[] = await db('trips')
-    .leftJoin('users', 'users.id', 'trips.picker_id')
-    .where('trips.wave_id', waveId)
-    .orderBy('trips.n')
-    .select('trips.*', 'users.name as picker_name');
+  const trips = await tripsWithPicker(db, [waveId]);
   const rows: WaveReportRow[] = [];
   for (const t of trips) {
     const lines = await linesOf(db, t.id);
@@ -89,33 +85,7 @@ export async function buildWaveReport(db: Knex, waveId: number): Promise<WaveRep
     walkedMetres: sum((r) => r.walkedMetres),
   };
 
-  const shorts: {
-    order_ref: string;
-    sku: string;
-    bin: string;
-    qty_ordered: number;
-    qty_found: number;
-    reason: ShortReason;
-    reported_at: string;
-    name: string | null;
-    n: number;
-  }[] = await db('pick_shorts')
-    .join('pick_lines', 'pick_lines.id', 'pick_shorts.line_id')
-    .join('trips', 'trips.id', 'pick_shorts.trip_id')
-    .leftJoin('users', 'users.id', 'pick_shorts.reported_by')
-    .where('pick_shorts.wave_id', waveId)
-    .orderBy('pick_shorts.reported_at')
-    .select(
-      'pick_lines.order_ref',
-      'pick_lines.sku',
-      'pick_lines.bin',
-      'pick_shorts.qty_ordered',
-      'pick_shorts.qty_found',
-      'pick_shorts.reason',
-      'pick_shorts.reported_at',
-      'users.name',
-      'trips.n',
-    );
+  const shorts = await waveShortRows(db, waveId);
 
   const wb = XLSX.utils.book_new();
   const tripSheet = XLSX.utils.aoa_to_sheet(

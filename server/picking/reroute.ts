@@ -16,7 +16,11 @@ import {
   getTripRow,
   getWaveRow,
   linesOf,
+  markRouteChanged,
+  OPEN_TRIP,
+  openTripIdsOnPlan,
   pickerNode,
+  setWalkSeq,
   splitStops,
   stopsOf,
   walkOrder,
@@ -61,7 +65,7 @@ export async function writeWalkOrder(trx: Q, done: readonly DbStopRow[], rest: r
   let seq = 0;
   for (const s of [...done, ...rest]) {
     seq += 1;
-    if (s.walk_seq !== seq) await trx('stops').where({ id: s.id }).update({ walk_seq: seq });
+    if (s.walk_seq !== seq) await setWalkSeq(trx, s.id, seq);
   }
 }
 
@@ -94,18 +98,14 @@ export interface RerouteOutcome {
 export async function rerouteOpenTrips(db: Knex, planId: number, before: LoadedPlan, userId: number | null): Promise<RerouteOutcome[]> {
   const plan = await loadPlanIndex(db, planId);
   if (plan === before) return [];
-  const trips: { id: number }[] = await db('trips')
-    .join('waves', 'waves.id', 'trips.wave_id')
-    .where('waves.plan_id', planId)
-    .whereIn('trips.status', ['released', 'assigned', 'picking'])
-    .select('trips.id');
+  const tripIds = await openTripIdsOnPlan(db, planId);
   const out: RerouteOutcome[] = [];
   const sites = new Set<number>();
-  for (const { id } of trips) {
+  for (const id of tripIds) {
     try {
       const r = await db.transaction(async (trx) => {
         const trip = await getTripRow(trx, id);
-        if (!trip || !['released', 'assigned', 'picking'].includes(trip.status)) return null;
+        if (!trip || !(OPEN_TRIP as readonly string[]).includes(trip.status)) return null;
         const wave = (await getWaveRow(trx, trip.wave_id))!;
         const depot = depotNodeOf(plan, wave);
         const stops = await stopsOf(trx, id);
@@ -117,7 +117,7 @@ export async function rerouteOpenTrips(db: Knex, planId: number, before: LoadedP
         const { walk, cut } = orderRemaining(open, from, depot, distanceOf(plan));
         await writeWalkOrder(trx, done, [...walk, ...cut]);
         const at = new Date().toISOString();
-        await trx('trips').where({ id }).update({ route_changed_at: at });
+        await markRouteChanged(trx, id, at);
         await bumpRevision(trx, id);
         await audit(trx, {
           siteId: trip.site_id,

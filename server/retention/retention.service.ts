@@ -6,12 +6,14 @@
 import type { Knex } from 'knex';
 import { DEFAULT_RETENTION, type PruneCounts, type RetentionSettings, type RetentionState } from '../../shared/data-safety';
 import { audit } from '../audit/audit';
+import { latestEntryOf } from '../audit/audit-log.repository';
+import { pruneOlderThan, retentionRows, saveRetentionDays } from './retention.repository';
 
 const DAY_MS = 86_400_000;
 const KEYS = Object.keys(DEFAULT_RETENTION) as (keyof RetentionSettings)[];
 
 export async function getRetention(db: Knex): Promise<RetentionSettings> {
-  const rows = await db('retention_settings').select<{ key: string; days: number }[]>('key', 'days');
+  const rows = await retentionRows(db);
   const out = { ...DEFAULT_RETENTION };
   for (const r of rows) if ((KEYS as string[]).includes(r.key)) out[r.key as keyof RetentionSettings] = r.days;
   return out;
@@ -23,7 +25,7 @@ export async function setRetention(db: Knex, patch: Partial<RetentionSettings>, 
     for (const key of KEYS) {
       const days = patch[key];
       if (days === undefined) continue;
-      await trx('retention_settings').insert({ key, days, updated_at: now, updated_by: userId }).onConflict('key').merge();
+      await saveRetentionDays(trx, key, days, now, userId);
     }
     await audit(trx, { userId, action: 'retention.changed', detail: patch });
   });
@@ -37,22 +39,17 @@ export async function pruneNow(db: Knex, opts: { now?: Date; userId?: number | n
   const now = opts.now ?? new Date();
   const s = await getRetention(db);
   const counts = await db.transaction(async (trx) => {
-    const idempotencyAnswers = await trx('pick_requests').where('created_at', '<', cutoff(now, s.idempotencyDays)).delete();
-    // A message still waiting for a retry keeps its body: the retry needs it.
-    const outboxBodies = await trx('mail_outbox')
-      .whereIn('status', ['stored', 'sent', 'failed'])
-      .whereNull('pruned_at')
-      .where('created_at', '<', cutoff(now, s.outboxDays))
-      .update({ text: '', html: null, attachments: '[]', pruned_at: now.toISOString() });
-    const inviteCut = cutoff(now, s.invitesDays);
-    const invites = await trx('invites')
-      .where((q) => q.where('accepted_at', '<', inviteCut).orWhere('expires_at', '<', inviteCut))
-      .delete();
-    const passwordResets = await trx('password_resets')
-      .where((q) => q.where('used_at', '<', inviteCut).orWhere('expires_at', '<', inviteCut))
-      .delete();
-    const auditEntries = await trx('audit_log').where('at', '<', cutoff(now, s.auditDays)).delete();
-    const c: PruneCounts = { idempotencyAnswers, outboxBodies, invites, passwordResets, auditEntries };
+    const c = await pruneOlderThan(
+      trx,
+      {
+        idempotency: cutoff(now, s.idempotencyDays),
+        outbox: cutoff(now, s.outboxDays),
+        // Used or expired invitations and password resets share one setting.
+        invites: cutoff(now, s.invitesDays),
+        audit: cutoff(now, s.auditDays),
+      },
+      now.toISOString(),
+    );
     await audit(trx, { userId: opts.userId ?? null, action: 'retention.pruned', detail: { ...c, settings: s } });
     return c;
   });
@@ -60,10 +57,7 @@ export async function pruneNow(db: Knex, opts: { now?: Date; userId?: number | n
 }
 
 export async function retentionState(db: Knex): Promise<RetentionState> {
-  const last = await db('audit_log')
-    .where({ action: 'retention.pruned' })
-    .orderBy('id', 'desc')
-    .first<{ at: string; detail: string | null } | undefined>('at', 'detail');
+  const last = await latestEntryOf(db, 'retention.pruned');
   let lastRun: RetentionState['lastRun'] = null;
   if (last?.detail) {
     const d = JSON.parse(last.detail) as PruneCounts;

@@ -11,6 +11,7 @@ import { getPlanRowById } from '../floor-plans/floor-plans.repository';
 import { engineParams } from '../floor-plans/floor-plans.service';
 import { AppError, notFound } from '../http/errors';
 import { getCartProfile, getSiteRow, settingsOf } from '../sites/sites.repository';
+import { binsOf } from '../picking/picking.repository';
 import { jobStopMessage, runInWorker } from '../workers/spawn';
 import { isActive, type JobContext, type JobKind, type JobRecord } from '../workers/jobs';
 import type { PlannerOrder } from '../waves/wave-planner';
@@ -73,20 +74,6 @@ const STUDY_TIMEOUT_MS = 15 * 60_000;
 const STUDY_HEAP_MB = 1536;
 
 type Work = Omit<StudyEngineInput, 'progress'>;
-
-/** Stop bins are stored as a JSON array (a comma list in older rows). */
-function binsOf(raw: string): string[] {
-  try {
-    const v: unknown = JSON.parse(raw);
-    if (Array.isArray(v)) return v.map(String);
-  } catch {
-    // plain text below
-  }
-  return raw
-    .split(',')
-    .map((s) => s.trim())
-    .filter(Boolean);
-}
 
 async function storedPlanInput(db: Knex, siteId: number, planId: number, depotIdx: number): Promise<StudyPlanInput> {
   const row = await getPlanRowById(db, planId);

@@ -75,3 +75,39 @@ export async function siteMembersWithRole(db: Q, siteId: number, role: Role): Pr
     .where({ 'user_sites.site_id': siteId, 'users.role': role, 'users.active': true })
     .select('users.id', 'users.name', 'users.email');
 }
+
+/** Of these site ids, those that exist. */
+export async function existingSiteIds(db: Q, siteIds: number[]): Promise<number[]> {
+  return db('sites').whereIn('id', siteIds).pluck('id');
+}
+
+export interface DbInviteRow {
+  id: number;
+  email: string;
+  role: Role;
+  site_ids: string;
+  token_hash: string;
+  expires_at: string;
+  accepted_at: string | null;
+  invited_by: number | null;
+  created_at: string;
+}
+
+/** The latest invitations, newest first. */
+export async function latestInvites(db: Q, limit: number): Promise<DbInviteRow[]> {
+  return db<DbInviteRow>('invites').orderBy('id', 'desc').limit(limit);
+}
+
+export async function insertInvite(db: Q, row: Omit<DbInviteRow, 'id' | 'accepted_at'>): Promise<number> {
+  const [{ id }] = await db('invites').insert(row, 'id');
+  return id as number;
+}
+
+export async function inviteByTokenHash(db: Q, tokenHash: string): Promise<DbInviteRow | undefined> {
+  return db<DbInviteRow>('invites').where({ token_hash: tokenHash }).first();
+}
+
+/** Marks the invitation accepted; false when another request accepted it first. */
+export async function markInviteAccepted(db: Q, id: number, at: string): Promise<boolean> {
+  return (await db('invites').where({ id }).whereNull('accepted_at').update({ accepted_at: at })) === 1;
+}

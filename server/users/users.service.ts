@@ -4,13 +4,17 @@ import { revokeAllSessions } from '../auth/sessions.repository';
 import { audit } from '../audit/audit';
 import { newToken } from '../auth/tokens';
 import type { Deps } from '../deps';
+import { uniqueOrConflict } from '../db/knex';
 import { AppError, notFound } from '../http/errors';
 import {
   bumpTokenVersion,
   findUserByBadge,
   findUserByEmail,
   findUserById,
+  existingSiteIds,
+  insertInvite,
   insertUser,
+  latestInvites,
   setUserSites,
   siteIdsOf,
   toUserRow,
@@ -20,15 +24,15 @@ import {
 const INVITE_TTL_MS = 72 * 60 * 60_000;
 
 async function checkSites(db: Knex, siteIds: number[]): Promise<void> {
-  const found = await db('sites').whereIn('id', siteIds).pluck('id');
+  const found = await existingSiteIds(db, siteIds);
   const missing = siteIds.filter((id) => !found.includes(id));
   if (missing.length)
     throw new AppError('validation', 'validation_failed', `Unknown site ${missing.join(', ')}`, [{ field: 'siteIds', message: 'unknown site' }]);
 }
 
 export async function listInvites(db: Knex): Promise<InviteRow[]> {
-  const rows = await db('invites').orderBy('id', 'desc').limit(200);
-  return rows.map((r: { id: number; email: string; role: InviteRow['role']; expires_at: string; accepted_at: string | null; created_at: string }) => ({
+  const rows = await latestInvites(db, 200);
+  return rows.map((r) => ({
     id: r.id,
     email: r.email,
     role: r.role,
@@ -44,18 +48,15 @@ export async function inviteUser(deps: Deps, adminId: number, body: InviteBody):
   const { token, hash } = newToken();
   const now = Date.now();
   const expiresAt = new Date(now + INVITE_TTL_MS).toISOString();
-  const [{ id }] = await deps.db('invites').insert(
-    {
-      email: body.email,
-      role: body.role,
-      site_ids: JSON.stringify(body.siteIds),
-      token_hash: hash,
-      expires_at: expiresAt,
-      invited_by: adminId,
-      created_at: new Date(now).toISOString(),
-    },
-    'id',
-  );
+  const id = await insertInvite(deps.db, {
+    email: body.email,
+    role: body.role,
+    site_ids: JSON.stringify(body.siteIds),
+    token_hash: hash,
+    expires_at: expiresAt,
+    invited_by: adminId,
+    created_at: new Date(now).toISOString(),
+  });
   const link = `${deps.config.publicUrl}/accept-invite?token=${token}`;
   await deps.mailer.send({
     to: body.email,
@@ -69,13 +70,20 @@ export async function inviteUser(deps: Deps, adminId: number, body: InviteBody):
 
 export async function createPicker(deps: Deps, adminId: number, body: CreatePickerBody): Promise<UserRow> {
   await checkSites(deps.db, body.siteIds);
-  if (await findUserByBadge(deps.db, body.badge))
-    throw new AppError('conflict', 'badge_taken', `Badge ${body.badge} is already in use`, [{ field: 'badge', message: 'already in use' }]);
+  const badgeTaken = () => new AppError('conflict', 'badge_taken', `Badge ${body.badge} is already in use`, [{ field: 'badge', message: 'already in use' }]);
+  if (await findUserByBadge(deps.db, body.badge)) throw badgeTaken();
   const pinHash = await deps.hasher.hash(body.pin);
-  const id = await insertUser(
-    deps.db,
-    { name: body.name, email: null, badge: body.badge, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: new Date().toISOString() },
-    body.siteIds,
+  // The user and its sites in one transaction; a parallel request that took the badge since the
+  // check above hits the UNIQUE index: the same 409 as the check.
+  const id = await uniqueOrConflict(
+    deps.db.transaction((trx) =>
+      insertUser(
+        trx,
+        { name: body.name, email: null, badge: body.badge, role: 'picker', password_hash: null, pin_hash: pinHash, created_at: new Date().toISOString() },
+        body.siteIds,
+      ),
+    ),
+    badgeTaken,
   );
   await audit(deps.db, { userId: adminId, action: 'picker.created', subject: body.badge });
   return toUserRow((await findUserById(deps.db, id))!, body.siteIds);
@@ -114,7 +122,7 @@ export async function resetPin(deps: Deps, adminId: number, id: number, pin: str
   const user = await findUserById(deps.db, id);
   if (!user || user.role !== 'picker') throw notFound('Picker');
   const pinHash = await deps.hasher.hash(pin);
-  await deps.db('users').where({ id }).update({ pin_hash: pinHash });
+  await updateUser(deps.db, id, { pin_hash: pinHash });
   await bumpTokenVersion(deps.db, id);
   await audit(deps.db, { userId: adminId, action: 'picker.pin-reset', subject: user.badge });
 }

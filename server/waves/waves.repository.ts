@@ -1,7 +1,8 @@
 /** The waves tables as planning, release, the wave list and the print view read and write them. */
 import type { TripDetail, WaveSummary } from '../../shared/waves';
 import type { Q } from '../db/knex';
-import type { DbOrderRow } from '../orders/orders.repository';
+import { ordersOfSiteBy, type DbOrderRow } from '../orders/orders.repository';
+import type { DbLineRow } from '../picking/picking.repository';
 
 export interface DbReleasedWaveRow {
   id: number;
@@ -46,17 +47,8 @@ export interface DbWaveTripRow {
   litres: number;
 }
 
-/** The site's orders with these ids (read 500 at a time: SQLite's bound-parameter limit). */
-export async function ordersOfSite(db: Q, siteId: number, orderIds: number[]): Promise<DbOrderRow[]> {
-  const rows: DbOrderRow[] = [];
-  for (let i = 0; i < orderIds.length; i += 500)
-    rows.push(
-      ...(await db<DbOrderRow>('orders')
-        .where({ site_id: siteId })
-        .whereIn('id', orderIds.slice(i, i + 500))),
-    );
-  return rows;
-}
+/** The site's orders with these ids. */
+export const ordersOfSite = (db: Q, siteId: number, orderIds: number[]): Promise<DbOrderRow[]> => ordersOfSiteBy(db, siteId, 'id', orderIds);
 
 export async function waveByReleaseKey(db: Q, siteId: number, releaseKey: string): Promise<DbReleasedWaveRow | undefined> {
   return db<DbReleasedWaveRow>('waves').where({ site_id: siteId, release_key: releaseKey }).first();
@@ -155,19 +147,17 @@ export interface DbPrintStopRow {
   status: 'open' | 'done';
   node: number;
 }
-export interface DbPrintLineRow {
-  id: number;
-  stop_id: number;
-  order_ref: string;
-  sku: string;
-  description: string;
-  bin: string;
-  qty: number;
-  tote: number;
-  status: 'open' | 'picked' | 'short' | 'cancelled';
-  picked_qty: number | null;
-  short_reason: string | null;
-}
+/** A pick line as the print view reads it (the whole row). */
+export type DbPrintLineRow = DbLineRow;
+
+/** What every view of a trip starts with: id, number, status and picker. */
+export const tripHead = <S extends string>(t: { id: number; n: number; status: S; picker_id: number | null; picker_name: string | null }) => ({
+  id: t.id,
+  n: t.n,
+  status: t.status,
+  pickerId: t.picker_id,
+  pickerName: t.picker_name,
+});
 
 /** A trip's stops by printed number and its pick lines, as the print view shows them. */
 export async function printStopsAndLines(db: Q, tripId: number): Promise<{ stops: DbPrintStopRow[]; lines: DbPrintLineRow[] }> {
@@ -198,4 +188,20 @@ export async function cancelWaveRows(db: Q, siteId: number, waveId: number): Pro
     .whereIn('trip_id', db('trips').where({ wave_id: waveId }).select('id'))
     .update({ status: 'cancelled' });
   await db('orders').where({ wave_id: waveId, site_id: siteId }).update({ status: 'open', wave_id: null });
+}
+
+/** The site's released or picking waves on any plan but `exceptPlanId`, with their plan version and open trips. */
+export async function runningWavesOffPlan(
+  db: Q,
+  siteId: number,
+  exceptPlanId: number,
+): Promise<{ id: number; name: string; status: string; plan_id: number; version: number | null; open_trips: number }[]> {
+  return db('waves as w')
+    .join('floor_plans as p', 'p.id', 'w.plan_id')
+    .where('w.site_id', siteId)
+    .whereIn('w.status', ['released', 'picking'])
+    .whereNot('w.plan_id', exceptPlanId)
+    .orderBy('w.id')
+    .select('w.id', 'w.name', 'w.status', 'w.plan_id', 'p.version')
+    .select(db.raw("(select count(*) from trips t where t.wave_id = w.id and t.status not in ('done', 'cancelled')) as open_trips"));
 }

@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { ReleaseBody, TripDetail, WaveActuals, WaveDetail, WaveJob, WavePreviewBody, WaveStatus, WaveSummary } from '../../shared/waves';
 import { notFound } from '../http/errors';
 import { pathId } from '../http/path-id';
-import { defineRoute } from '../http/route';
+import { defineRoute, officeRead } from '../http/route';
 import { getPreviewJob } from './preview-jobs';
 import { buildWaveReport } from '../picking/report';
 import { cancelWave, listWaves, releaseWave, startPreview, tripDetail, waveDetail } from './waves.service';
@@ -38,27 +38,21 @@ export const waveRoutes = [
     response: WaveDetail,
     handler: ({ deps, siteId, user, body }) => releaseWave(deps, siteId, user.id, body.previewId, body.releaseKey, body.name),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/waves',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'Released waves, newest first',
     query: z.strictObject({ status: WaveStatus.optional() }),
     response: z.array(WaveSummary),
     handler: ({ deps, siteId, query }) => listWaves(deps.db, siteId, query.status),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/waves/:id',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'A wave with its trips',
     response: WaveDetail,
     handler: ({ deps, siteId, params }) => waveDetail(deps.db, siteId, pathId(params.id, 'Wave')),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/waves/:id/actuals',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'Planned against actual per trip: walked metres, minutes, shorts (the wave report as JSON)',
     response: WaveActuals,
     handler: async ({ deps, siteId, params }) => {
@@ -89,10 +83,8 @@ export const waveRoutes = [
     response: WaveDetail,
     handler: ({ deps, siteId, user, params }) => cancelWave(deps, siteId, user.id, pathId(params.id, 'Wave')),
   }),
-  defineRoute({
-    method: 'get',
+  officeRead({
     path: '/api/sites/:siteId/trips/:id',
-    access: ['supervisor', 'admin', 'engineer'],
     summary: 'A trip with numbered stops, pick lines and route (print view)',
     response: TripDetail,
     handler: ({ deps, siteId, params }) => tripDetail(deps.db, siteId, pathId(params.id, 'Trip')),

@@ -15,6 +15,7 @@ import { circuitPolyline } from '../core/plan/distances';
 import type { PlannerOrder, PlannerOutput } from './wave-planner';
 import type { PlanJobData } from './plan.worker';
 import * as repo from './waves.repository';
+import { lineView } from '../picking/picking.repository';
 import type { JobContext, JobKind, JobRecord } from '../workers/jobs';
 import { getPreview, toWaveJob, WAVE_PREVIEW_JOB, type PreviewJobData, type PreviewOutcome } from './preview-jobs';
 
@@ -400,11 +401,7 @@ async function tripSummaries(db: Q, where: Record<string, unknown>) {
   return trips.map((t) => {
     const c = counts.find((x) => x.trip_id === t.id);
     return {
-      id: t.id,
-      n: t.n,
-      status: t.status,
-      pickerId: t.picker_id,
-      pickerName: t.picker_name,
+      ...repo.tripHead(t),
       orders: orders.filter((o) => o.trip_id === t.id).map((o) => o.ref),
       stops: Number(c?.stops ?? 0),
       lines: Number(c?.lines ?? 0),
@@ -450,20 +447,7 @@ export async function tripDetail(db: Q, siteId: number, tripId: number): Promise
       y: s.y_m,
       bins: JSON.parse(s.bins) as string[],
       status: s.status,
-      lines: lines
-        .filter((l) => l.stop_id === s.id)
-        .map((l) => ({
-          id: l.id,
-          orderRef: l.order_ref,
-          sku: l.sku,
-          description: l.description,
-          bin: l.bin,
-          qty: l.qty,
-          tote: l.tote,
-          status: l.status,
-          pickedQty: l.picked_qty,
-          shortReason: l.short_reason,
-        })),
+      lines: lines.filter((l) => l.stop_id === s.id).map(lineView),
     })),
   };
 }

@@ -117,6 +117,24 @@ export function holdUnlessCancelled(ms: number, signal: AbortSignal): Promise<vo
   });
 }
 
+/** A job as submitted: queued, no progress, no result yet. */
+export function newJobRecord(kind: string, options: SubmitOptions): JobRecord {
+  return {
+    id: randomUUID(),
+    kind,
+    siteId: options.siteId ?? null,
+    key: options.key ?? null,
+    state: 'queued',
+    progress: 0,
+    phase: 'queued',
+    result: null,
+    error: null,
+    createdAt: new Date().toISOString(),
+    startedAt: null,
+    finishedAt: null,
+  };
+}
+
 interface LocalEntry {
   record: JobRecord;
   data: unknown;
@@ -157,20 +175,7 @@ class LocalJobRunner implements JobRunner {
     const kind = this.kinds.get(kindName);
     if (!kind) throw new Error(`unknown job kind ${kindName}`);
     this.sweep();
-    const record: JobRecord = {
-      id: randomUUID(),
-      kind: kindName,
-      siteId: options.siteId ?? null,
-      key: options.key ?? null,
-      state: 'queued',
-      progress: 0,
-      phase: 'queued',
-      result: null,
-      error: null,
-      createdAt: new Date().toISOString(),
-      startedAt: null,
-      finishedAt: null,
-    };
+    const record = newJobRecord(kindName, options);
     const entry: LocalEntry = { record, data, abort: new AbortController(), lastEmit: 0 };
     this.entries.set(record.id, entry);
     const lane = this.lanes.get(kindName) ?? Promise.resolve();

@@ -26,6 +26,7 @@ import {
   JOB_CANCEL,
   JOB_CHANGED,
   KEEP_FINISHED_MS,
+  newJobRecord,
   PROGRESS_EVERY_MS,
   type JobContext,
   type JobKind,
@@ -271,20 +272,21 @@ class PgJobRunner implements JobRunner {
       .whereNotNull('finished_at')
       .andWhere('finished_at', '<', new Date(Date.now() - KEEP_FINISHED_MS).toISOString())
       .delete();
+    const r = newJobRecord(kindName, options);
     const row: Row = {
-      id: randomUUID(),
-      kind: kindName,
-      site_id: options.siteId ?? null,
-      key: options.key ?? null,
-      state: 'queued',
-      progress: 0,
-      phase: 'queued',
+      id: r.id,
+      kind: r.kind,
+      site_id: r.siteId,
+      key: r.key,
+      state: r.state,
+      progress: r.progress,
+      phase: r.phase,
       result: null,
       error: null,
       instance: null,
       attempt: 0,
       heartbeat_at: null,
-      created_at: now(),
+      created_at: r.createdAt,
       started_at: null,
       finished_at: null,
     };

@@ -21,6 +21,8 @@ export interface CheckFloorPlanOptions {
   /** For a bins CSV: the aisles, cross aisles and depots it is checked against. */
   layout?: PlanLayout;
   limits?: Partial<ImportLimits>;
+  /** Aborting stops the reading process (the job was cancelled). */
+  signal?: AbortSignal;
 }
 
 const NO_STATS = { aisles: 0, crossAisles: 0, bins: 0, accessPoints: 0, depots: 0, totalAisleLengthM: 0 };
@@ -36,7 +38,13 @@ export async function checkFloorPlanFile(bytes: Uint8Array, filename: string, op
   const refused = preflight(bytes, filename, limits);
   if (refused) return { ok: false, errors: [refused], warnings: [], stats: NO_STATS, plan: null };
   const job: FloorPlanJob = { bytes, filename, limits, layout: options.layout ?? null };
-  const out = await runImportJob<PackedFloorPlanCheck, FloorPlanCheckProgress>(new URL('./check-worker.ts', import.meta.url), job, limits, options.onProgress);
+  const out = await runImportJob<PackedFloorPlanCheck, FloorPlanCheckProgress>(
+    new URL('./check-worker.ts', import.meta.url),
+    job,
+    limits,
+    options.onProgress,
+    options.signal,
+  );
   if (!out.ok) return { ok: false, errors: [out.issue], warnings: [], stats: NO_STATS, plan: null };
   const { plan } = out.result;
   return { ...out.result, plan: plan ? { ...plan, bins: unpackBins(plan.bins) } : null };

@@ -31,4 +31,17 @@ describe('check-then-insert under parallel requests', () => {
     const site = await t.as.admin.get(`/api/sites/${t.siteId}`);
     expect(site.body.cartProfiles.filter((c: { name: string }) => c.name === 'Race cart')).toHaveLength(1);
   });
+
+  it('creates a picker badge once when two admins send it at the same moment', async () => {
+    const send = (i: number) =>
+      t.as.admin
+        .post('/api/users/pickers')
+        .set(csrf)
+        .send({ name: `Race picker ${i}`, badge: 'RACE-7', pin: '482916', siteIds: [t.siteId] });
+    const rs = await Promise.all(Array.from({ length: 8 }, (_, i) => send(i)));
+    expect(statuses(rs)).toEqual([201, ...Array<number>(7).fill(409)]);
+    for (const r of rs.filter((x) => x.status === 409)) expect(r.body.error.code).toBe('badge_taken');
+    const users = await t.as.admin.get('/api/users');
+    expect(users.body.filter((u: { badge: string | null }) => u.badge === 'RACE-7')).toHaveLength(1);
+  });
 });

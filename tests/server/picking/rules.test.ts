@@ -146,6 +146,27 @@ describe('idempotency keys', () => {
     expect((await readTrip(t.as.picker, trip.id)).stopList[1]!.lines[0]!.status).toBe('open');
   });
 
+  it('refuses one key sent to two trips at the same moment like one sent twice: one write, the other 422', async () => {
+    // A picker may write to two trips (their own and one taken from them, for work done before); the
+    // trip lock then does not serialise the two. Each round sends one key to both trips at once.
+    for (let round = 0; round < 4; round++) {
+      await freePickers();
+      const w = await t.wave([
+        { stops: 2, pickerId: t.ids.picker },
+        { stops: 2, pickerId: t.ids.picker },
+      ]);
+      const trips = await Promise.all(w.tripIds.map((id) => readTrip(t.as.picker, id)));
+      const key = newKey('two-trips');
+      const rs = await Promise.all(trips.map((trip) => confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id, { via: 'tap' }, key)));
+      expect(rs.map((r) => r.status).sort(), JSON.stringify(rs.map((r) => r.body))).toEqual([200, 422]);
+      expect(rs.find((r) => r.status === 422)!.body.error.code).toBe('idempotency_key_reused');
+      expect(await t.deps.db('pick_requests').where({ idem_key: key })).toHaveLength(1);
+      // The refused write left its line open; the taken one is picked.
+      const after = await Promise.all(trips.map((trip) => readTrip(t.as.picker, trip.id)));
+      expect(after.map((trip) => trip.stopList[0]!.lines[0]!.status).sort()).toEqual(['open', 'picked']);
+    }
+  });
+
   it('refuses a write without a key with 400, and nothing is confirmed', async () => {
     await freePickers();
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
