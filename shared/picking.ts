@@ -264,7 +264,14 @@ export type Board = z.infer<typeof Board>;
 export const AssignBody = z.strictObject({ pickerId: z.number().int().positive() });
 export const CancelTripBody = z.strictObject({ reason: z.string().trim().max(200).optional() });
 export const CloseWaveBody = z.strictObject({ reason: z.string().trim().max(200).optional() });
-export const CancelResult = z.object({ tripId: z.number().int(), linesCancelled: z.number().int(), ordersReopened: z.array(z.string()) });
+export const CancelResult = z.object({
+  tripId: z.number().int(),
+  linesCancelled: z.number().int(),
+  /** Orders with nothing picked yet: back to open orders as they were. */
+  ordersReopened: z.array(z.string()),
+  /** Orders partly picked: done with what is in the cart; their cancelled lines make a new open order each (`<ref>-R1`). */
+  remainderOrders: z.array(z.string()).default([]),
+});
 export const CloseWaveResult = z.object({
   waveId: z.number().int(),
   tripsCancelled: z.number().int(),

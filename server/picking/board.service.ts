@@ -178,11 +178,38 @@ async function cancelRest(
   actor: Actor,
   trip: DbTripRow,
   reason: string | null,
-): Promise<{ linesCancelled: number; ordersReopened: string[] }> {
+): Promise<{ linesCancelled: number; ordersReopened: string[]; remainderOrders: string[] }> {
   const at = nowIso();
   const open = await repo.cancelOpenLines(trx, trip.id);
-  // Orders with nothing left in the cart go back to open; the lines picked stay picked on this trip.
-  const refs = await repo.reopenOrders(trx, [...new Set(open.map((l) => l.order_id))]);
+  // Orders with nothing in the cart go back to open as they were. An order partly picked is done with
+  // what the cart holds, and its cancelled lines become a new open order (`<ref>-R1`): reopening the
+  // whole order would have the next wave pick its picked lines again.
+  const touched = [...new Set(open.map((l) => l.order_id))];
+  const started = new Set(await repo.ordersWithRecordedLines(trx, touched));
+  const refs = await repo.reopenOrders(
+    trx,
+    touched.filter((id) => !started.has(id)),
+  );
+  const remainders: string[] = [];
+  // A line whose SKU has left the SKU master since cannot be ordered again: named in the audit instead.
+  const notCarried: { order: string; sku: string; qty: number }[] = [];
+  const skus = started.size ? await skuMap(trx, trip.site_id) : new Map();
+  for (const orderId of started) {
+    const original = await repo.orderOfLine(trx, trip.site_id, orderId);
+    const rest = open.filter((l) => l.order_id === orderId);
+    for (const l of rest) if (!skus.has(l.sku)) notCarried.push({ order: l.order_ref, sku: l.sku, qty: l.qty });
+    const lines = rest.filter((l) => skus.has(l.sku)).map((l) => ({ sku: l.sku, qty: l.qty }));
+    if (!original || !lines.length) continue;
+    const ref = await repickRef(trx, trip.site_id, original.ref);
+    await insertOrder(trx, trip.site_id, { ref, due: original.due, priority: original.priority, lines, row: null }, 'remainder', skus);
+    remainders.push(ref);
+  }
+  await repo.markOrdersDone(trx, [...started]);
+  // Orders of the trip picked in full are done too (they were left in "picking" before).
+  await repo.markOrdersDone(
+    trx,
+    (await repo.tripOrderIds(trx, trip.id)).filter((id) => !touched.includes(id)),
+  );
   const walked = await walkedMetres(trx, trip);
   await repo.closeTripCancelled(trx, trip, walked, at);
   await bumpRevision(trx, trip.id);
@@ -192,10 +219,17 @@ async function cancelRest(
     userId: actor.id,
     action: 'trip.cancel',
     subject: `trip:${trip.id}`,
-    detail: { reason, linesCancelled: open.length, ordersReopened: refs, picker: trip.picker_id },
+    detail: {
+      reason,
+      linesCancelled: open.length,
+      ordersReopened: refs,
+      remainderOrders: remainders,
+      ...(notCarried.length ? { notCarried } : {}),
+      picker: trip.picker_id,
+    },
     device: actor.device,
   });
-  return { linesCancelled: open.length, ordersReopened: refs };
+  return { linesCancelled: open.length, ordersReopened: refs, remainderOrders: remainders };
 }
 
 export async function cancelTrip(db: Knex, mailer: Mailer, actor: Actor, siteId: number, tripId: number, reason: string | null) {
@@ -206,7 +240,7 @@ export async function cancelTrip(db: Knex, mailer: Mailer, actor: Actor, siteId:
   });
   siteChanged(siteId);
   await afterTripClosed(db, mailer, out.waveId);
-  return { tripId, linesCancelled: out.linesCancelled, ordersReopened: out.ordersReopened };
+  return { tripId, linesCancelled: out.linesCancelled, ordersReopened: out.ordersReopened, remainderOrders: out.remainderOrders };
 }
 
 /** Closes a wave: every trip not done is cancelled (open lines back to open orders); the report is mailed. */

@@ -465,6 +465,19 @@ export async function cancelOpenLines(db: Q, tripId: number): Promise<DbLineRow[
   return open;
 }
 
+/** Of these orders, those with a line already picked or reported short (something in a cart, or followed up). */
+export async function ordersWithRecordedLines(db: Q, orderIds: number[]): Promise<number[]> {
+  if (!orderIds.length) return [];
+  return db('pick_lines').whereIn('order_id', orderIds).whereIn('status', ['picked', 'short']).distinct('order_id').pluck('order_id');
+}
+
+export const tripOrderIds = (db: Q, tripId: number): Promise<number[]> => db('trip_orders').where({ trip_id: tripId }).pluck('order_id');
+
+/** These orders are done with what was picked (the rest of their lines was cancelled). */
+export async function markOrdersDone(db: Q, orderIds: number[]): Promise<void> {
+  if (orderIds.length) await db('orders').whereIn('id', orderIds).whereIn('status', ['planned', 'picking']).update({ status: 'done' });
+}
+
 /** These orders go back to the open pool; returns their refs, sorted. */
 export async function reopenOrders(db: Q, orderIds: number[]): Promise<string[]> {
   if (!orderIds.length) return [];

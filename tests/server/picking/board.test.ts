@@ -148,6 +148,49 @@ describe('supervisor actions', () => {
     expect(JSON.parse(a.detail)).toMatchObject({ reason: 'aisle blocked', linesCancelled: trip.lines - 1 });
   });
 
+  it('cancels the rest of a partly picked order without picking its picked lines again: done, and a remainder order holds the rest', async () => {
+    await freePickers();
+    const w = await t.wave([{ stops: 6, pickerId: t.ids.picker }]);
+    const trip = await readTrip(t.as.picker, w.tripIds[0]!);
+    const first = trip.stopList[0]!.lines[0]!;
+    // The SKU master holds the trip's SKUs, as an import leaves it (the test wave writes lines only).
+    const tripLines = trip.stopList.flatMap((st) => st.lines);
+    const skuRows = [...new Map(tripLines.map((l) => [l.sku, l])).values()].map((l) => ({
+      site_id: t.siteId,
+      sku: l.sku,
+      description: l.description,
+      bin: l.bin,
+      unit_weight_kg: 0.5,
+      unit_volume_l: 1,
+      updated_at: new Date().toISOString(),
+    }));
+    await t.deps.db('skus').insert(skuRows).onConflict(['site_id', 'sku']).ignore();
+    await confirm(t.as.picker, trip.id, first.id);
+    const out = CancelResult.parse((await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${trip.id}/cancel`).set(csrf).send({})).body);
+    const started = await t.deps.db('orders').where({ ref: first.orderRef }).first();
+    // The helper's trip has two orders, lines alternating: one has a picked line, the other nothing yet.
+    expect(out.ordersReopened).toHaveLength(1);
+    expect(out.ordersReopened).not.toContain(first.orderRef);
+    expect(out.remainderOrders).toEqual([`${first.orderRef}-R1`]);
+    expect(started.status).toBe('done');
+    // The remainder order holds exactly the cancelled lines of the started order, and is open for the next wave.
+    const cancelled = await t.deps.db('pick_lines').where({ trip_id: trip.id, order_id: started.id, status: 'cancelled' }).orderBy('id').select('sku', 'qty');
+    expect(cancelled.length).toBeGreaterThan(0);
+    const remainder = await t.deps
+      .db('orders')
+      .where({ site_id: t.siteId, ref: `${first.orderRef}-R1` })
+      .first();
+    expect([remainder.status, remainder.wave_id, remainder.due]).toEqual(['open', null, started.due]);
+    const remainderLines = await t.deps.db('order_lines').where({ order_id: remainder.id }).orderBy('line_no').select('sku', 'qty');
+    expect(remainderLines).toEqual(cancelled.map((l: { sku: string; qty: number }) => ({ sku: l.sku, qty: l.qty })));
+    expect(remainderLines.map((l: { sku: string }) => l.sku)).not.toContain(first.sku);
+    const a = await t.deps
+      .db('audit_log')
+      .where({ action: 'trip.cancel', subject: `trip:${trip.id}` })
+      .first();
+    expect(JSON.parse(a.detail)).toMatchObject({ remainderOrders: [`${first.orderRef}-R1`] });
+  });
+
   it('mails the wave report with walked metres in the order actually picked once the last trip is done', async () => {
     await freePickers();
     await t.deps.db('mail_outbox').delete();
