@@ -1,8 +1,5 @@
 import { defineConfig, devices } from '@playwright/test';
-
-/** Browser tests drive Debian's Chromium (never a downloaded browser: `apt-get install -y chromium`; README.md). */
-export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
-const PORT = Number(process.env.E2E_PORT ?? 3310);
+import { CHROMIUM, CHROMIUM_ARGS, E2E_PORT as PORT } from './tests/e2e/harness/chromium';
 
 export default defineConfig({
   testDir: 'tests/e2e',
@@ -20,16 +17,7 @@ export default defineConfig({
     browserName: 'chromium',
     launchOptions: {
       executablePath: CHROMIUM,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--disable-quic',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-      ],
+      args: [...CHROMIUM_ARGS],
     },
     trace: 'off',
     screenshot: 'only-on-failure',

@@ -101,6 +101,22 @@ export const GeneratePlanParams = z
   });
 export type GeneratePlanParams = z.infer<typeof GeneratePlanParams>;
 
+/**
+ * The layout the plan generator's form starts from, and the demo site's: 12 aisles of 30 bays on both
+ * sides, 4 levels (2,880 bins), front, middle and back cross aisles, the depot at the front centre.
+ */
+export const DEFAULT_PLAN_PARAMS: GeneratePlanParams = {
+  aisles: 12,
+  aisleLengthM: 48,
+  aisleSpacingM: 3.2,
+  baysPerAisle: 30,
+  levels: 4,
+  bothSides: true,
+  crossAisles: { front: true, back: true, middle: 1 },
+  crossAisleWidthM: 3,
+  depot: 'front_centre',
+};
+
 export const GenerateFloorPlanBody = z.strictObject({
   name: z.string().trim().min(1).max(120),
   params: GeneratePlanParams,

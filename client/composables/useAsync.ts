@@ -21,6 +21,16 @@ export interface AsyncState<T, A extends unknown[]> {
   error: ShallowRef<unknown>;
   /** Runs the call; a newer run wins over an older one still in flight. Resolves to null on error. */
   run: (...args: A) => Promise<T | null>;
+  /** Runs the call again with the arguments of the last run (nothing before the first). */
+  retry: () => Promise<T | null>;
+}
+
+/** What a loading, empty and error screen reads of a call (`BaseAsyncState`'s `source`). */
+export interface AsyncSource {
+  status: Ref<AsyncStatus>;
+  error: Ref<unknown>;
+  /** What "Try again" does when the screen is given nothing else. */
+  retry?: () => unknown;
 }
 
 /** A call's explicit idle / loading / done / error state, for loading, empty and error screens. */
@@ -29,9 +39,11 @@ export function useAsync<T, A extends unknown[]>(fn: (...args: A) => Promise<T>)
   const data = shallowRef<T | null>(null);
   const error = shallowRef<unknown>(null);
   let latest = 0;
+  let lastArgs: A | null = null;
 
   async function run(...args: A): Promise<T | null> {
     const ticket = ++latest;
+    lastArgs = args;
     status.value = 'loading';
     error.value = null;
     try {
@@ -50,5 +62,7 @@ export function useAsync<T, A extends unknown[]>(fn: (...args: A) => Promise<T>)
     }
   }
 
-  return { status, data, error, run };
+  const retry = (): Promise<T | null> => (lastArgs ? run(...lastArgs) : Promise.resolve(null));
+
+  return { status, data, error, run, retry };
 }

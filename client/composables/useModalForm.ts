@@ -41,3 +41,6 @@ export function useModalForm<S extends z.ZodType>(options: ModalFormOptions<S>) 
 
   return { errors: form.errors, busy: form.busy, submit };
 }
+
+/** What `BaseFormModal` shows and calls: the busy state, the general error line, the submit. */
+export type ModalForm = ReturnType<typeof useModalForm>;

@@ -4,7 +4,7 @@ import { useAsync, type AsyncState } from './useAsync';
 
 /**
  * Data of the current site (`useAsync`), read at mount and again when the user switches site.
- * `load` reads again (the retry button, after a change); it does nothing while no site is chosen.
+ * `load` (also its `retry`) reads again for the current site; it does nothing while no site is chosen.
  */
 export function useSiteData<T>(read: (siteId: number) => Promise<T>): AsyncState<T, [number]> & { load: () => Promise<T | null> } {
   const session = useSessionStore();
@@ -12,5 +12,5 @@ export function useSiteData<T>(read: (siteId: number) => Promise<T>): AsyncState
   const load = (): Promise<T | null> => (session.siteId ? state.run(session.siteId) : Promise.resolve(null));
   onMounted(load);
   watch(() => session.siteId, load);
-  return { ...state, load };
+  return { ...state, load, retry: load };
 }

@@ -3,22 +3,13 @@
  * both sides, 4 levels (2,880 bins), front, middle and back cross aisles, the depot at the front centre.
  */
 import type { Knex } from 'knex';
-import type { GeneratePlanParams } from '../../shared/floor-plans';
+import { DEFAULT_PLAN_PARAMS } from '../../shared/floor-plans';
 import { BUILD_BUDGET_MS, runBuild } from './build';
 import { activatePlan, engineParams, saveBuiltPlan } from './floor-plans.service';
 import { unpackPlan } from './packed-plan';
 
-export const DEMO_PLAN_PARAMS: GeneratePlanParams = {
-  aisles: 12,
-  aisleLengthM: 48,
-  aisleSpacingM: 3.2,
-  baysPerAisle: 30,
-  levels: 4,
-  bothSides: true,
-  crossAisles: { front: true, back: true, middle: 1 },
-  crossAisleWidthM: 3,
-  depot: 'front_centre',
-};
+/** The demo's layout: the plan generator's default (shared/floor-plans.ts). */
+export const DEMO_PLAN_PARAMS = DEFAULT_PLAN_PARAMS;
 
 export async function seedDemoFloorPlan(db: Knex, siteId: number, userIds: Record<string, number>): Promise<void> {
   const userId = userIds.supervisor ?? userIds.admin!;

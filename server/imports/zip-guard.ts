@@ -7,12 +7,10 @@
 import { inflateRawSync } from 'node:zlib';
 import type { ImportLimits } from './limits';
 
-const SIG_LOCAL = 0x04034b50;
-const SIG_CENTRAL = 0x02014b50;
-const SIG_END = 0x06054b50;
-const END_MIN = 22;
-const CENTRAL_MIN = 46;
-const LOCAL_MIN = 30;
+/** The three ZIP records read here: each one's signature and the length of its fixed part. */
+const LOCAL = { signature: 0x04034b50, length: 30 } as const;
+const CENTRAL = { signature: 0x02014b50, length: 46 } as const;
+const END = { signature: 0x06054b50, length: 22 } as const;
 const MAX_COMMENT = 0xffff;
 
 export interface ZipEntry {
@@ -45,9 +43,9 @@ export function inspectZip(
   const fail = (message: string): ZipInspection => ({ ok: false, message });
 
   let end = -1;
-  const lowest = Math.max(0, bytes.length - END_MIN - MAX_COMMENT);
-  for (let i = bytes.length - END_MIN; i >= lowest; i--) {
-    if (view.getUint32(i, true) === SIG_END && i + END_MIN + view.getUint16(i + 20, true) <= bytes.length) {
+  const lowest = Math.max(0, bytes.length - END.length - MAX_COMMENT);
+  for (let i = bytes.length - END.length; i >= lowest; i--) {
+    if (view.getUint32(i, true) === END.signature && i + END.length + view.getUint16(i + 20, true) <= bytes.length) {
       end = i;
       break;
     }
@@ -70,7 +68,7 @@ export function inspectZip(
   let totalPacked = 0;
   let p = cdOffset;
   for (let k = 0; k < entryCount; k++) {
-    if (p + CENTRAL_MIN > cdOffset + cdSize || view.getUint32(p, true) !== SIG_CENTRAL) {
+    if (p + CENTRAL.length > cdOffset + cdSize || view.getUint32(p, true) !== CENTRAL.signature) {
       return fail('the ZIP central directory is damaged');
     }
     const flags = view.getUint16(p + 8, true);
@@ -81,9 +79,9 @@ export function inspectZip(
     const extraLen = view.getUint16(p + 30, true);
     const commentLen = view.getUint16(p + 32, true);
     const localHeaderOffset = view.getUint32(p + 42, true);
-    const nameEnd = p + CENTRAL_MIN + nameLen;
+    const nameEnd = p + CENTRAL.length + nameLen;
     if (nameEnd > cdOffset + cdSize) return fail('the ZIP central directory is damaged');
-    const name = new TextDecoder('utf-8', { fatal: false }).decode(bytes.subarray(p + CENTRAL_MIN, nameEnd));
+    const name = new TextDecoder('utf-8', { fatal: false }).decode(bytes.subarray(p + CENTRAL.length, nameEnd));
 
     if (flags & 1) return fail('encrypted (password-protected) workbooks are not accepted');
     if (compressedSize === 0xffffffff || uncompressedSize === 0xffffffff || localHeaderOffset === 0xffffffff) {
@@ -91,7 +89,7 @@ export function inspectZip(
     }
     if (method !== 0 && method !== 8) return fail(`archive entry ${name} uses compression method ${method}; only stored and deflate are accepted`);
     if (method === 0 && compressedSize !== uncompressedSize) return fail(`archive entry ${name} is stored but its sizes differ`);
-    if (localHeaderOffset + LOCAL_MIN + compressedSize > cdOffset) return fail(`archive entry ${name} lies outside the file`);
+    if (localHeaderOffset + LOCAL.length + compressedSize > cdOffset) return fail(`archive entry ${name} lies outside the file`);
     if (uncompressedSize >= limits.ratioFloorBytes && uncompressedSize / Math.max(compressedSize, 1) > limits.maxCompressionRatio) {
       return fail(
         `archive entry ${name} unpacks ${Math.round(uncompressedSize / Math.max(compressedSize, 1))} times its packed size; at most ${limits.maxCompressionRatio} is accepted`,
@@ -120,8 +118,8 @@ export function verifyZipEntries(bytes: Uint8Array, entries: readonly ZipEntry[]
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   for (const e of entries) {
     const h = e.localHeaderOffset;
-    if (h + LOCAL_MIN > bytes.length || view.getUint32(h, true) !== SIG_LOCAL) return `archive entry ${e.name} has no local header`;
-    const start = h + LOCAL_MIN + view.getUint16(h + 26, true) + view.getUint16(h + 28, true);
+    if (h + LOCAL.length > bytes.length || view.getUint32(h, true) !== LOCAL.signature) return `archive entry ${e.name} has no local header`;
+    const start = h + LOCAL.length + view.getUint16(h + 26, true) + view.getUint16(h + 28, true);
     if (start + e.compressedSize > bytes.length) return `archive entry ${e.name} lies outside the file`;
     if (e.method === 0) continue;
     let out: Buffer;

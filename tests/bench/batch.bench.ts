@@ -56,51 +56,38 @@ const fmt = (v: number, d = 1): string => v.toFixed(d);
 const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 interface SearchScenario {
-  name: string;
   floor: RectangularPlanParams;
   orders: OrderGenOptions;
   cart: Cart;
   seed: number;
 }
 
+/** A generated site: `aisles` aisles of `lengthM` metres, 3 m apart, a bay every 2 m, and `middle` middle cross aisles. */
+const siteOf = (aisles: number, lengthM: number, levels: number, middle = 0): RectangularPlanParams => ({
+  aisles,
+  aisleLengthM: lengthM,
+  aisleSpacingM: 3,
+  baysPerAisle: lengthM / 2,
+  levels,
+  ...(middle > 0 ? { crossAisles: { middle } } : {}),
+});
+
+/** The scenario's row name, said from its figures: "single block, 10 aisles × 30 m, 60 orders × 1–4 lines, 8 totes". */
+function scenarioName({ floor, orders, cart }: SearchScenario): string {
+  const middle = floor.crossAisles?.middle ?? 0;
+  const cross = middle === 0 ? '' : middle === 1 ? ', middle cross aisle' : `, ${middle} middle cross aisles`;
+  return `${middle === 0 ? 'single block' : 'multi-block'}, ${floor.aisles} aisles × ${floor.aisleLengthM} m${cross}, ${orders.orders} orders × ${orders.minLines}–${orders.maxLines} lines, ${cart.totes} totes`;
+}
+
 /** Single-block and multi-block sites, 60–400 orders of 1–8 lines, carts of 4–16 totes (issue 14). */
 const SEARCH_SCENARIOS: SearchScenario[] = [
-  {
-    name: 'single block, 10 aisles × 30 m, 60 orders × 1–4 lines, 8 totes',
-    floor: { aisles: 10, aisleLengthM: 30, aisleSpacingM: 3, baysPerAisle: 15, levels: 3 },
-    orders: { orders: 60, minLines: 1, maxLines: 4 },
-    cart: { totes: 8, maxKg: 150, maxLitres: 400 },
-    seed: 11,
-  },
-  {
-    name: 'single block, 14 aisles × 36 m, 150 orders × 2–5 lines, 4 totes',
-    floor: { aisles: 14, aisleLengthM: 36, aisleSpacingM: 3, baysPerAisle: 18, levels: 3 },
-    orders: { orders: 150, minLines: 2, maxLines: 5 },
-    cart: { totes: 4, maxKg: 80, maxLitres: 200 },
-    seed: 12,
-  },
-  {
-    name: 'single block, 16 aisles × 40 m, 200 orders × 1–8 lines, 12 totes',
-    floor: { aisles: 16, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4 },
-    orders: { orders: 200, minLines: 1, maxLines: 8 },
-    cart: { totes: 12, maxKg: 220, maxLitres: 600 },
-    seed: 13,
-  },
-  {
-    name: 'multi-block, 20 aisles × 40 m, middle cross aisle, 300 orders × 3–7 lines, 8 totes',
-    floor: { aisles: 20, aisleLengthM: 40, aisleSpacingM: 3, baysPerAisle: 20, levels: 4, crossAisles: { middle: 1 } },
-    orders: { orders: 300, minLines: 3, maxLines: 7 },
-    cart: { totes: 8, maxKg: 150, maxLitres: 400 },
-    seed: 1,
-  },
-  {
-    name: 'multi-block, 24 aisles × 50 m, 2 middle cross aisles, 400 orders × 1–6 lines, 16 totes',
-    floor: { aisles: 24, aisleLengthM: 50, aisleSpacingM: 3, baysPerAisle: 25, levels: 4, crossAisles: { middle: 2 } },
-    orders: { orders: 400, minLines: 1, maxLines: 6 },
-    cart: { totes: 16, maxKg: 300, maxLitres: 800 },
-    seed: 14,
-  },
+  { floor: siteOf(10, 30, 3), orders: { orders: 60, minLines: 1, maxLines: 4 }, cart: { totes: 8, maxKg: 150, maxLitres: 400 }, seed: 11 },
+  { floor: siteOf(14, 36, 3), orders: { orders: 150, minLines: 2, maxLines: 5 }, cart: { totes: 4, maxKg: 80, maxLitres: 200 }, seed: 12 },
+  { floor: siteOf(16, 40, 4), orders: { orders: 200, minLines: 1, maxLines: 8 }, cart: { totes: 12, maxKg: 220, maxLitres: 600 }, seed: 13 },
+  { floor: siteOf(20, 40, 4, 1), orders: { orders: 300, minLines: 3, maxLines: 7 }, cart: { totes: 8, maxKg: 150, maxLitres: 400 }, seed: 1 },
+  { floor: siteOf(24, 50, 4, 2), orders: { orders: 400, minLines: 1, maxLines: 6 }, cart: { totes: 16, maxKg: 300, maxLitres: 800 }, seed: 14 },
 ];
+
 /** The wave builder's batching budget: 40 % of the default 8 s wave budget (server/core/batch/plan-wave.ts). */
 const DEFAULT_SEARCH_MS = 3200;
 const SEARCH_GOAL_PCT = 6;
@@ -163,12 +150,12 @@ async function runSearch(): Promise<void> {
       if (b === DEFAULT_SEARCH_MS) {
         const lookups = stats.routed + stats.cacheHits;
         profile.push(
-          `| ${sc.name} | ${stats.kicks} | ${stats.quick} | ${stats.measured} | ${stats.routed} | ${fmt((100 * stats.cacheHits) / Math.max(1, lookups), 1)} % |`,
+          `| ${scenarioName(sc)} | ${stats.kicks} | ${stats.quick} | ${stats.measured} | ${stats.routed} | ${fmt((100 * stats.cacheHits) / Math.max(1, lookups), 1)} % |`,
         );
       }
       cells.push(`${fmt(stats.waveLength, 0)} (−${fmt(pct, 2)} %, ${r.batches.length} trips, ${fmt(ms / 1000, 1)} s wall)`);
     });
-    console.log(`| ${sc.name} | ${trips} | ${fmt(savingsM, 0)} | ${cells.join(' | ')} |`);
+    console.log(`| ${scenarioName(sc)} | ${trips} | ${fmt(savingsM, 0)} | ${cells.join(' | ')} |`);
   }
   const mean = (xs: number[]): number => xs.reduce((a, b) => a + b, 0) / xs.length;
   console.log(`| **mean less walking than savings** | | | ${gains.map((g) => `**${fmt(mean(g), 2)} %**`).join(' | ')} |`);

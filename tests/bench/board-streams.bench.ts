@@ -17,14 +17,10 @@ import http from 'node:http';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { createHasher } from '../../server/auth/hasher';
-import { migrateLatest, openDb } from '../../server/db/knex';
-import { seedDemoFloorPlan } from '../../server/floor-plans/demo-seed';
-import { activePlanId } from '../../server/floor-plans/plan-index';
-import { seedDemoOrders } from '../../server/orders/demo-seed';
-import { DEMO_PASSWORD, DEMO_PIN, seedDemoIfEmpty } from '../../server/seed/demo';
+import { DEMO_PASSWORD, DEMO_PIN } from '../../server/seed/demo';
 import { insertUser } from '../../server/users/users.repository';
 import { insertReleasedWave } from '../helpers/picking';
+import { openDemoDb } from './demo-db';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const PORT = Number(process.env.BOARD_BENCH_PORT ?? 3392);
@@ -38,15 +34,9 @@ const IDLE_WAIT_MS = 300;
 const TICKS_PER_SECOND = 100;
 
 async function prepare(file: string) {
-  const db = openDb(file);
-  await migrateLatest(db);
-  const hasher = createHasher({ memoryCost: 1024, timeCost: 1 });
-  await seedDemoIfEmpty(db, hasher, [seedDemoFloorPlan, seedDemoOrders]);
-  const siteId = (await db('sites').first<{ id: number }>('id'))!.id;
-  const supervisor = (await db('users').where({ role: 'supervisor' }).first<{ id: number }>('id'))!.id;
+  const { db, hasher, siteId, supervisorId: supervisor, planId, now } = await openDemoDb(file);
   const passwordHash = await hasher.hash(DEMO_PASSWORD);
   const pinHash = await hasher.hash(DEMO_PIN);
-  const now = new Date().toISOString();
   const emails: string[] = [];
   for (let i = 0; i < STREAMS; i++) {
     const email = `board-watcher-${i + 1}@bench.aislewright.test`;
@@ -62,7 +52,6 @@ async function prepare(file: string) {
     { name: 'Bench picker', email: null, badge: 'B-0001', role: 'picker', password_hash: null, pin_hash: pinHash, created_at: now },
     [siteId],
   );
-  const planId = (await activePlanId(db, siteId))!;
   // A realistic board: one wave of 30 trips of 40 stops; the picker's (first) has 150 stops, 300 lines.
   const wave = await db.transaction((trx) =>
     insertReleasedWave(trx, {

@@ -11,20 +11,9 @@ import { dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type Page } from '@playwright/test';
 import { createServer, type ViteDevServer } from 'vite';
+// Overridable (CHROMIUM_PATH) so the skip path can be tried without touching the machine's browser.
+import { CHROMIUM, CHROMIUM_ARGS } from '../e2e/harness/chromium';
 
-// Overridable so the skip path can be tried without touching the machine's browser.
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
-// Debian's Chromium (apt-get install -y chromium), never a downloaded browser.
-const CHROMIUM_ARGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 const HARNESS = '/tests/e2e/harness/floor-map.html';
 
@@ -215,7 +204,7 @@ export async function run(): Promise<void> {
   }
   const port = await freePort();
   let server: ViteDevServer | null = null;
-  const browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS });
+  const browser = await chromium.launch({ executablePath: CHROMIUM, args: [...CHROMIUM_ARGS] });
   try {
     server = await createServer({
       root,

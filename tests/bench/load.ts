@@ -23,15 +23,12 @@ import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import autocannon, { type Client, type Request, type Result } from 'autocannon';
-import { createHasher } from '../../server/auth/hasher';
-import { migrateLatest, openDb } from '../../server/db/knex';
-import { seedDemoFloorPlan } from '../../server/floor-plans/demo-seed';
-import { activePlanId } from '../../server/floor-plans/plan-index';
-import { seedDemoOrders } from '../../server/orders/demo-seed';
-import { seedDemoIfEmpty, DEMO_PASSWORD, DEMO_PIN } from '../../server/seed/demo';
+import { openDb } from '../../server/db/knex';
+import { DEMO_PASSWORD, DEMO_PIN } from '../../server/seed/demo';
 import { insertUser } from '../../server/users/users.repository';
 import { createRng } from '../../server/core/rng';
 import { insertReleasedWave } from '../helpers/picking';
+import { openDemoDb } from './demo-db';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const SECONDS = Math.min(120, Math.max(5, Number(process.env.LOAD_SECONDS ?? 60)));
@@ -61,15 +58,8 @@ function percentile(sorted: number[], q: number): number {
 }
 
 async function prepare(file: string) {
-  const db = openDb(file);
-  await migrateLatest(db);
-  // Cheap hash parameters: sign-ins are set-up here, not what is measured.
-  const hasher = createHasher({ memoryCost: 1024, timeCost: 1 });
-  await seedDemoIfEmpty(db, hasher, [seedDemoFloorPlan, seedDemoOrders]);
-  const siteId = (await db('sites').first<{ id: number }>('id'))!.id;
-  const supervisor = (await db('users').where({ role: 'supervisor' }).first<{ id: number }>('id'))!.id;
+  const { db, hasher, siteId, supervisorId: supervisor, planId, now } = await openDemoDb(file);
   const pinHash = await hasher.hash(DEMO_PIN);
-  const now = new Date().toISOString();
   const pickerIds: number[] = [];
   for (let i = 0; i < TABLETS; i++) {
     pickerIds.push(
@@ -117,7 +107,6 @@ async function prepare(file: string) {
       await trx('order_lines').insert(lines.map((l, k) => ({ order_id: id, line_no: k + 1, sku: l.s.sku, qty: l.qty })));
     }
   });
-  const planId = (await activePlanId(db, siteId))!;
   // Two waves: one per phase, a 50-stop trip (75 lines) per tablet; phase two's trips are assigned later.
   const spec = (pickerId: number | null) => ({ stops: 50, twoLineEvery: 2, pickerId });
   const waveA = await db.transaction((trx) =>

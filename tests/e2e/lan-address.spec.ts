@@ -7,28 +7,18 @@
  * confirms a pick.
  */
 import { expect, test, type Page } from '@playwright/test';
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+import { CHROMIUM, CHROMIUM_ARGS, E2E_PORT as PORT } from './harness/chromium';
+import { CSRF } from './harness/session';
 
-const PORT = Number(process.env.E2E_PORT ?? 3310);
 const HOST = `http://floor.test:${PORT}`;
-const CSRF = { 'x-aislewright': '1' };
+
 const PICKER = { badge: 'P-1002', pin: '246810', name: 'Robin Picker' };
 
 test.use({
   baseURL: HOST,
   launchOptions: {
     executablePath: CHROMIUM,
-    args: [
-      '--headless',
-      '--no-sandbox',
-      '--disable-gpu',
-      '--disable-quic',
-      '--no-first-run',
-      '--disable-background-networking',
-      '--disable-component-update',
-      '--disable-sync',
-      '--host-resolver-rules=MAP floor.test 127.0.0.1',
-    ],
+    args: [...CHROMIUM_ARGS, '--host-resolver-rules=MAP floor.test 127.0.0.1'],
   },
 });
 

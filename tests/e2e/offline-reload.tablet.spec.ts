@@ -11,24 +11,15 @@ import { spawn, execFileSync, type ChildProcess } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import Database from 'better-sqlite3';
-import { chromium, expect, request, test, type APIRequestContext, type Browser, type Locator, type Page } from '@playwright/test';
-import { CHROMIUM } from '../../playwright.config';
+import { chromium, expect, request, test, type APIRequestContext, type Browser, type Locator } from '@playwright/test';
+import { CHROMIUM, CHROMIUM_ARGS } from './harness/chromium';
+import { supervisorApi } from './harness/session';
+import { badgeSignIn, dbRows, linesDone, openTrip } from './harness/tablet';
+import { releaseTripTo, type ReleasedTrip } from './harness/waves';
 
-const CSRF = { 'x-aislewright': '1' };
 const HTTP_PORT = Number(process.env.E2E_PORT ?? 3310);
 const HTTPS_PORT = Number(process.env.E2E_HTTPS_PORT ?? HTTP_PORT + 1);
 const HOST = 'floor.test';
-const ARGS = [
-  '--headless',
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
 
 let dir = '';
 let server: ChildProcess | null = null;
@@ -73,7 +64,10 @@ test.beforeAll(async () => {
   }
   await probe.dispose();
   expect(up, 'the HTTPS server answers /api/health').toBe(true);
-  browser = await chromium.launch({ executablePath: CHROMIUM, args: [...ARGS, '--ignore-certificate-errors', `--host-resolver-rules=MAP ${HOST} 127.0.0.1`] });
+  browser = await chromium.launch({
+    executablePath: CHROMIUM,
+    args: [...CHROMIUM_ARGS, '--ignore-certificate-errors', `--host-resolver-rules=MAP ${HOST} 127.0.0.1`],
+  });
 });
 
 test.afterAll(async () => {
@@ -85,66 +79,11 @@ test.afterAll(async () => {
   if (dir) rmSync(dir, { recursive: true, force: true });
 });
 
-async function supervisorApi(baseURL: string): Promise<APIRequestContext> {
-  const api = await request.newContext({ baseURL, extraHTTPHeaders: CSRF, ignoreHTTPSErrors: true });
-  const res = await api.post('/api/auth/sign-in', { data: { email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' } });
-  expect(res.status()).toBe(200);
-  return api;
-}
-
 /** Releases a wave of four open orders and gives its longest trip to the named picker. */
-async function releaseTrip(api: APIRequestContext, pickerName: string): Promise<{ siteId: number; tripId: number; lines: number }> {
-  const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
-  const site = sites[0]!;
-  const orders = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
-  let job = (await (
-    await api.post(`/api/sites/${site.id}/wave-previews`, {
-      data: { orderIds: orders.rows.slice(0, 4).map((o) => o.id), cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' },
-    })
-  ).json()) as { id: string; state: string };
-  for (let i = 0; i < 300 && job.state === 'running'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
-  }
-  expect(job.state).toBe('done');
-  const released = await api.post(`/api/sites/${site.id}/waves`, {
-    data: { previewId: job.id, releaseKey: `offline-${job.id}`, name: `Offline reload wave ${Date.now()}` },
-  });
-  expect(released.status()).toBe(201);
-  const wave = (await released.json()) as { tripList: { id: number; lines: number }[] };
-  const trip = [...wave.tripList].sort((a, b) => b.lines - a.lines)[0]!;
-  const board = (await (await api.get(`/api/sites/${site.id}/board`)).json()) as { pickers: { id: number; name: string }[] };
-  const picker = board.pickers.find((p) => p.name === pickerName)!;
-  const assigned = await api.post(`/api/sites/${site.id}/board/trips/${trip.id}/assign`, { data: { pickerId: picker.id } });
-  expect(assigned.status(), await assigned.text()).toBe(200);
-  return { siteId: site.id, tripId: trip.id, lines: trip.lines };
-}
+const releaseTrip = (api: APIRequestContext, pickerName: string): Promise<ReleasedTrip> =>
+  releaseTripTo(api, { orders: 4, pickerName, keyPrefix: 'offline', waveName: `Offline reload wave ${Date.now()}`, longestBy: 'lines' });
 
-async function badgeSignIn(page: Page, base: string, badge: string): Promise<void> {
-  await page.goto(`${base}/sign-in/badge`);
-  await page.locator('#badge').fill(badge);
-  await page.keyboard.press('Enter');
-  for (const d of '246810') await page.keyboard.press(d);
-  await page.keyboard.press('Enter');
-  await page.waitForURL('**/pick');
-}
-
-/** Through the trip start (safety caution) and the cart set-up (tapped) to the first stop. */
-async function openTrip(page: Page): Promise<void> {
-  await page.getByRole('button', { name: 'I understand' }).click();
-  await expect(page.getByTestId('cart-setup')).toBeVisible();
-  while ((await page.getByTestId('tote-ready').count()) > 0) await page.getByTestId('tote-ready').first().click();
-  await expect(page.getByTestId('current-bin')).toBeVisible();
-}
-
-function rows<T>(sql: string, ...args: unknown[]): T[] {
-  const db = new Database(dbFile(), { readonly: true, fileMustExist: true });
-  try {
-    return db.prepare(sql).all(...args) as T[];
-  } finally {
-    db.close();
-  }
-}
+const rows = <T>(sql: string, ...args: unknown[]): T[] => dbRows<T>(dbFile(), sql, ...args);
 
 const overlaps = (a: { x: number; y: number; width: number; height: number }, b: { x: number; y: number; width: number; height: number }): boolean =>
   a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
@@ -155,16 +94,14 @@ async function box(l: Locator) {
   return b!;
 }
 
-const linesDone = (done: number, lines: number): RegExp => new RegExp(`(^|\\D)${done} of ${lines} lines`);
-
 test('under HTTPS a reload with no network opens the app shell; a pick confirmed then is stored once after reconnecting', async () => {
-  const api = await supervisorApi(`https://localhost:${HTTPS_PORT}`);
+  const api = await supervisorApi(`https://localhost:${HTTPS_PORT}`, { ignoreHTTPSErrors: true });
   const { tripId, lines } = await releaseTrip(api, 'Pat Picker');
   const context = await browser!.newContext({ viewport: { width: 1024, height: 768 }, hasTouch: true });
   const page = await context.newPage();
   const errors: string[] = [];
   page.on('pageerror', (e) => errors.push(e.message));
-  await badgeSignIn(page, httpsBase, 'P-1001');
+  await badgeSignIn(page, 'P-1001', httpsBase);
   expect(await page.evaluate(() => isSecureContext)).toBe(true);
   await expect(page.getByTestId('no-offline-reload')).toHaveCount(0);
   await openTrip(page);
@@ -242,7 +179,7 @@ test('on plain HTTP from a LAN name the picker is told offline reload is unavail
   const { siteId, tripId } = await releaseTrip(api, 'Kai Picker');
   const context = await browser!.newContext({ viewport: { width: 800, height: 1280 }, hasTouch: true });
   const page = await context.newPage();
-  await badgeSignIn(page, `http://${HOST}:${HTTP_PORT}`, 'P-1003');
+  await badgeSignIn(page, 'P-1003', `http://${HOST}:${HTTP_PORT}`);
   expect(await page.evaluate(() => isSecureContext)).toBe(false);
   await expect(page.getByTestId('no-offline-reload')).toContainText('Offline reload is unavailable');
   await page.screenshot({ path: 'test-results/shots/screens-picker-http-note-800x1280.png' });
@@ -257,7 +194,7 @@ test('on plain HTTP from a LAN name the picker is told offline reload is unavail
   // The same screen on localhost (a secure context): no such note.
   const local = await browser!.newContext({ viewport: { width: 1024, height: 768 } });
   const lp = await local.newPage();
-  await badgeSignIn(lp, baseURL!, 'P-1003');
+  await badgeSignIn(lp, 'P-1003', baseURL!);
   await expect(lp.getByTestId('current-bin')).toBeVisible();
   expect(await lp.evaluate(() => isSecureContext)).toBe(true);
   await expect(lp.getByTestId('no-offline-reload')).toHaveCount(0);

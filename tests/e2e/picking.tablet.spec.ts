@@ -7,39 +7,23 @@
 import Database from 'better-sqlite3';
 import { expect, test, type APIRequestContext, type Page } from '@playwright/test';
 import { supervisorApi } from './harness/session';
+import { badgeSignIn, linesDone } from './harness/tablet';
+import { releaseTripTo, type ReleasedTrip } from './harness/waves';
 
-const PICKER = { badge: 'P-1003', pin: '246810', name: 'Kai Picker' };
+const PICKER = { badge: 'P-1003', name: 'Kai Picker' };
 
 /** Releases a wave of four open orders (first come, first served) and gives its longest trip to the picker. */
-async function releaseTrip(api: APIRequestContext): Promise<{ siteId: number; tripId: number; lines: number; waveName: string }> {
-  const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
-  const site = sites[0]!;
-  const page = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
-  const orderIds = page.rows.slice(0, 4).map((o) => o.id);
-  expect(orderIds).toHaveLength(4);
-  let job = (await (
-    await api.post(`/api/sites/${site.id}/wave-previews`, { data: { orderIds, cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' } })
-  ).json()) as { id: string; state: string };
-  for (let i = 0; i < 300 && job.state === 'running'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
-  }
-  expect(job.state).toBe('done');
-  const waveName = `Tablet test wave ${Date.now()}`;
-  const released = await api.post(`/api/sites/${site.id}/waves`, { data: { previewId: job.id, releaseKey: `tablet-${job.id}`, name: waveName } });
-  expect(released.status()).toBe(201);
-  const wave = (await released.json()) as { tripList: { id: number; lines: number }[] };
-  const trip = [...wave.tripList].sort((a, b) => b.lines - a.lines)[0]!;
+async function releaseTrip(api: APIRequestContext): Promise<ReleasedTrip> {
+  const trip = await releaseTripTo(api, {
+    orders: 4,
+    pickerName: PICKER.name,
+    keyPrefix: 'tablet',
+    waveName: `Tablet test wave ${Date.now()}`,
+    longestBy: 'lines',
+  });
   expect(trip.lines, 'the trip needs lines for a short, two offline confirmations and more').toBeGreaterThanOrEqual(5);
-  const pickers = (await (await api.get(`/api/sites/${site.id}/board`)).json()) as { pickers: { id: number; name: string }[] };
-  const picker = pickers.pickers.find((p) => p.name === PICKER.name)!;
-  const assigned = await api.post(`/api/sites/${site.id}/board/trips/${trip.id}/assign`, { data: { pickerId: picker.id } });
-  expect(assigned.status(), await assigned.text()).toBe(200);
-  return { siteId: site.id, tripId: trip.id, lines: trip.lines, waveName };
+  return trip;
 }
-
-/** "n of m lines" as a whole count: a plain substring would let "1 of 11" pass on "11 of 11". */
-const linesDone = (done: number, lines: number): RegExp => new RegExp(`(^|\\D)${done} of ${lines} lines`);
 
 async function scan(page: Page, code: string): Promise<void> {
   const field = page.getByTestId('scan-field');
@@ -55,12 +39,7 @@ test('a picker picks a whole trip through a network drop; nothing is lost or dou
   const api = await supervisorApi(baseURL!);
   const { siteId, tripId, lines, waveName } = await releaseTrip(api);
 
-  await page.goto('/sign-in/badge');
-  await page.locator('#badge').fill(PICKER.badge);
-  await page.keyboard.press('Enter');
-  for (const d of PICKER.pin) await page.keyboard.press(d);
-  await page.keyboard.press('Enter');
-  await page.waitForURL('**/pick');
+  await badgeSignIn(page, PICKER.badge);
 
   // The trip assigned to the picker is the one they take (the supervisor assigned it above).
   await expect(page.getByRole('heading', { name: new RegExp(waveName) })).toBeVisible();

@@ -52,6 +52,25 @@ export interface ZipPart {
   encrypted?: boolean;
 }
 
+/**
+ * The fields a local file header (from byte 4) and a central directory header (from byte 6) have in common,
+ * in the same order (PKWARE's APPNOTE.TXT 4.3.7 and 4.3.12): version needed, flags, method, time and date
+ * (left 0), CRC-32, packed and unpacked size, name length.
+ */
+function writeSharedHeader(
+  b: Buffer,
+  at: number,
+  h: { flags: number; method: number; crc: number; packedSize: number; size: number; nameLength: number },
+): void {
+  b.writeUInt16LE(20, at);
+  b.writeUInt16LE(h.flags, at + 2);
+  b.writeUInt16LE(h.method, at + 4);
+  b.writeUInt32LE(h.crc, at + 10);
+  b.writeUInt32LE(h.packedSize, at + 14);
+  b.writeUInt32LE(h.size, at + 18);
+  b.writeUInt16LE(h.nameLength, at + 22);
+}
+
 /** A ZIP archive: local headers and data, then the central directory, then its end record. */
 export function zipOf(parts: readonly ZipPart[]): Uint8Array {
   const chunks: Buffer[] = [];
@@ -65,26 +84,15 @@ export function zipOf(parts: readonly ZipPart[]): Uint8Array {
     const size = p.declaredSize ?? raw.length;
     const crc = crc32(raw);
     const flags = p.encrypted ? 1 : 0;
+    const shared = { flags, method, crc, packedSize: packed.length, size, nameLength: name.length };
     const local = Buffer.alloc(30);
     local.writeUInt32LE(0x04034b50, 0);
-    local.writeUInt16LE(20, 4);
-    local.writeUInt16LE(flags, 6);
-    local.writeUInt16LE(method, 8);
-    local.writeUInt32LE(crc, 14);
-    local.writeUInt32LE(packed.length, 18);
-    local.writeUInt32LE(size, 22);
-    local.writeUInt16LE(name.length, 26);
+    writeSharedHeader(local, 4, shared);
     chunks.push(local, name, packed);
     const cd = Buffer.alloc(46);
     cd.writeUInt32LE(0x02014b50, 0);
-    cd.writeUInt16LE(20, 4);
-    cd.writeUInt16LE(20, 6);
-    cd.writeUInt16LE(flags, 8);
-    cd.writeUInt16LE(method, 10);
-    cd.writeUInt32LE(crc, 16);
-    cd.writeUInt32LE(packed.length, 20);
-    cd.writeUInt32LE(size, 24);
-    cd.writeUInt16LE(name.length, 28);
+    cd.writeUInt16LE(20, 4); // version made by
+    writeSharedHeader(cd, 6, shared);
     cd.writeUInt32LE(offset, 42);
     central.push(cd, name);
     offset += local.length + name.length + packed.length;

@@ -2,44 +2,68 @@
  * Several instances on one PostgreSQL: two `server/main.ts` processes started together on one fresh
  * database. Runs only when TEST_DATABASE_URL names a PostgreSQL server (`.ci/run` does).
  */
-import http from 'node:http';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { csrf, testDatabaseUrl } from '../helpers/app';
+import { readEventStream, sessionCookie } from '../helpers/http';
 import { freshDatabase, startInstance, type Instance } from '../helpers/instances-pg';
 import { DEMO_PASSWORD, DEMO_PICKERS, DEMO_PIN, DEMO_USERS } from '../../server/seed/demo';
-import { SESSION_COOKIE } from '../../server/http/session';
 import { Board } from '../../shared/picking';
 import type { Db } from '../../server/db/knex';
 import { HOLD_FIRST_ATTEMPT_TEST_ENV } from '../../server/workers/jobs';
 
-/** Two instances started together on a fresh database (the test's own schema), and the site they share. */
-async function startPair(env: Record<string, string> = {}): Promise<{ a: Instance; b: Instance; db: Db; drop: () => Promise<void>; siteId: number }> {
-  const fresh = await freshDatabase(testDatabaseUrl!);
-  const [a, b] = await Promise.all([startInstance(fresh.url, env), startInstance(fresh.url, env)]);
-  const siteId = (await fresh.db('sites').first<{ id: number }>('id'))!.id;
-  return { a, b, db: fresh.db, drop: fresh.drop, siteId };
+interface Pair {
+  a: Instance;
+  b: Instance;
+  db: Db;
+  drop: () => Promise<void>;
+  siteId: number;
 }
 
-async function stopPair(a: Instance | undefined, b: Instance | undefined, drop: (() => Promise<void>) | undefined): Promise<void> {
-  await Promise.all([a?.kill(), b?.kill()]);
-  await drop?.();
+/**
+ * Two instances started together on a fresh database (the test's own schema), and the site they share:
+ * started before the block's tests with `env`, stopped after them. The answer is filled in once started.
+ */
+function pairForBlock(env: Record<string, string> = {}): Pair {
+  const pair = {} as Pair;
+  beforeAll(async () => {
+    const fresh = await freshDatabase(testDatabaseUrl!);
+    const [a, b] = await Promise.all([startInstance(fresh.url, env), startInstance(fresh.url, env)]);
+    const siteId = (await fresh.db('sites').first<{ id: number }>('id'))!.id;
+    Object.assign(pair, { a, b, db: fresh.db, drop: fresh.drop, siteId });
+  }, 180_000);
+  afterAll(async () => {
+    await Promise.all([pair.a?.kill(), pair.b?.kill()]);
+    await pair.drop?.();
+  });
+  return pair;
+}
+
+/** A supervisor's agent signed in on `url`. */
+async function signedInSupervisor(url: string): Promise<ReturnType<typeof request.agent>> {
+  const agent = request.agent(url);
+  expect((await agent.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
+  return agent;
+}
+
+/** Starts a wave preview of the site's first eight open orders on the first cart profile; answers the job and the orders. */
+async function startPreview(agent: ReturnType<typeof request.agent>, db: Db, siteId: number) {
+  const orderIds: number[] = await db('orders').where({ site_id: siteId, status: 'open' }).orderBy('id').limit(8).pluck('id');
+  const cartProfileId = (await db('cart_profiles').where({ site_id: siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
+  const started = await agent
+    .post(`/api/sites/${siteId}/wave-previews`)
+    .set(csrf)
+    .send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
+  expect(started.status, JSON.stringify(started.body)).toBe(202);
+  return { job: started.body, orderIds };
 }
 
 describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', () => {
-  let a: Instance;
-  let b: Instance;
-  let db: Db;
-  let drop: () => Promise<void>;
-  let siteId: number;
-
-  beforeAll(async () => {
-    // Started together: both run the migrations and the demo seed against the same empty database.
-    ({ a, b, db, drop, siteId } = await startPair());
-  }, 180_000);
-  afterAll(() => stopPair(a, b, drop));
+  // Started together: both run the migrations and the demo seed against the same empty database.
+  const pair = pairForBlock();
 
   it('seeds the demo once and runs each migration once, though both started on an empty database', async () => {
+    const { db } = pair;
     expect(Number((await db('sites').count({ n: '*' }))[0]!.n)).toBe(1);
     expect(Number((await db('users').count({ n: '*' }))[0]!.n)).toBe(DEMO_USERS.length + DEMO_PICKERS.length);
     const names = await db('knex_migrations').pluck('name');
@@ -48,27 +72,20 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
   });
 
   it('takes a session signed in on one instance as valid on the other', async () => {
+    const { a, b } = pair;
     const onA = request.agent(a.url);
     const res = await onA.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD });
     expect(res.status).toBe(200);
-    const cookie = (res.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith(SESSION_COOKIE))!.split(';')[0]!;
-    const me = await request(b.url).get('/api/auth/me').set('cookie', cookie);
+    const me = await request(b.url).get('/api/auth/me').set('cookie', sessionCookie(res));
     expect(me.status).toBe(200);
     expect(me.body.email ?? me.body.user?.email).toBe(DEMO_USERS[1].email);
   });
 
   it('updates the live board on one instance after a confirmation made on the other', async () => {
-    const supervisorA = request.agent(a.url);
-    expect((await supervisorA.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
+    const { a, b, db, siteId } = pair;
+    const supervisorA = await signedInSupervisor(a.url);
     // A wave planned and released on instance A.
-    const orderIds = await db('orders').where({ site_id: siteId, status: 'open' }).orderBy('id').limit(8).pluck('id');
-    const cartProfileId = (await db('cart_profiles').where({ site_id: siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
-    const started = await supervisorA
-      .post(`/api/sites/${siteId}/wave-previews`)
-      .set(csrf)
-      .send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
-    expect(started.status, JSON.stringify(started.body)).toBe(202);
-    let job = started.body;
+    let { job } = await startPreview(supervisorA, db, siteId);
     for (let i = 0; i < 600 && job.state === 'running'; i++) {
       await new Promise((r) => setTimeout(r, 100));
       job = (await supervisorA.get(`/api/sites/${siteId}/wave-previews/${job.id}`)).body;
@@ -89,50 +106,32 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
     const line = trip.stopList[0].lines[0];
 
     // The supervisor watches the board on instance B.
-    const signIn = await request(b.url).post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD });
-    const cookie = (signIn.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith(SESSION_COOKIE))!.split(';')[0]!;
-    const events: Board[] = [];
+    const cookie = sessionCookie(await request(b.url).post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD }));
     let confirmedAt = 0;
     let secondAt = 0;
-    const req = http.get({ host: '127.0.0.1', port: b.port, path: `/api/sites/${siteId}/board/events`, headers: { cookie, accept: 'text/event-stream' } });
-    const got = new Promise<void>((resolve, reject) => {
-      req.on('response', (res) => {
-        let buf = '';
-        res.on('data', (chunk: Buffer) => {
-          buf += chunk.toString('utf8');
-          let i;
-          while ((i = buf.indexOf('\n\n')) >= 0) {
-            const block = buf.slice(0, i);
-            buf = buf.slice(i + 2);
-            const data = block.split('\n').find((l) => l.startsWith('data: '));
-            if (!block.includes('event: board') || !data) continue;
-            events.push(Board.parse(JSON.parse(data.slice(6))));
-            if (events.length === 1) {
-              picker
-                .post(`/api/picking/trips/${trip.id}/lines/${line.id}/confirm`)
-                .set(csrf)
-                .set('Idempotency-Key', `two-instances-${line.id}`)
-                .send({ via: 'tap' })
-                .then((r) => {
-                  confirmedAt = Date.now();
-                  if (r.status !== 200) reject(new Error(`confirm on A: ${r.status} ${JSON.stringify(r.body)}`));
-                }, reject);
-            }
-            if (events.length === 2) {
-              secondAt = Date.now();
-              resolve();
-            }
-          }
-        });
-      });
-      req.on('error', reject);
-      setTimeout(() => reject(new Error(`no second board event on B in 10 s (got ${events.length})`)), 10_000);
+    const { events } = await readEventStream({
+      port: b.port,
+      path: `/api/sites/${siteId}/board/events`,
+      cookie,
+      event: 'board',
+      parse: (d) => Board.parse(d),
+      timeoutMs: 10_000,
+      onEvent: (got, fail) => {
+        if (got.length === 1) {
+          picker
+            .post(`/api/picking/trips/${trip.id}/lines/${line.id}/confirm`)
+            .set(csrf)
+            .set('Idempotency-Key', `two-instances-${line.id}`)
+            .send({ via: 'tap' })
+            .then((r) => {
+              confirmedAt = Date.now();
+              if (r.status !== 200) fail(new Error(`confirm on A: ${r.status} ${JSON.stringify(r.body)}`));
+            }, fail);
+        }
+        if (got.length === 2) secondAt = Date.now();
+        return got.length === 2;
+      },
     });
-    try {
-      await got;
-    } finally {
-      req.destroy();
-    }
     const tripOf = (bd: Board) => bd.waves.flatMap((w) => w.trips).find((t) => t.id === trip.id)!;
     expect(tripOf(events[0]!).linesDone).toBe(0);
     expect(tripOf(events[1]!).linesDone).toBe(1);
@@ -141,30 +140,15 @@ describe.skipIf(!testDatabaseUrl)('two instances on one PostgreSQL database', ()
 });
 
 describe.skipIf(!testDatabaseUrl)('a wave preview whose instance dies on one PostgreSQL database', () => {
-  let a: Instance;
-  let b: Instance;
-  let db: Db;
-  let drop: () => Promise<void>;
-  let siteId: number;
-
-  beforeAll(async () => {
-    // Test-only hold: a job's first attempt waits 10 minutes before planning, on whichever instance takes
-    // it, so the test can stop that instance mid-job; the attempt after it plans at once.
-    ({ a, b, db, drop, siteId } = await startPair({ [HOLD_FIRST_ATTEMPT_TEST_ENV]: String(10 * 60_000) }));
-  }, 180_000);
-  afterAll(() => stopPair(a, b, drop));
+  // Test-only hold: a job's first attempt waits 10 minutes before planning, on whichever instance takes
+  // it, so the test can stop that instance mid-job; the attempt after it plans at once.
+  const pair = pairForBlock({ [HOLD_FIRST_ATTEMPT_TEST_ENV]: String(10 * 60_000) });
 
   it('finishes on the other instance a preview whose instance was killed mid-job', async () => {
-    const supervisorA = request.agent(a.url);
-    expect((await supervisorA.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
-    const orderIds = await db('orders').where({ site_id: siteId, status: 'open' }).orderBy('id').limit(8).pluck('id');
-    const cartProfileId = (await db('cart_profiles').where({ site_id: siteId }).orderBy('id').first<{ id: number }>('id'))!.id;
-    const started = await supervisorA
-      .post(`/api/sites/${siteId}/wave-previews`)
-      .set(csrf)
-      .send({ orderIds, cartProfileId, batching: 'savings', method: 'best', improve: 'local' });
-    expect(started.status, JSON.stringify(started.body)).toBe(202);
-    const jobId: string = started.body.id;
+    const { a, b, db, siteId } = pair;
+    const supervisorA = await signedInSupervisor(a.url);
+    const { job: started, orderIds } = await startPreview(supervisorA, db, siteId);
+    const jobId = started.id;
 
     // Whichever instance took the job is named on its row (host:pid:…); wait until one holds it.
     let holder: string | null = null;
@@ -184,8 +168,7 @@ describe.skipIf(!testDatabaseUrl)('a wave preview whose instance dies on one Pos
     const killedAt = Date.now();
 
     // The supervisor polls the survivor (a session is valid on every instance).
-    const supervisor = request.agent(survivor.url);
-    expect((await supervisor.post('/api/auth/sign-in').set(csrf).send({ email: DEMO_USERS[1].email, password: DEMO_PASSWORD })).status).toBe(200);
+    const supervisor = await signedInSupervisor(survivor.url);
     let job = (await supervisor.get(`/api/sites/${siteId}/wave-previews/${jobId}`)).body;
     expect(job.id).toBe(jobId);
     for (let i = 0; i < 900 && job.state === 'running'; i++) {

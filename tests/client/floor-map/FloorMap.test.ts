@@ -7,22 +7,22 @@ import { binCentre, buildPlanIndex } from '../../../client/components/floor-map/
 import type { BinSelectEvent, FloorMapApi, FloorMapRoute } from '../../../client/components/floor-map/types';
 import { fitViewport, worldToScreen } from '../../../client/components/floor-map/viewport';
 import { generateRectangularPlan } from '../../../server/core/plan/generate';
+import { routeThrough } from '../../helpers/map-route';
 
 const plan = generateRectangularPlan({ aisles: 4, aisleLengthM: 20, aisleSpacingM: 5, baysPerAisle: 8, levels: 2 });
-const route: FloorMapRoute = {
-  points: [
-    { x: 0, y: -2 },
-    { x: 0, y: 0 },
-    { x: 5, y: 0 },
-    { x: 5, y: 8 },
-    { x: 5, y: 0 },
-    { x: 0, y: 0 },
-    { x: 0, y: -2 },
+const route: FloorMapRoute = routeThrough(
+  [
+    [0, -2],
+    [0, 0],
+    [5, 0],
+    [5, 8],
+    [5, 0],
+    [0, 0],
+    [0, -2],
   ],
-  stops: [{ n: 1, x: 5, y: 8, bins: ['B-04-01-1'] }],
-  walkedToStop: 0,
-  currentStop: 1,
-};
+  [{ n: 1, x: 5, y: 8, bins: ['B-04-01-1'] }],
+  { walkedToStop: 0, currentStop: 1 },
+);
 
 const wrappers: { unmount: () => void }[] = [];
 afterEach(() => {

@@ -3,7 +3,7 @@ import { binDetailAt, drawOverlayScene, drawStaticScene, type SceneGeometry } fr
 import { LIGHT_PALETTE } from '../../../client/components/floor-map/palette';
 import { buildPlanIndex } from '../../../client/components/floor-map/plan-index';
 import { splitRoute, stopState } from '../../../client/components/floor-map/route';
-import type { FloorMapRoute } from '../../../client/components/floor-map/types';
+import { routeThrough } from '../../helpers/map-route';
 import { fitViewport, visibleWorldRect, zoomAt } from '../../../client/components/floor-map/viewport';
 import { generateRectangularPlan } from '../../../server/core/plan/generate';
 
@@ -68,20 +68,19 @@ describe('drawStaticScene', () => {
 
 describe('drawOverlayScene', () => {
   it('numbers every stop and draws the walked part dashed', () => {
-    const route: FloorMapRoute = {
-      points: [
-        { x: 0, y: -2 },
-        { x: 0, y: 20 },
-        { x: 5, y: 20 },
-        { x: 5, y: -2 },
+    const route = routeThrough(
+      [
+        [0, -2],
+        [0, 20],
+        [5, 20],
+        [5, -2],
       ],
-      stops: [
-        { n: 1, x: 0, y: 20 },
-        { n: 2, x: 5, y: 20 },
+      [
+        [0, 20],
+        [5, 20],
       ],
-      walkedToStop: 1,
-      currentStop: 2,
-    };
+      { walkedToStop: 1, currentStop: 2 },
+    );
     const { walked, remaining } = splitRoute(route);
     const ctx = context();
     const vp = fitViewport({ minX: -5, minY: -5, maxX: 10, maxY: 25 }, 400, 300, true);

@@ -2,28 +2,29 @@
 import { describe, expect, it } from 'vitest';
 import { splitRoute, stopPointIndices, stopState } from '../../../client/components/floor-map/route';
 import type { FloorMapRoute } from '../../../client/components/floor-map/types';
+import { routeThrough } from '../../helpers/map-route';
 
 // Depot (0,-2) → up aisle at x=5 past stops 1 and 2 → back down aisle x=10 past stop 3 → depot.
-const route: FloorMapRoute = {
-  points: [
-    { x: 0, y: -2 },
-    { x: 0, y: 0 },
-    { x: 5, y: 0 },
-    { x: 5, y: 10 },
-    { x: 5, y: 30 },
-    { x: 5, y: 40 },
-    { x: 10, y: 40 },
-    { x: 10, y: 20 },
-    { x: 10, y: 0 },
-    { x: 0, y: 0 },
-    { x: 0, y: -2 },
+const route: FloorMapRoute = routeThrough(
+  [
+    [0, -2],
+    [0, 0],
+    [5, 0],
+    [5, 10],
+    [5, 30],
+    [5, 40],
+    [10, 40],
+    [10, 20],
+    [10, 0],
+    [0, 0],
+    [0, -2],
   ],
-  stops: [
-    { n: 1, x: 5, y: 10 },
-    { n: 2, x: 5, y: 30 },
-    { n: 3, x: 10, y: 20 },
+  [
+    [5, 10],
+    [5, 30],
+    [10, 20],
   ],
-};
+);
 
 describe('stopPointIndices', () => {
   it('finds each stop at its nearest point in walking order', () => {

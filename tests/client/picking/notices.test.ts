@@ -4,6 +4,7 @@ import type { PickTrip } from '@shared/picking';
 import { ApiError } from '@client/api/http';
 import { formatClock, setDisplayTimeZone } from '@client/utils/format';
 import { refusalNotice, routeChangeNotice, routeNotice } from '@client/views/picking/notices';
+import { pickLine, pickStop, pickTrip } from '../../helpers/pick-trip';
 
 describe('refusalNotice', () => {
   it('says a too-early second tap confirmed only the line that was seen, as information', () => {
@@ -47,61 +48,9 @@ describe('refusalNotice', () => {
   });
 });
 
-const line = (id: number, status: 'open' | 'picked') => ({
-  id,
-  orderRef: 'WEB-1',
-  sku: `SKU-${id}`,
-  description: 'Hinge',
-  bin: `A-0${id}`,
-  qty: 1,
-  tote: 1,
-  status,
-  pickedQty: null,
-  shortReason: null,
-});
 function trip(cut: number[], routeChangedAt: string | null, id = 9): PickTrip {
-  return {
-    id,
-    n: 1,
-    status: 'picking',
-    pickerId: 4,
-    pickerName: 'Pat',
-    orders: ['WEB-1'],
-    stops: 3,
-    lines: 3,
-    plannedMetres: 100,
-    lowerBoundMetres: 95,
-    estMinutes: 5,
-    totes: 1,
-    kg: 1,
-    litres: 1,
-    waveId: 1,
-    waveName: 'W',
-    planId: 1,
-    siteName: 'S',
-    siteId: 1,
-    path: [],
-    depot: [0, 0],
-    depotCode: 'D1',
-    confirmScan: 'bin',
-    startedAt: null,
-    finishedAt: null,
-    cartReadyAt: null,
-    currentStopId: 1,
-    revision: 3,
-    routeChangedAt,
-    stopList: [1, 2, 3].map((n) => ({
-      id: n,
-      n,
-      x: 0,
-      y: n,
-      bins: [`A-0${n}`],
-      status: 'open' as const,
-      skipped: false,
-      cutOff: cut.includes(n),
-      lines: [line(n, 'open')],
-    })),
-  };
+  const stopList = [1, 2, 3].map((n) => pickStop(n, n, [pickLine(n, `A-0${n}`, { description: 'Hinge' })], { cutOff: cut.includes(n) }));
+  return pickTrip(stopList, { id, routeChangedAt });
 }
 
 describe('routeNotice', () => {

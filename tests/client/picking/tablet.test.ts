@@ -5,6 +5,7 @@ import { contrast, DARK, LIGHT } from '@client/adapters/palette';
 import { sendAction, type PickAction } from '@client/api/picking';
 import { applyPending, mergeLineAnswer, progressOf, scanMatches, supersedes } from '@client/views/picking/trip-view';
 import { cartTotes, needsCartSetup, toteFromScan } from '@client/views/picking/cart-setup';
+import { pickLine, pickStop, pickTrip } from '../../helpers/pick-trip';
 
 const store = new Map<string, unknown>();
 vi.mock('idb-keyval', () => ({
@@ -14,55 +15,9 @@ vi.mock('idb-keyval', () => ({
 }));
 const { PickQueue, isRetryable, newIdempotencyKey } = await import('@client/views/picking/offline-queue');
 
-const line = (id: number, bin: string) => ({
-  id,
-  orderRef: 'WEB-1',
-  sku: `SKU-${id}`,
-  description: 'Brass hinge',
-  bin,
-  qty: 2,
-  tote: 1,
-  status: 'open' as const,
-  pickedQty: null,
-  shortReason: null,
-});
+const line = (id: number, bin: string) => pickLine(id, bin, { qty: 2 });
 function trip(): PickTrip {
-  return {
-    id: 9,
-    n: 1,
-    status: 'picking',
-    pickerId: 4,
-    pickerName: 'Pat',
-    orders: ['WEB-1'],
-    stops: 3,
-    lines: 4,
-    plannedMetres: 100,
-    lowerBoundMetres: 95,
-    estMinutes: 5,
-    totes: 1,
-    kg: 1,
-    litres: 1,
-    waveId: 1,
-    waveName: 'W',
-    planId: 1,
-    siteName: 'S',
-    siteId: 1,
-    path: [],
-    depot: [0, 0],
-    depotCode: 'D1',
-    confirmScan: 'bin',
-    startedAt: null,
-    finishedAt: null,
-    cartReadyAt: null,
-    currentStopId: 1,
-    revision: 3,
-    routeChangedAt: null,
-    stopList: [
-      { id: 1, n: 1, x: 0, y: 0, bins: ['A-01'], status: 'open', skipped: false, cutOff: false, lines: [line(11, 'A-01'), line(12, 'A-01')] },
-      { id: 2, n: 2, x: 0, y: 5, bins: ['A-02'], status: 'open', skipped: false, cutOff: false, lines: [line(21, 'A-02')] },
-      { id: 3, n: 3, x: 0, y: 9, bins: ['A-03'], status: 'open', skipped: false, cutOff: false, lines: [line(31, 'A-03')] },
-    ],
-  };
+  return pickTrip([pickStop(1, 0, [line(11, 'A-01'), line(12, 'A-01')]), pickStop(2, 5, [line(21, 'A-02')]), pickStop(3, 9, [line(31, 'A-03')])]);
 }
 const queued = (action: PickAction) => ({ key: newIdempotencyKey(), action, queuedAt: '2026-12-02T04:00:00Z' });
 const at = '2026-12-02T04:00:00Z';

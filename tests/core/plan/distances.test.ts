@@ -6,6 +6,7 @@ import { generateRectangularPlan } from '../../../server/core/plan/generate';
 import { NODE_ACCESS, NODE_DEPOT, buildWalkGraph } from '../../../server/core/plan/walk-graph';
 import type { WalkGraph } from '../../../server/core/plan/walk-graph';
 import { closeTo, randomIrregularPlan, referenceDistance, referenceDistancesFrom, toGraphology } from './fixtures';
+import { sitePlan } from '../../helpers/plans';
 
 /** Access points and depots: the nodes whose distances the product stores. */
 function stopNodes(g: WalkGraph): number[] {
@@ -46,15 +47,7 @@ describe('pairDistance against graphology-shortest-path', () => {
   });
 
   it('equals bidirectional Dijkstra on sampled pairs of a larger plan with middle cross aisles', () => {
-    const plan = generateRectangularPlan({
-      aisles: 12,
-      aisleLengthM: 45,
-      aisleSpacingM: 3.2,
-      baysPerAisle: 30,
-      levels: 2,
-      crossAisles: { front: true, back: true, middle: 2 },
-      depot: { at: 'front_centre' },
-    });
+    const plan = sitePlan({ aisles: 12, aisleLengthM: 45, baysPerAisle: 30, levels: 2 }, 2);
     const closures = [
       { kind: 'aisle' as const, code: 'D', from: 3, to: 9 },
       { kind: 'cross_aisle' as const, code: 'middle-1', from: 10, to: 14 },

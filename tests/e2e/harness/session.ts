@@ -4,9 +4,9 @@ import { expect, request, type APIRequestContext, type Page } from '@playwright/
 export const CSRF = { 'x-aislewright': '1' } as const;
 export const DEMO_PASSWORD = 'demo-password-1';
 
-/** An API context signed in as the demo supervisor. */
-export async function supervisorApi(baseURL: string): Promise<APIRequestContext> {
-  const api = await request.newContext({ baseURL, extraHTTPHeaders: CSRF });
+/** An API context signed in as the demo supervisor (`ignoreHTTPSErrors` for a server with a test certificate). */
+export async function supervisorApi(baseURL: string, opts: { ignoreHTTPSErrors?: boolean } = {}): Promise<APIRequestContext> {
+  const api = await request.newContext({ baseURL, extraHTTPHeaders: CSRF, ignoreHTTPSErrors: opts.ignoreHTTPSErrors ?? false });
   const res = await api.post('/api/auth/sign-in', { data: { email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD } });
   expect(res.status()).toBe(200);
   return api;

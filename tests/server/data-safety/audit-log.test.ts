@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { AuditPage } from '../../../shared/data-safety';
 import { audit } from '../../../server/audit/audit';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';
+import { binaryBody } from '../../helpers/http';
 
 let t: TestApp;
 let otherSite: number;
@@ -124,14 +125,7 @@ describe('audit log export', () => {
   });
 
   it('downloads xlsx: one sheet, a row per entry, text cells stay text', async () => {
-    const res = await t.as.supervisor
-      .get(`/api/sites/${t.siteId}/audit-log/export?format=xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/audit-log/export?format=xlsx`).buffer(true).parse(binaryBody);
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     const rows = XLSX.utils.sheet_to_json<string[]>(wb.Sheets[wb.SheetNames[0]!]!, { header: 1 });

@@ -8,6 +8,7 @@ import { BackupRunner } from '../../../server/backups/backup-runner';
 import type { Deps } from '../../../server/deps';
 import { appOf, fileDeps, signIn, tempDir, type Agent } from '../../helpers/file-app';
 import { csrf } from '../../helpers/app';
+import { binaryBody } from '../../helpers/http';
 
 let deps: Deps;
 let dir: string;
@@ -36,12 +37,6 @@ afterAll(async () => {
   await deps.db.destroy();
 });
 
-const binary = (r: import('superagent').Response, cb: (e: Error | null, b: Buffer) => void) => {
-  const chunks: Buffer[] = [];
-  (r as unknown as NodeJS.ReadableStream).on('data', (c: Buffer) => chunks.push(c));
-  (r as unknown as NodeJS.ReadableStream).on('end', () => cb(null, Buffer.concat(chunks)));
-};
-
 describe('/api/admin/backups', () => {
   it('backs up now (in a worker), lists the backup as verified, and serves it for download', async () => {
     const empty = BackupsStatus.parse((await admin.get('/api/admin/backups')).body);
@@ -54,7 +49,7 @@ describe('/api/admin/backups', () => {
     const listed = BackupsStatus.parse((await admin.get('/api/admin/backups')).body);
     expect(listed.backups.map((b) => b.name)).toEqual([item.name]);
 
-    const dl = await admin.get(`/api/admin/backups/${item.name}`).buffer(true).parse(binary);
+    const dl = await admin.get(`/api/admin/backups/${item.name}`).buffer(true).parse(binaryBody);
     expect(dl.status).toBe(200);
     const file = join(dir, 'downloaded.sqlite');
     writeFileSync(file, dl.body as Buffer);

@@ -5,6 +5,7 @@ import { DEFAULT_RETENTION, PruneCounts, RetentionState } from '../../../shared/
 import { IntegrationToken, NewIntegrationToken, OutboxMessage } from '../../../shared/sites';
 import { createMailer, MAIL_RETRY_DELAYS_MS } from '../../../server/mail/mailer';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';
+import { binaryBody } from '../../helpers/http';
 
 let t: TestApp;
 let adminId: number;
@@ -156,12 +157,6 @@ describe('integration tokens', () => {
 });
 
 describe('site exports', () => {
-  const binary = (r: import('superagent').Response, cb: (e: Error | null, b: Buffer) => void) => {
-    const chunks: Buffer[] = [];
-    (r as unknown as NodeJS.ReadableStream).on('data', (c: Buffer) => chunks.push(c));
-    (r as unknown as NodeJS.ReadableStream).on('end', () => cb(null, Buffer.concat(chunks)));
-  };
-
   it('exports users and roles as CSV, with formula-like names made inert and no secrets', async () => {
     await t.deps.db('users').where({ role: 'engineer' }).update({ name: '@SUM(1+1)' });
     const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/exports/users?format=csv`).buffer(true);
@@ -172,7 +167,7 @@ describe('site exports', () => {
   });
 
   it('exports the site data as one workbook, a sheet per table, without hashes', async () => {
-    const res = await t.as.admin.get(`/api/sites/${t.siteId}/exports/site-data`).buffer(true).parse(binary);
+    const res = await t.as.admin.get(`/api/sites/${t.siteId}/exports/site-data`).buffer(true).parse(binaryBody);
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     expect(wb.SheetNames).toEqual(expect.arrayContaining(['sites', 'users', 'orders', 'order_lines', 'pick_lines', 'audit_log', 'integration_tokens']));

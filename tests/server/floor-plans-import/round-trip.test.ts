@@ -8,6 +8,7 @@ import { buildFloorPlanTemplate, checkFloorPlanFile, floorPlanToWorkbook } from 
 import { FLOOR_PLAN_SPEC } from '../../../server/floor-plans/import/spec';
 import { DEFAULT_IMPORT_LIMITS } from '../../../server/imports/limits';
 import { readSpreadsheet } from '../../../server/imports/spreadsheet';
+import { sitePlan } from '../../helpers/plans';
 
 describe('checkFloorPlanFile', () => {
   it('passes the template with ok = true, and its answer matches the shared schema', async () => {
@@ -22,15 +23,7 @@ describe('checkFloorPlanFile', () => {
   });
 
   it('round-trips a generated plan written to xlsx to the same geometry and walk graph', async () => {
-    const plan = generateRectangularPlan({
-      aisles: 8,
-      aisleLengthM: 30,
-      aisleSpacingM: 3.2,
-      baysPerAisle: 10,
-      levels: 3,
-      crossAisles: { front: true, back: true, middle: 1 },
-      depot: { at: 'front_centre' },
-    });
+    const plan = sitePlan({ aisles: 8, aisleLengthM: 30, baysPerAisle: 10, levels: 3 }, 1);
     const r = await checkFloorPlanFile(floorPlanToWorkbook(plan), 'generated.xlsx');
     expect(r.errors).toEqual([]);
     // The workbook gives bins by y_m, so the bay number does not travel; positions do, bit for bit.

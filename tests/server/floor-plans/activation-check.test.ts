@@ -9,6 +9,7 @@ import { activePlanId } from '../../../server/floor-plans/plan-index';
 import { csrf, type TestApp } from '../../helpers/app';
 import { makeDemoApp, releaseDemoWave } from '../../helpers/waves';
 import { generatePlan, waitForJob } from './helpers';
+import { binaryBody } from '../../helpers/http';
 
 /**
  * The oracle for the counts is plain SQL over the same tables, written apart from the service's
@@ -33,14 +34,6 @@ async function sqlOrdersUnplaceable(t: TestApp, planId: number): Promise<number>
   );
   return countOf(r);
 }
-
-/** Downloads a binary answer as a Buffer (supertest buffers text only by default). */
-const binary = (req: import('supertest').Test) =>
-  req.buffer(true).parse((r, cb) => {
-    const chunks: Buffer[] = [];
-    r.on('data', (c: Buffer) => chunks.push(c));
-    r.on('end', () => cb(null, Buffer.concat(chunks)));
-  });
 
 describe('activation check and acknowledged activation (issue 10, item 8)', () => {
   let t: TestApp;
@@ -94,7 +87,7 @@ describe('activation check and acknowledged activation (issue 10, item 8)', () =
   });
 
   it('serves the whole list of SKUs without a bin as xlsx and as CSV', async () => {
-    const x = await binary(t.as.supervisor.get(`${base()}/${renamedDraft}/activation-check/skus-without-bin?format=xlsx`));
+    const x = await t.as.supervisor.get(`${base()}/${renamedDraft}/activation-check/skus-without-bin?format=xlsx`).buffer(true).parse(binaryBody);
     expect(x.status).toBe(200);
     expect(x.headers['content-disposition']).toMatch(/attachment; filename="skus-without-bin-v\d+\.xlsx"/);
     const wb = XLSX.read(x.body as Buffer);

@@ -5,6 +5,7 @@ import { generateRectangularPlan } from '../../../server/core/plan/generate';
 import { buildFloorPlanTemplate, floorPlanToWorkbook } from '../../../server/floor-plans/import';
 import { csrf, makeTestApp, type TestApp } from '../../helpers/app';
 import { floorPlanRowCounts, waitForJob } from './helpers';
+import { binaryBody } from '../../helpers/http';
 
 const XLSX_TYPE = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
@@ -30,14 +31,7 @@ describe('uploading a floor-plan workbook', () => {
   afterAll(() => t.close());
 
   it('serves the template as a workbook', async () => {
-    const res = await t.as.engineer
-      .get('/api/floor-plans/template')
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await t.as.engineer.get('/api/floor-plans/template').buffer(true).parse(binaryBody);
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toBe(XLSX_TYPE);
     const wb = XLSX.read(res.body as Buffer);

@@ -3,12 +3,11 @@
  * the rest of a trip, closing a wave, and the wave report mailed when a wave completes.
  */
 import type { AddressInfo } from 'node:net';
-import http from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as XLSX from 'xlsx';
 import { Board, CancelResult, CloseWaveResult } from '../../../shared/picking';
-import { SESSION_COOKIE } from '../../../server/http/session';
 import { csrf } from '../../helpers/app';
+import { binaryBody, readEventStream, sessionCookie } from '../../helpers/http';
 import { planDistance } from '../../helpers/picking';
 import { confirm, makePickingApp, post, readTrip, type PickingFixture } from './setup';
 
@@ -59,40 +58,24 @@ describe('server-sent events', () => {
     const server = t.app.listen(0, '127.0.0.1');
     await new Promise((r) => server.once('listening', r));
     const port = (server.address() as AddressInfo).port;
-    // The supervisor's session cookie, from the supertest agent's jar.
-    const signIn = await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' });
-    const cookie = (signIn.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith(SESSION_COOKIE))!.split(';')[0]!;
-    const events: Board[] = [];
-    const req = http.get({ host: '127.0.0.1', port, path: `/api/sites/${t.siteId}/board/events`, headers: { cookie, accept: 'text/event-stream' } });
-    const got = new Promise<void>((resolve, reject) => {
-      req.on('response', (res) => {
-        expect(res.headers['content-type']).toContain('text/event-stream');
-        let buf = '';
-        res.on('data', (chunk: Buffer) => {
-          buf += chunk.toString('utf8');
-          let i;
-          while ((i = buf.indexOf('\n\n')) >= 0) {
-            const block = buf.slice(0, i);
-            buf = buf.slice(i + 2);
-            const data = block.split('\n').find((l) => l.startsWith('data: '));
-            if (block.includes('event: board') && data) {
-              events.push(Board.parse(JSON.parse(data.slice(6))));
-              // Supertest sends only when awaited or then-ed.
-              if (events.length === 1) confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id).then(() => undefined, reject);
-              if (events.length === 2) resolve();
-            }
-          }
-        });
-      });
-      req.on('error', reject);
-      setTimeout(() => reject(new Error(`no second board event in 5 s (got ${events.length})`)), 5000);
-    });
-    try {
-      await got;
-    } finally {
-      req.destroy();
-      server.close();
-    }
+    const cookie = sessionCookie(
+      await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'supervisor@demo.aislewright.test', password: 'demo-password-1' }),
+    );
+    const read = await readEventStream({
+      port,
+      path: `/api/sites/${t.siteId}/board/events`,
+      cookie,
+      event: 'board',
+      parse: (d) => Board.parse(d),
+      timeoutMs: 5000,
+      onEvent: (events, fail) => {
+        // Supertest sends only when awaited or then-ed.
+        if (events.length === 1) confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id).then(() => undefined, fail);
+        return events.length === 2;
+      },
+    }).finally(() => server.close());
+    expect(read.contentType).toContain('text/event-stream');
+    const { events } = read;
     const tripOf = (b: Board) => b.waves.find((x) => x.id === w.waveId)!.trips[0]!;
     expect(tripOf(events[0]!).linesDone).toBe(0);
     expect(tripOf(events[1]!).linesDone).toBe(1);
@@ -264,14 +247,7 @@ describe('supervisor actions', () => {
     expect(b.status).toBe('completed');
     expect(b.trips.map((x) => x.status)).toEqual(['cancelled', 'cancelled']);
     expect(await t.deps.db('audit_log').where({ action: 'wave.close', subject: `wave:${w.waveId}` })).toHaveLength(1);
-    const report = await t.as.supervisor
-      .get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`)
-      .buffer(true)
-      .parse((res2, cb) => {
-        const chunks: Buffer[] = [];
-        res2.on('data', (c: Buffer) => chunks.push(c));
-        res2.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const report = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse(binaryBody);
     expect(report.status).toBe(200);
     const wb = XLSX.read(report.body as Buffer, { type: 'buffer' });
     expect(wb.SheetNames).toEqual(['trips', 'shorts']);

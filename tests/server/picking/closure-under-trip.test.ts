@@ -12,6 +12,7 @@ import { loadPlanIndex } from '../../../server/floor-plans/plan-index';
 import { csrf, type TestApp } from '../../helpers/app';
 import { makeDemoApp, releaseDemoWave } from '../../helpers/waves';
 import { confirm, post, readTrip } from './setup';
+import { binaryBody } from '../../helpers/http';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -108,14 +109,7 @@ describe('a closure under a trip being picked', () => {
   });
 
   it('writes a wave report with no Infinity, NaN or error values', async () => {
-    const res = await t.as.supervisor
-      .get(`/api/sites/${t.siteId}/board/waves/${waveId}/report.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${waveId}/report.xlsx`).buffer(true).parse(binaryBody);
     expect(res.status).toBe(200);
     const wb = XLSX.read(res.body as Buffer, { type: 'buffer' });
     const rows = XLSX.utils.sheet_to_json<unknown[]>(wb.Sheets.trips!, { header: 1 });

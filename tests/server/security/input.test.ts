@@ -12,10 +12,10 @@ import * as XLSX from 'xlsx';
 import { csvDocument, MAX_LINE_QTY } from '../../../shared/input-rules';
 import { readCode } from '../../../server/imports/cells';
 import { importSkus } from '../../../server/orders/orders.service';
-import { SESSION_COOKIE } from '../../../server/http/session';
 import { DEMO_PASSWORD } from '../../../server/seed/demo';
 import { csrf } from '../../helpers/app';
 import { confirm, makePickingApp, readTrip, type PickingFixture } from '../picking/setup';
+import { binaryBody, sessionCookie } from '../../helpers/http';
 
 let t: PickingFixture;
 let token: string;
@@ -40,8 +40,7 @@ afterAll(async () => {
 });
 
 async function supervisorCookie(): Promise<string> {
-  const res = await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD });
-  return (res.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith(SESSION_COOKIE))!.split(';')[0]!;
+  return sessionCookie(await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'supervisor@demo.aislewright.test', password: DEMO_PASSWORD }));
 }
 
 interface OpenStream {
@@ -88,13 +87,7 @@ describe('item 5: live-board streams', () => {
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const cookie = await supervisorCookie();
     // Four streams of one person (under the cap of five) and one of the admin.
-    const adminCookie = (
-      (await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD })).headers[
-        'set-cookie'
-      ] as unknown as string[]
-    )
-      .find((c) => c.startsWith(SESSION_COOKIE))!
-      .split(';')[0]!;
+    const adminCookie = sessionCookie(await t.anon.post('/api/auth/sign-in').set(csrf).send({ email: 'admin@demo.aislewright.test', password: DEMO_PASSWORD }));
     const streams = [...(await Promise.all([1, 2, 3, 4].map(() => openStream(cookie)))), await openStream(adminCookie)];
     try {
       await Promise.all(streams.map((s) => s.waitFor(1)));
@@ -226,14 +219,7 @@ describe('item 6: one rule set for imported text and numbers', () => {
     await t.deps.db('users').where({ id: t.ids.picker2 }).update({ name: '=HYPERLINK("http://example.invalid","x")' });
     try {
       const w = await t.wave([{ stops: 2, pickerId: t.ids.picker2 }], 'Formula wave');
-      const res = await t.as.supervisor
-        .get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`)
-        .buffer(true)
-        .parse((r, cb) => {
-          const chunks: Buffer[] = [];
-          r.on('data', (c: Buffer) => chunks.push(c));
-          r.on('end', () => cb(null, Buffer.concat(chunks)));
-        });
+      const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse(binaryBody);
       const wb = XLSX.read(res.body as Buffer, { type: 'buffer', cellFormula: true });
       const cell = wb.Sheets.trips!.B2!;
       expect(cell).toMatchObject({ t: 's', v: `'=HYPERLINK("http://example.invalid","x")` });
@@ -331,14 +317,7 @@ describe('item 9: site time zone', () => {
       .db('trips')
       .where({ id: w.tripIds[0] })
       .update({ status: 'done', started_at: '2026-12-05T08:00:00.000Z', finished_at: '2026-12-05T20:45:00.000Z' });
-    const res = await t.as.supervisor
-      .get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const res = await t.as.supervisor.get(`/api/sites/${t.siteId}/board/waves/${w.waveId}/report.xlsx`).buffer(true).parse(binaryBody);
     const rows = XLSX.utils.sheet_to_json<string[]>(XLSX.read(res.body as Buffer, { type: 'buffer' }).Sheets.trips!, { header: 1 });
     expect(rows[0]!.slice(-2)).toEqual(['started (Asia/Kolkata)', 'finished (Asia/Kolkata)']);
     // 08:00 UTC is 13:30 in Kolkata; 20:45 UTC is 02:15 the next day.

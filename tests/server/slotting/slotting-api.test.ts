@@ -10,6 +10,7 @@ import { abcRank } from '../../../server/core/slotting/generate';
 import type { SlottingRunDetail } from '../../../shared/slotting';
 import { csrf, type TestApp } from '../../helpers/app';
 import { makeDemoApp, releaseDemoWave } from '../../helpers/waves';
+import { binaryBody } from '../../helpers/http';
 
 let t: TestApp;
 let historyId: number;
@@ -72,14 +73,7 @@ describe('slotting runs', () => {
     expect(r.figures.test.days).toBe(2);
     expect(r.figures.whole.metresAfter).toBeLessThan(r.figures.whole.metresBefore);
     for (const m of r.moves) expect(r.heat.after[m.toBin]).toBeGreaterThan(0);
-    const xlsx = await t.as.engineer
-      .get(`${url()}/runs/${run.id}/moves.xlsx`)
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+    const xlsx = await t.as.engineer.get(`${url()}/runs/${run.id}/moves.xlsx`).buffer(true).parse(binaryBody);
     expect(xlsx.status).toBe(200);
     const rows = XLSX.utils.sheet_to_json<unknown[]>(XLSX.read(xlsx.body as Buffer, { type: 'buffer' }).Sheets.moves!, { header: 1 });
     expect(rows.length).toBe(r.moves.length + 1);
