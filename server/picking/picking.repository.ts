@@ -325,6 +325,7 @@ export interface DbWaveShortRow {
   n: number;
 }
 
+/** What a short is, wherever it is listed: the line, how much was found, why, who found it when, and where. */
 const SHORT_COLUMNS = {
   id: 'pick_shorts.id',
   waveId: 'waves.id',
@@ -382,26 +383,16 @@ export async function replenishmentRows(db: Q, siteId: number, includeRestocked:
     .orderBy('pick_shorts.id', 'desc')
     .limit(5000);
   if (!includeRestocked) q.whereNull('pick_shorts.restocked_at');
-  const rows: (Omit<ReplenishmentItem, 'qtyShort'> & { qtyOrdered: number; qtyFound: number })[] = await q.select({
+  const rows: (Omit<ReplenishmentItem, 'qtyShort'> & { qtyOrdered: number; qtyFound: number; id: number; waveId: number; tripId: number })[] = await q.select({
+    ...SHORT_COLUMNS,
     shortId: 'pick_shorts.id',
-    sku: 'pick_lines.sku',
-    description: 'pick_lines.description',
-    bin: 'pick_lines.bin',
-    qtyOrdered: 'pick_shorts.qty_ordered',
-    qtyFound: 'pick_shorts.qty_found',
-    reason: 'pick_shorts.reason',
     orderId: 'pick_lines.order_id',
-    orderRef: 'pick_lines.order_ref',
-    waveName: 'waves.name',
-    tripN: 'trips.n',
-    reportedBy: 'reporter.name',
-    reportedAt: 'pick_shorts.reported_at',
     sentBy: 'sender.name',
     sentAt: 'pick_shorts.handled_at',
     restockedBy: 'restocker.name',
     restockedAt: 'pick_shorts.restocked_at',
   });
-  return rows.map(({ qtyOrdered, qtyFound, ...r }) => ({ ...r, qtyShort: qtyOrdered - qtyFound }));
+  return rows.map(({ qtyOrdered, qtyFound, id: _id, waveId: _waveId, tripId: _tripId, ...r }) => ({ ...r, qtyShort: qtyOrdered - qtyFound }));
 }
 
 /** The site's active pickers by name, and the trip each holds (assigned or picking). */

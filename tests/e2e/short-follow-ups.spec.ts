@@ -1,6 +1,7 @@
 import { readFile } from 'node:fs/promises';
 import { expect, request, test } from '@playwright/test';
 import { CSRF, signInPage, supervisorApi } from './harness/session';
+import { releaseTripTo } from './harness/waves';
 
 /**
  * Issue 16, shorts: on the live board a supervisor re-picks one short in a later wave and sends another
@@ -10,31 +11,21 @@ import { CSRF, signInPage, supervisorApi } from './harness/session';
  */
 test('a supervisor re-picks one short later, sends another to the replenishment list, and works that list', async ({ page, baseURL }) => {
   const api = await supervisorApi(baseURL!);
-  const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
-  const site = sites[0]!;
-  const open = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=4`)).json()) as { rows: { id: number }[] };
-  let job = (await (
-    await api.post(`/api/sites/${site.id}/wave-previews`, {
-      data: { orderIds: open.rows.map((o) => o.id), cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' },
-    })
-  ).json()) as { id: string; state: string };
-  for (let i = 0; i < 300 && job.state === 'running'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
-  }
-  expect(job.state).toBe('done');
-  const released = await api.post(`/api/sites/${site.id}/waves`, {
-    data: { previewId: job.id, releaseKey: `shorts-${job.id}`, name: 'Shorts follow-up wave' },
+  const released = await releaseTripTo(api, {
+    orders: 4,
+    pickerName: 'Robin Picker',
+    keyPrefix: 'shorts',
+    waveName: 'Shorts follow-up wave',
+    longestBy: 'stops',
   });
-  expect(released.status()).toBe(201);
-  const wave = (await released.json()) as { id: number; tripList: { id: number; stops: number }[] };
-  const trip = [...wave.tripList].sort((a, b) => b.stops - a.stops)[0]!;
+  const site = { id: released.siteId };
+  const wave = { id: released.waveId };
+  const trip = { id: released.tripId, stops: released.stops };
   expect(trip.stops).toBeGreaterThanOrEqual(2);
 
   // Robin reports the first line of the first two stops short, nothing found (through the API: the tablet has its own tests).
   const tablet = await request.newContext({ baseURL, extraHTTPHeaders: CSRF });
-  const me = (await (await tablet.post('/api/auth/badge-sign-in', { data: { badge: 'P-1002', pin: '246810' } })).json()) as { id: number };
-  expect((await api.post(`/api/sites/${site.id}/board/trips/${trip.id}/assign`, { data: { pickerId: me.id } })).status()).toBe(200);
+  expect((await tablet.post('/api/auth/badge-sign-in', { data: { badge: 'P-1002', pin: '246810' } })).status()).toBe(200);
   expect((await tablet.post(`/api/picking/trips/${trip.id}/start`, { data: {} })).status()).toBe(200);
   const pickTrip = (await (await tablet.get(`/api/picking/trips/${trip.id}`)).json()) as {
     stopList: { lines: { id: number; sku: string; bin: string; qty: number; orderRef: string }[] }[];

@@ -1,4 +1,5 @@
 import { expect, test, type Locator, type Page } from '@playwright/test';
+import { releaseTripTo } from './harness/waves';
 import { supervisorApi } from './harness/session';
 
 /**
@@ -34,25 +35,7 @@ async function signInAndOpenTrip(page: Page): Promise<void> {
 
 test('the Full screen chip covers no part of the trip map, and the offline banner never covers the map', async ({ browser, baseURL }) => {
   const api = await supervisorApi(baseURL!);
-  const sites = (await (await api.get('/api/sites')).json()) as { id: number; cartProfiles: { id: number }[] }[];
-  const site = sites[0]!;
-  const open = (await (await api.get(`/api/sites/${site.id}/orders?status=open&pageSize=3`)).json()) as { rows: { id: number }[] };
-  let job = (await (
-    await api.post(`/api/sites/${site.id}/wave-previews`, {
-      data: { orderIds: open.rows.map((o) => o.id), cartProfileId: site.cartProfiles[0]!.id, batching: 'fcfs' },
-    })
-  ).json()) as { id: string; state: string };
-  for (let i = 0; i < 300 && job.state === 'running'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    job = (await (await api.get(`/api/sites/${site.id}/wave-previews/${job.id}`)).json()) as typeof job;
-  }
-  expect(job.state).toBe('done');
-  const released = await api.post(`/api/sites/${site.id}/waves`, { data: { previewId: job.id, releaseKey: `trip-map-${job.id}`, name: 'Trip map wave' } });
-  expect(released.status()).toBe(201);
-  const wave = (await released.json()) as { id: number; tripList: { id: number }[] };
-  const board = (await (await api.get(`/api/sites/${site.id}/board`)).json()) as { pickers: { id: number; name: string }[] };
-  const robin = board.pickers.find((p) => p.name === 'Robin Picker')!;
-  expect((await api.post(`/api/sites/${site.id}/board/trips/${wave.tripList[0]!.id}/assign`, { data: { pickerId: robin.id } })).status()).toBe(200);
+  await releaseTripTo(api, { orders: 3, pickerName: 'Robin Picker', keyPrefix: 'trip-map', waveName: 'Trip map wave', longestBy: 'stops' });
 
   for (const viewport of [
     { width: 1024, height: 768 },

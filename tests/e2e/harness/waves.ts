@@ -6,6 +6,7 @@ export interface ReleasedTrip {
   lines: number;
   stops: number;
   waveName: string;
+  waveId: number;
 }
 
 /**
@@ -34,11 +35,11 @@ export async function releaseTripTo(
     data: { previewId: job.id, releaseKey: `${opts.keyPrefix}-${job.id}`, name: opts.waveName },
   });
   expect(released.status()).toBe(201);
-  const wave = (await released.json()) as { tripList: { id: number; lines: number; stops: number }[] };
+  const wave = (await released.json()) as { id: number; tripList: { id: number; lines: number; stops: number }[] };
   const trip = [...wave.tripList].sort((a, b) => b[opts.longestBy] - a[opts.longestBy])[0]!;
   const board = (await (await api.get(`/api/sites/${site.id}/board`)).json()) as { pickers: { id: number; name: string }[] };
   const picker = board.pickers.find((p) => p.name === opts.pickerName)!;
   const assigned = await api.post(`/api/sites/${site.id}/board/trips/${trip.id}/assign`, { data: { pickerId: picker.id } });
   expect(assigned.status(), await assigned.text()).toBe(200);
-  return { siteId: site.id, tripId: trip.id, lines: trip.lines, stops: trip.stops, waveName: opts.waveName };
+  return { siteId: site.id, tripId: trip.id, lines: trip.lines, stops: trip.stops, waveName: opts.waveName, waveId: wave.id };
 }

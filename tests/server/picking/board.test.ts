@@ -9,7 +9,7 @@ import { Board, CancelResult, CloseWaveResult } from '../../../shared/picking';
 import { csrf } from '../../helpers/app';
 import { binaryBody, readEventStream, sessionCookie } from '../../helpers/http';
 import { planDistance } from '../../helpers/picking';
-import { confirm, makePickingApp, post, readTrip, type PickingFixture } from './setup';
+import { confirm, makePickingApp, post, readTrip, type PickingFixture, freePickers } from './setup';
 
 let t: PickingFixture;
 beforeAll(async () => {
@@ -17,15 +17,11 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-async function freePickers(): Promise<void> {
-  await t.deps.db('trips').whereIn('status', ['released', 'assigned', 'picking']).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
-}
-
 const boardNow = async () => Board.parse((await t.as.supervisor.get(`/api/sites/${t.siteId}/board`)).body);
 
 describe('the board snapshot', () => {
   it('shows per trip the picker, progress, shorts, elapsed and remaining time, and a wave forecast', async () => {
-    await freePickers();
+    await freePickers(t);
     const began = Date.now();
     const w = await t.wave([{ stops: 4, pickerId: t.ids.picker }, { stops: 3 }], 'Board wave A');
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
@@ -52,7 +48,7 @@ describe('the board snapshot', () => {
 
 describe('server-sent events', () => {
   it('sends the snapshot on connect and again after a confirmation', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }], 'Board wave SSE');
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const server = t.app.listen(0, '127.0.0.1');
@@ -84,7 +80,7 @@ describe('server-sent events', () => {
 
 describe('supervisor actions', () => {
   it('reassigns a trip and audits it; refuses a picker who already holds a trip', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([
       { stops: 2, pickerId: t.ids.picker },
       { stops: 2, pickerId: t.ids.picker2 },
@@ -107,7 +103,7 @@ describe('supervisor actions', () => {
   });
 
   it('cancels the rest of a trip: open lines cancelled, their orders open again, the picker stopped', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 4, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     await confirm(t.as.picker, trip.id, trip.stopList[0]!.lines[0]!.id);
@@ -132,7 +128,7 @@ describe('supervisor actions', () => {
   });
 
   it('cancels the rest of a partly picked order without picking its picked lines again: done, and a remainder order holds the rest', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 6, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const first = trip.stopList[0]!.lines[0]!;
@@ -175,7 +171,7 @@ describe('supervisor actions', () => {
   });
 
   it('mails the wave report with walked metres in the order actually picked once the last trip is done', async () => {
-    await freePickers();
+    await freePickers(t);
     await t.deps.db('mail_outbox').delete();
     const w = await t.wave([{ stops: 5, pickerId: t.ids.picker }], 'Report wave');
     let trip = await readTrip(t.as.picker, w.tripIds[0]!);
@@ -235,7 +231,7 @@ describe('supervisor actions', () => {
   });
 
   it('closes a wave: open trips cancelled, the report mailed, the board shows it completed', async () => {
-    await freePickers();
+    await freePickers(t);
     await t.deps.db('mail_outbox').delete();
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }, { stops: 2 }], 'Closed wave');
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
@@ -254,7 +250,7 @@ describe('supervisor actions', () => {
   });
 
   it('lets a supervisor mark a short handled, which takes it off the attention list', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     await post(t.as.picker, `/api/picking/trips/${trip.id}/lines/${trip.stopList[0]!.lines[0]!.id}/short`, { qtyFound: 0, reason: 'empty_bin' });

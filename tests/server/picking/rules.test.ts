@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { routeTable } from '../../../server/routes';
 import { csrf } from '../../helpers/app';
 import { CurrentTrip, IDEMPOTENCY_HEADER, DEVICE_HEADER, LineAnswer, PickAnswer, TripPulse, TripResult } from '../../../shared/picking';
-import { confirm, makePickingApp, newKey, post, readTrip, type PickingFixture } from './setup';
+import { confirm, makePickingApp, newKey, post, readTrip, type PickingFixture, freePickers } from './setup';
 
 let t: PickingFixture;
 beforeAll(async () => {
@@ -22,13 +22,10 @@ const take = async (agent: PickingFixture['as']['picker']) => {
 };
 
 /** Finishes whatever trips the demo pickers hold, so each test starts with free pickers. */
-async function freePickers(): Promise<void> {
-  await t.deps.db('trips').whereIn('status', ['released', 'assigned', 'picking']).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
-}
 
 describe('taking a trip', () => {
   it('gives the assigned trip before any released one', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([
       { stops: 3, due: '2026-12-01T08:00:00Z' },
       { stops: 3, pickerId: t.ids.picker },
@@ -38,7 +35,7 @@ describe('taking a trip', () => {
   });
 
   it('takes released trips oldest due first, those without a due date last', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([
       { stops: 2, due: null },
       { stops: 2, due: '2026-12-02T15:00:00Z' },
@@ -51,7 +48,7 @@ describe('taking a trip', () => {
   });
 
   it('never gives one trip to two pickers asking at the same moment', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 2 }]);
     const [a, b] = await Promise.all([take(t.as.picker), take(t.as.picker2)]);
     const got = [a.trip?.id ?? null, b.trip?.id ?? null];
@@ -62,7 +59,7 @@ describe('taking a trip', () => {
   });
 
   it('answers null when nothing is released', async () => {
-    await freePickers();
+    await freePickers(t);
     const got = await take(t.as.picker);
     expect(got).toEqual({ trip: null, releasedTrips: 0 });
   });
@@ -90,7 +87,7 @@ describe("another picker's trip", () => {
 
   for (const route of routeTable.filter((r) => r.path.startsWith('/api/picking/trips/:tripId'))) {
     it(`is 403 on ${route.method.toUpperCase()} ${route.path}, and changes nothing`, async () => {
-      await freePickers();
+      await freePickers(t);
       const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
       const trip = await readTrip(t.as.picker, w.tripIds[0]!);
       const stop = trip.stopList[0]!;
@@ -114,7 +111,7 @@ describe("another picker's trip", () => {
 
 describe('idempotency keys', () => {
   it('answers the stored answer for the same key and body, and records the confirmation once', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const line = trip.stopList[0]!.lines[0]!;
@@ -131,7 +128,7 @@ describe('idempotency keys', () => {
   });
 
   it('refuses the same key with a different body with 422', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const [l1, l2] = [trip.stopList[0]!.lines[0]!, trip.stopList[1]!.lines[0]!];
@@ -150,7 +147,7 @@ describe('idempotency keys', () => {
     // A picker may write to two trips (their own and one taken from them, for work done before); the
     // trip lock then does not serialise the two. Each round sends one key to both trips at once.
     for (let round = 0; round < 4; round++) {
-      await freePickers();
+      await freePickers(t);
       const w = await t.wave([
         { stops: 2, pickerId: t.ids.picker },
         { stops: 2, pickerId: t.ids.picker },
@@ -168,7 +165,7 @@ describe('idempotency keys', () => {
   });
 
   it('refuses a write without a key with 400, and nothing is confirmed', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const stop = trip.stopList[0]!;
@@ -187,7 +184,7 @@ describe('idempotency keys', () => {
   });
 
   it('answers 409 with who and when for a line someone else already confirmed', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const line = trip.stopList[0]!.lines[0]!;
@@ -204,7 +201,7 @@ describe('idempotency keys', () => {
   });
 
   it('gives one success and one 409 when two pickers confirm the same line at once', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const line = trip.stopList[0]!.lines[0]!;
@@ -223,7 +220,7 @@ describe('idempotency keys', () => {
   });
 
   it("refuses a former picker's work stamped after the trip was taken from them", async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     await t.as.supervisor.post(`/api/sites/${t.siteId}/board/trips/${trip.id}/assign`).set(csrf).send({ pickerId: t.ids.picker2 });
@@ -238,7 +235,7 @@ describe('idempotency keys', () => {
 
 describe("the tablet's poll", () => {
   it('reads status and a revision that every write raises', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const pulse = async () => TripPulse.parse((await t.as.picker.get(`/api/picking/trips/${trip.id}/status`)).body);
@@ -259,7 +256,7 @@ describe("the tablet's poll", () => {
 
 describe('scans', () => {
   it('refuses a wrong bin scan with what was expected and what was scanned, confirming nothing', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const line = trip.stopList[0]!.lines[0]!;
@@ -273,7 +270,7 @@ describe('scans', () => {
   });
 
   it('expects the SKU barcode when the site says so', async () => {
-    await freePickers();
+    await freePickers(t);
     await t.deps.db('sites').where({ id: t.siteId }).update({ confirm_scan: 'sku' });
     try {
       const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
@@ -292,7 +289,7 @@ describe('scans', () => {
 
 describe('shorts, skips and the end of a trip', () => {
   it('records a short with quantity and reason, for the supervisor to see', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 3, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const line = trip.stopList[0]!.lines.find((l) => l.qty > 1) ?? trip.stopList[0]!.lines[0]!;
@@ -314,7 +311,7 @@ describe('shorts, skips and the end of a trip', () => {
   });
 
   it('moves a skipped stop to the end and re-sequences the rest from where the picker stands', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 7, pickerId: t.ids.picker }]);
     let trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const w0 = trip.stopList;
@@ -343,7 +340,7 @@ describe('shorts, skips and the end of a trip', () => {
   });
 
   it('finishes only when no line is open, then sums lines, shorts, metres and minutes', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 4, twoLineEvery: 2, pickerId: t.ids.picker }]);
     let trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const early = await post(t.as.picker, `/api/picking/trips/${trip.id}/finish`, {});
@@ -374,7 +371,7 @@ describe('shorts, skips and the end of a trip', () => {
   });
 
   it('records who, when, what and the device for every confirmation and short', async () => {
-    await freePickers();
+    await freePickers(t);
     const w = await t.wave([{ stops: 2, pickerId: t.ids.picker }]);
     const trip = await readTrip(t.as.picker, w.tripIds[0]!);
     const [a, b] = [trip.stopList[0]!.lines[0]!, trip.stopList[1]!.lines[0]!];

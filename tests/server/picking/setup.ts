@@ -63,3 +63,8 @@ export function post(agent: Agent, path: string, body: object = {}, key: string 
   if (key !== null) req.set(IDEMPOTENCY_HEADER, key);
   return req.send(body);
 }
+
+/** Ends every trip in progress (cancelled), so the fixture's pickers are free for the next test's trip. */
+export async function freePickers(t: Pick<TestApp, 'deps'>): Promise<void> {
+  await t.deps.db('trips').whereIn('status', ['released', 'assigned', 'picking']).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
+}

@@ -10,17 +10,13 @@ import { OrderDetail } from '../../../shared/orders';
 import { Board, ReplenishmentItem, ShortFollowUpResult, type PickTrip } from '../../../shared/picking';
 import { csrf } from '../../helpers/app';
 import { awaitPreview, releaseTripFor } from '../../helpers/waves';
-import { makeDemoPickingApp, post, readTrip } from './setup';
+import { makeDemoPickingApp, post, readTrip, freePickers } from './setup';
 
 let t: Awaited<ReturnType<typeof makeDemoPickingApp>>;
 beforeAll(async () => {
   t = await makeDemoPickingApp();
 });
 afterAll(() => t.close());
-
-async function freePickers(): Promise<void> {
-  await t.deps.db('trips').whereIn('status', ['released', 'assigned', 'picking']).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
-}
 
 const boardNow = async () => Board.parse((await t.as.supervisor.get(`/api/sites/${t.siteId}/board`)).body);
 const followUp = (shortId: number, what: 'repick' | 'replenish' | 'handled') =>
@@ -31,7 +27,7 @@ const orderDetail = async (id: number) => OrderDetail.parse((await t.as.supervis
 async function shortOnNewTrip(
   found: (qty: number) => number,
 ): Promise<{ trip: PickTrip; line: PickTrip['stopList'][number]['lines'][number]; shortId: number }> {
-  await freePickers();
+  await freePickers(t);
   const tripId = await releaseTripFor(t, t.ids.picker, { orders: 4 });
   expect((await t.as.picker.post(`/api/picking/trips/${tripId}/start`).set(csrf).send({})).status).toBe(200);
   const trip = await readTrip(t.as.picker, tripId);

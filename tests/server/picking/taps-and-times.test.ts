@@ -9,7 +9,7 @@ import { LineAnswer, UNDO_WINDOW_MS } from '../../../shared/picking';
 import { CLOCK_SKEW_MS, TAP_GUARD_MS } from '../../../server/picking/picking.service';
 import { csrf } from '../../helpers/app';
 import { releaseTripFor } from '../../helpers/waves';
-import { confirm, makeDemoPickingApp, post, readTrip } from './setup';
+import { confirm, makeDemoPickingApp, post, readTrip, freePickers } from './setup';
 
 let t: Awaited<ReturnType<typeof makeDemoPickingApp>>;
 beforeAll(async () => {
@@ -17,12 +17,8 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-async function freePickers(): Promise<void> {
-  await t.deps.db('trips').whereIn('status', ['released', 'assigned', 'picking']).update({ status: 'cancelled', cancelled_at: new Date().toISOString() });
-}
-
 async function startedTrip(stops = 4) {
-  await freePickers();
+  await freePickers(t);
   const tripId = await releaseTripFor(t, t.ids.picker, { minStops: stops });
   expect((await t.as.picker.post(`/api/picking/trips/${tripId}/start`).set(csrf).send({})).status).toBe(200);
   return readTrip(t.as.picker, tripId);
