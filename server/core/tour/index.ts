@@ -67,7 +67,7 @@ export interface SolveTourResult {
  * neighbor (nearest neighbor from the depot above 1,000 points) and sorted edges and keeps the shorter
  * (the first on a tie); `exact` is Held–Karp, O(2ⁿ·n²), at most 16 stops. Improvement: `local` =
  * 2-opt + Or-opt + Lin–Kernighan-style chains to a local optimum, `deep` = iterated local search for the
- * whole budget. With an improvement the construction stops at a quarter of the budget. Ties go to the lowest point index and the
+ * whole budget (α-nearness candidates from ALPHA_MIN_POINTS while n² ≤ ALPHA_PAIRS_PER_MS × the budget). With an improvement the construction stops at a quarter of the budget. Ties go to the lowest point index and the
  * circuit is reported in the direction whose first stop is lower than its last.
  *
  * The budget is checked inside every loop except one nearest-neighbor or sorted-edges pass, which
@@ -145,7 +145,7 @@ export const ALPHA_CANDIDATES = 16;
  * the nearest neighbours above.
  */
 export const ALPHA_PAIRS_PER_MS = 2500;
-/** Share of the budget for the subgradient steps that set the penalties π of the α-values. */
+/** Share of the budget for the subgradient steps that set the penalties π of the α-values (0.3 measured no better). */
 export const ASCENT_SHARE = 0.15;
 
 const usesAlpha = (n: number, limitMs: number): boolean => n >= ALPHA_MIN_POINTS && n * n <= ALPHA_PAIRS_PER_MS * limitMs;

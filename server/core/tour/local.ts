@@ -14,7 +14,9 @@
  * 2000, for the sequential 3-opt case analysis). Every chain is a sequence of 2-opt moves on the array,
  * logged and undone in reverse. Candidate moves come from K-nearest neighbour lists with don't-look bits
  * (J. L. Bentley, ORSA J. Computing 4(4), 1992); up to FULL_SCAN_MAX_POINTS a final scan over every
- * 2-opt and Or-opt move makes the result a true local optimum of those moves.
+ * 2-opt and Or-opt move makes the result a true local optimum of those moves. Lists with penalties π
+ * (α-nearness, ./alpha.ts) make every comparison use d(a, b) + π(a) + π(b); a move's change of length
+ * is the same either way, since each point keeps two edges (K. Helsgaun, EJOR 126(1), 2000).
  */
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
