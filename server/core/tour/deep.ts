@@ -2,9 +2,10 @@
  * Iterated local search (O. Martin, S. W. Otto & E. W. Felten, Complex Systems 5(3), 1991; H. R.
  * Lourenço, O. C. Martin & T. Stützle, Iterated Local Search, Handbook of Metaheuristics 2003): take the
  * circuit to a local optimum of 2-opt, Or-opt and Lin–Kernighan-style chains (./local.ts), then until
- * the budget ends kick it with a local double bridge — two neighbouring segments of the circuit swap
- * places (half the kicks: two short segments of ≤ 30 points; the other half: cut after a random point,
- * after one of its nearest neighbours, and once between), a move the sequential moves cannot undo —
+ * the budget ends kick it with a local double bridge — three neighbouring segments of the circuit put
+ * in reverse order, each the same way round, a 4-opt move the sequential moves cannot undo (half the
+ * kicks: three short segments of ≤ 30 points after a random point v; the other half: the first two
+ * segments fill the path from v to one of its candidates w, so (v, w) becomes an edge) —
  * repair only around the kick, and keep the
  * result when it is no longer than the best circuit met plus a small threshold (ACCEPT_SLACK of the mean
  * edge: a record-to-record rule, G. Dueck, Journal of Computational Physics 104(1), 1993), so the search
@@ -26,7 +27,8 @@ export const DEEP_EXACT_MAX_POINTS = 12;
 const KICK_SEGMENT_MAX = 30;
 /**
  * Kicks leaving the circuit at most this fraction of the mean edge above the best met are kept. Tuned
- * on TSPLIB 200–1,291 points at 1 s (0, 0.1, 0.3, 0.5 and 1 tried; 0.3 best on average).
+ * on TSPLIB 200–1,291 points at 1 s (0, 0.1, 0.3, 0.5 and 1 tried; 0.3 best on average); checked again
+ * with the double bridges and α-nearness lists (318–1,291 points, seeds 1–3: 0.1 and 0.6 no better).
  */
 const ACCEPT_SLACK = 0.3;
 /**
@@ -58,8 +60,8 @@ export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget:
   ls.load(order);
   ls.run(budget, n <= DEEP_FULL_SCAN_MAX_POINTS);
   if (n < 8) return Array.from(ls.tour);
-  // Two segments of 1…maxSeg points each, leaving at least two points outside them.
-  const maxSeg = Math.max(1, Math.min(KICK_SEGMENT_MAX, Math.floor((n - 2) / 2)));
+  // Three segments of 1…maxSeg points each, leaving at least two points outside them.
+  const maxSeg = Math.max(1, Math.min(KICK_SEGMENT_MAX, Math.floor((n - 2) / 3)));
   const K = ls.neighbors.k;
   const list = ls.neighbors.list;
   // Lengths relative to the first local optimum: `cur` for the circuit held, `best` for the best met.
@@ -69,26 +71,29 @@ export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget:
   const bestTour = Int32Array.from(ls.tour);
   const tiny = 1e-9 * Math.max(1, slack);
   while (!budget.expired()) {
+    // Three segments S1 S2 S3 after `at` put in reverse order (… a S1 S2 S3 e … → … a S3 S2 S1 e …).
     const v = rng.int(n);
     let at = ls.positionOf(v) + 1;
     let l1 = 1 + rng.int(maxSeg);
     let l2 = 1 + rng.int(maxSeg);
+    let l3 = 1 + rng.int(maxSeg);
     if (K > 0 && rng.next() < 0.5) {
-      // Double bridge between a point and one of its neighbours: the cut after v, a cut between, and
-      // the cut after w, so two of the three new edges join points already close.
+      // Between a point and one of its candidates w: S1 S2 fill the path from v to w (the shorter way
+      // round), so the first new edge is (v, w) itself — with α-nearness candidates often a link to
+      // the next row that no kick within one row would make.
       const w = list[v * K + rng.int(K)]!;
       let gap = (ls.positionOf(w) - ls.positionOf(v) + n) % n;
-      at = ls.positionOf(v) + 1;
       if (gap > n / 2) {
         gap = n - gap;
         at = ls.positionOf(w) + 1;
       }
       if (gap < 3) continue;
-      l1 = 1 + rng.int(gap - 1);
-      l2 = gap - l1;
+      l1 = 1 + rng.int(gap - 2);
+      l2 = gap - 1 - l1;
+      l3 = Math.min(l3, n - 1 - gap);
     }
     ls.mark();
-    ls.swapSegments(at, l1, l2);
+    ls.doubleBridge(at, l1, l2, l3);
     const finished = ls.run(budget, false);
     const change = ls.change();
     if (finished && (change <= 0 || cur + change <= best + slack)) {

@@ -14,7 +14,9 @@
  * 2000, for the sequential 3-opt case analysis). Every chain is a sequence of 2-opt moves on the array,
  * logged and undone in reverse. Candidate moves come from K-nearest neighbour lists with don't-look bits
  * (J. L. Bentley, ORSA J. Computing 4(4), 1992); up to FULL_SCAN_MAX_POINTS a final scan over every
- * 2-opt and Or-opt move makes the result a true local optimum of those moves.
+ * 2-opt and Or-opt move makes the result a true local optimum of those moves. Lists with penalties π
+ * (α-nearness, ./alpha.ts) make every comparison use d(a, b) + π(a) + π(b); a move's change of length
+ * is the same either way, since each point keeps two edges (K. Helsgaun, EJOR 126(1), 2000).
  */
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
@@ -80,6 +82,11 @@ export const localMovesFor = (n: number): LocalMoves => (n > OR3_ALL_LEVELS_MAX_
 export interface Neighbors {
   k: number;
   list: Int32Array;
+  /**
+   * Node penalties π (./alpha.ts): the search then compares edges by d(a, b) + π(a) + π(b), which
+   * changes no circuit's length (each point has two edges) but breaks the ties of regular layouts.
+   */
+  pi?: Float64Array;
 }
 
 /**
@@ -141,6 +148,14 @@ export interface LocalSearch {
    * (… a B C e … → … a C B e …); the four ends are queued for `run`. Returns the length change. O(l1 + l2).
    */
   swapSegments(at: number, l1: number, l2: number): number;
+  /**
+   * Double bridge in place (Martin, Otto & Felten 1991; the 4-opt move A1 A2 A3 A4 → A1 A4 A3 A2 as
+   * D. S. Johnson & L. A. McGeoch, 1997, describe it), local form: the three segments of `l1`, `l2` and
+   * `l3` points starting at array position `at` are put in reverse order, each kept the same way round
+   * (… a S1 S2 S3 e … → … a S3 S2 S1 e …): four edges change and no sequential 3-opt move undoes it. The
+   * eight ends are queued for `run`. Returns the length change. O(l1 + l2 + l3).
+   */
+  doubleBridge(at: number, l1: number, l2: number, l3: number): number;
   /** Length change (metres, negative when shorter) since the last `load` or `mark`. */
   change(): number;
   /** Array position of point c in `tour`. */
@@ -207,7 +222,9 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
   };
   const succ = (c: number): number => tour[pos[c]! + 1 === n ? 0 : pos[c]! + 1]!;
   const pred = (c: number): number => tour[pos[c]! === 0 ? n - 1 : pos[c]! - 1]!;
-  const dist = (a: number, b: number): number => d[a * n + b]!;
+  // Without penalties the plain lookup (the extra loads cost `local` on small trips about a third).
+  const pen = neighbors.pi;
+  const dist = pen ? (a: number, b: number): number => d[a * n + b]! + pen[a]! + pen[b]! : (a: number, b: number): number => d[a * n + b]!;
 
   /** Reverses the tour path from u forward to v (or, equivalently, its shorter complement). */
   const reversePath = (u: number, v: number): void => {
@@ -559,7 +576,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
     },
     length() {
       let s = 0;
-      for (let i = 0; i < n; i++) s += dist(tour[i]!, tour[i + 1 === n ? 0 : i + 1]!);
+      for (let i = 0; i < n; i++) s += d[tour[i]! * n + tour[i + 1 === n ? 0 : i + 1]!]!;
       return s;
     },
     mark() {
@@ -610,6 +627,36 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
       push(b2);
       push(c1);
       push(c2);
+      push(e);
+      return delta;
+    },
+    doubleBridge(at, l1, l2, l3) {
+      const at2 = at + l1;
+      const at3 = at2 + l2;
+      const L = l1 + l2 + l3;
+      const a = tour[(at - 1 + n) % n]!;
+      const s1 = tour[at % n]!;
+      const e1 = tour[(at2 - 1) % n]!;
+      const s2 = tour[at2 % n]!;
+      const e2 = tour[(at3 - 1) % n]!;
+      const s3 = tour[at3 % n]!;
+      const e3 = tour[(at + L - 1) % n]!;
+      const e = tour[(at + L) % n]!;
+      const delta = dist(a, s3) + dist(e3, s2) + dist(e2, s1) + dist(e1, e) - dist(a, s1) - dist(e1, s2) - dist(e2, s3) - dist(e3, e);
+      if (segBufK.length < L) segBufK = new Int32Array(2 * L);
+      let k = 0;
+      for (let x = 0; x < l3; x++) segBufK[k++] = tour[(at3 + x) % n]!;
+      for (let x = 0; x < l2; x++) segBufK[k++] = tour[(at2 + x) % n]!;
+      for (let x = 0; x < l1; x++) segBufK[k++] = tour[(at + x) % n]!;
+      for (let x = 0; x < L; x++) put((at + x) % n, segBufK[x]!);
+      acc += delta;
+      push(a);
+      push(s1);
+      push(e1);
+      push(s2);
+      push(e2);
+      push(s3);
+      push(e3);
       push(e);
       return delta;
     },
