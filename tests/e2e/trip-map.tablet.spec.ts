@@ -35,7 +35,7 @@ async function signInAndOpenTrip(page: Page): Promise<void> {
 
 test('the Full screen chip covers no part of the trip map, and the offline banner never covers the map', async ({ browser, baseURL }) => {
   const api = await supervisorApi(baseURL!);
-  await releaseTripTo(api, { orders: 3, pickerName: 'Robin Picker', keyPrefix: 'trip-map', waveName: 'Trip map wave', longestBy: 'stops' });
+  const released = await releaseTripTo(api, { orders: 3, pickerName: 'Robin Picker', keyPrefix: 'trip-map', waveName: 'Trip map wave', longestBy: 'stops' });
 
   for (const viewport of [
     { width: 1024, height: 768 },
@@ -76,5 +76,5 @@ test('the Full screen chip covers no part of the trip map, and the offline banne
   }
 
   // Leave Robin free for the browser tests after this one (they share one server).
-  expect((await api.post(`/api/sites/${site.id}/board/waves/${wave.id}/close`, { data: { reason: 'browser test done' } })).status()).toBe(200);
+  expect((await api.post(`/api/sites/${released.siteId}/board/waves/${released.waveId}/close`, { data: { reason: 'browser test done' } })).status()).toBe(200);
 });
