@@ -10,6 +10,7 @@
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
 import type { Neighbors } from './local';
+import { createOneTree } from './one-tree';
 
 export interface AlphaOptions {
   /** Candidates per point. */
@@ -40,55 +41,14 @@ export function alphaNeighbors(m: DistanceMatrix, opts: AlphaOptions): Neighbors
   const special = opts.special ?? 0;
   const pi = ascend(m, opts.upper, opts.budget, opts.maxSteps ?? Math.round(4 * Math.sqrt(n) + 20), special);
 
-  // Minimum spanning tree of every point but `special` under π (Prim, dense), with the order points
-  // joined: a parent always comes before its children.
-  const parent = new Int32Array(n).fill(-1);
-  const order = new Int32Array(n - 1);
-  const key = new Float64Array(n).fill(Infinity);
-  const inTree = new Uint8Array(n);
-  const root = special === 0 ? 1 : 0;
-  key[root] = 0;
-  for (let step = 0; step < n - 1; step++) {
-    let u = -1;
-    let best = Infinity;
-    for (let v = 0; v < n; v++) {
-      if (v !== special && inTree[v] === 0 && (u < 0 || key[v]! < best)) {
-        best = key[v]!;
-        u = v;
-      }
-    }
-    inTree[u] = 1;
-    order[step] = u;
-    const row = u * n;
-    const pu = pi[u]!;
-    for (let v = 0; v < n; v++) {
-      if (v === special || inTree[v] === 1) continue;
-      const w = d[row + v]! + pu + pi[v]!;
-      if (w < key[v]!) {
-        key[v] = w;
-        parent[v] = u;
-      }
-    }
-  }
-  // The special point's two cheapest edges; α(special, j) = w(special, j) − the second of them.
+  // The minimum 1-tree under π, with the order points joined its spanning tree (a parent before its children).
+  const tree = createOneTree(m, special);
+  tree.pi.set(pi);
+  tree.build();
+  const { parent, order } = tree;
+  // α(special, j) = w(special, j) − the second of its two cheapest edges.
   const srow = special * n;
-  let sa = -1;
-  let sb = -1;
-  let wa = Infinity;
-  let wb = Infinity;
-  for (let v = 0; v < n; v++) {
-    if (v === special) continue;
-    const w = d[srow + v]! + pi[special]! + pi[v]!;
-    if (w < wa) {
-      sb = sa;
-      wb = wa;
-      sa = v;
-      wa = w;
-    } else if (w < wb) {
-      sb = v;
-      wb = w;
-    }
-  }
+  const { a: sa, b: sb, wb } = tree.ends;
   const alphaSpecial = (v: number): number => (v === sa || v === sb ? 0 : d[srow + v]! + pi[special]! + pi[v]! - wb);
 
   // Best k per row by (α, length, index), kept in small sorted arrays.
@@ -196,76 +156,13 @@ export function alphaNeighbors(m: DistanceMatrix, opts: AlphaOptions): Neighbors
  */
 export function ascend(m: DistanceMatrix, upper: number, budget: Budget, maxSteps: number, special = 0): Float64Array {
   const n = m.n;
-  const d = m.d;
-  const pi = new Float64Array(n);
   const bestPi = new Float64Array(n);
   if (n < 4) return bestPi;
-  const deg = new Int32Array(n);
+  const tree = createOneTree(m, special);
+  const { pi, deg } = tree;
   const g = new Float64Array(n);
   const gPrev = new Float64Array(n);
-  const key = new Float64Array(n);
-  const parent = new Int32Array(n);
-  const inTree = new Uint8Array(n);
-  const root = special === 0 ? 1 : 0;
-  const oneTree = (): number => {
-    deg.fill(0);
-    inTree.fill(0);
-    key.fill(Infinity);
-    key[root] = 0;
-    parent[root] = -1;
-    let total = 0;
-    for (let step = 0; step < n - 1; step++) {
-      let u = -1;
-      let best = Infinity;
-      for (let v = 0; v < n; v++) {
-        if (v !== special && inTree[v] === 0 && (u < 0 || key[v]! < best)) {
-          best = key[v]!;
-          u = v;
-        }
-      }
-      inTree[u] = 1;
-      total += best;
-      if (parent[u]! >= 0) {
-        deg[u]!++;
-        deg[parent[u]!]!++;
-      }
-      const row = u * n;
-      const pu = pi[u]!;
-      for (let v = 0; v < n; v++) {
-        if (v === special || inTree[v] === 1) continue;
-        const w = d[row + v]! + pu + pi[v]!;
-        if (w < key[v]!) {
-          key[v] = w;
-          parent[v] = u;
-        }
-      }
-    }
-    let a = -1;
-    let b = -1;
-    let wa = Infinity;
-    let wb = Infinity;
-    const row = special * n;
-    for (let v = 0; v < n; v++) {
-      if (v === special) continue;
-      const w = d[row + v]! + pi[special]! + pi[v]!;
-      if (w < wa) {
-        b = a;
-        wb = wa;
-        a = v;
-        wa = w;
-      } else if (w < wb) {
-        b = v;
-        wb = w;
-      }
-    }
-    total += wa + wb;
-    deg[special] = 2;
-    deg[a]!++;
-    deg[b]!++;
-    let sumPi = 0;
-    for (let v = 0; v < n; v++) sumPi += pi[v]!;
-    return total - 2 * sumPi;
-  };
+  const oneTree = (): number => tree.build();
   let bestL = -Infinity;
   let lambda = 0.05;
   let stall = 0;

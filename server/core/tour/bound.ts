@@ -7,6 +7,7 @@
  */
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
+import { createOneTree } from './one-tree';
 
 export interface BoundResult {
   /** Metres; no closed circuit through every point is shorter. */
@@ -33,79 +34,13 @@ export function oneTreeBound(m: DistanceMatrix, upper: number, budget: Budget, s
   let integral = true;
   for (let i = 0; i < n * n && integral; i++) integral = Number.isInteger(d[i]!);
 
-  const pi = new Float64Array(n);
+  const tree = createOneTree(m, special);
+  const { pi, deg } = tree;
   const bestPi = new Float64Array(n);
-  const deg = new Int32Array(n);
   const g = new Float64Array(n);
   const gPrev = new Float64Array(n);
-  const key = new Float64Array(n);
-  const parent = new Int32Array(n);
-  const inTree = new Uint8Array(n);
-
   /** Builds the minimum 1-tree under π into `deg`; returns its penalised weight minus 2Σπ. */
-  const oneTree = (): number => {
-    deg.fill(0);
-    inTree.fill(0);
-    key.fill(Infinity);
-    // Prim over every point but `special`, O(n²) on the dense matrix.
-    const root = special === 0 ? 1 : 0;
-    key[root] = 0;
-    parent[root] = -1;
-    let total = 0;
-    for (let step = 0; step < n - 1; step++) {
-      let u = -1;
-      let best = Infinity;
-      for (let v = 0; v < n; v++) {
-        if (v !== special && inTree[v] === 0 && key[v]! < best) {
-          best = key[v]!;
-          u = v;
-        }
-      }
-      if (u < 0) return -Infinity;
-      inTree[u] = 1;
-      total += best;
-      if (parent[u]! >= 0) {
-        deg[u]!++;
-        deg[parent[u]!]!++;
-      }
-      const row = u * n;
-      const pu = pi[u]!;
-      for (let v = 0; v < n; v++) {
-        if (v === special || inTree[v] === 1) continue;
-        const w = d[row + v]! + pu + pi[v]!;
-        if (w < key[v]!) {
-          key[v] = w;
-          parent[v] = u;
-        }
-      }
-    }
-    // The special point joins the tree by its two cheapest penalised edges (lowest index on ties).
-    let a = -1;
-    let b = -1;
-    let wa = Infinity;
-    let wb = Infinity;
-    const row = special * n;
-    for (let v = 0; v < n; v++) {
-      if (v === special) continue;
-      const w = d[row + v]! + pi[special]! + pi[v]!;
-      if (w < wa) {
-        b = a;
-        wb = wa;
-        a = v;
-        wa = w;
-      } else if (w < wb) {
-        b = v;
-        wb = w;
-      }
-    }
-    total += wa + wb;
-    deg[special] = 2;
-    deg[a]!++;
-    deg[b]!++;
-    let sumPi = 0;
-    for (let v = 0; v < n; v++) sumPi += pi[v]!;
-    return total - 2 * sumPi;
-  };
+  const oneTree = (): number => tree.build();
 
   let bestL = -Infinity;
   let lambda = 2;
