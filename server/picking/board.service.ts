@@ -200,16 +200,11 @@ async function cancelRest(
     for (const l of rest) if (!skus.has(l.sku)) notCarried.push({ order: l.order_ref, sku: l.sku, qty: l.qty });
     const lines = rest.filter((l) => skus.has(l.sku)).map((l) => ({ sku: l.sku, qty: l.qty }));
     if (!original || !lines.length) continue;
-    const ref = await repickRef(trx, trip.site_id, original.ref);
-    await insertOrder(trx, trip.site_id, { ref, due: original.due, priority: original.priority, lines, row: null }, 'remainder', skus);
-    remainders.push(ref);
+    remainders.push((await followOnOrder(trx, trip.site_id, original, lines, 'remainder', skus)).ref);
   }
-  await repo.markOrdersDone(trx, [...started]);
-  // Orders of the trip picked in full are done too (they were left in "picking" before).
-  await repo.markOrdersDone(
-    trx,
-    (await repo.tripOrderIds(trx, trip.id)).filter((id) => !touched.includes(id)),
-  );
+  // Every order of the trip not reopened above is done: partly picked ones, and those picked in full
+  // (they were left in "picking" before). The reopened ones are open again and stay so.
+  await repo.markOrdersDone(trx, await repo.tripOrderIds(trx, trip.id));
   const walked = await walkedMetres(trx, trip);
   await repo.closeTripCancelled(trx, trip, walked, at);
   await bumpRevision(trx, trip.id);
@@ -289,6 +284,24 @@ async function repickRef(db: Q, siteId: number, original: string): Promise<strin
 }
 
 /**
+ * A new open order `<original>-R1` (the next free number) holding `lines`, due and ranked like the
+ * original, so the wave builder offers it like any open order: a short re-picked, or the rest of a
+ * partly picked order whose trip was cancelled.
+ */
+async function followOnOrder(
+  trx: Knex.Transaction,
+  siteId: number,
+  original: { ref: string; due: string | null; priority: number | null },
+  lines: { sku: string; qty: number }[],
+  source: 'repick' | 'remainder',
+  skus: Awaited<ReturnType<typeof skuMap>>,
+): Promise<{ id: number; ref: string }> {
+  const ref = await repickRef(trx, siteId, original.ref);
+  const id = await insertOrder(trx, siteId, { ref, due: original.due, priority: original.priority, lines, row: null }, source, skus);
+  return { id, ref };
+}
+
+/**
  * The supervisor's follow-up on a short: mark it handled, re-pick the quantity not found in a later
  * wave (a new open order `<original>-R1` with that one line, keeping the original's due time and
  * priority, so the wave builder offers it like any open order), or send it to the replenishment list.
@@ -322,15 +335,7 @@ export async function followUpShort(db: Knex, actor: Actor, siteId: number, shor
           `SKU ${line.sku} is no longer in the SKU master: import it again, or send the short to the replenishment list`,
           { sku: line.sku },
         );
-      const ref = await repickRef(trx, siteId, original.ref);
-      const id = await insertOrder(
-        trx,
-        siteId,
-        { ref, due: original.due, priority: original.priority, lines: [{ sku: line.sku, qty: qtyShort }], row: null },
-        'repick',
-        skus,
-      );
-      repickOrder = { id, ref };
+      repickOrder = await followOnOrder(trx, siteId, original, [{ sku: line.sku, qty: qtyShort }], 'repick', skus);
     }
     await repo.markShortHandled(trx, shortId, actor.id, nowIso(), followUp, repickOrder?.id ?? null);
     await audit(trx, {
