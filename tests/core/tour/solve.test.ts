@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { circuitLength, matrixFromRows } from '../../../server/core/matrix';
-import type { ImproveMode, TourMethod } from '../../../server/core/tour/index';
+import { streamsFor } from '../../../server/core/tour/deep';
+import type { ImproveMode, SolveTourResult, TourMethod } from '../../../server/core/tour/index';
 import { heldKarp, solveTour, TimeLimitError } from '../../../server/core/tour/index';
 import { steppingClock } from '../../helpers/clock';
 import { isCircuit, randomEuclidean } from '../../helpers/instances';
@@ -118,6 +119,17 @@ describe('solveTour edge cases', () => {
       const deep = solveTour(m, { method: 'nearest-neighbor', improve: 'deep', timeLimitMs: 50, clock: steppingClock(0.01) });
       expect(deep.length).toBeCloseTo(heldKarp(m).length, 9);
     }
+  });
+
+  it('from 200 points runs several searches, merges their circuits and still gives the same circuit for the same seed and work', () => {
+    const m = randomEuclidean(260, 11);
+    const run = (seed: number): SolveTourResult => solveTour(m, { method: 'best', improve: 'deep', timeLimitMs: 30, seed, clock: steppingClock(0.001) });
+    const a = run(2);
+    expect(isCircuit(a.order, 260)).toBe(true);
+    expect(a.order).toEqual(run(2).order);
+    expect(a.length).toBeLessThan(solveTour(m, { method: 'best', improve: 'local' }).length);
+    // Four searches while the budget gives each point 1.2 ms, two below, one under 200 points.
+    expect([streamsFor(199, 1000), streamsFor(439, 1000), streamsFor(1002, 1000), streamsFor(1291, 5000)]).toEqual([1, 4, 2, 4]);
   });
 
   it('gives the same circuit for the same seed and the same amount of work', () => {
