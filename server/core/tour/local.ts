@@ -221,8 +221,13 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
   let logPos = new Int32Array(0);
   let logVal = new Int32Array(0);
   let logN = 0;
+  // Only a position's first write since `mark` is logged (its value then): rollback restores each
+  // touched position once, however often a repair's tentative moves rewrote it.
+  const stamp = new Int32Array(n);
+  let epoch = 0;
   const put = (p: number, c: number): void => {
-    if (recording) {
+    if (recording && stamp[p] !== epoch) {
+      stamp[p] = epoch;
       if (logN === logPos.length) {
         const a = new Int32Array(Math.max(1024, logN * 2));
         a.set(logPos);
@@ -656,6 +661,10 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
     mark() {
       recording = true;
       logN = 0;
+      if (++epoch === 0x7fffffff) {
+        stamp.fill(0);
+        epoch = 1;
+      }
       acc = 0;
     },
     change() {
@@ -670,7 +679,6 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
         pos[c] = p;
       }
       logN = 0;
-      qHead = 0;
       while (qSize > 0) {
         queued[queue[qHead]!] = 0;
         qHead = qHead + 1 === n ? 0 : qHead + 1;

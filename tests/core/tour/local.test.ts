@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { circuitLength } from '../../../server/core/matrix';
 import { nearestNeighbor } from '../../../server/core/tour/construct';
-import { improveLocal, neighborLists } from '../../../server/core/tour/local';
+import { createLocalSearch, improveLocal, neighborLists } from '../../../server/core/tour/local';
 import { bestOrOptGain, bestTwoOptGain } from '../../helpers/moves';
 import { isCircuit, randomEuclidean, randomIntegerMatrix, shuffled } from '../../helpers/instances';
 import { loadTour, loadTsp, TSPLIB_LARGE_OPTIMA, TSPLIB_OPTIMA } from '../../helpers/tsplib';
@@ -95,5 +95,36 @@ describe('local with the wide Lin–Kernighan chains', () => {
     expect(isCircuit(r.order, matrix.n)).toBe(true);
     expect(r.length).toBeGreaterThanOrEqual(TSPLIB_LARGE_OPTIMA.lin318!);
     expect(r.length).toBeLessThanOrEqual(TSPLIB_LARGE_OPTIMA.lin318! * 1.02);
+  });
+});
+
+describe('rollback after a search stopped on its budget', () => {
+  // Regression: rollback emptied the queue from the wrong end, so points still queued when the budget
+  // stopped the search stayed marked as queued and the next kick's repair skipped them.
+  it('leaves no point marked as queued: the next kick is repaired as from a fresh load', () => {
+    const m = randomEuclidean(200, 21);
+    const start = improveLocal(
+      m,
+      Array.from({ length: 200 }, (_, i) => i),
+    );
+    const expired = { clock: () => 1, deadline: 0, expired: () => true };
+    const kickAndRepair = (ls: ReturnType<typeof createLocalSearch>): number => {
+      ls.mark();
+      ls.doubleBridge(150, 5, 5, 5);
+      expect(ls.run(undefined, false)).toBe(true);
+      ls.commit();
+      return ls.length();
+    };
+    const fresh = createLocalSearch(m);
+    fresh.load(start, []);
+    const reference = kickAndRepair(fresh);
+    const stopped = createLocalSearch(m);
+    stopped.load(start);
+    stopped.mark();
+    // Every point is queued by load; an expired budget stops the search after its first 63 points.
+    expect(stopped.run(expired, false)).toBe(false);
+    stopped.rollback();
+    expect(Array.from(stopped.tour)).toEqual(start);
+    expect(kickAndRepair(stopped)).toBeCloseTo(reference, 9);
   });
 });
