@@ -30,17 +30,16 @@ describe('deep on TSPLIB', () => {
     },
   );
 
-  // pr439 (clustered, optimum 107217: TSPLIB 95, Reinelt 1991) is above deep's closing-scan size, so
-  // this checks the kicks with the record-to-record acceptance alone: the circuit returned is the best
-  // met, far below the local optimum (≈ 6 % above) and close to the proven optimum. (Measured at 1 s
-  // over seeds 1–5, before and after the double-bridge kicks: 0.04–0.05 % or 0.85–0.90 % (once
-  // 2.5 %), two basins; hence the 1 % bound rather than a seed that happens to find the lower one.)
-  it('pr439: within 1 % of the proven optimum within a fixed amount of work', () => {
+  // pr439 (clustered, optimum 107217: TSPLIB 95, Reinelt 1991): the k-opt search, its kicks, the
+  // several searches and their merge on a fixed amount of work. Measured on this work over seeds 1–5:
+  // 0.002, 0.149, 0.041, 0.081 and 0.046 % above the optimum (with the previous 2-opt-chain search the
+  // seeds split into two basins, 0.04 % and 0.85 %, hence the bound then was 1 %).
+  it('pr439: within 0.25 % of the proven optimum within a fixed amount of work', () => {
     const { matrix } = loadTsp('pr439');
     const r = solveTour(matrix, { method: 'best', improve: 'deep', timeLimitMs: 20, clock: steppingClock(0.001), seed: 1 });
     expect(isCircuit(r.order, matrix.n)).toBe(true);
     expect(r.length).toBeGreaterThanOrEqual(TSPLIB_LARGE_OPTIMA.pr439!);
-    expect(r.length).toBeLessThanOrEqual(TSPLIB_LARGE_OPTIMA.pr439! * 1.01);
+    expect(r.length).toBeLessThanOrEqual(TSPLIB_LARGE_OPTIMA.pr439! * 1.0025);
   });
 });
 
