@@ -48,18 +48,23 @@ const DEEP_FULL_SCAN_MAX_POINTS = 300;
  * (./merge.ts); the last TAIL_SHARE of the budget continues from the child. One search ends in one of a
  * few traps by chance, early, and stays there (TSPLIB pr439 at 1 s: 0.04 % or 0.85 % above the optimum
  * by seed, 8 of 15 seeds trapped, the same at 5 s); independent searches rarely all fall into one, and
- * the child takes the better parts of each. Measured at 1 s CPU on lin318, pr439 (seeds 1–15), rat575,
+ * the child takes the better parts of each. Measured at 1 s CPU with the 2-opt-chain search of ./local.ts on lin318, pr439 (seeds 1–15), rat575,
  * u724 (seeds 1–4), mean % above the optimum with kroA200 (0): one search 0.243, two 0.149, three
  * 0.144, four 0.107–0.131, six 0.133, eight 0.126; a shared first stretch before the searches split
  * (20–30 % of the budget) was worse (0.207–0.320): the traps are met in that stretch.
  */
 export const STREAMS_MIN_POINTS = 200;
-/** Searches when the budget is short for the size (pr1002 at 1 s: one 0.43 %, two 0.47 %, four 0.62 %; d1291: 2.73, 2.21, 1.69 %). */
+/** Searches when the budget is short for the size (above 2,000 points at 1 s). */
 export const DEEP_STREAMS = 2;
-/** Searches when the budget is ample for the size. */
+/**
+ * Searches when the budget is ample for the size. With the k-opt search, at 1 s CPU (seeds 1–4, same
+ * runs): pr1002 two 0.24 %, four 0.22 %, six 0.19 %, eight 0.28 %; d1291 1.18, 1.19, 0.73, 0.55 % (its
+ * seeds split between ≈ 0.3 % and ≈ 2.5 %); lin318, pr439, rat575, u724 and kroA200 four 0.046 %,
+ * six 0.078 %, eight 0.051 %.
+ */
 export const MANY_STREAMS = 4;
-/** Budget per point (ms) from which MANY_STREAMS run: up to 833 points at 1 s, 4,166 at 5 s. */
-export const MANY_STREAMS_MS_PER_POINT = 1.2;
+/** Budget per point (ms) from which MANY_STREAMS run: up to 2,000 points at 1 s. */
+export const MANY_STREAMS_MS_PER_POINT = 0.5;
 /** Share of the budget after the first descent that continues from the merged child. */
 export const TAIL_SHARE = 0.3;
 /*

@@ -24,6 +24,7 @@
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
 import type { LocalSearch, Neighbors } from './local';
+import { penalised, PENALISED_COPY_MAX_POINTS } from './local';
 
 /** Largest k of the sequential move (Helsgaun 2000's basis move). */
 export const KOPT_MAX_K = 5;
@@ -80,7 +81,9 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
   let qSize = 0;
 
   const pen = neighbors.pi;
-  const dist = pen ? (a: number, b: number): number => d[a * n + b]! + pen[a]! + pen[b]! : (a: number, b: number): number => d[a * n + b]!;
+  // As ./local.ts: with penalties, one copy of the matrix with them added up to PENALISED_COPY_MAX_POINTS.
+  const dp = pen && n <= PENALISED_COPY_MAX_POINTS ? penalised(d, pen, n) : d;
+  const dist = pen && dp === d ? (a: number, b: number): number => d[a * n + b]! + pen[a]! + pen[b]! : (a: number, b: number): number => dp[a * n + b]!;
   let maxD = 0;
   for (let i = 0; i < n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
   // Each point's cheapest candidate edge: a chain can only go on from t2k when its gain exceeds it.

@@ -179,7 +179,7 @@ export interface LocalSearch {
 export const PENALISED_COPY_MAX_POINTS = 2000;
 
 /** d(a, b) + π(a) + π(b) for every pair, row-major. */
-function penalised(d: ArrayLike<number>, pi: Float64Array, n: number): Float64Array {
+export function penalised(d: ArrayLike<number>, pi: Float64Array, n: number): Float64Array {
   const out = new Float64Array(n * n);
   for (let a = 0; a < n; a++) {
     const row = a * n;
