@@ -85,12 +85,13 @@ export function mergeCircuits(m: DistanceMatrix, a: ArrayLike<number>, b: ArrayL
   const costA = new Float64Array(n);
   const costB = new Float64Array(n);
   for (let v = 0; v < n; v++) {
-    if (root[v]! < 0) continue;
+    const r = root[v]!;
+    if (r < 0) continue;
     for (let s = 0; s < 2; s++) {
       const u = na[2 * v + s]!;
-      if (!inB(v, u)) costA[root[v]!] += d[v * n + u]! / 2;
+      if (!inB(v, u)) costA[r] = costA[r]! + d[v * n + u]! / 2;
       const w = nbB[2 * v + s]!;
-      if (!inA(v, w)) costB[root[v]!] += d[v * n + w]! / 2;
+      if (!inA(v, w)) costB[r] = costB[r]! + d[v * n + w]! / 2;
     }
   }
   // Members of each component, and the components in order of what the other parent saves there.
