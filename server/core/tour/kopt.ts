@@ -24,6 +24,7 @@
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
 import type { LocalSearch, Neighbors } from './local';
+import { createKicks } from './kicks';
 import { penalised, PENALISED_COPY_MAX_POINTS } from './local';
 
 /** Largest k of the sequential move (Helsgaun 2000's basis move). */
@@ -154,7 +155,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
   const rank = new Int32Array(2 * k);
   const edgeOrder = new Int32Array(k);
   const lo = new Int32Array(k);
-  let buf = new Int32Array(Math.max(1, n));
+  const buf = new Int32Array(Math.max(1, n));
 
   /** Sorts the kk removed edges of `tt` by tour position into seq/rank. */
   const order = (tt: Int32Array, kk: number): void => {
@@ -369,10 +370,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
 
   const improveAt = (a: number): boolean => chainFrom(a, succ(a)) || (!aborted && chainFrom(a, pred(a)));
 
-  const segBuf = (L: number): Int32Array => {
-    if (buf.length < L) buf = new Int32Array(2 * L);
-    return buf;
-  };
+  const kicks = createKicks({ tour, dist, put, push });
 
   return {
     tour,
@@ -439,55 +437,13 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
       logN = 0;
     },
     swapSegments(at, l1, l2) {
-      const a = tour[(at - 1 + n) % n]!;
-      const b1 = tour[at % n]!;
-      const b2 = tour[(at + l1 - 1) % n]!;
-      const c1 = tour[(at + l1) % n]!;
-      const c2 = tour[(at + l1 + l2 - 1) % n]!;
-      const e = tour[(at + l1 + l2) % n]!;
-      const delta = dist(a, c1) + dist(c2, b1) + dist(b2, e) - dist(a, b1) - dist(b2, c1) - dist(c2, e);
-      const L = l1 + l2;
-      const sb = segBuf(L);
-      for (let x = 0; x < l2; x++) sb[x] = tour[(at + l1 + x) % n]!;
-      for (let x = 0; x < l1; x++) sb[l2 + x] = tour[(at + x) % n]!;
-      for (let x = 0; x < L; x++) put((at + x) % n, sb[x]!);
+      const delta = kicks.swapSegments(at, l1, l2);
       acc += delta;
-      push(a);
-      push(b1);
-      push(b2);
-      push(c1);
-      push(c2);
-      push(e);
       return delta;
     },
     doubleBridge(at, l1, l2, l3) {
-      const at2 = at + l1;
-      const at3 = at2 + l2;
-      const L = l1 + l2 + l3;
-      const a = tour[(at - 1 + n) % n]!;
-      const s1 = tour[at % n]!;
-      const e1 = tour[(at2 - 1) % n]!;
-      const s2 = tour[at2 % n]!;
-      const e2 = tour[(at3 - 1) % n]!;
-      const s3 = tour[at3 % n]!;
-      const e3 = tour[(at + L - 1) % n]!;
-      const e = tour[(at + L) % n]!;
-      const delta = dist(a, s3) + dist(e3, s2) + dist(e2, s1) + dist(e1, e) - dist(a, s1) - dist(e1, s2) - dist(e2, s3) - dist(e3, e);
-      const sb = segBuf(L);
-      let x = 0;
-      for (let y = 0; y < l3; y++) sb[x++] = tour[(at3 + y) % n]!;
-      for (let y = 0; y < l2; y++) sb[x++] = tour[(at2 + y) % n]!;
-      for (let y = 0; y < l1; y++) sb[x++] = tour[(at + y) % n]!;
-      for (let y = 0; y < L; y++) put((at + y) % n, sb[y]!);
+      const delta = kicks.doubleBridge(at, l1, l2, l3);
       acc += delta;
-      push(a);
-      push(s1);
-      push(e1);
-      push(s2);
-      push(e2);
-      push(s3);
-      push(e3);
-      push(e);
       return delta;
     },
     positionOf(c) {

@@ -20,6 +20,7 @@
  */
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
+import { createKicks } from './kicks';
 
 /** Neighbour-list length: 10 nearest is the usual choice for 2-opt-style searches (common practice). */
 export const DEFAULT_NEIGHBORS = 10;
@@ -281,7 +282,6 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
   };
 
   const segBuf = new Int32Array(3);
-  let segBufK = new Int32Array(64);
   /**
    * Moves the segment of `L` points starting at s1 (forward) between x and y = succ(x), as x s1…s2 y
    * or (reversed) x s2…s1 y, shifting whichever side of the circuit is shorter.
@@ -619,6 +619,8 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
     return found;
   };
 
+  const kicks = createKicks({ tour, dist, put, push });
+
   return {
     tour,
     load(order, active) {
@@ -691,55 +693,13 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
       logN = 0;
     },
     swapSegments(at, l1, l2) {
-      const a = tour[(at - 1 + n) % n]!;
-      const b1 = tour[at % n]!;
-      const b2 = tour[(at + l1 - 1) % n]!;
-      const c1 = tour[(at + l1) % n]!;
-      const c2 = tour[(at + l1 + l2 - 1) % n]!;
-      const e = tour[(at + l1 + l2) % n]!;
-      const delta = dist(a, c1) + dist(c2, b1) + dist(b2, e) - dist(a, b1) - dist(b2, c1) - dist(c2, e);
-      const L = l1 + l2;
-      if (segBufK.length < L) segBufK = new Int32Array(2 * L);
-      for (let k = 0; k < l2; k++) segBufK[k] = tour[(at + l1 + k) % n]!;
-      for (let k = 0; k < l1; k++) segBufK[l2 + k] = tour[(at + k) % n]!;
-      for (let k = 0; k < L; k++) put((at + k) % n, segBufK[k]!);
+      const delta = kicks.swapSegments(at, l1, l2);
       acc += delta;
-      push(a);
-      push(b1);
-      push(b2);
-      push(c1);
-      push(c2);
-      push(e);
       return delta;
     },
     doubleBridge(at, l1, l2, l3) {
-      const at2 = at + l1;
-      const at3 = at2 + l2;
-      const L = l1 + l2 + l3;
-      const a = tour[(at - 1 + n) % n]!;
-      const s1 = tour[at % n]!;
-      const e1 = tour[(at2 - 1) % n]!;
-      const s2 = tour[at2 % n]!;
-      const e2 = tour[(at3 - 1) % n]!;
-      const s3 = tour[at3 % n]!;
-      const e3 = tour[(at + L - 1) % n]!;
-      const e = tour[(at + L) % n]!;
-      const delta = dist(a, s3) + dist(e3, s2) + dist(e2, s1) + dist(e1, e) - dist(a, s1) - dist(e1, s2) - dist(e2, s3) - dist(e3, e);
-      if (segBufK.length < L) segBufK = new Int32Array(2 * L);
-      let k = 0;
-      for (let x = 0; x < l3; x++) segBufK[k++] = tour[(at3 + x) % n]!;
-      for (let x = 0; x < l2; x++) segBufK[k++] = tour[(at2 + x) % n]!;
-      for (let x = 0; x < l1; x++) segBufK[k++] = tour[(at + x) % n]!;
-      for (let x = 0; x < L; x++) put((at + x) % n, segBufK[x]!);
+      const delta = kicks.doubleBridge(at, l1, l2, l3);
       acc += delta;
-      push(a);
-      push(s1);
-      push(e1);
-      push(s2);
-      push(e2);
-      push(s3);
-      push(e3);
-      push(e);
       return delta;
     },
     positionOf(c) {
