@@ -25,6 +25,7 @@ import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
 import type { LocalSearch, Neighbors } from './local';
 import { createKicks } from './kicks';
+import { createPointQueue } from './queue';
 import { penalised, PENALISED_COPY_MAX_POINTS } from './local';
 
 /** Largest k of the sequential move (Helsgaun 2000's basis move). */
@@ -76,10 +77,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
 
   const tour = new Int32Array(n);
   const pos = new Int32Array(n);
-  const queue = new Int32Array(Math.max(1, n));
-  const queued = new Uint8Array(n);
-  let qHead = 0;
-  let qSize = 0;
+  const queue = createPointQueue(n);
 
   const pen = neighbors.pi;
   // As ./local.ts: with penalties, one copy of the matrix with them added up to PENALISED_COPY_MAX_POINTS.
@@ -136,12 +134,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
     logN = mark;
   };
 
-  const push = (c: number): void => {
-    if (queued[c]) return;
-    queued[c] = 1;
-    queue[(qHead + qSize) % n] = c;
-    qSize++;
-  };
+  const push = queue.push;
   const succ = (c: number): number => tour[pos[c]! + 1 === n ? 0 : pos[c]! + 1]!;
   const pred = (c: number): number => tour[pos[c]! === 0 ? n - 1 : pos[c]! - 1]!;
 
@@ -379,9 +372,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
         tour[i] = orderIn[i]!;
         pos[orderIn[i]!] = i;
       }
-      queued.fill(0);
-      qHead = 0;
-      qSize = 0;
+      queue.clear();
       acc = 0;
       if (active) for (let i = 0; i < active.length; i++) push(active[i]!);
       else for (let i = 0; i < n; i++) push(tour[i]!);
@@ -394,13 +385,10 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
       let pops = 0;
       for (;;) {
         let gained = false;
-        while (qSize > 0) {
+        while (queue.size() > 0) {
           // Chains check the budget themselves every 256 evaluations; this catches runs of cheap points.
           if ((++pops & 63) === 0 && budget?.expired()) return false;
-          const a = queue[qHead]!;
-          qHead = qHead + 1 === n ? 0 : qHead + 1;
-          qSize--;
-          queued[a] = 0;
+          const a = queue.pop();
           while (improveAt(a)) gained = true;
           if (aborted) return false;
         }
@@ -425,12 +413,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
     rollback() {
       recording = false;
       undoTo(0);
-      while (qSize > 0) {
-        queued[queue[qHead]!] = 0;
-        qHead = qHead + 1 === n ? 0 : qHead + 1;
-        qSize--;
-      }
-      qHead = 0;
+      queue.clear();
     },
     commit() {
       recording = false;

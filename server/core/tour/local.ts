@@ -21,6 +21,7 @@
 import type { DistanceMatrix } from '../matrix';
 import type { Budget } from './budget';
 import { createKicks } from './kicks';
+import { createPointQueue } from './queue';
 
 /** Neighbour-list length: 10 nearest is the usual choice for 2-opt-style searches (common practice). */
 export const DEFAULT_NEIGHBORS = 10;
@@ -197,10 +198,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
   const nb = neighbors.list;
   const tour = new Int32Array(n);
   const pos = new Int32Array(n);
-  const queue = new Int32Array(n);
-  const queued = new Uint8Array(n);
-  let qHead = 0;
-  let qSize = 0;
+  const queue = createPointQueue(n);
   let maxD = 0;
   // The depot's row and each point's farthest listed neighbour give the scale in O(n) (not O(n²)).
   for (let i = 0; i < n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
@@ -245,12 +243,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
     pos[c] = p;
   };
 
-  const push = (c: number): void => {
-    if (queued[c]) return;
-    queued[c] = 1;
-    queue[(qHead + qSize) % n] = c;
-    qSize++;
-  };
+  const push = queue.push;
   const succ = (c: number): number => tour[pos[c]! + 1 === n ? 0 : pos[c]! + 1]!;
   const pred = (c: number): number => tour[pos[c]! === 0 ? n - 1 : pos[c]! - 1]!;
   // Without penalties the plain lookup (the extra loads cost `local` on small trips about a third).
@@ -628,9 +621,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
         tour[i] = order[i]!;
         pos[order[i]!] = i;
       }
-      queued.fill(0);
-      qHead = 0;
-      qSize = 0;
+      queue.clear();
       acc = 0;
       if (active) for (let i = 0; i < active.length; i++) push(active[i]!);
       else for (let i = 0; i < n; i++) push(tour[i]!);
@@ -639,12 +630,9 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
       if (n < 4) return true;
       for (;;) {
         let steps = 0;
-        while (qSize > 0) {
+        while (queue.size() > 0) {
           if ((++steps & 63) === 0 && budget?.expired()) return false;
-          const a = queue[qHead]!;
-          qHead = qHead + 1 === n ? 0 : qHead + 1;
-          qSize--;
-          queued[a] = 0;
+          const a = queue.pop();
           while ((moves3.twoOpt && twoOptAt(a)) || (moves3.orOpt && orOptAt(a)) || (moves3.lk && lkAt(a))) {
             if ((++steps & 63) === 0 && budget?.expired()) return false;
           }
@@ -681,12 +669,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
         pos[c] = p;
       }
       logN = 0;
-      while (qSize > 0) {
-        queued[queue[qHead]!] = 0;
-        qHead = qHead + 1 === n ? 0 : qHead + 1;
-        qSize--;
-      }
-      qHead = 0;
+      queue.clear();
     },
     commit() {
       recording = false;
