@@ -104,9 +104,28 @@ function prepareDataFile(file: string): void {
 /**
  * Runs pending migrations. Knex takes its migration lock (a row in knex_migrations_lock, under a
  * transaction) so two instances starting at once run each migration once; the second waits, then finds
- * nothing to do.
+ * nothing to do. On PostgreSQL the whole run is also held under an advisory lock: on an empty database
+ * two instances would otherwise both create Knex's own bookkeeping tables, and the second start failed
+ * with "relation knex_migrations already exists" (seen with two instances started together).
  */
 export async function migrateLatest(db: Db): Promise<void> {
+  const pg = (db.client as { config: Knex.Config }).config.client === 'pg';
+  const poolMax = (db.client as { config: Knex.Config }).config.pool?.max ?? 10;
+  // The lock's transaction holds one connection while the migrations use another.
+  if (pg && poolMax >= 2) {
+    await db.transaction(async (trx) => {
+      await trx.raw('select pg_advisory_xact_lock(?)', [MIGRATION_LOCK_KEY]);
+      await migrateWithRetry(db);
+    });
+    return;
+  }
+  await migrateWithRetry(db);
+}
+
+/** Advisory-lock key of the migration run (any fixed 64-bit number; "AWMIGRAT" in ASCII). */
+const MIGRATION_LOCK_KEY = '4708316912563667284';
+
+async function migrateWithRetry(db: Db): Promise<void> {
   for (let attempt = 0; ; attempt++) {
     try {
       await db.migrate.latest({ migrationSource });
