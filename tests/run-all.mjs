@@ -18,8 +18,8 @@ run('npx', ['vitest', 'run', '--reporter=default', '--reporter=json', '--outputF
 if (existsSync('test-results/vitest.json')) {
   const r = JSON.parse(readFileSync('test-results/vitest.json', 'utf8'));
   passed += r.numPassedTests;
-  // A file that fails to load has no assertions of its own; count it as one failure.
-  const brokenFiles = (r.testResults ?? []).filter((f) => f.status === 'failed' && (f.assertionResults ?? []).length === 0).length;
+  // A file that failed without a failing test (an error in a hook or at import: its tests skipped) is one failure.
+  const brokenFiles = (r.testResults ?? []).filter((f) => f.status === 'failed' && !(f.assertionResults ?? []).some((a) => a.status === 'failed')).length;
   failed += r.numFailedTests + brokenFiles;
   if (r.numTotalTests === 0) failed += 1;
   skipped += r.numPendingTests + r.numTodoTests;
