@@ -397,7 +397,7 @@ const CONSTRUCTION_HINTS: Record<string, string> = {
 const IMPROVE_HINTS: Record<string, string> = {
   none: '',
   local: ' Then 2-opt and Or-opt moves (reverse a stretch, move a run of stops) until none shortens the walk.',
-  deep: ' Then deep search: 2-opt/Or-opt, then repeated random double-bridge kicks with local search after each, keeping the best, within a fixed step budget; on trips of 200 stops or more, several such searches whose best parts are combined.',
+  deep: ' Then deep search: a Lin–Kernighan search with 3-opt steps, then repeated random double-bridge kicks, each repaired by that search, keeping the best, within a fixed step budget; on trips of 200 stops or more, several such searches whose best parts are combined.',
 };
 
 /** One or two sentences per routing method, shown beside its name in the study screens. */

@@ -76,7 +76,7 @@ test('the new-study form describes each method and shows a refused what-if on it
   await page.getByRole('button', { name: 'New study' }).click();
 
   // Each method carries its description beside its name.
-  await expect(page.getByText('Then deep search: 2-opt/Or-opt, then repeated random double-bridge kicks').first()).toBeVisible();
+  await expect(page.getByText('Then deep search: a Lin–Kernighan search with 3-opt steps, then repeated random double-bridge kicks').first()).toBeVisible();
   await expect(page.getByText('the usual rule when nothing else is planned')).toBeVisible();
   await expect(page.getByText('Carts are merged pairwise where sharing a trip saves the most walking.').first()).toBeVisible();
 
