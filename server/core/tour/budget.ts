@@ -27,6 +27,13 @@ export function budgetOf(opts: BudgetOptions = {}): Budget {
   return { clock, deadline, expired: deadline === Infinity ? () => false : () => clock() >= deadline };
 }
 
+/** The part of `budget` that ends at `at` on its clock (or at its own deadline, whichever is first). */
+export function budgetUntil(budget: Budget, at: number): Budget {
+  const { clock } = budget;
+  const deadline = Math.min(budget.deadline, at);
+  return { clock, deadline, expired: () => clock() >= deadline };
+}
+
 /** Thrown by a method that cannot return any answer before its budget runs out (only the exact one). */
 export class TimeLimitError extends Error {
   constructor(message: string) {

@@ -20,7 +20,7 @@ import type { DistanceMatrix } from '../matrix';
 import { circuitLength } from '../matrix';
 import type { Rng } from '../rng';
 import type { Budget } from './budget';
-import { TimeLimitError } from './budget';
+import { budgetUntil, TimeLimitError } from './budget';
 import { heldKarp } from './exact';
 import type { LocalSearch, Neighbors } from './local';
 import { neighborLists, neighborsFor } from './local';
@@ -101,16 +101,12 @@ export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget:
   const clock = budget.clock;
   const total = Math.max(0, budget.deadline - clock());
   const streams = streamsFor(n, total);
-  const until = (at: number): Budget => {
-    const deadline = Math.min(budget.deadline, at);
-    return { clock, deadline, expired: () => clock() >= deadline };
-  };
   const start = Array.from(ls.tour);
   let held: number[] | undefined;
   let heldLength = Infinity;
   const share = (1 - TAIL_SHARE) / streams;
   for (let s = 0; s < streams && !budget.expired(); s++) {
-    const part = until(s === streams - 1 ? budget.deadline - total * TAIL_SHARE : clock() + total * share);
+    const part = budgetUntil(budget, s === streams - 1 ? budget.deadline - total * TAIL_SHARE : clock() + total * share);
     if (s > 0) ls.load(start, []);
     const found = iterate(ls, part, rng);
     if (!held) {

@@ -10,7 +10,7 @@ import { circuitLength } from '../matrix';
 import { createRng } from '../rng';
 import { alphaNeighbors } from './alpha';
 import type { Budget } from './budget';
-import { budgetOf, TimeLimitError } from './budget';
+import { budgetOf, budgetUntil, TimeLimitError } from './budget';
 import { oneTreeBound } from './bound';
 import { canonicalize } from './circuit';
 import { nearestNeighbor, repeatedNearestNeighbor, SORTED_EDGES_ALL_PAIRS_MAX, sortedEdges } from './construct';
@@ -156,9 +156,7 @@ const usesAlpha = (n: number, limitMs: number): boolean => n >= ALPHA_MIN_POINTS
  * complete.
  */
 function candidateLists(m: DistanceMatrix, order: number[], depot: number, limitMs: number, budget: Budget): Neighbors | undefined {
-  const clock = budget.clock;
-  const deadline = Math.min(budget.deadline, clock() + limitMs * ASCENT_SHARE);
-  const ascent: Budget = { clock, deadline, expired: () => clock() >= deadline };
+  const ascent = budgetUntil(budget, budget.clock() + limitMs * ASCENT_SHARE);
   return alphaNeighbors(m, { k: ALPHA_CANDIDATES, upper: circuitLength(m, order), budget: ascent, special: depot, stop: budget });
 }
 
