@@ -67,19 +67,16 @@ export const MANY_STREAMS = 4;
 export const MANY_STREAMS_MS_PER_POINT = 0.5;
 /** Share of the budget after the first descent that continues from the merged child. */
 export const TAIL_SHARE = 0.3;
-/*
- * The search behind the kicks (measured at 1 s CPU, seeds 1–4, same run, after the streams above): the
- * k-opt search (./kopt.ts) against ./local.ts's 2-opt / Or-opt / Lin–Kernighan chains — kroA200, lin318,
- * pr439, rat575, u724 mean 0.030 % against 0.076 % above the optimum; pr1002 0.34 % against 0.52 %;
- * d1291 0.54 % against 1.03 %; random trips of 100–199 stops at 30 ms as good or better (150 stops:
- * 0.15 % against 0.49 % above a 500 ms run).
- */
 
 /**
  * Improves a circuit until `budget` expires. It first takes `order` to a local optimum of the k-opt
- * search over the candidate lists, then kicks it (see above). Trips of ≤ 12
- * points are solved exactly by Held–Karp (a few milliseconds) when the budget allows. Needs a finite
- * budget; each kick costs O(segment) plus a local repair and, when rejected, its undo.
+ * search over the candidate lists, then kicks it (see above); below STREAMS_MIN_POINTS one search has
+ * the whole budget. The k-opt search against ./local.ts's 2-opt / Or-opt / Lin–Kernighan chains behind
+ * the kicks (1 s CPU, seeds 1–4, same run): kroA200, lin318, pr439, rat575, u724 mean 0.030 % against
+ * 0.076 % above the optimum; pr1002 0.34 % against 0.52 %; d1291 0.54 % against 1.03 %; random trips of
+ * 100–199 stops at 30 ms as good or better (150 stops: 0.15 % against 0.49 % above a 500 ms run).
+ * Trips of ≤ 12 points are solved exactly by Held–Karp (a few milliseconds) when the budget allows.
+ * Needs a finite budget; each kick costs O(segment) plus a local repair and, when rejected, its undo.
  * Returns the circuit from an arbitrary point (the caller rotates it to the depot).
  */
 export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget: Budget, rng: Rng, neighbors?: Neighbors): number[] {
@@ -101,6 +98,7 @@ export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget:
   const clock = budget.clock;
   const total = Math.max(0, budget.deadline - clock());
   const streams = streamsFor(n, total);
+  if (streams === 1) return iterate(ls, budget, rng);
   const start = Array.from(ls.tour);
   let held: number[] | undefined;
   let heldLength = Infinity;
