@@ -26,7 +26,7 @@ import type { Budget } from './budget';
 import type { LocalSearch, Neighbors } from './local';
 import { createKicks } from './kicks';
 import { createPointQueue } from './queue';
-import { penalised, PENALISED_COPY_MAX_POINTS } from './local';
+import { comparisonOf } from './local';
 
 /** Largest k of the sequential move (Helsgaun 2000's basis move). */
 export const KOPT_MAX_K = 5;
@@ -79,10 +79,7 @@ export function createKOptSearch(m: DistanceMatrix, neighbors: Neighbors, opts: 
   const pos = new Int32Array(n);
   const queue = createPointQueue(n);
 
-  const pen = neighbors.pi;
-  // As ./local.ts: with penalties, one copy of the matrix with them added up to PENALISED_COPY_MAX_POINTS.
-  const dp = pen && n <= PENALISED_COPY_MAX_POINTS ? penalised(d, pen, n) : d;
-  const dist = pen && dp === d ? (a: number, b: number): number => d[a * n + b]! + pen[a]! + pen[b]! : (a: number, b: number): number => dp[a * n + b]!;
+  const dist = comparisonOf(m, neighbors.pi);
   let maxD = 0;
   for (let i = 0; i < n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
   // Each point's cheapest candidate edge: a chain can only go on from t2k when its gain exceeds it.

@@ -180,8 +180,21 @@ export interface LocalSearch {
 /** Up to this many points a penalised search keeps its own copy of the matrix (8·n² bytes: 32 MB at 2,000). */
 export const PENALISED_COPY_MAX_POINTS = 2000;
 
+/**
+ * The length a search compares for the pair (a, b): d(a, b), or with penalties π d(a, b) + π(a) + π(b).
+ * With penalties up to PENALISED_COPY_MAX_POINTS one copy of the matrix with them added keeps one
+ * lookup per comparison (deep's kicks ran about a fifth faster, TSPLIB pr439/u724, same run).
+ */
+export function comparisonOf(m: DistanceMatrix, pen: Float64Array | undefined): (a: number, b: number) => number {
+  const n = m.n;
+  const d = m.d;
+  if (pen && n > PENALISED_COPY_MAX_POINTS) return (a, b) => d[a * n + b]! + pen[a]! + pen[b]!;
+  const dp = pen ? penalised(d, pen, n) : d;
+  return (a, b) => dp[a * n + b]!;
+}
+
 /** d(a, b) + π(a) + π(b) for every pair, row-major. */
-export function penalised(d: ArrayLike<number>, pi: Float64Array, n: number): Float64Array {
+function penalised(d: ArrayLike<number>, pi: Float64Array, n: number): Float64Array {
   const out = new Float64Array(n * n);
   for (let a = 0; a < n; a++) {
     const row = a * n;
@@ -247,11 +260,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
   const succ = (c: number): number => tour[pos[c]! + 1 === n ? 0 : pos[c]! + 1]!;
   const pred = (c: number): number => tour[pos[c]! === 0 ? n - 1 : pos[c]! - 1]!;
   // Without penalties the plain lookup (the extra loads cost `local` on small trips about a third).
-  const pen = neighbors.pi;
-  // With penalties up to PENALISED_COPY_MAX_POINTS, one copy of the matrix with them added keeps one
-  // lookup per comparison (deep's kicks ran about a fifth faster, TSPLIB pr439/u724, same run).
-  const dp = pen && n <= PENALISED_COPY_MAX_POINTS ? penalised(d, pen, n) : d;
-  const dist = pen && dp === d ? (a: number, b: number): number => d[a * n + b]! + pen[a]! + pen[b]! : (a: number, b: number): number => dp[a * n + b]!;
+  const dist = comparisonOf(m, neighbors.pi);
 
   /** Reverses the tour path from u forward to v (or, equivalently, its shorter complement). */
   const reversePath = (u: number, v: number): void => {
