@@ -9,6 +9,7 @@ import type { Budget } from './budget';
 import { canonicalize } from './circuit';
 import type { Neighbors } from './local';
 import { DEFAULT_NEIGHBORS, neighborLists } from './local';
+import { createDisjointSets } from './disjoint-sets';
 
 /**
  * Nearest neighbor from `start`: always walk to the closest unvisited point, then back.
@@ -154,21 +155,13 @@ export function sortedEdges(m: DistanceMatrix, depot: number, budget?: Budget, n
   const sorted =
     n <= SORTED_EDGES_ALL_PAIRS_MAX ? idx.sort((x, y) => w[x]! - w[y]! || x - y) : idx.sort((x, y) => w[x]! - w[y]! || ea[x]! - ea[y]! || eb[x]! - eb[y]!);
 
-  const parent = new Int32Array(n);
-  for (let i = 0; i < n; i++) parent[i] = i;
-  const find = (x: number): number => {
-    while (parent[x] !== x) {
-      parent[x] = parent[parent[x]!]!;
-      x = parent[x]!;
-    }
-    return x;
-  };
+  const { find, union } = createDisjointSets(n);
   const deg = new Uint8Array(n);
   // Two adjacency slots per point; -1 is empty.
   const adj = new Int32Array(2 * n).fill(-1);
   let taken = 0;
   const link = (a: number, b: number): void => {
-    parent[find(a)] = find(b);
+    union(a, b);
     adj[2 * a + deg[a]!] = b;
     adj[2 * b + deg[b]!] = a;
     deg[a]!++;

@@ -9,6 +9,7 @@
  * circuits from different searches. O(n).
  */
 import type { DistanceMatrix } from '../matrix';
+import { createDisjointSets } from './disjoint-sets';
 
 export interface MergeResult {
   /** The child circuit, from point 0. */
@@ -55,27 +56,19 @@ export function mergeCircuits(m: DistanceMatrix, a: ArrayLike<number>, b: ArrayL
   const inA = (u: number, v: number): boolean => na[2 * u] === v || na[2 * u + 1] === v;
 
   // Components of the graph of edges in exactly one parent (union–find).
-  const parent = new Int32Array(n);
-  for (let v = 0; v < n; v++) parent[v] = v;
-  const find = (x: number): number => {
-    while (parent[x] !== x) {
-      parent[x] = parent[parent[x]!]!;
-      x = parent[x]!;
-    }
-    return x;
-  };
+  const { find, union } = createDisjointSets(n);
   const own = new Uint8Array(n);
   for (let v = 0; v < n; v++) {
     for (let s = 0; s < 2; s++) {
       const u = na[2 * v + s]!;
       if (!inB(v, u)) {
         own[v] = 1;
-        parent[find(u)] = find(v);
+        union(u, v);
       }
       const w = nbB[2 * v + s]!;
       if (!inA(v, w)) {
         own[v] = 1;
-        parent[find(w)] = find(v);
+        union(w, v);
       }
     }
   }
