@@ -43,3 +43,30 @@ export function bestOrOptGain(m: DistanceMatrix, order: readonly number[]): numb
   }
   return best;
 }
+
+/**
+ * Largest shortening any double bridge gives (the 4-opt move A1 A2 A3 A4 → A1 A4 A3 A2 of Martin, Otto &
+ * Felten 1991, as Johnson & McGeoch 1997 write it; ≤ 0 when none shortens), with its cut positions:
+ * every choice of four segments of at least one point, each circuit rebuilt and re-summed. O(n⁵).
+ */
+export function bestDoubleBridgeGain(m: DistanceMatrix, order: readonly number[]): { gain: number; next: number[] } {
+  const n = order.length;
+  const base = circuitLength(m, order);
+  let best = -Infinity;
+  let next: number[] = [...order];
+  // Cuts after positions p < q < r < s; A1 = order[s+1 … p] (wrapping), A2 = (p, q], A3 = (q, r], A4 = (r, s].
+  for (let p = 0; p < n; p++)
+    for (let q = p + 1; q < n; q++)
+      for (let r = q + 1; r < n; r++)
+        for (let s = r + 1; s < n; s++) {
+          if ((p - s + n) % n === 0) continue; // A1 needs a point
+          const a1 = [...order.slice(s + 1), ...order.slice(0, p + 1)];
+          const out = [...a1, ...order.slice(r + 1, s + 1), ...order.slice(q + 1, r + 1), ...order.slice(p + 1, q + 1)];
+          const gain = base - circuitLength(m, out);
+          if (gain > best) {
+            best = gain;
+            next = out;
+          }
+        }
+  return { gain: best, next };
+}

@@ -17,7 +17,8 @@ import { nearestNeighbor, repeatedNearestNeighbor, SORTED_EDGES_ALL_PAIRS_MAX, s
 import { improveDeep } from './deep';
 import { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 import type { Neighbors } from './local';
-import { improveLocal, localMovesFor, neighborLists, neighborsFor } from './local';
+import { descend } from './descent';
+import { localMovesFor, neighborLists, neighborsFor } from './local';
 
 export { heldKarp, HELD_KARP_MAX_POINTS } from './exact';
 export type { TourResult } from './exact';
@@ -126,7 +127,7 @@ export function solveTour(m: DistanceMatrix, opts: SolveTourOptions): SolveTourR
     }
   }
 
-  if (improve === 'local') order = improveLocal(m, order, budget, localMovesFor(n), lists());
+  if (improve === 'local') order = descend(m, order, budget, localMovesFor(n), lists());
   else if (improve === 'deep') {
     const search = usesAlpha(n, limit) ? (candidateLists(m, order, depot, limit, budget) ?? lists()) : lists();
     order = improveDeep(m, order, budget, createRng(opts.seed ?? 1), search);

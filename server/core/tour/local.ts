@@ -177,6 +177,23 @@ export interface LocalSearch {
   readonly neighbors: Neighbors;
 }
 
+/**
+ * The least gain a move must bring: 1e-9 of the longest distance seen, or equal-length circuits could
+ * swap forever on rounding noise. The scale comes from the depot's row and each point's farthest listed
+ * neighbour, in O(n) (not O(n²)).
+ */
+export function gainEpsilon(m: DistanceMatrix, neighbors: Neighbors): number {
+  const { n, d } = m;
+  const { k: K, list: nb } = neighbors;
+  let maxD = 0;
+  for (let i = 0; i < n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
+  for (let i = 0; K > 0 && i < n; i++) {
+    const v = d[i * n + nb[i * K + K - 1]!]!;
+    if (v > maxD && Number.isFinite(v)) maxD = v;
+  }
+  return 1e-9 * Math.max(1, maxD);
+}
+
 /** Up to this many points a penalised search keeps its own copy of the matrix (8·n² bytes: 32 MB at 2,000). */
 export const PENALISED_COPY_MAX_POINTS = 2000;
 
@@ -212,15 +229,7 @@ export function createLocalSearch(m: DistanceMatrix, moves: LocalMoves = BOTH, n
   const tour = new Int32Array(n);
   const pos = new Int32Array(n);
   const queue = createPointQueue(n);
-  let maxD = 0;
-  // The depot's row and each point's farthest listed neighbour give the scale in O(n) (not O(n²)).
-  for (let i = 0; i < n; i++) if (d[i]! > maxD && Number.isFinite(d[i]!)) maxD = d[i]!;
-  for (let i = 0; K > 0 && i < n; i++) {
-    const v = d[i * n + nb[i * K + K - 1]!]!;
-    if (v > maxD && Number.isFinite(v)) maxD = v;
-  }
-  // Moves must gain more than rounding noise, or equal-length circuits could swap forever.
-  const eps = 1e-9 * Math.max(1, maxD);
+  const eps = gainEpsilon(m, neighbors);
   const moves3 = { twoOpt: moves.twoOpt, orOpt: moves.orOpt, lk: moves.lk === true };
   const lkBreadth = moves.lkBreadth ?? LK_BREADTH_NARROW;
   const or3 = moves.or3 === true;
