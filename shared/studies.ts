@@ -397,7 +397,7 @@ const CONSTRUCTION_HINTS: Record<string, string> = {
 const IMPROVE_HINTS: Record<string, string> = {
   none: '',
   local:
-    ' Then 2-opt and Or-opt moves (reverse a stretch, move a run of stops), and on trips of over 150 stops longer exchanges of up to four links, together with the swap of two stretches that no chain of such moves makes, until none shortens the walk. No randomness: the same trip always gets the same circuit.',
+    ' Then 2-opt and Or-opt moves (reverse a stretch, move a run of stops) and swaps of two stretches, plus exchanges of up to four links on trips of over 150 stops, until none shortens the walk. The same trip always gets the same circuit.',
   deep: ' Then deep search: a Lin–Kernighan search with 3-opt steps, then repeated random double-bridge kicks, each repaired by that search, keeping the best, within a fixed step budget; on trips of 200 stops or more, several such searches, each from its own starting circuit, whose best parts are combined.',
 };
 

@@ -77,6 +77,7 @@ test('the new-study form describes each method and shows a refused what-if on it
 
   // Each method carries its description beside its name.
   await expect(page.getByText('Then deep search: a Lin–Kernighan search with 3-opt steps, then repeated random double-bridge kicks').first()).toBeVisible();
+  await expect(page.getByText('and swaps of two stretches, plus exchanges of up to four links on trips of over 150 stops').first()).toBeVisible();
   await expect(page.getByText('the usual rule when nothing else is planned')).toBeVisible();
   await expect(page.getByText('Carts are merged pairwise where sharing a trip saves the most walking.').first()).toBeVisible();
 
