@@ -76,7 +76,13 @@ export const DEEP_STREAMS = 2;
  * six 0.078 %, eight 0.051 %.
  */
 export const MANY_STREAMS = 4;
-/** Budget per point (ms) from which MANY_STREAMS run: up to 2,000 points at 1 s. */
+/**
+ * Budget per point (ms), as `improveDeep` receives it, from which MANY_STREAMS run: at 1 s up to about
+ * 1,400 points with α-nearness lists (their steps and values take a quarter of the budget first) and
+ * about 1,900 without. d1291 at 1 s (0.7 ms per point when the improvement starts), seeds 1–20: four searches
+ * 0.44 %, two or four as the first descent's time fell 0.63 %; pr2392 at 1 s (0.4 ms), seeds 1–8: two
+ * searches 0.77 %, four 0.87 %.
+ */
 export const MANY_STREAMS_MS_PER_POINT = 0.5;
 /** Share of the budget after the first descent that continues from the merged child. */
 export const TAIL_SHARE = 0.3;
@@ -103,6 +109,10 @@ export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget:
       if (!(e instanceof TimeLimitError)) throw e;
     }
   }
+  // How many searches is settled on the budget as it comes, not on what the first descent leaves of it:
+  // that descent's time varies from run to run (the code is compiled as it runs) and sat at the line
+  // between two and four searches on d1291 at 1 s, so seeds drew either.
+  const streams = streamsFor(n, Math.max(0, budget.deadline - budget.clock()));
   const ls = createKOptSearch(m, neighbors ?? neighborLists(m, neighborsFor(n)));
   ls.load(order);
   ls.run(budget, n <= DEEP_FULL_SCAN_MAX_POINTS);
@@ -110,7 +120,6 @@ export function improveDeep(m: DistanceMatrix, order: ArrayLike<number>, budget:
   // Independent searches, each from its own circuit, their circuits merged, and the search goes on from the child.
   const clock = budget.clock;
   const total = Math.max(0, budget.deadline - clock());
-  const streams = streamsFor(n, total);
   if (streams === 1) return iterate(ls, budget, rng);
   const start = Array.from(ls.tour);
   let held: number[] | undefined;
