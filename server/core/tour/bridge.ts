@@ -1,3 +1,4 @@
+import type { Budget } from './budget';
 import type { Neighbors } from './local';
 
 /**
@@ -21,9 +22,16 @@ export interface BridgeMove {
  * second joins the two circuits again by the same exchange on one edge of each, one new edge again a
  * candidate, and the move is taken when both together gain more than `eps` (LKH's non-sequential
  * moves: K. Helsgaun, Math. Prog. Comp. 1, 2009, section 5.3). The second exchange walks the smaller
- * of the two circuits: O(Σ smaller size · K) over the first exchanges with a positive gain.
+ * of the two circuits: O(Σ smaller size · K) over the first exchanges with a positive gain. When `budget`
+ * expires during the sweep (tested every 32 points) it gives up and returns undefined.
  */
-export function bestDoubleBridge(tour: Int32Array, dist: (a: number, b: number) => number, neighbors: Neighbors, eps: number): BridgeMove | undefined {
+export function bestDoubleBridge(
+  tour: Int32Array,
+  dist: (a: number, b: number) => number,
+  neighbors: Neighbors,
+  eps: number,
+  budget?: Budget,
+): BridgeMove | undefined {
   const n = tour.length;
   if (n < 8) return undefined;
   const K = neighbors.k;
@@ -47,6 +55,7 @@ export function bestDoubleBridge(tour: Int32Array, dist: (a: number, b: number) 
   let r0 = -1;
   let s0 = -1;
   for (let x = 0; x < n; x++) {
+    if ((x & 31) === 31 && budget?.expired()) return undefined;
     for (let k = 0; k < K; k++) {
       const y = nb[x * K + k]!;
       for (let role = 0; role < 2; role++) {

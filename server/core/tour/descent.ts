@@ -46,7 +46,7 @@ export function descend(m: DistanceMatrix, order: ArrayLike<number>, budget: Bud
   if (n <= DESCENT_KOPT_FROM) {
     for (;;) {
       if (!ls.run(budget, true)) return Array.from(ls.tour);
-      const bridge = bestDoubleBridge(ls.tour, dist, neighbors, eps);
+      const bridge = bestDoubleBridge(ls.tour, dist, neighbors, eps, budget);
       if (!bridge) return Array.from(ls.tour);
       ls.doubleBridge(bridge.at, bridge.l1, bridge.l2, bridge.l3);
     }
@@ -56,7 +56,7 @@ export function descend(m: DistanceMatrix, order: ArrayLike<number>, budget: Bud
   ks.load(ls.tour);
   for (;;) {
     if (!ks.run(budget, false)) return Array.from(ks.tour);
-    const bridge = bestDoubleBridge(ks.tour, dist, neighbors, eps);
+    const bridge = bestDoubleBridge(ks.tour, dist, neighbors, eps, budget);
     if (bridge) {
       ks.doubleBridge(bridge.at, bridge.l1, bridge.l2, bridge.l3);
       continue;

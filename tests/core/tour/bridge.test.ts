@@ -78,6 +78,13 @@ describe('bestDoubleBridge', () => {
     expect(move!.gain).toBeGreaterThanOrEqual(gain - 1e-6);
   });
 
+  it('gives up, finding nothing, once its budget has expired', () => {
+    const m = randomEuclidean(100, 8);
+    const order = Int32Array.from(shuffled(100, 8));
+    expect(bestDoubleBridge(order, plain(m), neighborLists(m, 10), tol(m) / 2)).toBeDefined();
+    expect(bestDoubleBridge(order, plain(m), neighborLists(m, 10), tol(m) / 2, budgetOf({ timeLimitMs: 0 }))).toBeUndefined();
+  });
+
   it('Kicks.doubleBridge applies the move it describes with exactly its length change', () => {
     const m = randomEuclidean(60, 31);
     const order = shuffled(60, 31);
