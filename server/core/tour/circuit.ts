@@ -22,3 +22,14 @@ export function canonicalize(order: number[], depot: number): number[] {
   }
   return order;
 }
+
+/** Each point's two neighbours on the circuit `order` (n ≥ 3): nb[2v], nb[2v + 1]. O(n). */
+export function neighboursOf(order: ArrayLike<number>, n: number): Int32Array {
+  const nb = new Int32Array(2 * n);
+  for (let i = 0; i < n; i++) {
+    const v = order[i]!;
+    nb[2 * v] = order[i === 0 ? n - 1 : i - 1]!;
+    nb[2 * v + 1] = order[i + 1 === n ? 0 : i + 1]!;
+  }
+  return nb;
+}

@@ -62,7 +62,8 @@ export const STREAMS_MIN_POINTS = 200;
  * the first local optimum often crosses from the bottom row to the next block by a 791-unit edge that
  * costs ≈ 1.5 %, and every search kept it. Measured (CPU clock, against the TSPLIB optima; all
  * searches from one local optimum → the others from nearest-neighbor circuits from random points):
- * d1291 at 1 s, seeds 1–20, 1.25 → 0.36 % (worst seed 2.61 → 1.03 %); at 5 s, seeds 1–4, 0.57 → 0.17 %;
+ * d1291 at 1 s, seeds 1–20, 1.25 → 0.36 % in one run (worst seed 2.61 → 1.03 %), 0.86 → 0.63 % in
+ * another (this commit's code against the one before); at 5 s, seeds 1–4, 0.57 → 0.17 %;
  * pr2392 at 5 s 0.41 → 0.30 %; lin318, pr439, rat575, u724 and rat783 at 1 s (seeds 1–6) 0.063 → 0.032 %;
  * pr1002 0.27 → 0.26 % (1 s) and 0.04 → 0.04 % (5 s); pr2392 at 1 s 0.67 → 0.73 % (two searches).
  * Randomly perturbed sorted-edges circuits gave less (d1291 1 s: 0.67 %).

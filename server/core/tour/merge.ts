@@ -9,6 +9,7 @@
  * circuits from different searches. O(n).
  */
 import type { DistanceMatrix } from '../matrix';
+import { neighboursOf } from './circuit';
 import { createDisjointSets } from './disjoint-sets';
 
 export interface MergeResult {
@@ -18,17 +19,6 @@ export interface MergeResult {
   length: number;
   /** Components where the two parents could be exchanged. */
   components: number;
-}
-
-/** Each point's two neighbours on the circuit `order` (n ≥ 3): nb[2v], nb[2v + 1]. */
-function neighboursOf(order: ArrayLike<number>, n: number): Int32Array {
-  const nb = new Int32Array(2 * n);
-  for (let i = 0; i < n; i++) {
-    const v = order[i]!;
-    nb[2 * v] = order[i === 0 ? n - 1 : i - 1]!;
-    nb[2 * v + 1] = order[i + 1 === n ? 0 : i + 1]!;
-  }
-  return nb;
 }
 
 /**
