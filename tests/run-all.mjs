@@ -54,5 +54,6 @@ if (!existsSync(chromium)) {
   }
 }
 
+run('node', ['tests/list-failures.mjs', 'test-results/vitest.json', 'test-results/e2e.json']);
 console.log(`\n${passed} passed, ${failed} failed, ${skipped} skipped`);
 process.exit(failed > 0 ? 1 : 0);
