@@ -18,7 +18,7 @@ import { loadavg } from 'node:os';
 import { batchOrders } from '../../server/core/batch/index';
 import type { SearchStats } from '../../server/core/batch/index';
 import type { Clock } from '../../server/core/clock';
-import { planWave, policyComparisonOf } from '../../server/core/batch/plan-wave';
+import { BATCHING_SHARE, DEFAULT_WAVE_TIME_LIMIT_MS, planWave, policyComparisonOf } from '../../server/core/batch/plan-wave';
 import type { PlanWaveResult } from '../../server/core/batch/plan-wave';
 import type { BatchingMethod, Cart } from '../../server/core/batch/types';
 import type { RectangularPlanParams } from '../../server/core/plan/generate';
@@ -88,8 +88,8 @@ const SEARCH_SCENARIOS: SearchScenario[] = [
   { floor: siteOf(24, 50, 4, 2), orders: { orders: 400, minLines: 1, maxLines: 6 }, cart: { totes: 16, maxKg: 300, maxLitres: 800 }, seed: 14 },
 ];
 
-/** The wave builder's batching budget: 40 % of the default 8 s wave budget (server/core/batch/plan-wave.ts). */
-const DEFAULT_SEARCH_MS = 3200;
+/** The wave builder's batching budget: its share of the default wave budget (3.2 s of 8 s). */
+const DEFAULT_SEARCH_MS = BATCHING_SHARE * DEFAULT_WAVE_TIME_LIMIT_MS;
 const SEARCH_GOAL_PCT = 6;
 const PLAN_SEARCH_TARGET_MS = 8000;
 

@@ -149,6 +149,8 @@ export interface PlanWaveResult {
 }
 
 export const DEFAULT_WAVE_TIME_LIMIT_MS = 8000;
+/** Batching's share of the wave budget at most (the trips' routing gets what it leaves). */
+export const BATCHING_SHARE = 0.4;
 const DEFAULT_TRIP_TIME_LIMIT_MS = 1000;
 const DEFAULT_BOUND_TIME_LIMIT_MS = 50;
 
@@ -156,7 +158,7 @@ const DEFAULT_BOUND_TIME_LIMIT_MS = 50;
  * Plans a wave. Cost: batching (see ./index.ts) plus, per trip of k stops, the routing method (e.g.
  * `best` + `local`: O(k³) construction, then local search) and O(k²) per bound iteration; plus one
  * circuit per placed order for the one-order-per-trip comparison. The budget is shared: batching
- * takes at most 40 %, each trip an equal share of what is left (never more than
+ * takes at most BATCHING_SHARE (40 %), each trip an equal share of what is left (never more than
  * `routing.timeLimitMs`). A trip whose circuit cannot be found by `exact` (over 16 stops, or out of
  * time) falls back to `best` + `local`, noted in `notes`. An empty wave returns no trips and zero totals.
  *
@@ -188,12 +190,12 @@ export function planWave(opts: PlanWaveOptions): PlanWaveResult {
     method: opts.batching,
     depotNode: opts.depotNode,
     distance: opts.distance,
-    timeLimitMs: total * 0.4,
+    timeLimitMs: total * BATCHING_SHARE,
     clock,
-    progress: (f) => report(0.4 * f),
+    progress: (f) => report(BATCHING_SHARE * f),
     ...(opts.seedRule ? { seedRule: opts.seedRule } : {}),
   });
-  if (batched.budgetExpired) notes.push(`batching used its ${Math.round(total * 0.4)} ms budget and finished with cheaper choices`);
+  if (batched.budgetExpired) notes.push(`batching used its ${Math.round(total * BATCHING_SHARE)} ms budget and finished with cheaper choices`);
   const { table, needs } = batched;
   const needOf = new Map<number, OrderNeed>(needs.map((nd) => [nd.index, nd]));
 

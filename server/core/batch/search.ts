@@ -11,7 +11,7 @@
  * trip's current circuit (cheapest insertion of the new stops, the circuit with the leaving stops
  * skipped) rank every shift and swap around an order; the best few get the quick estimate (that
  * circuit improved by 2-opt and Or-opt moves around the changed places only); a move the quick
- * estimate finds shorter is measured with the real router (repeated nearest neighbor + local search),
+ * estimate finds shorter is measured with the router (repeated nearest neighbor + 2-opt, Or-opt and chains, see searchRoute),
  * whose lengths are cached by order set, and the first one the router confirms is applied. A kick's
  * circuits follow the quick estimate while it removes and reinserts; the router measures each trip it
  * touched once at the end.
@@ -23,9 +23,13 @@
  * best wave. Randomness only through the seeded generator; time only through the
  * budget's clock, so a stepping clock gives the same wave for the same seed.
  */
-import { matrixOf } from '../matrix';
+import { circuitLength, matrixOf } from '../matrix';
+import type { DistanceMatrix } from '../matrix';
 import type { Rng } from '../rng';
+import { canonicalize } from '../tour/circuit';
+import { repeatedNearestNeighbor } from '../tour/construct';
 import { solveTour } from '../tour/index';
+import { improveLocal, neighborLists, neighborsFor } from '../tour/local';
 import type { BatchContext, Load } from './context';
 import { closeness } from './route-length';
 import { batchSavings } from './savings';
@@ -46,11 +50,18 @@ const RELATED = 16;
 /** Largest number of orders removed by one kick. */
 const MAX_RUIN = 10;
 /**
- * The router moves are measured with: repeated nearest neighbor + local search (the wave's default
- * routing without its sorted-edges construction, about half the cost). The final choice between the
- * search's best wave and savings' is measured with the wave's own routing.
+ * The router moves are measured with: repeated nearest neighbor, then 2-opt, Or-opt and the narrow
+ * Lin–Kernighan-style chains (improveLocal's default moves) — `local` without its or-3opt alternative
+ * and double-bridge sweep, about a quarter of its cost on trips of 35–45 stops, so the search measures
+ * three times as many moves in its budget. The final choice between the search's best wave and
+ * savings' is measured with the wave's own routing (best + local). Bench sites, default budget (3.2 s
+ * CPU), search seeds 1–8: 6.33 % less walking than savings with repeated nearest neighbor + `local`,
+ * 6.98 % with this one (2-opt + Or-opt alone: 6.87 %).
  */
-const ROUTER = 'repeated-nearest-neighbor';
+function searchRoute(m: DistanceMatrix): number[] {
+  const lists = neighborLists(m, neighborsFor(m.n));
+  return canonicalize(improveLocal(m, repeatedNearestNeighbor(m, 0, undefined, lists), undefined, undefined, lists), 0);
+}
 /** Kicks without a new best wave before the search goes back to the best one (iterated local search's restart, common practice). */
 const RESTART_AFTER = 100;
 /** Cached trip lengths before the cache is cleared (memory stays bounded on long runs). */
@@ -106,7 +117,7 @@ export function batchSearch(ctx: BatchContext, rng: Rng, stats?: SearchStats): L
   const span = Math.max(1, budget.deadline - t0);
   const report = (): void => ctx.progress(Math.min(1, (clock() - t0) / span));
 
-  // ---- the real router, cached by order set -------------------------------------------------
+  // ---- the router, cached by order set -----------------------------------------------------
   const U = table.size;
   const mark = new Int32Array(U);
   let stamp = 0;
@@ -145,10 +156,11 @@ export function batchSearch(ctx: BatchContext, rng: Rng, stats?: SearchStats): L
         d[j * k + i] = v;
       }
     }
-    const r = solveTour(matrixOf(k, d), { method: ROUTER, improve: 'local', timeLimitMs: Infinity });
+    const m = matrixOf(k, d);
+    const order = searchRoute(m);
     const tour = new Int32Array(k - 1);
-    for (let i = 1; i < k; i++) tour[i - 1] = ids[r.order[i]! - 1]!;
-    const out = { length: r.length, tour };
+    for (let i = 1; i < k; i++) tour[i - 1] = ids[order[i]! - 1]!;
+    const out = { length: circuitLength(m, order), tour };
     if (cache.size >= CACHE_MAX) cache.clear();
     cache.set(key, out);
     routed++;
