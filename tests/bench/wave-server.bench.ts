@@ -2,7 +2,9 @@
  * A 300-order (~1,500-line) wave planned through the server as a supervisor would: POST the preview,
  * poll the job to the end (the engine runs in a job process of its own). Meanwhile another client calls
  * /api/health every 20 ms; its latencies, measured in the same run, show whether planning blocks
- * other requests. Target: the wave in under 3 s on this machine.
+ * other requests. Targets: the wave within 3 s on this machine with the constructions, and within
+ * 8 s with `search`, the default (issue 14: "a 300-order wave still planned in ≤ 8 s"; the preview once
+ * passed a 20 s budget that gave `search` 8 s alone).
  */
 import { performance } from 'node:perf_hooks';
 import { loadavg } from 'node:os';
@@ -14,6 +16,7 @@ import { csrf } from '../helpers/app';
 import { awaitPreview, makeDemoApp } from '../helpers/waves';
 
 const TARGET_MS = 3000;
+const SEARCH_TARGET_MS = 8000;
 const pct = (xs: number[], p: number) => [...xs].sort((a, b) => a - b)[Math.min(xs.length - 1, Math.floor((p / 100) * xs.length))] ?? NaN;
 
 export async function run(): Promise<void> {
@@ -39,7 +42,8 @@ export async function run(): Promise<void> {
     idle.push(performance.now() - s);
   }
   console.log(`load average ${loadavg()[0]!.toFixed(1)} on 2 cores; ${orders.length} orders, ${lines} lines`);
-  for (const batching of ['fcfs', 'seed', 'savings'] as const) {
+  for (const batching of ['fcfs', 'seed', 'savings', 'search'] as const) {
+    const target = batching === 'search' ? SEARCH_TARGET_MS : TARGET_MS;
     const during: number[] = [];
     let planning = true;
     const probe = (async () => {
@@ -58,7 +62,7 @@ export async function run(): Promise<void> {
     await probe;
     const p = job.preview!;
     console.log(
-      `${batching.padEnd(8)} ${ms.toFixed(0).padStart(6)} ms  ${ms < TARGET_MS && p.trips.length > 0 ? 'PASS' : 'FAIL'} (< ${TARGET_MS} ms, trips planned)  trips ${p.trips.length}  ${p.totals.metres.toFixed(0)} m  ` +
+      `${batching.padEnd(8)} ${ms.toFixed(0).padStart(6)} ms  ${ms <= target && p.trips.length > 0 ? 'PASS' : 'FAIL'} (≤ ${target} ms, trips planned)  trips ${p.trips.length}  ${p.totals.metres.toFixed(0)} m  ` +
         `vs single ${p.totals.savingVsSinglePct.toFixed(1)} % less  vs S-shape ${p.totals.savingVsSShapePct?.toFixed(1)} % less  ` +
         `health during: p50 ${pct(during, 50).toFixed(1)} ms p99 ${pct(during, 99).toFixed(1)} ms max ${Math.max(...during).toFixed(1)} ms (idle p50 ${pct(idle, 50).toFixed(1)}, p99 ${pct(idle, 99).toFixed(1)} ms)`,
     );
